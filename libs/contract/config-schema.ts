@@ -1,0 +1,315 @@
+// Site configuration of contract v1 (../shared/contract.md, section 3) plus the project's own sections
+// (processing, sources, outputs, archive, http). Unknown keys are rejected everywhere; defaults live here only.
+import { z } from 'zod';
+import { ID_PATTERN } from './ids.js';
+
+const id = z.string().regex(ID_PATTERN, 'must match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');
+const bearing = z.number().min(0).lt(360);
+
+/** A secret is never inline: it is read from an environment variable or a file (mode 0600 or stricter). */
+export const secretRefSchema = z.union(
+  [
+    z.strictObject({ env: z.string().regex(/^[A-Za-z_][A-Za-z0-9_]*$/) }),
+    z.strictObject({ file: z.string().min(1) }),
+  ],
+  { error: 'secrets are read from {env: NAME} or {file: PATH}, never written inline' },
+);
+export type SecretRef = z.infer<typeof secretRefSchema>;
+
+const sensorCommon = {
+  label: z.string().max(80).optional(),
+  /** Nominal reporting interval; when absent, the stale rule learns it from the data. */
+  interval_s: z.number().positive().max(86400).optional(),
+  /** Set false to keep a sensor configured but ignored (recovered, being serviced). */
+  enabled: z.boolean().default(true),
+};
+
+export const pressureSensorSchema = z.strictObject({
+  kind: z.literal('pressure'),
+  ...sensorCommon,
+  height_m: z.number().min(0).max(50), // sensor height above the bed
+});
+export const adcpSensorSchema = z.strictObject({
+  kind: z.literal('adcp'),
+  ...sensorCommon,
+  height_m: z.number().min(0).max(50),
+  beam_angle_deg: z.number().min(5).max(45).default(20),
+  orientation: z.enum(['up', 'down']).default('up'),
+  declination_deg: z.number().min(-180).max(180).default(0),
+  heading_offset_deg: z.number().min(-180).max(180).default(0),
+  head: z.enum(['convex', 'concave']).default('convex'),
+  first_bin_range_m: z.number().positive().max(100).optional(),
+});
+export const ctdSensorSchema = z.strictObject({ kind: z.literal('ctd'), ...sensorCommon });
+export const oxygenSensorSchema = z.strictObject({
+  kind: z.literal('oxygen'),
+  ...sensorCommon,
+  /** Salinity the optode was set to, when its messages do not say (`sal_setting` in the message wins). */
+  sal_setting: z.number().min(0).max(50).optional(),
+});
+export const pco2SensorSchema = z.strictObject({ kind: z.literal('pco2'), ...sensorCommon });
+export const parSensorSchema = z.strictObject({ kind: z.literal('par'), ...sensorCommon });
+export const metSensorSchema = z.strictObject({
+  kind: z.literal('met'),
+  ...sensorCommon,
+  /** Anemometer height above the sea surface, for the U10 conversion. */
+  wind_height_m: z.number().positive().max(100).default(10),
+});
+export const sampleSensorSchema = z.strictObject({ kind: z.literal('sample'), ...sensorCommon });
+
+export const sensorConfigSchema = z.discriminatedUnion('kind', [
+  pressureSensorSchema,
+  adcpSensorSchema,
+  ctdSensorSchema,
+  oxygenSensorSchema,
+  pco2SensorSchema,
+  parSensorSchema,
+  metSensorSchema,
+  sampleSensorSchema,
+]);
+
+export const stationSchema = z.strictObject({
+  label: z.string().max(80).optional(),
+  position: z
+    .strictObject({ lat: z.number().min(-90).max(90), lon: z.number().min(-180).max(180) })
+    .optional(),
+  sensors: z.record(id, sensorConfigSchema),
+});
+
+export const transectSchema = z.strictObject({
+  upstream: id,
+  downstream: id,
+  length_m: z.number().positive().max(100_000),
+  current: id,
+  pq: z.number().min(0.5).max(2).default(1.0),
+  bearing_deg: bearing.optional(),
+  label: z.string().max(80).optional(),
+  /** When the flow runs backwards, swap upstream and downstream instead of flagging the window. */
+  swap_on_reverse: z.boolean().default(false),
+  min_speed_m_s: z.number().min(0).default(0.02),
+  max_angle_deg: z.number().min(0).max(90).default(30),
+  max_residence_min: z.number().positive().default(240),
+});
+
+const processingSchema = z
+  .strictObject({
+    window_min: z.number().positive().max(360).default(30),
+    cadence_min: z.number().positive().max(360).default(10),
+    lateness_min: z.number().min(0).max(1440).default(10),
+    ctd_match_min: z.number().positive().max(1440).default(30),
+    ctd_average_min: z.number().min(0).max(60).default(5),
+    baro_max_gap_h: z.number().positive().max(48).default(3),
+    default_baro_hpa: z.number().min(800).max(1100).default(1013.25),
+    xco2_air_ppm: z.number().min(100).max(2000).default(425),
+    sample_max_age_h: z
+      .number()
+      .positive()
+      .max(24 * 30)
+      .default(72),
+  })
+  .prefault({});
+
+const carbonateOptionsSchema = z
+  .strictObject({
+    k1k2: z.string().default('lueker2000'),
+    boron: z.string().default('lee2010'),
+  })
+  .prefault({});
+
+const tlsSchema = z.strictObject({
+  ca_file: z.string().optional(),
+  cert_file: z.string().optional(),
+  key_file: z.string().optional(),
+  /** Certificate checks stay on unless a test bench turns them off explicitly. */
+  verify: z.boolean().default(true),
+});
+
+const mqttSourceSchema = z.strictObject({
+  url: z.string().regex(/^(mqtts?|wss?|tcp|ssl):\/\//, 'an mqtt://, mqtts://, ws:// or wss:// URL'),
+  client_id: z.string().min(1).max(64).default('reefd'),
+  username: z.string().optional(),
+  password: secretRefSchema.optional(),
+  tls: tlsSchema.optional(),
+  clean_start: z.boolean().default(false),
+  session_expiry_s: z
+    .int()
+    .min(0)
+    .default(7 * 24 * 3600),
+});
+
+const saslSchema = z.strictObject({
+  mechanism: z.enum(['plain', 'scram-sha-256', 'scram-sha-512']),
+  username: z.string(),
+  password: secretRefSchema,
+});
+
+const kafkaCommon = {
+  brokers: z.array(z.string().min(1)).min(1),
+  client_id: z.string().default('reefd'),
+  tls: tlsSchema.optional(),
+  sasl: saslSchema.optional(),
+};
+
+const kafkaSourceSchema = z.strictObject({
+  ...kafkaCommon,
+  topic: z.string().min(1),
+  group_id: z.string().default('reefd'),
+});
+
+const influxOutputSchema = z.strictObject({
+  url: z.string().url(),
+  /** v2: the /api/v2/write API (InfluxDB 2.x/3.x, VictoriaMetrics); v1: /write?db= of InfluxDB 1.x. */
+  api: z.enum(['v2', 'v1']).default('v2'),
+  org: z.string().default('reefd'),
+  bucket: z.string().default('reefd'),
+  db: z.string().default('reefd'),
+  token: secretRefSchema.optional(),
+  username: z.string().optional(),
+  password: secretRefSchema.optional(),
+  tls: tlsSchema.optional(),
+  batch_size: z.int().positive().max(100_000).default(5000),
+  flush_ms: z.int().positive().max(600_000).default(1000),
+  spool_max_mb: z.number().positive().default(512),
+});
+
+const kafkaOutputSchema = z.strictObject({
+  ...kafkaCommon,
+  topic: z.string().min(1).default('reefd.derived'),
+});
+
+const deadLetterSchema = z.strictObject({
+  path: z.string().optional(),
+  mqtt_topic: z.string().optional(),
+  kafka_topic: z.string().optional(),
+  max_per_min: z.int().positive().default(600),
+});
+
+export const configSchema = z
+  .strictObject({
+    site: id,
+    topic_prefix: z
+      .string()
+      .regex(/^[A-Za-z0-9_.-]+(\/[A-Za-z0-9_.-]+)*$/)
+      .default('reef'),
+    reef_axis_deg: bearing,
+    latitude_deg: z.number().min(-90).max(90).optional(),
+    stations: z.record(id, stationSchema),
+    alkalinity: z
+      .strictObject({
+        source: z.enum(['salinity', 'samples']).default('salinity'),
+        ta_s35_umol_kg: z.number().min(500).max(5000).default(2300),
+      })
+      .prefault({}),
+    transects: z.record(id, transectSchema).default({}),
+    carbonate: carbonateOptionsSchema,
+    processing: processingSchema,
+    sources: z
+      .strictObject({ mqtt: mqttSourceSchema.optional(), kafka: kafkaSourceSchema.optional() })
+      .optional(),
+    outputs: z
+      .strictObject({
+        ndjson: z.strictObject({ path: z.string() }).optional(),
+        influx: influxOutputSchema.optional(),
+        kafka: kafkaOutputSchema.optional(),
+        dead_letter: deadLetterSchema.optional(),
+      })
+      .prefault({}),
+    archive: z
+      .strictObject({
+        dir: z.string().optional(),
+        retention_days: z.int().min(0).default(0),
+        fsync_ms: z.int().min(0).max(10_000).default(200),
+      })
+      .prefault({}),
+    data_dir: z.string().default('./reefd-data'),
+    http: z
+      .strictObject({
+        host: z.string().default('127.0.0.1'),
+        port: z.int().min(0).max(65535).default(8080),
+        token: secretRefSchema.optional(),
+      })
+      .prefault({}),
+  })
+  .superRefine((cfg, ctx) => {
+    const stationIds = new Set(Object.keys(cfg.stations));
+    const kindsAt = (station: string) =>
+      new Set(Object.values(cfg.stations[station]?.sensors ?? {}).map((s) => s.kind));
+    for (const [tid, tr] of Object.entries(cfg.transects)) {
+      for (const role of ['upstream', 'downstream', 'current'] as const) {
+        if (!stationIds.has(tr[role])) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['transects', tid, role],
+            message: `names station "${tr[role]}", which is not under stations`,
+          });
+        }
+      }
+      if (tr.upstream === tr.downstream) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['transects', tid, 'downstream'],
+          message: 'must differ from upstream',
+        });
+      }
+      if (stationIds.has(tr.current) && !kindsAt(tr.current).has('adcp')) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['transects', tid, 'current'],
+          message: `station "${tr.current}" has no adcp sensor to give the depth-averaged velocity`,
+        });
+      }
+      for (const role of ['upstream', 'downstream'] as const) {
+        const st = tr[role];
+        if (!stationIds.has(st)) continue;
+        const kinds = kindsAt(st);
+        if (!kinds.has('pressure')) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['transects', tid, role],
+            message: `station "${st}" has no pressure sensor; the budget takes its depth from one`,
+          });
+        }
+        if (!kinds.has('oxygen')) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['transects', tid, role],
+            message: `station "${st}" has no oxygen sensor; NCP comes from the O2 budget`,
+          });
+        }
+        if (!kinds.has('ctd')) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['transects', tid, role],
+            message: `station "${st}" has no ctd sensor; the budget needs its temperature and salinity`,
+          });
+        }
+      }
+    }
+    if (cfg.alkalinity.source === 'samples') {
+      const any = Object.keys(cfg.stations).some((s) => kindsAt(s).has('sample'));
+      if (!any) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['alkalinity', 'source'],
+          message: 'is "samples" but no station has a sample sensor',
+        });
+      }
+    }
+    for (const [sid, st] of Object.entries(cfg.stations)) {
+      const ctds = Object.values(st.sensors).filter((s) => s.kind === 'ctd').length;
+      if (ctds > 1) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['stations', sid, 'sensors'],
+          message: 'has more than one ctd; name one per station (the station state takes t and S from it)',
+        });
+      }
+    }
+  });
+
+/** The validated configuration, with every default filled in. Frozen by the loader. */
+export type ReefdConfig = z.infer<typeof configSchema>;
+export type ReefdConfigInput = z.input<typeof configSchema>;
+export type SensorConfig = z.infer<typeof sensorConfigSchema>;
+export type StationConfig = z.infer<typeof stationSchema>;
+export type TransectConfig = z.infer<typeof transectSchema>;

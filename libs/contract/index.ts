@@ -1,0 +1,8 @@
+// The v1 contract in code: ids and topics, sensor messages, archive lines, configuration, derived records.
+export * from './ids.js';
+export * from './messages.js';
+export * from './archive.js';
+export * from './records.js';
+export * from './config-schema.js';
+export * from './config-parse.js';
+export * from './errors.js';

@@ -1,0 +1,48 @@
+// `reefd config check FILE`: validates a configuration; exit 0 with a one-line summary, 2 with every problem.
+import { parseArgs } from 'node:util';
+import { formatProblem } from '../../../libs/contract/index.js';
+import { loadConfigFile } from '../../config/load.js';
+import { EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
+
+const HELP = `Usage: reefd config check FILE
+
+Validates a reefd configuration file (YAML). Prints every problem as
+"path: message (line N)" and exits 2, or prints a one-line summary and exits 0.
+`;
+
+export const run: CommandRun = async (args, io) => {
+  const { values, positionals } = parseArgs({
+    args,
+    allowPositionals: true,
+    strict: false,
+    options: { help: { type: 'boolean', short: 'h' } },
+  });
+  if (values.help) {
+    io.stdout(HELP);
+    return EXIT_OK;
+  }
+  const [sub, file, ...rest] = positionals;
+  if (sub !== 'check' || file === undefined || rest.length > 0) {
+    io.stderr(`reefd config: expected "check FILE"\n\n${HELP}`);
+    return EXIT_USAGE;
+  }
+  let result;
+  try {
+    result = await loadConfigFile(file);
+  } catch (err) {
+    io.stderr(`${file}: ${(err as Error).message}\n`);
+    return EXIT_USAGE;
+  }
+  if (!result.ok) {
+    for (const p of result.problems) io.stdout(`${formatProblem(p)}\n`);
+    io.stderr(`${file}: ${result.problems.length} problem(s); the configuration is not valid\n`);
+    return EXIT_USAGE;
+  }
+  const c = result.config;
+  const sensors = Object.values(c.stations).reduce((n, s) => n + Object.keys(s.sensors).length, 0);
+  io.stdout(
+    `${file}: valid: site ${c.site}, ${Object.keys(c.stations).length} stations, ${sensors} sensors, ` +
+      `${Object.keys(c.transects).length} transects\n`,
+  );
+  return EXIT_OK;
+};

@@ -1,0 +1,83 @@
+// The reefd command line: `reefd <command> [options]`. Each command lives in commands/<name>.ts.
+import { readFileSync } from 'node:fs';
+import { EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from './io.js';
+
+interface CommandEntry {
+  summary: string;
+  load: () => Promise<{ run: CommandRun }>;
+}
+
+const notBuilt =
+  (name: string): (() => Promise<{ run: CommandRun }>) =>
+  async () => ({
+    run: async (_args, io) => {
+      io.stderr(`reefd ${name}: not built yet in this version\n`);
+      return EXIT_USAGE;
+    },
+  });
+
+export const COMMANDS: Record<string, CommandEntry> = {
+  run: { summary: 'run the daemon (no --config: the built-in demo)', load: notBuilt('run') },
+  replay: { summary: 'reprocess a raw archive into derived records (NDJSON)', load: notBuilt('replay') },
+  config: {
+    summary: 'validate a configuration file (config check FILE)',
+    load: () => import('./commands/config.js'),
+  },
+  carbonate: { summary: 'solve the seawater carbonate system once', load: notBuilt('carbonate') },
+  simulate: { summary: 'publish the fictional demo reef to a broker', load: notBuilt('simulate') },
+  alerts: { summary: 'list or acknowledge alerts (alerts list|ack ID)', load: notBuilt('alerts') },
+  doctor: { summary: 'check a live install and say what to fix', load: notBuilt('doctor') },
+};
+
+export function version(): string {
+  const pkg = JSON.parse(readFileSync(new URL('../../../package.json', import.meta.url), 'utf8')) as {
+    version: string;
+  };
+  return pkg.version;
+}
+
+function usage(): string {
+  const width = Math.max(...Object.keys(COMMANDS).map((k) => k.length));
+  const lines = Object.entries(COMMANDS).map(([k, c]) => `  ${k.padEnd(width)}  ${c.summary}`);
+  return `Usage: reefd <command> [options]
+
+reefd watches an instrumented coral reef: it checks every sensor value, derives waves, currents,
+the carbonate system and community metabolism, stores them and raises alerts.
+
+Commands:
+${lines.join('\n')}
+
+Global options:
+  --help, -h            help for reefd or a command (reefd <command> --help)
+  --version, -V         print the version
+  --log-level LEVEL     fatal|error|warn|info|debug|trace|silent (default info)
+`;
+}
+
+export function processIo(): CliIo {
+  return {
+    stdout: (s) => void process.stdout.write(s),
+    stderr: (s) => void process.stderr.write(s),
+    env: process.env,
+    isTty: Boolean(process.stdout.isTTY),
+  };
+}
+
+export async function main(argv: string[], io: CliIo = processIo()): Promise<number> {
+  const [name, ...rest] = argv;
+  if (name === undefined || name === '--help' || name === '-h' || name === 'help') {
+    io.stdout(usage());
+    return name === undefined ? EXIT_USAGE : EXIT_OK;
+  }
+  if (name === '--version' || name === '-V') {
+    io.stdout(`reefd ${version()}\n`);
+    return EXIT_OK;
+  }
+  const entry = COMMANDS[name];
+  if (entry === undefined) {
+    io.stderr(`reefd: unknown command "${name}"\n\n${usage()}`);
+    return EXIT_USAGE;
+  }
+  const mod = await entry.load();
+  return mod.run(rest, io);
+}
