@@ -1,0 +1,190 @@
+// Data shapes of the transect flux computation (contract.md `flux` record and `transects` config).
+
+/** QARTOD flag: 1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing. */
+export type QcFlag = 1 | 2 | 3 | 4 | 9;
+
+export type TaSource = 'measured' | 'sample' | 'salinity';
+
+/**
+ * Block means of one station over a window (science.md 1, "Time base"). sigma* are the uncertainties that matter
+ * for station differences (inter-calibration; default: the typical accuracy of science.md 9.3); sem* are the
+ * random standard errors of the window means (they drive the storage sigma, science.md 9.2; default 0).
+ */
+export interface StationWindowMean {
+  tempC: number;
+  salinity: number;
+  o2UmolKg: number;
+  pco2Uatm?: number;
+  taUmolKg?: number;
+  /** Where TA comes from; 'salinity' carries no biological gradient and never feeds the TA budget. */
+  taSource?: TaSource;
+  dicUmolKg?: number;
+  /** Mean water depth at the station [m]. */
+  depthM: number;
+  /** Worst flag of the physical state (t, S, depth; a dry station is 4). */
+  flag: QcFlag;
+  o2Flag?: QcFlag;
+  pco2Flag?: QcFlag;
+  taFlag?: QcFlag;
+  dicFlag?: QcFlag;
+  sigmaTempC?: number;
+  sigmaSalinity?: number;
+  sigmaO2UmolKg?: number;
+  sigmaPco2Uatm?: number;
+  sigmaTaUmolKg?: number;
+  sigmaDicUmolKg?: number;
+  sigmaDepthM?: number;
+  semO2UmolKg?: number;
+  semPco2Uatm?: number;
+  semTaUmolKg?: number;
+  semDicUmolKg?: number;
+}
+
+/** One budget window of a transect: station means, the depth-averaged current and the weather. */
+export interface TransectWindow {
+  /** Window centre, epoch ms (event time). */
+  tCentreMs: number;
+  up: StationWindowMean;
+  down: StationWindowMean;
+  /** Depth-averaged current at the transect's `current` station, earth frame [m/s]. */
+  eastMS: number;
+  northMS: number;
+  /** sigma of the along-transect velocity [m/s]; default from science.md 9.3 (see defaultCurrentSigmaMS). */
+  sigmaUMS?: number;
+  currentFlag?: QcFlag;
+  /** Wind speed [m/s] at windHeightM (default TransectParams.windHeightM). */
+  windMS?: number;
+  windHeightM?: number;
+  baroHpa?: number;
+  /** Atmospheric dry-air xCO2 from the met sensor [umol/mol]; else TransectParams.xco2AirPpm (flag 2). */
+  xco2AirPpm?: number;
+  metFlag?: QcFlag;
+}
+
+export interface TransectParams {
+  lengthM: number;
+  /** Direction from upstream to downstream, degrees true (default reef_axis_deg). */
+  bearingDeg: number;
+  /** Photosynthetic quotient, mol O2 per mol C (default 1.0). */
+  pq: number;
+  windowMin: number;
+  minSpeedMS: number;
+  /** Flow more than this off the bearing is invalid (flag 3 up to suspectAngleDeg, 4 beyond). */
+  maxAngleDeg: number;
+  suspectAngleDeg: number;
+  maxResidenceMin: number;
+  maxStorageFraction: number;
+  minDepthM: number;
+  /** Reverse flow: swap the station roles (true) or flag the window invalid (false). */
+  swapOnReverse: boolean;
+  /** A previous window further back than this gives no storage term [min]. */
+  maxPreviousGapMin: number;
+  /** Configured atmospheric xCO2 when the met sensor has none [umol/mol]. */
+  xco2AirPpm: number;
+  /** Anemometer height above the sea surface [m]. */
+  windHeightM: number;
+  /** Fallback upstream TA for the inverse: TA = taS35UmolKg S/35 (contract `alkalinity.ta_s35_umol_kg`). */
+  taS35UmolKg: number;
+  sigmaLengthM: number;
+  /** sigma of the TA from salinity [umol/kg] (science.md 9.3: site regression residual). */
+  sigmaTaFromSalinityUmolKg: number;
+  /** Relative sigma of the transfer velocity (science.md 9.2). */
+  sigmaKRel: number;
+  sigmaPq: number;
+  necBracketMmolM2H: number;
+  necMaxDoublings: number;
+  necTolMmolM2H: number;
+}
+
+/** Engineering defaults (science.md 6.5-6.6, 9.2); one place. */
+export const DEFAULT_TRANSECT_PARAMS: Readonly<Omit<TransectParams, 'lengthM' | 'bearingDeg'>> =
+  Object.freeze({
+    pq: 1.0,
+    windowMin: 30,
+    minSpeedMS: 0.02,
+    maxAngleDeg: 30,
+    suspectAngleDeg: 45,
+    maxResidenceMin: 240,
+    maxStorageFraction: 0.5,
+    minDepthM: 0.2,
+    swapOnReverse: false,
+    maxPreviousGapMin: 60,
+    xco2AirPpm: 420,
+    windHeightM: 10,
+    taS35UmolKg: 2300,
+    sigmaLengthM: 0,
+    sigmaTaFromSalinityUmolKg: 10,
+    sigmaKRel: 0.2,
+    sigmaPq: 0,
+    necBracketMmolM2H: 100,
+    necMaxDoublings: 3,
+    necTolMmolM2H: 1e-4,
+  });
+
+export type TransectParamsInput = Pick<TransectParams, 'lengthM' | 'bearingDeg'> &
+  Partial<Omit<TransectParams, 'lengthM' | 'bearingDeg'>>;
+
+/** Full, frozen parameters from the configured ones plus the defaults. */
+export function makeTransectParams(p: TransectParamsInput): Readonly<TransectParams> {
+  return Object.freeze({ ...DEFAULT_TRANSECT_PARAMS, ...p });
+}
+
+export type InvalidReason =
+  | 'speed_below_min'
+  | 'reverse_flow'
+  | 'angle_off_transect'
+  | 'residence_above_max'
+  | 'depth_below_min'
+  | 'storage_dominates'
+  | 'input_qc_failed'
+  | 'input_missing';
+
+export interface AirSeaTerms {
+  u10MS: number;
+  kO2MS: number;
+  kCo2MS: number;
+  o2SatUmolKg: number;
+  /** Water-to-air fluxes, mmol m-2 h-1 (positive = outgassing). */
+  fasO2MmolM2H: number;
+  fasCo2MmolM2H: number | null;
+  fco2AirUatm: number | null;
+}
+
+/** Downstream carbonate state the inverse found; the next window's storage form starts from it. */
+export interface InverseState {
+  tCentreMs: number;
+  upTaUmolKg: number;
+  upDicUmolKg: number;
+  upSalinity: number;
+  downTaUmolKg: number;
+  downDicUmolKg: number;
+  downSalinity: number;
+}
+
+export interface FluxResult {
+  tCentreMs: number;
+  ncpMmolM2H: number | null;
+  sigmaNcpMmolM2H: number | null;
+  necMmolM2H: number | null;
+  sigmaNecMmolM2H: number | null;
+  necMethod: 'ta' | 'inverse' | null;
+  /** Organic carbon production from DIC when DIC and TA are measured at both stations (science.md 6.3). */
+  ncpCMmolM2H: number | null;
+  uMS: number;
+  sigmaUMS: number;
+  depthM: number;
+  sigmaDepthM: number;
+  rhoKgM3: number;
+  residenceMin: number | null;
+  angleOffDeg: number;
+  /** True when the flow was reversed and the station roles were swapped. */
+  swapped: boolean;
+  storageFractionO2: number | null;
+  valid: boolean;
+  invalidReasons: InvalidReason[];
+  flag: QcFlag;
+  /** Informational notes (e.g. 'no_wind', 'steady_form', 'nec_no_root'). */
+  notes: string[];
+  airSea: AirSeaTerms | null;
+  inverseState: InverseState | null;
+}
