@@ -38,7 +38,7 @@ export function parseConfigText(
   extraCheck?: (cfg: ReefdConfig) => ConfigProblem[],
 ): ConfigParse {
   const lineCounter = new LineCounter();
-  const doc = parseDocument(text, { lineCounter, prettyErrors: false, uniqueKeys: true });
+  const doc = parseDocument(text, { lineCounter, prettyErrors: true, uniqueKeys: true });
   if (doc.errors.length > 0) {
     return {
       ok: false,

@@ -26,6 +26,11 @@ const isoTime = z
   })
   .refine(
     (s) => {
+      // Date.parse rolls 31 February over into March; a sample time with an impossible date is a fault.
+      const y = Number(s.slice(0, 4));
+      const mo = Number(s.slice(5, 7));
+      const d = Number(s.slice(8, 10));
+      if (mo < 1 || mo > 12 || d < 1 || d > new Date(Date.UTC(y, mo, 0)).getUTCDate()) return false;
       const ms = Date.parse(s);
       return Number.isFinite(ms) && ms >= Date.UTC(2000, 0, 1) && ms < Date.UTC(2100, 0, 1);
     },

@@ -1,5 +1,7 @@
 // The reefd command line: `reefd <command> [options]`. Each command lives in commands/<name>.ts.
 import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { packageRoot } from '../paths.js';
 import { EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from './io.js';
 
 interface CommandEntry {
@@ -30,7 +32,7 @@ export const COMMANDS: Record<string, CommandEntry> = {
 };
 
 export function version(): string {
-  const pkg = JSON.parse(readFileSync(new URL('../../../package.json', import.meta.url), 'utf8')) as {
+  const pkg = JSON.parse(readFileSync(path.join(packageRoot(), 'package.json'), 'utf8')) as {
     version: string;
   };
   return pkg.version;

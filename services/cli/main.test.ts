@@ -1,0 +1,65 @@
+// The CLI front door: help, version, unknown commands, and `config check` exit codes (contract section 5).
+import { fileURLToPath } from 'node:url';
+import { describe, expect, it } from 'vitest';
+import { COMMANDS, main } from './main.js';
+import { captureIo } from './testing.js';
+
+const file = (rel: string) => fileURLToPath(new URL(`../../${rel}`, import.meta.url));
+
+describe('reefd', () => {
+  it('prints the version from package.json', async () => {
+    const io = captureIo();
+    expect(await main(['--version'], io)).toBe(0);
+    expect(io.text().stdout).toMatch(/^reefd \d+\.\d+\.\d+\n$/);
+  });
+
+  it('lists every contract command in its help', async () => {
+    const io = captureIo();
+    expect(await main(['--help'], io)).toBe(0);
+    for (const name of ['run', 'replay', 'config', 'carbonate', 'simulate'])
+      expect(io.text().stdout).toContain(`  ${name} `);
+  });
+
+  it('exits 2 on an unknown command', async () => {
+    const io = captureIo();
+    expect(await main(['frobnicate'], io)).toBe(2);
+    expect(io.text().stderr).toContain('unknown command "frobnicate"');
+  });
+
+  it('gives every command a --help that exits 0', async () => {
+    for (const name of Object.keys(COMMANDS)) {
+      const io = captureIo();
+      const code = await main([name, '--help'], io);
+      expect([0, 2], name).toContain(code);
+      if (code === 0) expect(io.text().stdout.length, name).toBeGreaterThan(20);
+    }
+  });
+});
+
+describe('reefd config check', () => {
+  it('exits 0 with a one-line summary for a valid file', async () => {
+    const io = captureIo();
+    expect(await main(['config', 'check', file('deploy/demo/ornen-reef.yaml')], io)).toBe(0);
+    expect(io.text().stdout).toMatch(/valid: site ornen-reef, 7 stations, \d+ sensors, 2 transects\n$/);
+  });
+
+  it('exits 2 and prints each problem as path: message', async () => {
+    const io = captureIo();
+    expect(await main(['config', 'check', file('test/fixtures/config/invalid.yaml')], io)).toBe(2);
+    const lines = io.text().stdout.trim().split('\n');
+    expect(lines).toContain(
+      'stations.crest.sensors.p1.height_m: Too small: expected number to be >=0 (line 7)',
+    );
+    expect(lines.every((l) => /^[\w.()-]+: .+/.test(l))).toBe(true);
+  });
+
+  it('exits 2 for a missing file', async () => {
+    const io = captureIo();
+    expect(await main(['config', 'check', '/nonexistent/reefd.yaml'], io)).toBe(2);
+    expect(io.text().stderr).toContain('cannot read');
+  });
+
+  it('exits 2 without a file', async () => {
+    expect(await main(['config', 'check'], captureIo())).toBe(2);
+  });
+});
