@@ -3,7 +3,7 @@
 # (Debian packages) and a single-node Apache Kafka broker in KRaft mode (jars from Maven).
 #
 #   deploy/dev/services.sh up       install what is missing, start what is not running, wait until ready
-#   deploy/dev/services.sh down     stop what this state folder started (data is kept)
+#   deploy/dev/services.sh down [NAME...]  stop what this state folder started (data is kept)
 #   deploy/dev/services.sh status   one line per service; exit 0 only when all are up and answering
 #   deploy/dev/services.sh clean    down, then delete the state folder
 #
@@ -24,8 +24,13 @@ KAFKA_VERSION=3.9.2 # keep in step with kafka.version in deploy/dev/pom.xml
 KAFKA_HOME="$CACHE/kafka/$KAFKA_VERSION"
 SERVICES=(mosquitto influxdb victoriametrics kafka)
 
-# shellcheck source=services.env
-source "$HERE/services.env"
+# Addresses come from services.env; a variable already set in the environment wins (e.g. to run
+# a second set of services on other ports with another REEFD_SERVICES_DIR).
+while IFS='=' read -r key value; do
+  [[ "$key" =~ ^REEFD_[A-Z0-9_]+$ ]] || continue
+  [[ -n "${!key:-}" ]] || printf -v "$key" '%s' "$value"
+  export "${key?}"
+done <"$HERE/services.env"
 
 hostport() { local u="${1#*://}"; u="${u%%/*}"; echo "${u%%,*}"; }
 MQTT_ADDR="$(hostport "$REEFD_TEST_MQTT_URL")"
@@ -130,7 +135,8 @@ write_mosquitto_conf() {
     echo "log_dest file $d/log/mosquitto.log"
     echo "log_dest stderr"
     echo
-    cat "$HERE/mosquitto.conf"
+    # The listener follows REEFD_TEST_MQTT_URL (services.env or the environment).
+    sed "s/^listener .*/listener ${MQTT_ADDR##*:} ${MQTT_ADDR%:*}/" "$HERE/mosquitto.conf"
   } >"$d/mosquitto.conf"
   # Started as root, mosquitto drops to its own user: that user must write persistence and log.
   if [[ "$(id -u)" == 0 ]] && getent passwd mosquitto >/dev/null; then
@@ -394,8 +400,12 @@ cmd_down() {
     log "nothing to stop ($STATE does not exist)"
     return 0
   }
-  local name pids=()
-  for name in "${SERVICES[@]}"; do
+  local name pids=() names=("$@")
+  ((${#names[@]} > 0)) || names=("${SERVICES[@]}")
+  for name in "${names[@]}"; do
+    [[ " ${SERVICES[*]} " == *" $name "* ]] || die "unknown service '$name' (one of: ${SERVICES[*]})"
+  done
+  for name in "${names[@]}"; do
     stop_one "$name" &
     pids+=($!)
   done
@@ -428,7 +438,10 @@ cmd_status() {
 
 case "${1:-}" in
   up) cmd_up ;;
-  down) cmd_down ;;
+  down)
+    shift
+    cmd_down "$@"
+    ;;
   status) cmd_status ;;
   clean)
     cmd_down
@@ -436,7 +449,7 @@ case "${1:-}" in
     log "removed $STATE"
     ;;
   *)
-    echo "usage: $0 up|down|status|clean" >&2
+    echo "usage: $0 up | down [${SERVICES[*]}] | status | clean" >&2
     exit 2
     ;;
 esac
