@@ -5,22 +5,21 @@ import { escapeKey, escapeMeasurement, quoteFieldString } from './escape.js';
 // A reader of the v2 rules (line protocol reference: `\` escapes the next special character, `\\` is one
 // backslash), splitting a `key=value` tag at its first unescaped '=' and stopping at an unescaped ',' or ' '.
 function readTag(text: string): { key: string; value: string; rest: string } {
-  const parts: string[] = [''];
+  let key = '';
+  let value = '';
+  let inValue = false;
   let i = 0;
   for (; i < text.length; i++) {
-    const c = text[i] as string;
-    if (c === '\\' && i + 1 < text.length) {
-      parts[parts.length - 1] += text[++i];
+    let c = text[i] as string;
+    if (c === '\\' && i + 1 < text.length) c = text[++i] as string;
+    else if (c === '=' && !inValue) {
+      inValue = true;
       continue;
-    }
-    if (c === '=' && parts.length === 1) {
-      parts.push('');
-      continue;
-    }
-    if (c === ',' || c === ' ') break;
-    parts[parts.length - 1] += c;
+    } else if (c === ',' || c === ' ') break;
+    if (inValue) value += c;
+    else key += c;
   }
-  return { key: parts[0] ?? '', value: parts[1] ?? '', rest: text.slice(i) };
+  return { key, value, rest: text.slice(i) };
 }
 
 describe('line protocol escaping', () => {

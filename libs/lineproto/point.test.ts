@@ -39,6 +39,7 @@ describe('recordToPoint', () => {
     expect(r.point.timeMs).toBe(Date.UTC(2026, 11, 2));
   });
 
+  // 2026-12-02T01:00Z = 1796173200000 ms since the epoch (common practice: 20789 days + 1 h).
   it('tags a flux with its transect and keeps booleans as booleans', () => {
     const flux = {
       type: 'flux',
@@ -67,7 +68,6 @@ describe('recordToPoint', () => {
     });
   });
 
-  // 2026-12-02T01:00Z = 20789 days since the epoch (common practice: 1796173200000 ms).
   it('escapes hostile ids in the whole line', () => {
     const line = formatPoint(
       {

@@ -1,0 +1,156 @@
+import { describe, it, expect, beforeEach, afterEach } from 'vitest';
+import { mkdtemp, readFile, readdir, rm, writeFile, appendFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { gunzipSync } from 'node:zlib';
+import { archiveLine, ReefdError } from '../../libs/contract/index.js';
+import { createArchiveWriter, readArchive } from './index.js';
+import { openAppendFile, type OpenAppendFile } from './files.js';
+
+const DEC2 = Date.UTC(2026, 11, 2, 12);
+const DAY = 86_400_000;
+let dir: string;
+
+beforeEach(async () => {
+  dir = await mkdtemp(join(tmpdir(), 'reefd-archive-'));
+});
+afterEach(async () => {
+  await rm(dir, { recursive: true, force: true });
+});
+
+const line = (i: number, rxMs: number): string =>
+  archiveLine(
+    'reef/s/st/ctd/c1',
+    new Date(rxMs).toISOString(),
+    JSON.stringify({ v: 1, t: '2026-12-02T00:00:00Z', seq: i }),
+  );
+
+async function readAll(path: string): Promise<{ seqs: number[]; errors: string[] }> {
+  const seqs: number[] = [];
+  const errors: string[] = [];
+  for await (const e of readArchive(path)) {
+    if (e.line !== null) seqs.push((e.line.msg as { seq: number }).seq);
+    else errors.push(`${e.file}:${e.lineNo}:${e.error ?? ''}`);
+  }
+  return { seqs, errors };
+}
+
+describe('archive writer', () => {
+  it('group-commits: 200 concurrent appends share a handful of fsyncs and all land in order', async () => {
+    const w = await createArchiveWriter({ dir, fsyncMs: 20, retentionDays: 0, clock: () => DEC2 });
+    await Promise.all(Array.from({ length: 200 }, (_, i) => w.append(line(i, DEC2), DEC2)));
+    const st = w.stats();
+    expect(st.lines).toBe(200);
+    expect(st.fsyncs).toBeLessThanOrEqual(2);
+    await w.close();
+    expect(await readdir(dir)).toEqual(['raw-2026-12-02.ndjson']);
+    const { seqs } = await readAll(dir);
+    expect(seqs).toEqual(Array.from({ length: 200 }, (_, i) => i));
+  });
+
+  it('names files by the UTC day of the receive time and rolls over at midnight, then compresses the closed day', async () => {
+    let now = Date.UTC(2026, 11, 2, 23, 59, 59, 900);
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 0, clock: () => now });
+    await w.append(line(1, now), now);
+    now += 200; // 2026-12-03T00:00:00.100Z
+    await w.append(line(2, now), now);
+    await w.maintain();
+    expect((await readdir(dir)).sort()).toEqual(['raw-2026-12-02.ndjson.gz', 'raw-2026-12-03.ndjson']);
+    const gz = gunzipSync(await readFile(join(dir, 'raw-2026-12-02.ndjson.gz'))).toString();
+    expect(gz).toBe(line(1, Date.UTC(2026, 11, 2, 23, 59, 59, 900)) + '\n');
+    await w.close();
+    expect((await readAll(dir)).seqs).toEqual([1, 2]);
+  });
+
+  it('never reopens a closed day: a late line stamped yesterday goes to the open file', async () => {
+    const now = DEC2 + DAY;
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 0, clock: () => now });
+    await w.append(line(1, now), now);
+    await w.append(line(2, DEC2), DEC2);
+    await w.close();
+    expect(await readdir(dir)).toEqual(['raw-2026-12-03.ndjson']);
+  });
+
+  it('closes and compresses a day that ended without new appends; retention removes old days', async () => {
+    let now = DEC2;
+    await writeFile(join(dir, 'raw-2026-11-20.ndjson'), line(0, DEC2 - 12 * DAY) + '\n');
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 7, clock: () => now });
+    await w.append(line(1, now), now);
+    now += 2 * DAY;
+    await w.maintain();
+    // 2026-11-20 is more than 7 days before 2026-12-04: removed; 2026-12-02 closed and compressed.
+    expect(await readdir(dir)).toEqual(['raw-2026-12-02.ndjson.gz']);
+    await w.close();
+  });
+
+  it('starts a new line after a crash left a partial one; the reader reports and skips the partial line', async () => {
+    await writeFile(join(dir, 'raw-2026-12-02.ndjson'), line(1, DEC2) + '\n' + line(2, DEC2).slice(0, 30));
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 0, clock: () => DEC2 });
+    await w.append(line(3, DEC2), DEC2);
+    await w.close();
+    const { seqs, errors } = await readAll(join(dir, 'raw-2026-12-02.ndjson'));
+    expect(seqs).toEqual([1, 3]);
+    expect(errors).toEqual(['raw-2026-12-02.ndjson:2:json_syntax']);
+  });
+
+  it('reader tolerates a truncated last line without a newline', async () => {
+    const p = join(dir, 'raw-2026-12-02.ndjson');
+    await writeFile(p, line(1, DEC2) + '\n');
+    await appendFile(p, '{"topic":"reef/s');
+    expect(await readAll(p)).toEqual({ seqs: [1], errors: ['raw-2026-12-02.ndjson:2:json_syntax'] });
+  });
+
+  it('rejects appends on a full disk with REEFD_DISK_FULL (retriable), leaving only whole lines', async () => {
+    let full = false;
+    const openFile: OpenAppendFile = async (path) => {
+      const f = await openAppendFile(path);
+      return {
+        ...f,
+        write: async (data) => {
+          if (!full) return f.write(data);
+          // Half the batch reaches the disk, then the device is full.
+          await f.write(data.subarray(0, Math.floor(data.length / 2)));
+          throw Object.assign(new Error('ENOSPC: no space left on device, write'), { code: 'ENOSPC' });
+        },
+      };
+    };
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 0, clock: () => DEC2, openFile });
+    await w.append(line(1, DEC2), DEC2);
+    full = true;
+    const err = await w.append(line(2, DEC2), DEC2).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(ReefdError);
+    expect((err as ReefdError).code).toBe('REEFD_DISK_FULL');
+    expect((err as ReefdError).retriable).toBe(true);
+    full = false;
+    await w.append(line(3, DEC2), DEC2);
+    await w.close();
+    const text = await readFile(join(dir, 'raw-2026-12-02.ndjson'), 'utf8');
+    expect(text).toBe(line(1, DEC2) + '\n' + line(3, DEC2) + '\n');
+  });
+
+  it('on start-up removes a half-written gz and keeps the plain file it came from', async () => {
+    await writeFile(join(dir, 'raw-2026-12-01.ndjson'), line(1, DEC2 - DAY) + '\n');
+    await writeFile(join(dir, 'raw-2026-12-01.ndjson.gz.tmp'), Buffer.from([0x1f, 0x8b, 0x08]));
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 0, clock: () => DEC2 - DAY / 2 });
+    expect(await readdir(dir)).toEqual(['raw-2026-12-01.ndjson']);
+    await w.close();
+    expect((await readAll(dir)).seqs).toEqual([1]);
+  });
+
+  it('reader reads a folder of plain and gz days in day order', async () => {
+    let now = DEC2;
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 0, clock: () => now });
+    for (let d = 0; d < 3; d++) {
+      await w.append(line(d, now), now);
+      now += DAY;
+    }
+    await w.maintain();
+    await w.close();
+    expect((await readdir(dir)).sort()).toEqual([
+      'raw-2026-12-02.ndjson.gz',
+      'raw-2026-12-03.ndjson.gz',
+      'raw-2026-12-04.ndjson.gz',
+    ]);
+    expect((await readAll(dir)).seqs).toEqual([0, 1, 2]);
+  });
+});
