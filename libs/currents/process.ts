@@ -1,0 +1,208 @@
+// Depth-averaged current from one ADCP ensemble (reefd science.md 5, uncertainty 9.2), in order:
+// validate; attitude and tilt (5.2, 5.4); water depth (station pressure, else the head's own);
+// side-lobe limit (5.3); bin QC and transforms (5.1, 5.4; bin-qc.ts); depth average (5.5);
+// reef frame, speed, direction and bed stress (5.6); uncertainty (9.2).
+//
+// Flags (QARTOD; science.md 7.4): the result takes the worst flag of the bins it uses (1 or 3),
+// raised to 3 by its own checks (p_atm defaulted, station and ADCP depths differ by > 0.05 m, an
+// ensemble shorter than 5 min). Failures return { ok: false } with a stable code (errors.ts).
+import { qcBins, type BinPlan } from './bin-qc.js';
+import { depthAverageInto } from './depth-average.js';
+import { currentFail } from './errors.js';
+import { boundaryDistanceM, depthFromPressureM, sideLobeMaxRangeM } from './geometry.js';
+import { bedStressPa, directionTowardsDeg, logLawCd, toReefFrame } from './reef-frame.js';
+import { sensorPitchDeg, sensorRotationMatrix } from './sensor-attitude.js';
+import { janusHead, totalTiltDeg } from './transforms.js';
+import {
+  DEFAULT_QC,
+  type AdcpEnsemble,
+  type AdcpQcThresholds,
+  type AdcpSensorConfig,
+  type CurrentContext,
+  type CurrentResult,
+} from './types.js';
+
+const DEG = Math.PI / 180;
+const PATM_DEFAULT_DBAR = 10.1325; // 1 atm (science.md 1)
+const RHO_DEFAULT = 1025; // kg m-3, engineering default for reef seawater
+const G_STANDARD = 9.80665; // m s-2, standard gravity
+const CD_DEFAULT = 0.03; // science.md 5.6
+const DEPTH_MISMATCH_M = 0.05; // science.md 7.2 (9): logger and ADCP depths
+const MIN_ENSEMBLE_S = 300; // science.md 5.5: orbital velocities cancel over >= 5 min
+const REL_ERR = 0.01; // science.md 9.2: 1 % of reading
+
+function shapeOk(a: readonly (readonly unknown[])[] | undefined, n: number): boolean {
+  if (a === undefined) return true;
+  if (a.length !== n) return false;
+  for (let i = 0; i < n; i++) if ((a[i] as readonly unknown[]).length !== 4) return false;
+  return true;
+}
+
+/**
+ * Depth-averaged current of one ensemble. Units: m, m/s, deg, dbar, Pa (see types.ts).
+ * Valid for shallow moorings (h up to a few tens of m) and total tilt below 20 deg.
+ */
+export function processEnsemble(
+  ens: AdcpEnsemble,
+  sensor: AdcpSensorConfig,
+  ctx: CurrentContext,
+): CurrentResult {
+  const nBins = ens.velMS.length;
+  if (
+    nBins === 0 ||
+    !shapeOk(ens.velMS, nBins) ||
+    !shapeOk(ens.corrPct, nBins) ||
+    !shapeOk(ens.echo, nBins) ||
+    !shapeOk(ens.pgPct, nBins) ||
+    !(ens.binM > 0) ||
+    !(ens.blankM >= 0)
+  ) {
+    return currentFail('REEFD_CURRENTS_SHAPE', `ensemble of ${nBins} bins has a malformed field`);
+  }
+  const zHeadM = sensor.heightM;
+  const beamAngleDeg = sensor.beamAngleDeg ?? 20;
+  if (!(zHeadM > 0) || !(beamAngleDeg > 0 && beamAngleDeg < 60)) {
+    return currentFail('REEFD_CURRENTS_CONFIG', `height_m ${zHeadM}, beam_angle_deg ${beamAngleDeg}`);
+  }
+  const qc: Readonly<AdcpQcThresholds> =
+    sensor.qc === undefined ? DEFAULT_QC : { ...DEFAULT_QC, ...sensor.qc };
+  const notes: string[] = [];
+  let flag = 1;
+
+  // Attitude and tilt.
+  const { headingDeg, pitchDeg, rollDeg } = ens;
+  const hasTilt = pitchDeg !== undefined && rollDeg !== undefined;
+  if (ens.coord !== 'earth' && (headingDeg === undefined || !hasTilt)) {
+    return currentFail('REEFD_CURRENTS_NO_ATTITUDE', `coord ${ens.coord} without heading, pitch and roll`);
+  }
+  let tiltFlag = 2;
+  let cosTilt = 1;
+  const rot = new Float64Array(9);
+  if (hasTilt) {
+    const p = sensorPitchDeg(sensor, pitchDeg, rollDeg);
+    const tilt = totalTiltDeg(p, rollDeg);
+    if (tilt > qc.tiltFailDeg) {
+      return currentFail('REEFD_CURRENTS_TILT', `total tilt ${tilt.toFixed(1)} deg > ${qc.tiltFailDeg} deg`);
+    }
+    tiltFlag = tilt > qc.tiltSuspectDeg ? 3 : 1;
+    cosTilt = Math.cos(p * DEG) * Math.cos(rollDeg * DEG);
+    if (headingDeg !== undefined) sensorRotationMatrix(sensor, headingDeg, pitchDeg, rollDeg, rot);
+  }
+
+  // Water depth: the station's pressure sensor, else the ADCP's own pressure.
+  const rho = ctx.rhoKgM3 ?? RHO_DEFAULT;
+  const g = ctx.gMS2 ?? G_STANDARD;
+  let depthAdcpM = Number.NaN;
+  if (ens.presDbar !== undefined && Number.isFinite(ens.presDbar)) {
+    depthAdcpM = depthFromPressureM(ens.presDbar, ctx.patmDbar ?? PATM_DEFAULT_DBAR, rho, g, zHeadM);
+  }
+  let depthM: number;
+  let depthSource: 'pressure' | 'adcp';
+  if (ctx.depthM !== undefined && Number.isFinite(ctx.depthM)) {
+    depthM = ctx.depthM;
+    depthSource = 'pressure';
+    if (Math.abs(depthAdcpM - depthM) > DEPTH_MISMATCH_M) {
+      flag = 3;
+      notes.push(`depth_mismatch: station ${depthM.toFixed(3)} m, adcp ${depthAdcpM.toFixed(3)} m`);
+    }
+  } else if (Number.isFinite(depthAdcpM)) {
+    depthM = depthAdcpM;
+    depthSource = 'adcp';
+    if (ctx.patmDbar === undefined) {
+      flag = 3;
+      notes.push('patm_default: 10.1325 dbar assumed for the ADCP depth');
+    }
+  } else {
+    return currentFail('REEFD_CURRENTS_NO_DEPTH', 'no station depth and no pres_dbar');
+  }
+  if (!(depthM > zHeadM)) {
+    return currentFail('REEFD_CURRENTS_HEAD_DRY', `depth ${depthM.toFixed(3)} m, head at ${zHeadM} m`);
+  }
+  if (ens.durationS !== undefined && ens.durationS < MIN_ENSEMBLE_S) {
+    flag = 3;
+    notes.push(`short_ensemble: ${ens.durationS} s < ${MIN_ENSEMBLE_S} s`);
+  }
+
+  // Side-lobe limit and bins.
+  const boundaryM = boundaryDistanceM(sensor.orientation, zHeadM, depthM, ctx.hm0SsM);
+  const plan: BinPlan = {
+    ens,
+    head: janusHead(beamAngleDeg, sensor.convex ?? true),
+    rot,
+    qc,
+    r1M: sensor.firstBinRangeM ?? ens.blankM + 0.5 * ens.binM,
+    binM: ens.binM,
+    rMaxM: sideLobeMaxRangeM(boundaryM, beamAngleDeg),
+    zHeadM,
+    dzdr: sensor.orientation === 'up' ? cosTilt : -cosTilt,
+    depthM,
+    tiltFlag,
+  };
+  const binFlags = new Array<number>(nBins);
+  const scratch = new Float64Array(3 * nBins + 4);
+  const z = scratch.subarray(0, nBins);
+  const east = scratch.subarray(nBins, 2 * nBins);
+  const north = scratch.subarray(2 * nBins, 3 * nBins);
+  const mean = scratch.subarray(3 * nBins);
+  const tally = qcBins(plan, binFlags, z, east, north);
+  const m = tally.valid;
+  const coverage = (m * ens.binM * cosTilt) / depthM;
+  if (m < qc.minBins || coverage < qc.minCoverage) {
+    return currentFail(
+      'REEFD_CURRENTS_TOO_FEW_BINS',
+      `${m} valid bins cover ${(100 * coverage).toFixed(0)} % of ${depthM.toFixed(2)} m`,
+    );
+  }
+  if (sensor.orientation === 'down') {
+    // bins run away from the head, i.e. downwards: the average wants z ascending
+    z.subarray(0, m).reverse();
+    east.subarray(0, m).reverse();
+    north.subarray(0, m).reverse();
+  }
+  if (tally.threeBeam > 0) notes.push(`three_beam: ${tally.threeBeam} bins`);
+  if (tally.worst > flag) flag = tally.worst;
+
+  // Depth average: [E const, E power, N const, N power].
+  const bedM = sensor.bedPowerM ?? 6;
+  depthAverageInto(z, east, m, depthM, bedM, mean, 0);
+  depthAverageInto(z, north, m, depthM, bedM, mean, 2);
+  const power = sensor.topExtrapolation === 'power';
+  const eastMS = (power ? mean[1] : mean[0]) as number;
+  const northMS = (power ? mean[3] : mean[2]) as number;
+  const speedMS = Math.sqrt(eastMS * eastMS + northMS * northMS);
+  const { uMS, vMS } = toReefFrame(eastMS, northMS, ctx.reefAxisDeg);
+
+  // Uncertainty (science.md 9.2). Random term: sigma_ping^2/N_pings when configured; else the mean
+  // square error velocity, which by construction of d has the noise variance of a horizontal component
+  // (conservative: it also holds any inhomogeneity of the flow).
+  const dE = 0.5 * ((mean[1] as number) - (mean[0] as number));
+  const dN = 0.5 * ((mean[3] as number) - (mean[2] as number));
+  const sigmaHeadingRad = (sensor.headingSigmaDeg ?? 2) * DEG;
+  let var2 = (REL_ERR * speedMS) ** 2 + (speedMS * sigmaHeadingRad) ** 2 + dE * dE + dN * dN;
+  if (sensor.pingSigmaMS !== undefined && sensor.pingsPerEnsemble !== undefined) {
+    var2 += (sensor.pingSigmaMS * sensor.pingSigmaMS) / sensor.pingsPerEnsemble;
+  } else if (Number.isFinite(tally.errMeanSq)) {
+    var2 += tally.errMeanSq;
+  } else {
+    notes.push('sigma_without_noise: no ping noise configured and no error velocity');
+  }
+
+  const cd = ctx.z0M !== undefined ? logLawCd(depthM, ctx.z0M) : (ctx.cd ?? CD_DEFAULT);
+  return {
+    ok: true,
+    flag,
+    eastMS,
+    northMS,
+    uMS,
+    vMS,
+    speedMS,
+    dirToDeg: directionTowardsDeg(eastMS, northMS),
+    binsUsed: m,
+    depthM,
+    depthSource,
+    tauBedPa: bedStressPa(speedMS, rho, cd),
+    sigmaMS: Math.sqrt(var2),
+    binFlags,
+    notes,
+  };
+}
