@@ -63,10 +63,21 @@ logfile_of() {
 }
 pidfile_of() { echo "$STATE/$1/$1.pid"; }
 
+# The process in the pid file is alive and is still this service (a stale pid file after a reboot
+# or a killed session can name an unrelated process that reused the pid).
 pid_alive() {
-  local pf
+  local pf pid pattern
   pf="$(pidfile_of "$1")"
-  [[ -s "$pf" ]] && kill -0 "$(cat "$pf")" 2>/dev/null
+  [[ -s "$pf" ]] || return 1
+  pid="$(cat "$pf")"
+  kill -0 "$pid" 2>/dev/null || return 1
+  case "$1" in
+    mosquitto) pattern=mosquitto ;;
+    influxdb) pattern=influxd ;;
+    victoriametrics) pattern=victoria-metrics ;;
+    kafka) pattern=kafka.Kafka ;;
+  esac
+  [[ ! -r "/proc/$pid/cmdline" ]] || tr '\0' ' ' <"/proc/$pid/cmdline" | grep -q -- "$pattern"
 }
 
 port_open() {
@@ -289,6 +300,8 @@ start_kafka() {
     }
     log "kafka: formatted storage, cluster id $cluster_id"
   fi
+  # Readiness looks for this start's "Kafka Server started" line: keep the previous log aside.
+  [[ -f "$d/logs/server.log" ]] && mv -f "$d/logs/server.log" "$d/logs/server.log.prev"
   spawn kafka "$d/logs/kafka.out" java "${jvm[@]}" -cp "$cp" kafka.Kafka "$d/server.properties"
 }
 
