@@ -83,6 +83,8 @@ export interface EquilibriumConstants {
   /** Weiss (1974) virial coefficients B and delta, cm3 mol-1. */
   virialB: number;
   virialDelta: number;
+  /** 1 to keep the (1 - xCO2)^2 factor of Weiss (1974), 0 for the dilute limit (option fugacity). */
+  virialMoleFraction: number;
   /** Bits of RANGE_BITS for fits used outside their range. */
   rangeMask: number;
 }
@@ -92,10 +94,12 @@ export function resolveCarbonateOptions(options?: CarbonateOptions): ResolvedCar
   const k1k2 = options?.k1k2 ?? DEFAULT_CARBONATE_OPTIONS.k1k2;
   const boron = options?.boron ?? DEFAULT_CARBONATE_OPTIONS.boron;
   const kw = options?.kw ?? DEFAULT_CARBONATE_OPTIONS.kw;
+  const fugacity = options?.fugacity ?? DEFAULT_CARBONATE_OPTIONS.fugacity;
   check('k1k2', k1k2, CARBONATE_OPTION_NAMES.k1k2);
   check('boron', boron, CARBONATE_OPTION_NAMES.boron);
   check('kw', kw, CARBONATE_OPTION_NAMES.kw);
-  return { k1k2, boron, kw };
+  check('fugacity', fugacity, CARBONATE_OPTION_NAMES.fugacity);
+  return { k1k2, boron, kw, fugacity };
 }
 
 function check(key: string, value: string, valid: readonly string[]): void {
@@ -134,6 +138,7 @@ export function createConstants(): EquilibriumConstants {
     swsPerTotal: 0,
     virialB: 0,
     virialDelta: 0,
+    virialMoleFraction: 1,
     rangeMask: 0,
   };
 }
@@ -223,6 +228,7 @@ export function equilibriumConstantsInto(
   out.k0 = k0Weiss1974(s, tempK);
   out.virialB = virialBWeiss1974(tempK);
   out.virialDelta = virialDeltaWeiss1974(tempK);
+  out.virialMoleFraction = options.fugacity === 'weiss1974-dilute' ? 0 : 1;
 
   let mask = 0;
   if (outside(FIT_RANGES.k0, tempC, s)) mask |= RANGE_BITS.k0;

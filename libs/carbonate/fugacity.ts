@@ -1,7 +1,7 @@
 // Weiss R.F. (1974), Mar. Chem. 2, 203-215: fugacity of CO2 in moist air from the virial equation of state,
 // fCO2 = pCO2 exp[(B + 2 (1 - x)^2 delta) P / (R T)], x = mole fraction of CO2 = pCO2/P (science spec 3.4).
-// PyCO2SYS 1.8.3.4 drops the (1 - x)^2 term (x < 0.002 here); keeping it moves fCO2 by < 6e-6 relative at
-// 2000 uatm, which the reference test allows for explicitly.
+// CO2SYS and PyCO2SYS 1.8.3.4 drop the (1 - x)^2 factor (x < 0.002 here); option fugacity 'weiss1974-dilute'
+// does the same, for comparison. Keeping it lowers fCO2 by about 4e-6 relative per 1000 uatm.
 
 import { vapourPressureAtm } from '../seawater/index.js';
 import type { EquilibriumConstants } from './equilibrium.js';
@@ -21,9 +21,10 @@ export function fugacityFactorAt(
   tempK: number,
   baroHpa: number,
   pco2Uatm: number,
+  moleFractionTerm = 1,
 ): number {
   const pAtm = baroHpa / STANDARD_BARO_HPA;
-  const x = (pco2Uatm * 1e-6) / pAtm;
+  const x = (moleFractionTerm * pco2Uatm * 1e-6) / pAtm;
   const oneMinusX = 1 - x;
   // cm3 mol-1 * 1e-6 = m3 mol-1; P in Pa.
   return Math.exp(
@@ -33,7 +34,9 @@ export function fugacityFactorAt(
 
 /** fCO2 (uatm) from pCO2 (uatm) with the constants' temperature; baroHpa default 1013.25. */
 export function fco2FromPco2(c: EquilibriumConstants, pco2Uatm: number, baroHpa = STANDARD_BARO_HPA): number {
-  return pco2Uatm * fugacityFactorAt(c.virialB, c.virialDelta, c.tempK, baroHpa, pco2Uatm);
+  return (
+    pco2Uatm * fugacityFactorAt(c.virialB, c.virialDelta, c.tempK, baroHpa, pco2Uatm, c.virialMoleFraction)
+  );
 }
 
 /**
@@ -41,9 +44,10 @@ export function fco2FromPco2(c: EquilibriumConstants, pco2Uatm: number, baroHpa 
  * because d ln(factor)/dx is only about 4 delta P/(R T) = 0.004.
  */
 export function pco2FromFco2(c: EquilibriumConstants, fco2Uatm: number, baroHpa = STANDARD_BARO_HPA): number {
-  let p = fco2Uatm / fugacityFactorAt(c.virialB, c.virialDelta, c.tempK, baroHpa, fco2Uatm);
-  p = fco2Uatm / fugacityFactorAt(c.virialB, c.virialDelta, c.tempK, baroHpa, p);
-  p = fco2Uatm / fugacityFactorAt(c.virialB, c.virialDelta, c.tempK, baroHpa, p);
+  let p =
+    fco2Uatm / fugacityFactorAt(c.virialB, c.virialDelta, c.tempK, baroHpa, fco2Uatm, c.virialMoleFraction);
+  p = fco2Uatm / fugacityFactorAt(c.virialB, c.virialDelta, c.tempK, baroHpa, p, c.virialMoleFraction);
+  p = fco2Uatm / fugacityFactorAt(c.virialB, c.virialDelta, c.tempK, baroHpa, p, c.virialMoleFraction);
   return p;
 }
 

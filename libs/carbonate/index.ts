@@ -10,6 +10,7 @@ export type {
   CarbonateSigmas,
   CarbonateSolution,
   CarbonateUncertaintyResult,
+  FugacityOption,
   ConstantSigmas,
   K1K2Option,
   KwOption,
@@ -75,3 +76,5 @@ import { k0Weiss1974 } from './constants/weiss1974.js';
 export function k0(salinity: number, tempC: number): number {
   return k0Weiss1974(salinity, tempC + 273.15);
 }
+
+export { carbonateUncertainty } from './uncertainty.js';

@@ -13,16 +13,24 @@ export const CARBONATE_OPTION_NAMES = {
    * spec 3.1, default); 'millero1995-sws' is Millero's seawater-scale form converted to total, as in PyCO2SYS.
    */
   kw: ['millero1995', 'millero1995-sws'],
+  /**
+   * pCO2 <-> fCO2 of Weiss (1974): 'weiss1974' keeps the (1 - xCO2)^2 factor of the cross virial term (science
+   * spec 3.4, Dickson et al. 2007 SOP 24; default); 'weiss1974-dilute' sets xCO2 -> 0 there, as CO2SYS and
+   * PyCO2SYS do (fCO2 higher by about 4e-6 relative per 1000 uatm).
+   */
+  fugacity: ['weiss1974', 'weiss1974-dilute'],
 } as const;
 
 export type K1K2Option = (typeof CARBONATE_OPTION_NAMES.k1k2)[number];
 export type BoronOption = (typeof CARBONATE_OPTION_NAMES.boron)[number];
 export type KwOption = (typeof CARBONATE_OPTION_NAMES.kw)[number];
+export type FugacityOption = (typeof CARBONATE_OPTION_NAMES.fugacity)[number];
 
 export interface CarbonateOptions {
   k1k2?: K1K2Option;
   boron?: BoronOption;
   kw?: KwOption;
+  fugacity?: FugacityOption;
 }
 
 /** Options with every choice made (defaults filled in). */
@@ -30,12 +38,14 @@ export interface ResolvedCarbonateOptions {
   readonly k1k2: K1K2Option;
   readonly boron: BoronOption;
   readonly kw: KwOption;
+  readonly fugacity: FugacityOption;
 }
 
 export const DEFAULT_CARBONATE_OPTIONS: ResolvedCarbonateOptions = Object.freeze({
   k1k2: 'lueker2000',
   boron: 'lee2010',
   kw: 'millero1995',
+  fugacity: 'weiss1974',
 });
 
 /**
