@@ -1,0 +1,60 @@
+// Sensor-fault state of one series: stale (per sensor, from its observed message interval), and range, flat line
+// and spike (per sensor and metric, from the QC tests of libs/qc passed with each observation). Plain JSON data.
+
+/** Episode of an active fault. */
+export interface ActiveFault {
+  raisedAtMs: number;
+}
+
+export interface SensorTrack {
+  lastMs: number;
+  /** The last intervals between messages, ms (at most INTERVALS_KEPT). */
+  intervals: number[];
+  stale: ActiveFault | null;
+  /** Stale limit in force when the stale episode was raised, ms. */
+  staleLimitMs: number | null;
+}
+
+export const INTERVALS_KEPT = 15;
+
+/** Median of the kept intervals: the sensor's usual interval, robust to the odd gap or burst. */
+export function usualIntervalMs(track: SensorTrack): number | null {
+  const xs = [...track.intervals].sort((a, b) => a - b);
+  if (xs.length === 0) return null;
+  const m = xs.length >> 1;
+  return xs.length % 2 === 1 ? (xs[m] as number) : ((xs[m - 1] as number) + (xs[m] as number)) / 2;
+}
+
+/** Stale limit: factor x the usual interval, at least minMs (contract: 3 x, at least 5 min). */
+export function staleLimitMs(track: SensorTrack, factor: number, minMs: number): number | null {
+  const u = usualIntervalMs(track);
+  return u === null ? null : Math.max(factor * u, minMs);
+}
+
+/** Records a message time; intervals across a stale episode are not kept (they are outages, not cadence). */
+export function trackMessage(track: SensorTrack, tMs: number): void {
+  if (tMs <= track.lastMs) return;
+  if (track.stale === null && Number.isFinite(track.lastMs)) {
+    track.intervals.push(tMs - track.lastMs);
+    if (track.intervals.length > INTERVALS_KEPT) track.intervals.shift();
+  }
+  track.lastMs = tMs;
+}
+
+export interface MetricFaults {
+  range: ActiveFault | null;
+  /** First observation of the current run without a gross-range fail, ms (for the clear duration). */
+  rangeOkSinceMs: number | null;
+  flatline: ActiveFault | null;
+  spike: ActiveFault | null;
+  /** Times of spikes (spike test 3 or 4) inside the counting window, ms. */
+  spikeTimes: number[];
+}
+
+export const newMetricFaults = (): MetricFaults => ({
+  range: null,
+  rangeOkSinceMs: null,
+  flatline: null,
+  spike: null,
+  spikeTimes: [],
+});

@@ -1,0 +1,27 @@
+// Public API of libs/alerts: the alert rule engine (pure, event time) and the config schemas of `alerts:` and
+// `notify:`.
+export { createAlertEngine, type AlertEngine, type EngineSnapshot } from './engine.js';
+export {
+  DEFAULT_RULES,
+  DEFAULT_BATTERY_V,
+  resolveRules,
+  type ResolvedRules,
+  type FaultSettings,
+} from './rules.js';
+export {
+  alertsConfigSchema,
+  notifyConfigSchema,
+  notifyChannelSchema,
+  secretRefSchema,
+  severitySchema,
+  BUILTIN_RULE_IDS,
+  type AlertsConfig,
+  type AlertsConfigInput,
+  type NotifyConfig,
+  type NotifyConfigInput,
+  type NotifyChannelConfig,
+  type SecretRef,
+  type Severity,
+} from './config-schema.js';
+export type { AlertRecord, AlertClass, AlertState, FaultName, QcInfo, ThresholdRule } from './types.js';
+export { alertId } from './id.js';
