@@ -1,0 +1,223 @@
+// Waves from one bottom-pressure burst (science.md 4.1-4.5): gap filling, head (2.2), detrending, Hampel
+// despiking, Welch spectrum, linear pressure-response correction up to a cutoff, spectral bulk statistics and
+// zero-crossing statistics of the reconstructed surface, each with its QARTOD flag.
+import { cutoffFrequency, spectralStats } from './bulk.js';
+import { G_STANDARD, solveDispersionRow, pressureResponse } from './dispersion.js';
+import { despike, detrend, fillGaps } from './prep.js';
+import type { BurstInput, QartodFlag, WaveOptions, WavesErrorCode, WavesFail, WavesResult } from './types.js';
+import { chooseSegmentLength, welchDof, welchInto } from './welch.js';
+import { makeReconWork, reconstructSurface, zeroCrossingStats, type ReconWork } from './zerocross.js';
+
+/** dbar, one standard atmosphere (1 atm = 10.1325 dbar, science.md 1): the default p_atm. */
+export const PATM_STANDARD_DBAR = 10.1325;
+
+const DEFAULTS = {
+  maxFreqHz: 1.0,
+  minKp2: 0.1,
+  igLowHz: 0.005,
+  splitHz: 0.04,
+  dryMarginM: 0.05,
+  minSdM: 0.002,
+  spikeSigma: 5,
+  quadraticDetrendAboveS: 3600,
+  maxIgDfHz: 0.005,
+  minWaves: 50,
+} as const;
+
+/** Scratch for one burst length; see the note on module state below. */
+interface Work {
+  readonly n: number;
+  readonly x: Float64Array;
+  readonly eta: Float64Array;
+  readonly scratch: Float64Array; // 2n, for the medians and the wave heights
+  readonly recon: ReconWork;
+  psd: Float64Array;
+  kBins: Float64Array;
+  omegaBins: Float64Array;
+}
+
+// Module state, deliberately: the scratch arrays for the last few burst lengths, so that a station's stream of
+// equal-length bursts allocates nothing per burst on the hot path. Every array is fully overwritten before it
+// is read, so results never depend on earlier calls; nothing here escapes into a result. Bounded (cleared past
+// 8 lengths); JavaScript runs one call at a time, so the scratch is never shared by two analyses at once.
+const works = new Map<number, Work>();
+
+function workFor(n: number, ns: number): Work {
+  let w = works.get(n);
+  if (w === undefined) {
+    if (works.size >= 8) works.clear();
+    w = {
+      n,
+      x: new Float64Array(n),
+      eta: new Float64Array(n),
+      scratch: new Float64Array(2 * n),
+      recon: makeReconWork(n),
+      psd: new Float64Array(0),
+      kBins: new Float64Array(0),
+      omegaBins: new Float64Array(0),
+    };
+    works.set(n, w);
+  }
+  if (w.psd.length !== ns / 2 + 1) {
+    w.psd = new Float64Array(ns / 2 + 1);
+    w.kBins = new Float64Array(ns / 2 + 1);
+    w.omegaBins = new Float64Array(ns / 2 + 1);
+  }
+  return w;
+}
+
+function fail(flag: 3 | 4 | 9, code: WavesErrorCode, reason: string, depthM?: number): WavesFail {
+  return depthM === undefined ? { ok: false, flag, code, reason } : { ok: false, flag, code, reason, depthM };
+}
+
+const worst = (a: QartodFlag, b: QartodFlag): QartodFlag => (a === 9 || b === 9 ? 9 : a > b ? a : b);
+
+/**
+ * Analyses one pressure burst. Units: p and p_atm in dbar, heights in m, rho in kg m-3, fs in Hz, times in
+ * ms. Returns the bulk wave record, or { ok: false } with a QARTOD flag and a stable code when the burst
+ * cannot give numbers: empty or unusable metadata (9), fewer than 16 samples, fs <= 0, > 5 % non-finite,
+ * dry sensor, flat/clipped record or > 5 % spikes (4).
+ */
+export function analyzeBurst(input: BurstInput, options: WaveOptions = {}): WavesResult {
+  const o = { ...DEFAULTS, ...options };
+  const p = input.pDbar;
+  const n = p.length;
+  const fs = input.fsHz;
+  const g = input.gMS2 ?? G_STANDARD;
+  const zs = input.sensorHeightM;
+  if (n === 0) return fail(9, 'REEFD_WAVES_EMPTY', 'the burst has no samples; nothing to analyse');
+  if (!(fs > 0) || !Number.isFinite(fs)) {
+    return fail(4, 'REEFD_WAVES_BAD_INPUT', `sampling rate fsHz must be a positive number, got ${fs}`);
+  }
+  if (n < 16) return fail(4, 'REEFD_WAVES_TOO_SHORT', `a burst needs at least 16 samples, got ${n}`);
+  if (!Number.isFinite(input.patmDbar) || !(input.rhoKgM3 > 0) || !(g > 0) || !(zs >= 0)) {
+    return fail(
+      9,
+      'REEFD_WAVES_BAD_INPUT',
+      `station state missing or invalid (patmDbar=${input.patmDbar}, rhoKgM3=${input.rhoKgM3}, gMS2=${g}, sensorHeightM=${zs}); pass p_atm in dbar (10.1325 if no barometer), rho from the CTD and the sensor height`,
+    );
+  }
+  const ns = o.nperseg ?? chooseSegmentLength(n, fs);
+  if (ns < 8 || ns > n || (ns & (ns - 1)) !== 0) {
+    return fail(9, 'REEFD_WAVES_BAD_INPUT', `nperseg must be a power of two in [8, ${n}], got ${ns}`);
+  }
+  const w = workFor(n, ns);
+  const x = w.x;
+  const notes: string[] = [];
+
+  // 4.1.1 gaps
+  const bad = fillGaps(p, x, n);
+  if (bad < 0 || bad > 0.05 * n) {
+    const pct = bad < 0 ? 100 : (100 * bad) / n;
+    return fail(4, 'REEFD_WAVES_NONFINITE', `${pct.toFixed(1)} % of the samples are not finite (limit 5 %)`);
+  }
+  let qc: QartodFlag = bad > 0.01 * n ? 3 : 1;
+  if (bad > 0) notes.push(`interpolated ${bad} non-finite samples`);
+
+  // 4.1.2-3 head and mean depth
+  const c = 1e4 / (input.rhoKgM3 * g);
+  let mean = 0;
+  for (let i = 0; i < n; i++) {
+    const v = c * ((x[i] as number) - input.patmDbar);
+    x[i] = v;
+    mean += v;
+  }
+  mean /= n;
+  const depthM = mean + zs;
+  if (!(mean >= o.dryMarginM)) {
+    return fail(
+      4,
+      'REEFD_WAVES_DRY',
+      `mean water head above the sensor is ${mean.toFixed(3)} m (< ${o.dryMarginM} m): sensor out of the water`,
+      depthM,
+    );
+  }
+
+  // 4.1.4 detrend
+  const durationS = n / fs;
+  detrend(x, n, durationS > o.quadraticDetrendAboveS ? 2 : 1);
+  let ss = 0;
+  for (let i = 0; i < n; i++) ss += (x[i] as number) * (x[i] as number);
+  const sd = Math.sqrt(ss / n);
+  if (!(sd >= o.minSdM)) {
+    return fail(
+      4,
+      'REEFD_WAVES_FLAT',
+      `detrended head sd is ${(sd * 1000).toFixed(2)} mm (< ${o.minSdM * 1000} mm): flat or clipped record`,
+      depthM,
+    );
+  }
+
+  // 4.1.5 despike; the robust sigma is floored at the flat-record threshold (see prep.ts)
+  const spikes = despike(x, n, o.spikeSigma, o.minSdM, w.scratch);
+  if (spikes > 0.05 * n) {
+    return fail(4, 'REEFD_WAVES_SPIKY', `${spikes} of ${n} samples are spikes (> 5 %)`, depthM);
+  }
+  if (spikes > 0.01 * n) qc = worst(qc, 3);
+  if (spikes > 0) notes.push(`replaced ${spikes} spikes`);
+
+  // 4.2 Welch spectrum of the head
+  const k = welchInto(x, n, fs, ns, w.psd);
+  const dof = welchDof(k);
+  const df = fs / ns;
+  notes.push(`Welch: nperseg ${ns}, ${k} segments, df ${df.toPrecision(3)} Hz, nu ${dof.toPrecision(3)}`);
+
+  // 4.3 cutoff and pressure response, on the Welch bins up to the cutoff
+  const cut = cutoffFrequency(depthM, zs, fs, o.maxFreqHz, o.minKp2, g);
+  notes.push(`cutoff ${cut.fHz.toPrecision(3)} Hz (${cut.by})`);
+  const mTop = Math.min(ns / 2, Math.floor((cut.fHz + 1e-9 * df) / df));
+  const sEta = w.psd;
+  for (let m = 0; m <= mTop; m++) w.omegaBins[m] = 2 * Math.PI * m * df;
+  solveDispersionRow(w.omegaBins, depthM, g, w.kBins, mTop + 1);
+  for (let m = 0; m <= mTop; m++) {
+    const kp = pressureResponse(w.kBins[m] as number, zs, depthM);
+    sEta[m] = (sEta[m] as number) / (kp * kp);
+  }
+  for (let m = mTop + 1; m < sEta.length; m++) sEta[m] = 0;
+
+  // 4.4 bulk statistics
+  const evaluateIg = df <= o.maxIgDfHz;
+  if (!evaluateIg) notes.push(`IG band not evaluated: df ${df.toPrecision(3)} Hz > ${o.maxIgDfHz} Hz`);
+  const stats = spectralStats(sEta, df, cut.fHz, o.igLowHz, o.splitHz, evaluateIg, dof);
+  if (stats === null) {
+    return fail(
+      4,
+      'REEFD_WAVES_NO_BAND',
+      `no energy between ${o.igLowHz} Hz and the cutoff ${cut.fHz} Hz`,
+      depthM,
+    );
+  }
+  const ssFlag: QartodFlag = cut.fHz < 0.05 ? 4 : 1;
+  if (ssFlag === 4) notes.push(`cutoff below 0.05 Hz: sea-swell statistics fail`);
+  const igFlag: QartodFlag = evaluateIg ? qc : 2;
+
+  // 4.5 surface reconstruction over the total band, zero-crossing statistics
+  const fLo = evaluateIg ? o.igLowHz : o.splitHz;
+  reconstructSurface(x, fs, depthM, zs, g, fLo, cut.fHz, w.recon, w.eta);
+  const zc = zeroCrossingStats(w.eta, n, fs, w.scratch);
+  const zcFlag = worst(qc, zc.nWaves < o.minWaves ? 3 : 1);
+
+  return {
+    ok: true,
+    flag: worst(qc, ssFlag),
+    tCentreMs: input.t0Ms + (n / (2 * fs)) * 1000,
+    hm0M: stats.hm0M,
+    tpS: stats.tpS,
+    tm01S: stats.tm01S,
+    tm02S: stats.tm02S,
+    hrmsM: stats.hrmsM,
+    hm0SsM: stats.hm0SsM,
+    hm0IgM: stats.hm0IgM,
+    depthM,
+    cutoffHz: cut.fHz,
+    dof,
+    hm0SigmaM: stats.hm0SigmaM,
+    h13M: zc.h13M,
+    h110M: zc.h110M,
+    hmaxM: zc.hmaxM,
+    tzS: zc.tzS,
+    nWaves: zc.nWaves,
+    flags: { ss: worst(qc, ssFlag), ig: igFlag, zeroCrossing: zcFlag },
+    notes,
+  };
+}

@@ -1,0 +1,152 @@
+// Discrete Fourier transforms for the wave analysis: fft.js (radix-4, power-of-two sizes) for the Welch
+// segments, and Bluestein's chirp-z algorithm (Bluestein 1970, IEEE Trans. Audio Electroacoust.; Rabiner,
+// Schafer & Rader 1969) for the exact N-point DFT of a whole burst of arbitrary length N (4.5).
+//
+// Why Bluestein and not zero padding: padding a burst to the next power of two changes the frequency grid
+// (f = m fs/M instead of m fs/N) and mixes the padded zeros into the reconstructed surface, so the filtered
+// record is no longer the burst's own circular filter. Bluestein computes the same DFT as a naive sum, on the
+// burst's own grid, at the cost of three power-of-two transforms of size M >= 2N - 1 (about 6x one real FFT).
+// Power-of-two bursts (the usual case) skip it and use fft.js directly.
+import FFT from 'fft.js';
+
+/** One cached plan per size: the fft.js twiddle tables and scratch buffers. */
+interface Plan {
+  readonly fft: FFT;
+  readonly size: number;
+  /** interleaved complex scratch, 2 * size */
+  readonly a: Float64Array;
+  readonly b: Float64Array;
+}
+
+/** Bluestein plan for one arbitrary length n: chirp and the transformed convolution kernel. */
+interface ChirpPlan {
+  readonly n: number;
+  readonly m: Plan;
+  /** w[j] = exp(-i pi j^2 / n), interleaved, length 2n */
+  readonly w: Float64Array;
+  /** FFT of the kernel conj(w) wrapped to length M, interleaved, length 2M */
+  readonly kernelHat: Float64Array;
+}
+
+// Module state, deliberately: building a plan (twiddle tables, chirp, kernel FFT) costs more than the
+// transform itself, and every burst of a station has the same length. The caches are private, keyed only
+// by size, and hold nothing that depends on the data, so results are deterministic and independent of call
+// order. They are bounded (a handful of sizes in practice; cleared past MAX_PLANS to stay bounded anyway).
+const MAX_PLANS = 32;
+const plans = new Map<number, Plan>();
+const chirps = new Map<number, ChirpPlan>();
+
+export function isPowerOfTwo(n: number): boolean {
+  return n >= 2 && (n & (n - 1)) === 0;
+}
+
+export function nextPowerOfTwo(n: number): number {
+  let m = 2;
+  while (m < n) m *= 2;
+  return m;
+}
+
+/** The cached fft.js plan for a power-of-two size (>= 2). */
+export function planFor(size: number): Plan {
+  let p = plans.get(size);
+  if (p === undefined) {
+    if (plans.size >= MAX_PLANS) plans.clear();
+    p = { fft: new FFT(size), size, a: new Float64Array(2 * size), b: new Float64Array(2 * size) };
+    plans.set(size, p);
+  }
+  return p;
+}
+
+/**
+ * Real forward transform of x (length = plan size, power of two) into out (interleaved complex, length 2 size).
+ * Only bins 0..size/2 are filled; the rest is left as fft.js leaves it. Sign convention exp(-2 pi i m n/N).
+ */
+export function realForward(plan: Plan, x: Float64Array, out: Float64Array): void {
+  plan.fft.realTransform(out, x);
+}
+
+function chirpFor(n: number): ChirpPlan {
+  let c = chirps.get(n);
+  if (c === undefined) {
+    if (chirps.size >= MAX_PLANS) chirps.clear();
+    const mSize = nextPowerOfTwo(2 * n - 1);
+    const m = planFor(mSize);
+    const w = new Float64Array(2 * n);
+    for (let j = 0; j < n; j++) {
+      // j^2 mod 2n keeps the angle argument small and exact for large j.
+      const q = (j * j) % (2 * n);
+      const ang = (Math.PI * q) / n;
+      w[2 * j] = Math.cos(ang);
+      w[2 * j + 1] = -Math.sin(ang);
+    }
+    const kernel = new Float64Array(2 * mSize);
+    for (let j = 0; j < n; j++) {
+      const re = w[2 * j] as number;
+      const im = -(w[2 * j + 1] as number);
+      kernel[2 * j] = re;
+      kernel[2 * j + 1] = im;
+      if (j > 0) {
+        kernel[2 * (mSize - j)] = re;
+        kernel[2 * (mSize - j) + 1] = im;
+      }
+    }
+    const kernelHat = new Float64Array(2 * mSize);
+    m.fft.transform(kernelHat, kernel);
+    c = { n, m, w, kernelHat };
+    chirps.set(n, c);
+  }
+  return c;
+}
+
+/**
+ * Exact N-point DFT of complex data (interleaved, length 2n) into out (length 2n), any n >= 1.
+ * inverse = true computes (1/n) sum X_m exp(+2 pi i m j/n). Power-of-two n uses fft.js directly.
+ */
+export function complexDft(data: Float64Array, out: Float64Array, n: number, inverse: boolean): void {
+  if (n === 1) {
+    out[0] = data[0] as number;
+    out[1] = data[1] as number;
+    return;
+  }
+  if (isPowerOfTwo(n)) {
+    const p = planFor(n);
+    if (inverse) p.fft.inverseTransform(out, data);
+    else p.fft.transform(out, data);
+    return;
+  }
+  // Inverse via conjugation: idft(x) = conj(dft(conj(x)))/n.
+  const c = chirpFor(n);
+  const { a, b } = c.m;
+  const w = c.w;
+  const mSize = c.m.size;
+  const sgn = inverse ? -1 : 1;
+  a.fill(0);
+  for (let j = 0; j < n; j++) {
+    const xr = data[2 * j] as number;
+    const xi = sgn * (data[2 * j + 1] as number);
+    const wr = w[2 * j] as number;
+    const wi = w[2 * j + 1] as number;
+    a[2 * j] = xr * wr - xi * wi;
+    a[2 * j + 1] = xr * wi + xi * wr;
+  }
+  c.m.fft.transform(b, a);
+  const kh = c.kernelHat;
+  for (let j = 0; j < mSize; j++) {
+    const br = b[2 * j] as number;
+    const bi = b[2 * j + 1] as number;
+    const kr = kh[2 * j] as number;
+    const ki = kh[2 * j + 1] as number;
+    b[2 * j] = br * kr - bi * ki;
+    b[2 * j + 1] = br * ki + bi * kr;
+  }
+  c.m.fft.inverseTransform(a, b);
+  const scale = inverse ? 1 / n : 1;
+  for (let j = 0; j < n; j++) {
+    const yr = a[2 * j] as number;
+    const yi = a[2 * j + 1] as number;
+    const wr = w[2 * j] as number;
+    const wi = w[2 * j + 1] as number;
+    out[2 * j] = scale * (yr * wr - yi * wi);
+    out[2 * j + 1] = sgn * scale * (yr * wi + yi * wr);
+  }
+}
