@@ -95,9 +95,8 @@ export function qcBins(
   const isBeam = ens.coord === 'beam';
   const isEarth = ens.coord === 'earth';
   const peak = echo === undefined ? NO_PEAK : echoPeakIndex(echo, qc.echoPeakRiseCounts);
-  const raw = new Float64Array(4);
-  const inst = new Float64Array(4);
-  const earth = new Float64Array(4);
+  // One work vector: the transforms read all inputs before writing, so they run in place.
+  const w4 = new Float64Array(4);
   let valid = 0;
   let threeBeam = 0;
   let worst = 1;
@@ -122,8 +121,7 @@ export function qcBins(
       const v = row[i];
       // In inst/earth coordinates the 4th value is the error velocity: a null there is "not measured".
       const isNull = v === null || v === undefined || !Number.isFinite(v);
-      if (isNull) raw[i] = Number.NaN;
-      else raw[i] = v;
+      w4[i] = isNull ? Number.NaN : v;
       const beamBad =
         (cRow !== undefined && (cRow[i] as number) < qc.corrMinPct) ||
         (pRow !== undefined && (pRow[i] as number) < qc.pgMinPct);
@@ -145,24 +143,23 @@ export function qcBins(
         continue;
       }
       if (badCount === 1) {
-        beamToInstrument3(raw, badBeam, head, inst);
+        beamToInstrument3(w4, badBeam, head, w4);
         flag = 3;
       } else {
-        beamToInstrument(raw, head, inst);
+        beamToInstrument(w4, head, w4);
       }
-      instrumentToEarth(inst, rot, earth);
+      instrumentToEarth(w4, rot, w4);
     } else {
       if (badCount >= 1) {
         binFlags[n] = 4;
         continue;
       }
-      if (isEarth) earth.set(raw);
-      else instrumentToEarth(raw, rot, earth);
+      if (!isEarth) instrumentToEarth(w4, rot, w4);
     }
-    const e = earth[0] as number;
-    const nn = earth[1] as number;
-    const w = earth[2] as number;
-    const err = earth[3] as number;
+    const e = w4[0] as number;
+    const nn = w4[1] as number;
+    const w = w4[2] as number;
+    const err = w4[3] as number;
     if (Number.isFinite(err)) {
       const ae = Math.abs(err);
       if (ae > qc.errFailMS) flag = 4;

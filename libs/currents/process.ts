@@ -7,7 +7,7 @@
 // raised to 3 by its own checks (p_atm defaulted, station and ADCP depths differ by > 0.05 m, an
 // ensemble shorter than 5 min). Failures return { ok: false } with a stable code (errors.ts).
 import { qcBins, type BinPlan } from './bin-qc.js';
-import { depthAverageInto } from './depth-average.js';
+import { depthAverage2Into } from './depth-average.js';
 import { currentFail } from './errors.js';
 import { boundaryDistanceM, depthFromPressureM, sideLobeMaxRangeM } from './geometry.js';
 import { bedStressPa, directionTowardsDeg, logLawCd, toReefFrame } from './reef-frame.js';
@@ -139,11 +139,9 @@ export function processEnsemble(
     tiltFlag,
   };
   const binFlags = new Array<number>(nBins);
-  const scratch = new Float64Array(3 * nBins + 4);
-  const z = scratch.subarray(0, nBins);
-  const east = scratch.subarray(nBins, 2 * nBins);
-  const north = scratch.subarray(2 * nBins, 3 * nBins);
-  const mean = scratch.subarray(3 * nBins);
+  const z = new Float64Array(nBins);
+  const east = new Float64Array(nBins);
+  const north = new Float64Array(nBins);
   const tally = qcBins(plan, binFlags, z, east, north);
   const m = tally.valid;
   const coverage = (m * ens.binM * cosTilt) / depthM;
@@ -163,9 +161,8 @@ export function processEnsemble(
   if (tally.worst > flag) flag = tally.worst;
 
   // Depth average: [E const, E power, N const, N power].
-  const bedM = sensor.bedPowerM ?? 6;
-  depthAverageInto(z, east, m, depthM, bedM, mean, 0);
-  depthAverageInto(z, north, m, depthM, bedM, mean, 2);
+  const mean = new Float64Array(4);
+  depthAverage2Into(z, east, north, m, depthM, sensor.bedPowerM ?? 6, mean);
   const power = sensor.topExtrapolation === 'power';
   const eastMS = (power ? mean[1] : mean[0]) as number;
   const northMS = (power ? mean[3] : mean[2]) as number;
