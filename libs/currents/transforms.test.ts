@@ -186,3 +186,47 @@ describe('round trip earth -> inst -> beam -> inst -> earth', () => {
     );
   });
 });
+
+describe('rotationMatrix against an independent construction', () => {
+  /** Right-hand rotation by angle (deg) about a unit axis, by Rodrigues' formula; row-major 3 x 3. */
+  function rodrigues(axis: [number, number, number], deg: number): number[] {
+    const [x, y, z] = axis;
+    const c = Math.cos(deg * DEG);
+    const s = Math.sin(deg * DEG);
+    const t = 1 - c;
+    // prettier-ignore
+    return [
+      t * x * x + c,     t * x * y - s * z, t * x * z + s * y,
+      t * x * y + s * z, t * y * y + c,     t * y * z - s * x,
+      t * x * z - s * y, t * y * z + s * x, t * z * z + c,
+    ];
+  }
+  function mul(a: number[], b: number[]): number[] {
+    const out: number[] = [];
+    for (let i = 0; i < 3; i++)
+      for (let j = 0; j < 3; j++) {
+        let s = 0;
+        for (let k = 0; k < 3; k++) s += (a[3 * i + k] as number) * (b[3 * k + j] as number);
+        out.push(s);
+      }
+    return out;
+  }
+
+  it('equals Rot(z, -heading) Rot(x, pitch) Rot(y, roll) built by Rodrigues (algebra, property test)', () => {
+    // heading is clockwise seen from above, i.e. a right-hand rotation by -heading about up
+    fc.assert(
+      fc.property(
+        fc.double({ min: -360, max: 360, noNaN: true }),
+        fc.double({ min: -40, max: 40, noNaN: true }),
+        fc.double({ min: -40, max: 40, noNaN: true }),
+        (h, p, r) => {
+          const expected = mul(
+            mul(rodrigues([0, 0, 1], -h), rodrigues([1, 0, 0], p)),
+            rodrigues([0, 1, 0], r),
+          );
+          close(rotationMatrix(h, p, r), expected, 1e-14);
+        },
+      ),
+    );
+  });
+});
