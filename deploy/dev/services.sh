@@ -23,6 +23,7 @@ TIMEOUT_S="${REEFD_SERVICES_TIMEOUT_S:-90}"
 KAFKA_VERSION=3.9.2 # keep in step with kafka.version in deploy/dev/pom.xml
 KAFKA_HOME="$CACHE/kafka/$KAFKA_VERSION"
 SERVICES=(mosquitto influxdb victoriametrics kafka)
+STARTED_NOW=""
 
 # Addresses come from services.env; a variable already set in the environment wins (e.g. to run
 # a second set of services on other ports with another REEFD_SERVICES_DIR).
@@ -329,9 +330,7 @@ probe() {
       ;;
     influxdb) curl -fsS -o /dev/null --max-time 3 "http://$INFLUX_ADDR/ping" 2>/dev/null ;;
     victoriametrics) [[ "$(curl -fsS --max-time 3 "http://$VM_ADDR/health" 2>/dev/null)" == OK ]] ;;
-    kafka)
-      kafka_answers && grep -q 'Kafka Server started' "$(logfile_of kafka)" 2>/dev/null
-      ;;
+    kafka) kafka_answers ;;
   esac
 }
 
@@ -346,9 +345,18 @@ show_log_tail() {
   done
 }
 
+# started_now: the broker's own start-up line is awaited too (belt and braces: it answers
+# ApiVersions only once its request handlers are enabled at the end of start-up).
+ready() {
+  probe "$1" || return 1
+  if [[ "$1" == kafka && " $STARTED_NOW " == *" kafka "* ]]; then
+    grep -q 'Kafka Server started' "$(logfile_of kafka)" 2>/dev/null || return 1
+  fi
+}
+
 wait_ready() {
   local name="$1" start=$SECONDS
-  while ! probe "$name"; do
+  while ! ready "$name"; do
     if ! pid_alive "$name"; then
       show_log_tail "$name"
       die "$name exited during start-up (see the log above)"
@@ -379,6 +387,7 @@ cmd_up() {
     check_port_free "$name"
     mkdir -p "$STATE/$name"
     "start_$name"
+    STARTED_NOW+=" $name"
   done
   for name in "${SERVICES[@]}"; do
     wait_ready "$name"
