@@ -4,33 +4,20 @@
 // Why our own HTTP writer and not @influxdata/influxdb-client's WriteApi: the client's close()/flush()
 // resolve before batches it already sent are acknowledged (../shared/measured.md), it buffers and retries on
 // its own, which would fight the disk spool, and it only speaks v2. One small writer gives both APIs, an
-// exact "this batch is in the database" moment, and ordering: one batch in flight at a time.
+// exact "this batch is in the database" moment, and order (one batch in flight, spooled-sink.ts).
 //
-// Flow: write() encodes records and queues the lines in memory (bounded). A single pump sends batches of
-// batch_size lines; a batch that fails with a retriable error goes to the disk spool, and while the spool is
-// not empty every new line goes behind it, so the database receives lines in the order they were written.
-// The spool is drained oldest first with backoff + jitter (retry.ts). 4xx refusals (except 408/429) drop
-// the batch with an error log: retrying data the database refuses would block everything behind it.
+// Idempotence: a point is identified by measurement, tag set and timestamp; writing it again overwrites it
+// in InfluxDB. VictoriaMetrics keeps both copies unless it runs with -dedup.minScrapeInterval (1ms is
+// enough for reefd's ms timestamps), which a deployment must set for replays to duplicate nothing.
 import { gzip as gzipCb } from 'node:zlib';
 import { promisify } from 'node:util';
-import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
-import { recordToLine, type Dialect } from '../../libs/lineproto/index.js';
-import type { RecordSink, SinkStats } from '../pipeline/types.js';
+import { recordToLine } from '../../libs/lineproto/index.js';
 import type { Logger } from '../log/logger.js';
 import { checkStatus, httpPost, tlsOptions, type TlsFiles } from './http.js';
-import { retry, realSleep, type Sleep } from './retry.js';
-import { Spool } from './spool.js';
+import type { Sleep } from './retry.js';
+import { createSpooledSink, type SpooledSink } from './spooled-sink.js';
 
 const gzip = promisify(gzipCb);
-
-/** The database answered and refused the data (4xx other than 408/429): retrying cannot help. */
-function isRefusal(err: unknown): boolean {
-  return err instanceof ReefdError && err.code === 'REEFD_SINK_UNAVAILABLE' && !err.retriable;
-}
-
-function isProgrammingError(err: unknown): boolean {
-  return err instanceof TypeError || err instanceof RangeError || err instanceof SyntaxError;
-}
 
 export interface InfluxSinkOptions {
   name?: string;
@@ -47,333 +34,73 @@ export interface InfluxSinkOptions {
   tls?: TlsFiles | undefined;
   batchSize: number;
   flushMs: number;
+  /** Folder of this sink's spool segments (e.g. `<data_dir>/spool/influx`). */
   spoolDir: string;
   spoolMaxMb: number;
   logger: Logger;
   /** Gzip request bodies over 1 kB (default true; InfluxDB 1.x and VictoriaMetrics both accept it). */
   gzip?: boolean;
   timeoutMs?: number;
-  /** Lines held in memory before they go to the spool (default 4 x batchSize). */
   maxMemoryLines?: number;
   backoff?: { baseMs: number; maxMs: number };
   random?: () => number;
   sleep?: Sleep;
-  /** Called once each time the spool passes 80 % of its bound (and again after it fell below 70 %). */
   onNearLimit?: (s: { spoolBytes: number; maxBytes: number }) => void;
 }
 
-export interface InfluxSink extends RecordSink {
-  /** True while the spool holds 80 % of spool_max_mb or more. */
-  nearLimit(): boolean;
-}
+export type InfluxSink = SpooledSink;
 
-class Sink implements InfluxSink {
-  readonly name: string;
-  readonly #o: InfluxSinkOptions;
-  readonly #dialect: Dialect;
-  readonly #url: URL;
-  readonly #headers: Record<string, string>;
-  readonly #tls: ReturnType<typeof tlsOptions>;
-  readonly #spool: Spool;
-  readonly #memCap: number;
-  #mem: string[] = [];
-  #accepted = 0;
-  /** Lines that left memory for good: delivered, spooled, refused or dropped. */
-  #settled = 0;
-  #flushWaiters: { target: number; resolve: () => void }[] = [];
-  #wake: (() => void) | undefined;
-  #timer: NodeJS.Timeout | undefined;
-  #closing = false;
-  #abort = new AbortController();
-  #pump: Promise<void> | undefined;
-  #nearSignalled = false;
-  #stats: SinkStats = { written: 0, failed: 0, pending: 0 };
-
-  constructor(o: InfluxSinkOptions, spool: Spool) {
-    this.#o = o;
-    this.name = o.name ?? `influx-${o.api}`;
-    this.#dialect = o.api;
-    this.#spool = spool;
-    this.#memCap = o.maxMemoryLines ?? o.batchSize * 4;
-    this.#tls = tlsOptions(o.tls);
-    const base = new URL(o.url.endsWith('/') ? o.url : o.url + '/');
-    if (o.api === 'v2') {
-      this.#url = new URL('api/v2/write', base);
-      this.#url.searchParams.set('org', o.org ?? 'reefd');
-      this.#url.searchParams.set('bucket', o.bucket ?? 'reefd');
-    } else {
-      this.#url = new URL('write', base);
-      this.#url.searchParams.set('db', o.db ?? 'reefd');
-    }
-    this.#url.searchParams.set('precision', 'ms');
-    this.#headers = { 'content-type': 'text/plain; charset=utf-8' };
-    if (o.token !== undefined) this.#headers.authorization = `Token ${o.token}`;
-    else if (o.username !== undefined) {
-      const basic = Buffer.from(`${o.username}:${o.password ?? ''}`).toString('base64');
-      this.#headers.authorization = `Basic ${basic}`;
-    }
+function writeUrl(o: InfluxSinkOptions): URL {
+  const base = new URL(o.url.endsWith('/') ? o.url : o.url + '/');
+  let url: URL;
+  if (o.api === 'v2') {
+    url = new URL('api/v2/write', base);
+    url.searchParams.set('org', o.org ?? 'reefd');
+    url.searchParams.set('bucket', o.bucket ?? 'reefd');
+  } else {
+    url = new URL('write', base);
+    url.searchParams.set('db', o.db ?? 'reefd');
   }
-
-  start(): void {
-    this.#pump = this.#run().catch((err: unknown) => {
-      this.#o.logger.error({ err, sink: this.name }, 'time-series sink stopped on an unexpected error');
-    });
-  }
-
-  write(records: readonly DerivedRecord[]): void {
-    if (this.#closing) {
-      this.#stats.failed += records.length;
-      this.#o.logger.error(
-        { sink: this.name, n: records.length },
-        'records written after close() were dropped',
-      );
-      return;
-    }
-    for (const r of records) {
-      const enc = recordToLine(r, this.#dialect);
-      if (!enc.ok) {
-        this.#stats.failed++;
-        this.#o.logger.warn(
-          { sink: this.name, type: r.type, reason: enc.reason },
-          'record has no line-protocol form',
-        );
-        continue;
-      }
-      this.#mem.push(enc.line);
-      this.#accepted++;
-    }
-    if (this.#mem.length >= this.#o.batchSize || this.#mem.length > this.#memCap) this.#poke();
-    else if (this.#timer === undefined && this.#mem.length > 0) {
-      this.#timer = setTimeout(() => {
-        this.#timer = undefined;
-        this.#poke();
-      }, this.#o.flushMs);
-      this.#timer.unref();
-    }
-  }
-
-  flush(): Promise<void> {
-    if (this.#settled >= this.#accepted) return Promise.resolve();
-    return new Promise((resolve) => {
-      this.#flushWaiters.push({ target: this.#accepted, resolve });
-      this.#poke();
-    });
-  }
-
-  async close(): Promise<void> {
-    if (this.#closing) return this.#pump;
-    await this.flush();
-    this.#closing = true;
-    this.#abort.abort(new Error('sink closing'));
-    this.#poke();
-    if (this.#timer !== undefined) clearTimeout(this.#timer);
-    await this.#pump;
-    await this.#spool.close();
-  }
-
-  stats(): SinkStats {
-    const s: SinkStats = {
-      ...this.#stats,
-      pending: this.#mem.length + this.#spool.lines(),
-      spoolBytes: this.#spool.bytes(),
-    };
-    return s;
-  }
-
-  nearLimit(): boolean {
-    return this.#spool.nearLimit();
-  }
-
-  #poke(): void {
-    const w = this.#wake;
-    this.#wake = undefined;
-    w?.();
-  }
-
-  #idle(ms?: number): Promise<void> {
-    return new Promise((resolve) => {
-      let t: NodeJS.Timeout | undefined;
-      this.#wake = () => {
-        if (t !== undefined) clearTimeout(t);
-        resolve();
-      };
-      if (ms !== undefined) t = setTimeout(() => this.#poke(), ms);
-    });
-  }
-
-  #settle(n: number): void {
-    this.#settled += n;
-    this.#flushWaiters = this.#flushWaiters.filter((w) => {
-      if (this.#settled < w.target) return true;
-      w.resolve();
-      return false;
-    });
-  }
-
-  #flushWanted(): boolean {
-    return this.#flushWaiters.length > 0;
-  }
-
-  async #run(): Promise<void> {
-    while (!(this.#closing && this.#mem.length === 0)) {
-      if (!this.#spool.isEmpty()) {
-        // Outage or leftovers: new lines queue behind the spool; a flush puts them in it.
-        if (this.#mem.length > this.#memCap || this.#flushWanted() || this.#closing) await this.#spill();
-        if (this.#closing) break;
-        await this.#drainOne();
-        continue;
-      }
-      if (this.#mem.length > this.#memCap) {
-        // The database is up but slower than the input: keep memory bounded, the spool takes the rest.
-        await this.#spill();
-        continue;
-      }
-      if (
-        this.#mem.length >= this.#o.batchSize ||
-        (this.#mem.length > 0 && (this.#flushWanted() || this.#closing || this.#timer === undefined))
-      ) {
-        await this.#sendFromMemory();
-        continue;
-      }
-      await this.#idle();
-    }
-  }
-
-  /** One batch from memory: delivered, or spooled on a retriable failure, or dropped on a refusal. */
-  async #sendFromMemory(): Promise<void> {
-    const batch = this.#mem.splice(0, this.#o.batchSize);
-    try {
-      await this.#send(batch);
-      this.#stats.written += batch.length;
-      this.#settle(batch.length);
-    } catch (err) {
-      if (isRefusal(err) || isProgrammingError(err)) {
-        this.#refused(err, batch.length);
-        this.#settle(batch.length);
-        return;
-      }
-      this.#stats.lastError = (err as Error).message;
-      this.#o.logger.warn(
-        { sink: this.name, err: (err as Error).message },
-        'time-series database unreachable; spooling to disk',
-      );
-      this.#mem.unshift(...batch);
-      await this.#spill();
-    }
-  }
-
-  /** Moves every line in memory, oldest first, to the spool. */
-  async #spill(): Promise<void> {
-    while (this.#mem.length > 0) {
-      const part = this.#mem.slice(0, this.#o.batchSize);
-      let ok: boolean;
-      try {
-        ok = await this.#spool.append(part);
-      } catch (err) {
-        ok = false;
-        this.#stats.lastError = (err as Error).message;
-      }
-      this.#mem.splice(0, part.length);
-      if (!ok) {
-        this.#stats.failed += part.length;
-        this.#o.logger.error(
-          {
-            sink: this.name,
-            dropped: part.length,
-            spoolBytes: this.#spool.bytes(),
-            maxBytes: this.#spool.maxBytes(),
-          },
-          'REEFD_SPOOL_NEAR_LIMIT: spool full or disk error; newest records dropped (replay the raw archive to fill the gap)',
-        );
-      }
-      this.#settle(part.length);
-    }
-    this.#checkNear();
-  }
-
-  #checkNear(): void {
-    const bytes = this.#spool.bytes();
-    const max = this.#spool.maxBytes();
-    if (!this.#nearSignalled && bytes >= 0.8 * max) {
-      this.#nearSignalled = true;
-      this.#o.logger.error({ sink: this.name, spoolBytes: bytes, maxBytes: max }, 'REEFD_SPOOL_NEAR_LIMIT');
-      this.#o.onNearLimit?.({ spoolBytes: bytes, maxBytes: max });
-    } else if (this.#nearSignalled && bytes < 0.7 * max) this.#nearSignalled = false;
-  }
-
-  /** Delivers the spool's oldest batch, retrying with backoff; while waiting, memory overflow is spilled. */
-  async #drainOne(): Promise<void> {
-    const batch = await this.#spool.peek(this.#o.batchSize);
-    if (batch.length === 0) return;
-    const backoff = this.#o.backoff ?? { baseMs: 250, maxMs: 30_000 };
-    const sleep = this.#o.sleep ?? realSleep;
-    try {
-      await retry(() => this.#send(batch), {
-        ...backoff,
-        random: this.#o.random ?? Math.random,
-        maxAttempts: Infinity,
-        signal: this.#abort.signal,
-        retriable: (err) => !isRefusal(err) && !isProgrammingError(err),
-        sleep: async (ms, signal) => {
-          // Wake up early to move lines to the spool (memory bound, flush, close); then wait out the delay.
-          let done = false;
-          const slept = sleep(ms, signal).then(
-            () => void (done = true),
-            () => void (done = true),
-          );
-          while (!done && !signal?.aborted) {
-            await Promise.race([slept, this.#idle()]);
-            if (this.#mem.length > this.#memCap || this.#flushWanted() || this.#closing) await this.#spill();
-          }
-          if (signal?.aborted) throw signal.reason as Error;
-        },
-        onRetry: (err, attempt, delayMs) => {
-          this.#stats.lastError = (err as Error).message;
-          if (attempt % 10 === 0)
-            this.#o.logger.warn(
-              { sink: this.name, attempt, delayMs, err: (err as Error).message },
-              'time-series database still unreachable',
-            );
-        },
-      });
-      this.#stats.written += batch.length;
-      await this.#spool.commit(batch.length);
-      this.#checkNear();
-    } catch (err) {
-      if (this.#abort.signal.aborted) return;
-      this.#refused(err, batch.length);
-      await this.#spool.commit(batch.length);
-    }
-  }
-
-  #refused(err: unknown, n: number): void {
-    this.#stats.failed += n;
-    this.#stats.lastError = (err as Error).message;
-    this.#o.logger.error(
-      { sink: this.name, n, err: (err as Error).message },
-      'time-series database refused a batch; dropped',
-    );
-  }
-
-  async #send(lines: readonly string[]): Promise<void> {
-    let body = Buffer.from(lines.join('\n') + '\n', 'utf8');
-    const headers = { ...this.#headers };
-    if ((this.#o.gzip ?? true) && body.length > 1024) {
-      body = await gzip(body);
-      headers['content-encoding'] = 'gzip';
-    }
-    const res = await httpPost(this.#url, body, headers, {
-      timeoutMs: this.#o.timeoutMs ?? 10_000,
-      tls: this.#tls,
-    });
-    checkStatus(res, this.name);
-  }
+  url.searchParams.set('precision', 'ms');
+  return url;
 }
 
 /** Opens the spool (replaying what an earlier run left) and starts the sink. */
 export async function createInfluxSink(o: InfluxSinkOptions): Promise<InfluxSink> {
-  const spool = await Spool.open({ dir: o.spoolDir, maxBytes: o.spoolMaxMb * 1024 * 1024 });
-  const s = new Sink(o, spool);
-  s.start();
-  return s;
+  const url = writeUrl(o);
+  const tls = tlsOptions(o.tls);
+  const headers: Record<string, string> = { 'content-type': 'text/plain; charset=utf-8' };
+  if (o.token !== undefined) headers.authorization = `Token ${o.token}`;
+  else if (o.username !== undefined) {
+    headers.authorization = `Basic ${Buffer.from(`${o.username}:${o.password ?? ''}`).toString('base64')}`;
+  }
+  const name = o.name ?? `influx-${o.api}`;
+  const send = async (lines: readonly string[]): Promise<void> => {
+    let body = Buffer.from(lines.join('\n') + '\n', 'utf8');
+    const h = { ...headers };
+    if ((o.gzip ?? true) && body.length > 1024) {
+      body = await gzip(body);
+      h['content-encoding'] = 'gzip';
+    }
+    const res = await httpPost(url, body, h, { timeoutMs: o.timeoutMs ?? 10_000, tls });
+    checkStatus(res, name);
+  };
+  return createSpooledSink({
+    name,
+    encode: (r) => {
+      const e = recordToLine(r, o.api);
+      return e.ok ? { ok: true, entry: e.line } : e;
+    },
+    send,
+    batchSize: o.batchSize,
+    flushMs: o.flushMs,
+    logger: o.logger,
+    maxMemoryLines: o.maxMemoryLines,
+    backoff: o.backoff,
+    random: o.random,
+    sleep: o.sleep,
+    onNearLimit: o.onNearLimit,
+    spoolDir: o.spoolDir,
+    spoolMaxBytes: o.spoolMaxMb * 1024 * 1024,
+  });
 }

@@ -1,0 +1,320 @@
+// The sending core shared by the database and Kafka sinks: records are encoded to one-line entries and
+// queued in memory (bounded); a single pump sends batches, one in flight at a time, so the destination
+// receives entries in the order they were written. A batch that fails with a retriable error goes to the
+// disk spool, and while the spool is not empty every new entry goes behind it. The spool drains oldest
+// first with backoff + jitter (retry.ts). Refusals (4xx other than 408/429, or a destination's own
+// "non-retriable" error) drop the batch with an error log: retrying data the destination refuses would
+// block everything behind it forever. Programming errors are never retried.
+import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
+import type { RecordSink, SinkStats } from '../pipeline/types.js';
+import type { Logger } from '../log/logger.js';
+import { retry, realSleep, type Sleep } from './retry.js';
+import { Spool } from './spool.js';
+
+export type Encoded = { ok: true; entry: string } | { ok: false; reason: string };
+
+export interface SpooledSinkOptions {
+  name: string;
+  /** One record to one entry without a newline, or the reason it has none. */
+  encode: (r: DerivedRecord) => Encoded;
+  /** Delivers a batch; throws a ReefdError('REEFD_SINK_UNAVAILABLE', retriable) for outages. */
+  send: (entries: readonly string[]) => Promise<void>;
+  batchSize: number;
+  flushMs: number;
+  logger: Logger;
+  /** Entries held in memory before they go to the spool (default 4 x batchSize). */
+  maxMemoryLines?: number | undefined;
+  backoff?: { baseMs: number; maxMs: number } | undefined;
+  random?: (() => number) | undefined;
+  sleep?: Sleep | undefined;
+  /** Called once each time the spool passes 80 % of its bound (and again after it fell below 70 %). */
+  onNearLimit?: ((s: { spoolBytes: number; maxBytes: number }) => void) | undefined;
+  onClose?: (() => Promise<void>) | undefined;
+}
+
+/** The destination answered and refused the data: retrying cannot help. */
+export function isRefusal(err: unknown): boolean {
+  return err instanceof ReefdError && err.code === 'REEFD_SINK_UNAVAILABLE' && !err.retriable;
+}
+
+function isProgrammingError(err: unknown): boolean {
+  return err instanceof TypeError || err instanceof RangeError || err instanceof SyntaxError;
+}
+
+export class SpooledSink implements RecordSink {
+  readonly name: string;
+  readonly #o: SpooledSinkOptions;
+  readonly #spool: Spool;
+  readonly #memCap: number;
+  #mem: string[] = [];
+  #accepted = 0;
+  /** Lines that left memory for good: delivered, spooled, refused or dropped. */
+  #settled = 0;
+  #flushWaiters: { target: number; resolve: () => void }[] = [];
+  #wake: (() => void) | undefined;
+  #timer: NodeJS.Timeout | undefined;
+  #closing = false;
+  #abort = new AbortController();
+  #pump: Promise<void> | undefined;
+  #nearSignalled = false;
+  #stats: SinkStats = { written: 0, failed: 0, pending: 0 };
+
+  constructor(o: SpooledSinkOptions, spool: Spool) {
+    this.#o = o;
+    this.name = o.name;
+    this.#spool = spool;
+    this.#memCap = o.maxMemoryLines ?? o.batchSize * 4;
+  }
+
+  start(): void {
+    this.#pump = this.#run().catch((err: unknown) => {
+      this.#o.logger.error({ err, sink: this.name }, 'sink stopped on an unexpected error');
+    });
+  }
+
+  write(records: readonly DerivedRecord[]): void {
+    if (this.#closing) {
+      this.#stats.failed += records.length;
+      this.#o.logger.error(
+        { sink: this.name, n: records.length },
+        'records written after close() were dropped',
+      );
+      return;
+    }
+    for (const r of records) {
+      const enc = this.#o.encode(r);
+      if (!enc.ok) {
+        this.#stats.failed++;
+        this.#o.logger.warn(
+          { sink: this.name, type: r.type, reason: enc.reason },
+          'record cannot be encoded for this sink; dropped',
+        );
+        continue;
+      }
+      this.#mem.push(enc.entry);
+      this.#accepted++;
+    }
+    if (this.#mem.length >= this.#o.batchSize || this.#mem.length > this.#memCap) this.#poke();
+    else if (this.#timer === undefined && this.#mem.length > 0) {
+      this.#timer = setTimeout(() => {
+        this.#timer = undefined;
+        this.#poke();
+      }, this.#o.flushMs);
+      this.#timer.unref();
+    }
+  }
+
+  flush(): Promise<void> {
+    if (this.#settled >= this.#accepted) return Promise.resolve();
+    return new Promise((resolve) => {
+      this.#flushWaiters.push({ target: this.#accepted, resolve });
+      this.#poke();
+    });
+  }
+
+  async close(): Promise<void> {
+    if (this.#closing) return this.#pump;
+    await this.flush();
+    this.#closing = true;
+    this.#abort.abort(new Error('sink closing'));
+    this.#poke();
+    if (this.#timer !== undefined) clearTimeout(this.#timer);
+    await this.#pump;
+    await this.#spool.close();
+    await this.#o.onClose?.();
+  }
+
+  stats(): SinkStats {
+    const s: SinkStats = {
+      ...this.#stats,
+      pending: this.#mem.length + this.#spool.lines(),
+      spoolBytes: this.#spool.bytes(),
+    };
+    return s;
+  }
+
+  nearLimit(): boolean {
+    return this.#spool.nearLimit();
+  }
+
+  #poke(): void {
+    const w = this.#wake;
+    this.#wake = undefined;
+    w?.();
+  }
+
+  #idle(ms?: number): Promise<void> {
+    return new Promise((resolve) => {
+      let t: NodeJS.Timeout | undefined;
+      this.#wake = () => {
+        if (t !== undefined) clearTimeout(t);
+        resolve();
+      };
+      if (ms !== undefined) t = setTimeout(() => this.#poke(), ms);
+    });
+  }
+
+  #settle(n: number): void {
+    this.#settled += n;
+    this.#flushWaiters = this.#flushWaiters.filter((w) => {
+      if (this.#settled < w.target) return true;
+      w.resolve();
+      return false;
+    });
+  }
+
+  #flushWanted(): boolean {
+    return this.#flushWaiters.length > 0;
+  }
+
+  async #run(): Promise<void> {
+    while (!(this.#closing && this.#mem.length === 0)) {
+      if (!this.#spool.isEmpty()) {
+        // Outage or leftovers: new lines queue behind the spool; a flush puts them in it.
+        if (this.#mem.length > this.#memCap || this.#flushWanted() || this.#closing) await this.#spill();
+        if (this.#closing) break;
+        await this.#drainOne();
+        continue;
+      }
+      if (this.#mem.length > this.#memCap) {
+        // The database is up but slower than the input: keep memory bounded, the spool takes the rest.
+        await this.#spill();
+        continue;
+      }
+      if (
+        this.#mem.length >= this.#o.batchSize ||
+        (this.#mem.length > 0 && (this.#flushWanted() || this.#closing || this.#timer === undefined))
+      ) {
+        await this.#sendFromMemory();
+        continue;
+      }
+      await this.#idle();
+    }
+  }
+
+  /** One batch from memory: delivered, or spooled on a retriable failure, or dropped on a refusal. */
+  async #sendFromMemory(): Promise<void> {
+    const batch = this.#mem.splice(0, this.#o.batchSize);
+    try {
+      await this.#o.send(batch);
+      this.#stats.written += batch.length;
+      this.#settle(batch.length);
+    } catch (err) {
+      if (isRefusal(err) || isProgrammingError(err)) {
+        this.#refused(err, batch.length);
+        this.#settle(batch.length);
+        return;
+      }
+      this.#stats.lastError = (err as Error).message;
+      this.#o.logger.warn(
+        { sink: this.name, err: (err as Error).message },
+        'destination unreachable; spooling to disk',
+      );
+      this.#mem.unshift(...batch);
+      await this.#spill();
+    }
+  }
+
+  /** Moves every line in memory, oldest first, to the spool. */
+  async #spill(): Promise<void> {
+    while (this.#mem.length > 0) {
+      const part = this.#mem.slice(0, this.#o.batchSize);
+      let ok: boolean;
+      try {
+        ok = await this.#spool.append(part);
+      } catch (err) {
+        ok = false;
+        this.#stats.lastError = (err as Error).message;
+      }
+      this.#mem.splice(0, part.length);
+      if (!ok) {
+        this.#stats.failed += part.length;
+        this.#o.logger.error(
+          {
+            sink: this.name,
+            dropped: part.length,
+            spoolBytes: this.#spool.bytes(),
+            maxBytes: this.#spool.maxBytes(),
+          },
+          'REEFD_SPOOL_NEAR_LIMIT: spool full or disk error; newest records dropped (replay the raw archive to fill the gap)',
+        );
+      }
+      this.#settle(part.length);
+    }
+    this.#checkNear();
+  }
+
+  #checkNear(): void {
+    const bytes = this.#spool.bytes();
+    const max = this.#spool.maxBytes();
+    if (!this.#nearSignalled && bytes >= 0.8 * max) {
+      this.#nearSignalled = true;
+      this.#o.logger.error({ sink: this.name, spoolBytes: bytes, maxBytes: max }, 'REEFD_SPOOL_NEAR_LIMIT');
+      this.#o.onNearLimit?.({ spoolBytes: bytes, maxBytes: max });
+    } else if (this.#nearSignalled && bytes < 0.7 * max) this.#nearSignalled = false;
+  }
+
+  /** Delivers the spool's oldest batch, retrying with backoff; while waiting, memory overflow is spilled. */
+  async #drainOne(): Promise<void> {
+    const batch = await this.#spool.peek(this.#o.batchSize);
+    if (batch.length === 0) return;
+    const backoff = this.#o.backoff ?? { baseMs: 250, maxMs: 30_000 };
+    const sleep = this.#o.sleep ?? realSleep;
+    try {
+      await retry(() => this.#o.send(batch), {
+        ...backoff,
+        random: this.#o.random ?? Math.random,
+        maxAttempts: Infinity,
+        signal: this.#abort.signal,
+        retriable: (err) => !isRefusal(err) && !isProgrammingError(err),
+        sleep: async (ms, signal) => {
+          // Wake up early to move lines to the spool (memory bound, flush, close); then wait out the delay.
+          let done = false;
+          const slept = sleep(ms, signal).then(
+            () => void (done = true),
+            () => void (done = true),
+          );
+          while (!done && !signal?.aborted) {
+            await Promise.race([slept, this.#idle()]);
+            if (this.#mem.length > this.#memCap || this.#flushWanted() || this.#closing) await this.#spill();
+          }
+          if (signal?.aborted) throw signal.reason as Error;
+        },
+        onRetry: (err, attempt, delayMs) => {
+          this.#stats.lastError = (err as Error).message;
+          if (attempt % 10 === 0)
+            this.#o.logger.warn(
+              { sink: this.name, attempt, delayMs, err: (err as Error).message },
+              'destination still unreachable',
+            );
+        },
+      });
+      this.#stats.written += batch.length;
+      await this.#spool.commit(batch.length);
+      this.#checkNear();
+    } catch (err) {
+      if (this.#abort.signal.aborted) return;
+      this.#refused(err, batch.length);
+      await this.#spool.commit(batch.length);
+    }
+  }
+
+  #refused(err: unknown, n: number): void {
+    this.#stats.failed += n;
+    this.#stats.lastError = (err as Error).message;
+    this.#o.logger.error(
+      { sink: this.name, n, err: (err as Error).message },
+      'destination refused a batch; dropped',
+    );
+  }
+}
+
+/** Opens the spool folder (what an earlier run left is replayed first) and starts the pump. */
+export async function createSpooledSink(
+  o: SpooledSinkOptions & { spoolDir: string; spoolMaxBytes: number },
+): Promise<SpooledSink> {
+  const spool = await Spool.open({ dir: o.spoolDir, maxBytes: o.spoolMaxBytes });
+  const s = new SpooledSink(o, spool);
+  s.start();
+  return s;
+}
