@@ -32,6 +32,9 @@ export interface BinPlan {
   readonly depthM: number;
   /** flag of the tilt test: 1, 3, or 2 when no tilt was reported */
   readonly tiltFlag: number;
+  /** beam coordinates: message index of each beam, and the sign making beams positive away from the head */
+  readonly beamMap: readonly [number, number, number, number];
+  readonly beamSign: number;
 }
 
 /** Tally of the bin loop. */
@@ -46,6 +49,7 @@ export interface BinTally {
 }
 
 const NO_PEAK = 0x7fffffff;
+const IDENTITY = [0, 1, 2, 3] as const;
 
 function median4(a: number, b: number, c: number, d: number): number {
   // mean of the middle two of four values
@@ -94,6 +98,8 @@ export function qcBins(
   const pg = ens.pgPct;
   const isBeam = ens.coord === 'beam';
   const isEarth = ens.coord === 'earth';
+  const map = isBeam ? plan.beamMap : IDENTITY;
+  const sign = isBeam ? plan.beamSign : 1;
   const peak = echo === undefined ? NO_PEAK : echoPeakIndex(echo, qc.echoPeakRiseCounts);
   // One work vector: the transforms read all inputs before writing, so they run in place.
   const w4 = new Float64Array(4);
@@ -118,13 +124,14 @@ export function qcBins(
     let badCount = 0;
     let badBeam = -1;
     for (let i = 0; i < 4; i++) {
-      const v = row[i];
+      const src = map[i as 0 | 1 | 2 | 3];
+      const v = row[src];
       // In inst/earth coordinates the 4th value is the error velocity: a null there is "not measured".
       const isNull = v === null || v === undefined || !Number.isFinite(v);
-      w4[i] = isNull ? Number.NaN : v;
+      w4[i] = isNull ? Number.NaN : sign * v;
       const beamBad =
-        (cRow !== undefined && (cRow[i] as number) < qc.corrMinPct) ||
-        (pRow !== undefined && (pRow[i] as number) < qc.pgMinPct);
+        (cRow !== undefined && (cRow[src] as number) < qc.corrMinPct) ||
+        (pRow !== undefined && (pRow[src] as number) < qc.pgMinPct);
       if (isNull && (isBeam || i < 3)) nullCount++;
       if ((isNull && (isBeam || i < 3)) || beamBad) {
         badCount++;

@@ -37,7 +37,7 @@ export const CURRENT_ERRORS = Object.freeze({
   REEFD_CURRENTS_CONFIG: {
     reason: 'config',
     flag: 4,
-    hint: 'check height_m > 0, beam_angle_deg in (0, 60) and the qc thresholds of the sensor',
+    hint: 'check height_m > 0, beam_angle_deg in (0, 60) and that the beam map is a permutation of 0-3',
   },
 } as const);
 

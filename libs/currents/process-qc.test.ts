@@ -242,3 +242,25 @@ describe('bed stress and uncertainty (science.md 5.6, 9.2)', () => {
     expect(uniform.sigmaMS).toBeCloseTo(expected, 14);
   });
 });
+
+describe('instrument beam numbering and sign (science.md 5.1)', () => {
+  it('a head numbering the beams 3, 4, 1, 2 and positive towards itself reads the same flow (algebra)', () => {
+    // the message carries [-b3, -b4, -b1, -b2] of this project's beams
+    const velMS = ENS.velMS.map((r) => [-(r[2] ?? 0), -(r[3] ?? 0), -(r[0] ?? 0), -(r[1] ?? 0)]);
+    const corrPct = setCell(ENS.corrPct ?? [], 3, 3, 10); // message beam 4 = project beam 2
+    const mapped: AdcpSensorConfig = { ...SENSOR, beamMap: [2, 3, 0, 1], beamSign: -1 };
+    const a = ok(processEnsemble({ ...ENS, corrPct: setCell(ENS.corrPct ?? [], 3, 1, 10) }, SENSOR, CTX));
+    const b = ok(processEnsemble({ ...ENS, velMS, corrPct }, mapped, CTX));
+    expect(b.eastMS).toBeCloseTo(a.eastMS, 14);
+    expect(b.northMS).toBeCloseTo(a.northMS, 14);
+    expect(b.binFlags).toEqual(a.binFlags);
+    // unmapped, the same message gives a different (wrong) current
+    // (x and y swap: the current towards 71.6 deg reads as towards 38.4 deg)
+    const wrong = ok(processEnsemble({ ...ENS, velMS }, SENSOR, CTX));
+    expect(Math.abs(wrong.dirToDeg - a.dirToDeg)).toBeGreaterThan(30);
+    expect(processEnsemble(ENS, { ...SENSOR, beamMap: [0, 0, 2, 3] }, CTX)).toMatchObject({
+      ok: false,
+      code: 'REEFD_CURRENTS_CONFIG',
+    });
+  });
+});

@@ -30,6 +30,7 @@ const CD_DEFAULT = 0.03; // science.md 5.6
 const DEPTH_MISMATCH_M = 0.05; // science.md 7.2 (9): logger and ADCP depths
 const MIN_ENSEMBLE_S = 300; // science.md 5.5: orbital velocities cancel over >= 5 min
 const REL_ERR = 0.01; // science.md 9.2: 1 % of reading
+const BEAM_IDENTITY = [0, 1, 2, 3] as const;
 
 function shapeOk(a: readonly (readonly unknown[])[] | undefined, n: number): boolean {
   if (a === undefined) return true;
@@ -61,8 +62,13 @@ export function processEnsemble(
   }
   const zHeadM = sensor.heightM;
   const beamAngleDeg = sensor.beamAngleDeg ?? 20;
-  if (!(zHeadM > 0) || !(beamAngleDeg > 0 && beamAngleDeg < 60)) {
-    return currentFail('REEFD_CURRENTS_CONFIG', `height_m ${zHeadM}, beam_angle_deg ${beamAngleDeg}`);
+  const map = sensor.beamMap;
+  const mapOk = map === undefined || [0, 1, 2, 3].every((k) => map.includes(k));
+  if (!(zHeadM > 0) || !(beamAngleDeg > 0 && beamAngleDeg < 60) || !mapOk) {
+    return currentFail(
+      'REEFD_CURRENTS_CONFIG',
+      `height_m ${zHeadM}, beam_angle_deg ${beamAngleDeg}, beam map ${String(map)}`,
+    );
   }
   const qc: Readonly<AdcpQcThresholds> =
     sensor.qc === undefined ? DEFAULT_QC : { ...DEFAULT_QC, ...sensor.qc };
@@ -137,6 +143,8 @@ export function processEnsemble(
     dzdr: sensor.orientation === 'up' ? cosTilt : -cosTilt,
     depthM,
     tiltFlag,
+    beamMap: sensor.beamMap ?? BEAM_IDENTITY,
+    beamSign: sensor.beamSign ?? 1,
   };
   const binFlags = new Array<number>(nBins);
   const z = new Float64Array(nBins);

@@ -84,6 +84,13 @@ export interface AdcpSensorConfig {
   readonly headingOffsetDeg?: number;
   /** convex head (default true) */
   readonly convex?: boolean;
+  /**
+   * Beam coordinates only: beamMap[k] is the index (0-3) in the message of this project's beam k + 1
+   * (default [0, 1, 2, 3]), and beamSign is -1 for instruments whose beam velocities are positive
+   * towards the head (default +1). Prove the mapping with a known-flow test (science.md 5.1).
+   */
+  readonly beamMap?: readonly [number, number, number, number];
+  readonly beamSign?: 1 | -1;
   /** range of the centre of cell 1, m; default blank + bin/2 */
   readonly firstBinRangeM?: number;
   /** tilt sensor reports independent axis tilts: apply the gimbal pitch correction (default false) */
