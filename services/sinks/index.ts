@@ -1,0 +1,8 @@
+// Outputs for derived records and dead letters. Every RecordSink passes test/integration/sink-contract.ts.
+export { createInfluxSink, type InfluxSink, type InfluxSinkOptions } from './influx-sink.js';
+export { createKafkaSink, recordKey, kafkaClient, type KafkaSinkOptions } from './kafka-sink.js';
+export { createNdjsonSink, type NdjsonSinkOptions } from './ndjson-sink.js';
+export { createDeadLetterSink, type DeadLetterOptions, type TopicPublisher } from './dead-letter.js';
+export { SpooledSink, type SpooledSinkOptions } from './spooled-sink.js';
+export { retry, backoffDelayMs, realSleep, type RetryOptions, type Sleep } from './retry.js';
+export { tlsOptions, type TlsFiles } from './http.js';
