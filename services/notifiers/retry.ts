@@ -1,0 +1,43 @@
+// The one retry helper of the notifiers: errors say at creation whether a retry can help (NotifyError.retriable);
+// nextRetryDelayMs turns an error and an attempt count into a delay with exponential backoff and full jitter
+// (the "full jitter" variant: uniform in [0, min(max, base 2^n)]; common practice).
+
+export class NotifyError extends Error {
+  readonly code: string;
+  readonly retriable: boolean;
+  constructor(code: string, message: string, retriable: boolean, options?: { cause?: unknown }) {
+    super(`${code}: ${message}`, options);
+    this.name = 'NotifyError';
+    this.code = code;
+    this.retriable = retriable;
+  }
+}
+
+export interface RetryPolicy {
+  /** First delay scale, ms. */
+  readonly baseMs: number;
+  /** Cap on any delay, ms. */
+  readonly maxMs: number;
+}
+
+/** True when a retry of the same request may succeed (network trouble, 5xx, 429, time-outs). */
+export function isRetriable(err: unknown): boolean {
+  return err instanceof NotifyError && err.retriable;
+}
+
+/**
+ * Delay before attempt `attempt + 1` (attempt counts failures so far, from 1). A retriable error backs off
+ * exponentially with full jitter, never below baseMs / 2 so a flapping uplink is not hammered. Anything else
+ * (a rejected request, a programming error) waits the full maxMs: an outbox must not drop an alert, so it keeps
+ * retrying slowly while the error is reported, instead of giving up as other retry loops would.
+ */
+export function nextRetryDelayMs(
+  err: unknown,
+  attempt: number,
+  policy: RetryPolicy,
+  random: () => number,
+): number {
+  if (!isRetriable(err)) return policy.maxMs;
+  const ceiling = Math.min(policy.maxMs, policy.baseMs * 2 ** Math.max(0, attempt - 1));
+  return Math.min(policy.maxMs, Math.max(policy.baseMs / 2, random() * ceiling));
+}
