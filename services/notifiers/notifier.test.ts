@@ -1,5 +1,5 @@
 import { describe, it, expect, afterEach } from 'vitest';
-import { createServer, type IncomingMessage, type Server } from 'node:http';
+import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import {
   createDashboardChannel,
@@ -33,7 +33,7 @@ describe('outbox over a webhook that goes down and comes back', () => {
     let mode: 'fail' | 'ok' = 'fail';
     const got: { body: string; sig: string | undefined; ts: string | undefined }[] = [];
     let hits = 0;
-    const handler = async (req: IncomingMessage, res: import('node:http').ServerResponse) => {
+    const handler = async (req: IncomingMessage, res: ServerResponse) => {
       const b = await body(req);
       hits++;
       if (mode === 'fail') {
