@@ -1,0 +1,352 @@
+// The simulator's public generator: reef state + time -> sensor messages (contract section 1) and the truth
+// they were built from. Pure: the same config, start, duration and seed give the same sequence.
+import type { ReefdConfig, SensorConfig } from '../contract/index.js';
+import { adcpEnsemble, type AdcpSetup } from './adcp.js';
+import { synthesizeBurst } from './burst.js';
+import { density, speciate } from './chemistry.js';
+import {
+  failingBatteryV,
+  healthyBatteryV,
+  planFaults,
+  type ScriptedFault,
+  type SensorRef,
+} from './faults.js';
+import { ReefModel, type ReefSnapshot, type WaveClimateOverride } from './model.js';
+import { createRng, type Rng } from './prng.js';
+import { solarHour } from './signals.js';
+import { o2UmolKgToMgL, optodeSalinityFactor } from './seawater.js';
+import { siteLayout, type Role } from './site.js';
+import { stationTruth, transectTruth, type TruthRow } from './truth.js';
+
+export interface SimulateOptions {
+  startMs: number;
+  durationMs: number;
+  seed: number;
+  /** Fix the offshore wave climate (tests); default: slowly varying Hrms 0.5-2 m. */
+  waves?: WaveClimateOverride;
+  /** Truth cadence, ms (default 10 min). */
+  truthEveryMs?: number;
+  /** Turn the scripted faults and the low-oxygen night off (clean data for physics tests). */
+  faults?: boolean;
+}
+
+export interface SimMessage {
+  topic: string;
+  payload: Record<string, unknown>;
+  /** When the sensor sends it (ms): the sample time, or the end of a pressure burst. */
+  tMs: number;
+}
+
+export type SimEvent = { type: 'message'; message: SimMessage } | { type: 'truth'; row: TruthRow };
+
+/** Reporting interval of each kind, s (pressure: one burst per interval). */
+export const CADENCE_S: Readonly<Record<SensorConfig['kind'], number>> = Object.freeze({
+  ctd: 300,
+  oxygen: 300,
+  pco2: 600,
+  pressure: 1800,
+  adcp: 600,
+  par: 300,
+  met: 300,
+  sample: 6 * 3600,
+});
+
+const STEP_S = 60;
+const r = (x: number, dp: number) => Math.round(x * 10 ** dp) / 10 ** dp;
+const iso = (ms: number) => new Date(ms).toISOString();
+
+interface SensorRun extends SensorRef {
+  config: SensorConfig;
+  rng: Rng;
+  nextMs: number;
+  seq: number;
+  adcp?: AdcpSetup;
+  frozen: number | undefined;
+}
+
+/** The first local solar 03:00 at least 12 h into the run, if the run reaches 3 h past it. */
+function lagoonEventCentre(startMs: number, durationMs: number, lonDeg: number): number | undefined {
+  const from = startMs + 12 * 3.6e6;
+  const hour = solarHour(from, lonDeg);
+  const centre = from + ((3 - hour + 24) % 24) * 3.6e6;
+  return centre + 3 * 3.6e6 <= startMs + durationMs ? centre : undefined;
+}
+
+/** Lazily generates the run in send-time order, interleaving truth rows. */
+export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator<SimEvent> {
+  const layout = siteLayout(config);
+  const root = createRng(opts.seed);
+  const withFaults = opts.faults ?? true;
+  const eventCentre = withFaults
+    ? lagoonEventCentre(opts.startMs, opts.durationMs, layout.lonDeg)
+    : undefined;
+  const model = new ReefModel(layout, root.fork('model'), {
+    startMs: opts.startMs,
+    stepS: STEP_S,
+    taS35UmolKg: config.alkalinity.ta_s35_umol_kg,
+    ...(opts.waves ? { waves: opts.waves } : {}),
+    ...(eventCentre !== undefined ? { lagoonEvent: { centreMs: eventCentre, demandMmolM2H: 180 } } : {}),
+  });
+  const sensors: SensorRun[] = [];
+  for (const [station, st] of Object.entries(config.stations)) {
+    const role = layout.roleOf.get(station) ?? 'flat';
+    for (const [sensor, sc] of Object.entries(st.sensors)) {
+      if (!sc.enabled) continue;
+      const rng = root.fork(`sensor/${station}/${sensor}`);
+      const offsetMs = Math.floor(rng.next() * 50) * 1000;
+      const run: SensorRun = {
+        station,
+        sensor,
+        kind: sc.kind,
+        role,
+        config: sc,
+        rng,
+        nextMs: opts.startMs + offsetMs,
+        seq: 0,
+        frozen: undefined,
+      };
+      if (sc.kind === 'adcp') {
+        const deep = role === 'channel' || role === 'fore';
+        run.adcp = {
+          heightM: sc.height_m,
+          beamAngleDeg: sc.beam_angle_deg,
+          convex: sc.head === 'convex',
+          declinationDeg: sc.declination_deg + sc.heading_offset_deg,
+          blankM: deep ? 0.2 : 0.1,
+          binM: deep ? 0.25 : 0.1,
+          bins: deep ? 34 : 24,
+          compassHeadingDeg: 360 * rng.next(),
+          pitchDeg: 1 + 3 * rng.next(),
+          rollDeg: -3 + 6 * rng.next(),
+        };
+      }
+      sensors.push(run);
+    }
+  }
+  const faults = withFaults ? planFaults(sensors, opts.startMs, opts.durationMs) : [];
+  const faultOf = (s: SensorRef, kind: ScriptedFault['fault'], tMs: number) =>
+    faults.find(
+      (f) =>
+        f.sensor === s.sensor &&
+        f.station === s.station &&
+        f.fault === kind &&
+        tMs >= f.startMs &&
+        tMs < f.endMs + (kind === 'spike' ? CADENCE_S[s.kind as SensorConfig['kind']] * 1000 : 0),
+    );
+
+  for (const f of faults) yield { type: 'truth', row: { kind: 'fault', t: iso(f.startMs), ...f } };
+  if (eventCentre !== undefined) {
+    yield {
+      type: 'truth',
+      row: { kind: 'event', t: iso(eventCentre), event: 'lagoon_low_oxygen', centreMs: eventCentre },
+    };
+  }
+
+  const pending: SimMessage[] = [];
+  const truthEvery = opts.truthEveryMs ?? 600_000;
+  let nextTruth = opts.startMs;
+  const endMs = opts.startMs + opts.durationMs;
+  const spiked = new Set<ScriptedFault>();
+  for (let tMs = opts.startMs; tMs < endMs; tMs += STEP_S * 1000) {
+    const snap = model.step();
+    if (tMs >= nextTruth) {
+      for (const [station] of Object.entries(config.stations)) {
+        const role = layout.roleOf.get(station) ?? 'flat';
+        if (role !== 'mast')
+          yield { type: 'truth', row: stationTruth(snap, station, role, layout.reefAxisDeg) };
+      }
+      for (const [id, tr] of Object.entries(config.transects)) {
+        yield { type: 'truth', row: transectTruth(snap, id, tr, layout) };
+      }
+      nextTruth += truthEvery;
+    }
+    const stepEnd = tMs + STEP_S * 1000;
+    for (const s of sensors) {
+      const cadenceMs = CADENCE_S[s.config.kind] * 1000;
+      while (s.nextMs < stepEnd && s.nextMs < endMs) {
+        const t = s.nextMs;
+        s.nextMs += cadenceMs;
+        if (faultOf(s, 'stale', t)) continue;
+        const msg = buildMessage(s, snap, t, layout.site, layout.prefix);
+        if (msg === undefined) continue;
+        const spike = faultOf(s, 'spike', t);
+        if (spike && !spiked.has(spike)) {
+          spiked.add(spike);
+          const key = s.kind === 'oxygen' ? firstO2Field(msg.payload) : 'temp_c';
+          msg.payload[key] = r((msg.payload[key] as number) + (spike.spikeOffset ?? 0), 3);
+        }
+        if (s.kind === 'pco2') {
+          if (faultOf(s, 'flatline', t)) {
+            s.frozen ??= msg.payload.pco2_uatm as number;
+            msg.payload.pco2_uatm = s.frozen;
+          } else s.frozen = undefined;
+        }
+        const battery = faultOf(s, 'battery', t);
+        msg.payload.battery_v = r(
+          battery
+            ? failingBatteryV(t, battery, s.rng.normal())
+            : healthyBatteryV(snap.parUmolM2S, s.rng.normal()),
+          2,
+        );
+        pending.push(msg);
+      }
+    }
+    pending.sort((a, b) => a.tMs - b.tMs);
+    while (pending.length > 0 && (pending[0] as SimMessage).tMs < stepEnd) {
+      yield { type: 'message', message: pending.shift() as SimMessage };
+    }
+  }
+  for (const m of pending) if (m.tMs <= endMs) yield { type: 'message', message: m };
+}
+
+function firstO2Field(p: Record<string, unknown>): string {
+  return p.o2_umol_l !== undefined ? 'o2_umol_l' : p.o2_mg_l !== undefined ? 'o2_mg_l' : 'o2_sat_pct';
+}
+
+function buildMessage(
+  s: SensorRun,
+  snap: ReefSnapshot,
+  t: number,
+  site: string,
+  prefix: string,
+): SimMessage | undefined {
+  const st = snap.roles[s.role];
+  const w = st.water;
+  const topic = `${prefix}/${site}/${s.station}/${s.config.kind}/${s.sensor}`;
+  const base = { v: 1 as const, t: iso(t), seq: s.seq++ };
+  const n = () => s.rng.normal();
+  const rho = density(w);
+  switch (s.config.kind) {
+    case 'ctd':
+      return {
+        topic,
+        tMs: t,
+        payload: { ...base, temp_c: r(w.tempC + 0.002 * n(), 4), sal: r(w.sal + 0.003 * n(), 4) },
+      };
+    case 'oxygen': {
+      const tempC = r(w.tempC + 0.01 * n(), 3);
+      const umolL = (w.o2UmolKg * rho) / 1000 + 0.8 * n();
+      const payload: Record<string, unknown> = { ...base, temp_c: tempC };
+      if (s.config.sal_setting !== undefined) {
+        // The optode computes with its own salinity setting, so it reports O2(S_set) = O2(S)/factor.
+        payload.o2_umol_l = r(
+          Math.max(0, umolL / optodeSalinityFactor(w.sal, s.config.sal_setting, w.tempC)),
+          2,
+        );
+      } else if (s.role === 'back') {
+        payload.o2_mg_l = r(Math.max(0, o2UmolKgToMgL(w.o2UmolKg, rho) + 0.025 * n()), 3);
+      } else payload.o2_umol_l = r(Math.max(0, umolL), 2);
+      return { topic, tMs: t, payload };
+    }
+    case 'pco2':
+      return {
+        topic,
+        tMs: t,
+        payload: {
+          ...base,
+          pco2_uatm: r(speciate(w).pco2Uatm + 1.5 * n(), 1),
+          temp_c: r(w.tempC + 0.02 * n(), 3),
+        },
+      };
+    case 'par':
+      return {
+        topic,
+        tMs: t,
+        payload: { ...base, par_umol_m2_s: r(snap.parUmolM2S * (1 + 0.01 * n()) + 0.3 * n(), 1) },
+      };
+    case 'met':
+      return {
+        topic,
+        tMs: t,
+        payload: {
+          ...base,
+          wind_m_s: r(Math.max(0, snap.windMS + 0.3 * n()), 2),
+          wind_dir_deg: r((((snap.windDirDeg + 8 * n()) % 360) + 360) % 360, 1),
+          baro_hpa: r(snap.baroHpa + 0.05 * n(), 2),
+          air_temp_c: r(snap.airTempC + 0.05 * n(), 2),
+          xco2_air_ppm: r(snap.xco2Ppm + 0.3 * n(), 1),
+        },
+      };
+    case 'sample': {
+      const c = speciate(w);
+      return {
+        topic,
+        tMs: t,
+        payload: {
+          ...base,
+          ta_umol_kg: r(w.taUmolKg + 2 * n(), 1),
+          dic_umol_kg: r(w.dicUmolKg + 2 * n(), 1),
+          ph_total: r(c.phTotal, 4),
+          sal: r(w.sal, 3),
+          temp_c: r(w.tempC, 2),
+        },
+      };
+    }
+    case 'pressure': {
+      const fast = s.role === 'crest';
+      const fsHz = fast ? 4 : 2;
+      const samples = 2048; // 4 Hz x 512 s on the crest, 2 Hz x 1024 s elsewhere
+      const p = synthesizeBurst(
+        {
+          fsHz,
+          samples,
+          depthM: st.depthM,
+          depthRateMS: 0,
+          sensorHeightM: s.config.height_m,
+          hm0SsM: st.hrmsSsM * Math.SQRT2,
+          tpS: st.tpS,
+          hm0IgM: st.hm0IgM,
+          rhoKgM3: rho,
+          baroHpa: snap.baroHpa,
+          noiseDbar: 0.0004,
+        },
+        s.rng,
+      );
+      const pDbar = Array.from(p, (x) => r(x, 4));
+      return {
+        topic,
+        tMs: t + (samples / fsHz) * 1000,
+        payload: { ...base, fs_hz: fsHz, p_dbar: pDbar, temp_c: r(w.tempC, 3) },
+      };
+    }
+    case 'adcp': {
+      const setup = s.adcp as AdcpSetup;
+      const e = adcpEnsemble(setup, st.depthM, st.eastMS, st.northMS, st.hrmsSsM * Math.SQRT2, s.rng);
+      const dbar = snap.baroHpa / 100 + (rho * 9.80665 * (st.depthM - setup.heightM)) / 1e4;
+      return {
+        topic,
+        tMs: t,
+        payload: {
+          ...base,
+          coord: 'beam',
+          blank_m: setup.blankM,
+          bin_m: setup.binM,
+          vel_m_s: e.vel,
+          heading_deg: e.headingDeg,
+          pitch_deg: e.pitchDeg,
+          roll_deg: e.rollDeg,
+          corr_pct: e.corr,
+          echo: e.echo,
+          pres_dbar: r(dbar, 4),
+          temp_c: r(w.tempC, 3),
+        },
+      };
+    }
+  }
+}
+
+/** Whole run in memory: the messages in send order and the truth rows (tests, replay fixtures). */
+export function simulateMessages(
+  config: ReefdConfig,
+  opts: SimulateOptions,
+): { messages: SimMessage[]; truth: TruthRow[] } {
+  const messages: SimMessage[] = [];
+  const truth: TruthRow[] = [];
+  for (const ev of simulate(config, opts)) {
+    if (ev.type === 'message') messages.push(ev.message);
+    else truth.push(ev.row);
+  }
+  return { messages, truth };
+}
+
+export type { Role };
