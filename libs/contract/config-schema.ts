@@ -1,6 +1,7 @@
 // Site configuration of contract v1 (../shared/contract.md, section 3) plus the project's own sections
 // (processing, sources, outputs, archive, http). Unknown keys are rejected everywhere; defaults live here only.
 import { z } from 'zod';
+import { alertsConfigSchema, notifyConfigSchema } from '../alerts/index.js';
 import { ID_PATTERN } from './ids.js';
 
 const id = z.string().regex(ID_PATTERN, 'must match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');
@@ -222,6 +223,8 @@ export const configSchema = z
       })
       .prefault({}),
     data_dir: z.string().default('./reefd-data'),
+    alerts: alertsConfigSchema.optional(),
+    notify: notifyConfigSchema.optional(),
     http: z
       .strictObject({
         host: z.string().default('127.0.0.1'),
