@@ -1,5 +1,7 @@
 // Data shapes of the transect flux computation (contract.md `flux` record and `transects` config).
 
+import { MetabolismError } from './errors.js';
+
 /** QARTOD flag: 1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing. */
 export type QcFlag = 1 | 2 | 3 | 4 | 9;
 
@@ -91,6 +93,8 @@ export interface TransectParams {
   /** Relative sigma of the transfer velocity (science.md 9.2). */
   sigmaKRel: number;
   sigmaPq: number;
+  /** Transect-mean O2 for the exchange term: exact steady path mean (default) or station mean (air-sea.ts). */
+  airSeaO2Mean: 'exponential' | 'trapezoid';
   necBracketMmolM2H: number;
   necMaxDoublings: number;
   necTolMmolM2H: number;
@@ -116,6 +120,7 @@ export const DEFAULT_TRANSECT_PARAMS: Readonly<Omit<TransectParams, 'lengthM' | 
     sigmaTaFromSalinityUmolKg: 10,
     sigmaKRel: 0.2,
     sigmaPq: 0,
+    airSeaO2Mean: 'exponential',
     necBracketMmolM2H: 100,
     necMaxDoublings: 3,
     necTolMmolM2H: 1e-4,
@@ -124,9 +129,33 @@ export const DEFAULT_TRANSECT_PARAMS: Readonly<Omit<TransectParams, 'lengthM' | 
 export type TransectParamsInput = Pick<TransectParams, 'lengthM' | 'bearingDeg'> &
   Partial<Omit<TransectParams, 'lengthM' | 'bearingDeg'>>;
 
-/** Full, frozen parameters from the configured ones plus the defaults. */
+/**
+ * Full, frozen parameters from the configured ones plus the defaults. Throws MetabolismError
+ * REEFD_METABOLISM_BAD_PARAMS (at start-up, never per window) for a value out of range.
+ */
 export function makeTransectParams(p: TransectParamsInput): Readonly<TransectParams> {
-  return Object.freeze({ ...DEFAULT_TRANSECT_PARAMS, ...p });
+  const r: TransectParams = { ...DEFAULT_TRANSECT_PARAMS, ...p };
+  const positive = ['lengthM', 'pq', 'windowMin', 'maxResidenceMin', 'windHeightM', 'taS35UmolKg'] as const;
+  for (const k of positive) {
+    if (!(r[k] > 0) || !Number.isFinite(r[k]))
+      throw new MetabolismError('REEFD_METABOLISM_BAD_PARAMS', `${k} = ${r[k]} must be > 0`);
+  }
+  if (!Number.isFinite(r.bearingDeg)) {
+    throw new MetabolismError(
+      'REEFD_METABOLISM_BAD_PARAMS',
+      `bearingDeg = ${r.bearingDeg} must be a finite bearing`,
+    );
+  }
+  if (!(r.maxAngleDeg > 0 && r.maxAngleDeg <= r.suspectAngleDeg && r.suspectAngleDeg <= 90)) {
+    throw new MetabolismError(
+      'REEFD_METABOLISM_BAD_PARAMS',
+      `maxAngleDeg ${r.maxAngleDeg} and suspectAngleDeg ${r.suspectAngleDeg} need 0 < max <= suspect <= 90`,
+    );
+  }
+  if (!(r.necBracketMmolM2H > 0 && r.necTolMmolM2H > 0 && r.necMaxDoublings >= 0)) {
+    throw new MetabolismError('REEFD_METABOLISM_BAD_PARAMS', 'the NEC bracket and tolerance must be > 0');
+  }
+  return Object.freeze(r);
 }
 
 export type InvalidReason =
@@ -186,5 +215,7 @@ export interface FluxResult {
   /** Informational notes (e.g. 'no_wind', 'steady_form', 'nec_no_root'). */
   notes: string[];
   airSea: AirSeaTerms | null;
+  /** Why NEC is null although a method applied (stable code and reason), else null. */
+  necFailure: { code: string; reason: string } | null;
   inverseState: InverseState | null;
 }

@@ -1,0 +1,220 @@
+// Validity, flags, reverse flow and first-order uncertainty of computeTransectFlux (science.md 6.6, 9.2).
+import { describe, it, expect } from 'vitest';
+import { solveCarbonate } from '../carbonate/index.js';
+import {
+  computeTransectFlux,
+  forwardDownstream,
+  inverseNecSigma,
+  makeTransectParams,
+  solveInverseNec,
+  type InverseInput,
+  type StationWindowMean,
+  type TransectWindow,
+} from './index.js';
+
+const T0 = Date.UTC(2026, 5, 1, 12);
+const params = makeTransectParams({ lengthM: 400, bearingDeg: 270 });
+
+function st(o2: number, extra: Partial<StationWindowMean> = {}): StationWindowMean {
+  return {
+    tempC: 27,
+    salinity: 35,
+    o2UmolKg: o2,
+    pco2Uatm: 400,
+    taUmolKg: 2300,
+    taSource: 'salinity',
+    depthM: 1,
+    flag: 1,
+    ...extra,
+  };
+}
+
+function win(over: Partial<TransectWindow> = {}): TransectWindow {
+  return { tCentreMs: T0, up: st(200), down: st(210, { pco2Uatm: 380 }), eastMS: -0.05, northMS: 0, ...over };
+}
+
+describe('validity (science.md 6.6)', () => {
+  it('a clean window is valid, flag 1 for the O2 budget', () => {
+    const prev = win({ tCentreMs: T0 - 600_000 });
+    const r = computeTransectFlux(win(), prev, params);
+    expect(r.valid).toBe(true);
+    expect(r.invalidReasons).toEqual([]);
+    expect(r.uMS).toBeCloseTo(0.05, 12);
+    expect(r.residenceMin).toBeCloseTo(400 / 0.05 / 60, 10);
+    expect(r.depthM).toBe(1);
+    // NCP = rho h U dO2/L (no wind, no storage): 1023.x * 1 * 0.05 * 10/400 umol m-2 s-1 x 3.6
+    expect(r.ncpMmolM2H).toBeCloseTo(r.rhoKgM3 * 0.05 * (10 / 400) * 3.6, 10);
+    expect(r.necMethod).toBe('inverse');
+  });
+
+  it('slow flow, long residence, shallow water', () => {
+    const r = computeTransectFlux(win({ eastMS: -0.015 }), undefined, params);
+    expect(r.valid).toBe(false);
+    expect(r.invalidReasons).toContain('speed_below_min');
+    expect(r.invalidReasons).toContain('residence_above_max'); // 400/0.015 s = 7.4 h > 4 h
+    const r2 = computeTransectFlux(win({ up: st(200, { depthM: 0.15 }) }), undefined, params);
+    expect(r2.invalidReasons).toEqual(['depth_below_min']);
+    expect(r2.flag).toBe(3);
+  });
+
+  it('flow 35 deg off the transect is invalid with flag 3, 60 deg with flag 4', () => {
+    const d = (b: number) => ({
+      eastMS: 0.05 * Math.sin((b * Math.PI) / 180),
+      northMS: 0.05 * Math.cos((b * Math.PI) / 180),
+    });
+    const ok = computeTransectFlux(win(d(295)), undefined, params);
+    expect(ok.angleOffDeg).toBeCloseTo(25, 10);
+    expect(ok.invalidReasons).not.toContain('angle_off_transect');
+    const r35 = computeTransectFlux(win(d(305)), undefined, params);
+    expect(r35.invalidReasons).toContain('angle_off_transect');
+    expect(r35.flag).toBe(3);
+    const r60 = computeTransectFlux(win(d(330)), undefined, params);
+    expect(r60.flag).toBe(4);
+  });
+
+  it('reverse flow: flagged, or the stations swap roles when configured', () => {
+    const w = win({ eastMS: 0.05, up: st(210), down: st(200) }); // water flows from "down" to "up"
+    const flagged = computeTransectFlux(w, undefined, params);
+    expect(flagged.invalidReasons).toContain('reverse_flow');
+    expect(flagged.uMS).toBeCloseTo(-0.05, 12);
+    const swapped = computeTransectFlux(
+      w,
+      undefined,
+      makeTransectParams({ lengthM: 400, bearingDeg: 270, swapOnReverse: true }),
+    );
+    expect(swapped.swapped).toBe(true);
+    expect(swapped.valid).toBe(true);
+    expect(swapped.uMS).toBeCloseTo(0.05, 12);
+    // Water gains 10 umol/kg O2 crossing the flat in either direction: the same positive NCP.
+    expect(swapped.ncpMmolM2H).toBeCloseTo(swapped.rhoKgM3 * 0.05 * (10 / 400) * 3.6, 10);
+  });
+
+  it('storage dominating the advection invalidates the window', () => {
+    // Both stations rose 5 umol/kg in 10 min: St = 5/600 vs Ad = 0.05*10/400 = 1/800 -> fraction 0.87.
+    const prev = win({ tCentreMs: T0 - 600_000, up: st(195), down: st(205) });
+    const r = computeTransectFlux(win(), prev, params);
+    expect(r.storageFractionO2).toBeCloseTo(5 / 600 / (5 / 600 + 1 / 800), 10);
+    expect(r.invalidReasons).toContain('storage_dominates');
+    // A previous window older than maxPreviousGapMin gives no storage term.
+    const old = computeTransectFlux(win(), { ...prev, tCentreMs: T0 - 3 * 3_600_000 }, params);
+    expect(old.notes).toContain('no_storage');
+    expect(old.storageFractionO2).toBeNull();
+  });
+
+  it('QC-failed or missing inputs give null values and the reason', () => {
+    const bad = computeTransectFlux(win({ up: st(200, { o2Flag: 4 }) }), undefined, params);
+    expect(bad.ncpMmolM2H).toBeNull();
+    expect(bad.necMmolM2H).toBeNull();
+    expect(bad.invalidReasons).toContain('input_qc_failed');
+    const missing = computeTransectFlux(win({ down: st(210, { flag: 9 }) }), undefined, params);
+    expect(missing.invalidReasons).toContain('input_missing');
+    expect(missing.valid).toBe(false);
+    const co2bad = computeTransectFlux(win({ down: st(210, { pco2Flag: 4 }) }), undefined, params);
+    expect(co2bad.ncpMmolM2H).not.toBeNull();
+    expect(co2bad.necMmolM2H).toBeNull();
+  });
+
+  it('no NEC root gives null NEC, a stable code and flag 4', () => {
+    const r = computeTransectFlux(win({ down: st(210, { pco2Uatm: 0.5 }) }), undefined, params);
+    expect(r.necMethod).toBe('inverse');
+    expect(r.necMmolM2H).toBeNull();
+    expect(r.necFailure?.code).toBe('REEFD_METABOLISM_NEC_NO_ROOT');
+    expect(r.notes).toContain('nec_no_root');
+    expect(r.flag).toBe(4);
+  });
+});
+
+describe('uncertainty (science.md 9.2)', () => {
+  it('NCP sigma from the O2 difference alone: rho h (U/L) sigma_dC', () => {
+    const w = win({
+      sigmaUMS: 0,
+      up: st(200, { sigmaO2UmolKg: 1, sigmaDepthM: 0 }),
+      down: st(210, { sigmaO2UmolKg: 1, sigmaDepthM: 0 }),
+    });
+    const r = computeTransectFlux(w, undefined, params);
+    expect(r.sigmaNcpMmolM2H).toBeCloseTo(r.rhoKgM3 * (0.05 / 400) * Math.SQRT2 * 3.6, 10);
+  });
+
+  it('NCP sigma from U alone: 10 % of U is 10 % of the advective NCP', () => {
+    const w = win({
+      sigmaUMS: 0.005,
+      up: st(200, { sigmaO2UmolKg: 0, sigmaDepthM: 0 }),
+      down: st(210, { sigmaO2UmolKg: 0, sigmaDepthM: 0 }),
+    });
+    const r = computeTransectFlux(w, undefined, params);
+    expect(r.sigmaNcpMmolM2H).toBeCloseTo(0.1 * (r.ncpMmolM2H as number), 10);
+  });
+
+  it('inverse NEC sigma by the implicit-function derivative equals a brute-force re-solve', () => {
+    const c = solveCarbonate({ salinity: 35, tempC: 27, taUmolKg: 2300, pco2Uatm: 400 });
+    if (!c.ok) throw new Error(c.reason);
+    const f = forwardDownstream({
+      up: { tempC: 27, salinity: 35, o2UmolKg: 200, taUmolKg: 2300, dicUmolKg: c.dicUmolKg },
+      ncpMmolM2H: 20,
+      necMmolM2H: 7,
+      pq: 1,
+      uMS: 0.05,
+      depthM: 1,
+      lengthM: 400,
+    });
+    if (!f.ok) throw new Error('forward failed');
+    const x: InverseInput = {
+      upTempC: 27,
+      upSalinity: 35,
+      upPco2Uatm: 400,
+      upTaUmolKg: 2300,
+      downTempC: 27,
+      downSalinity: 35,
+      downPco2Uatm: f.pco2Uatm,
+      o2StorageUmolKgS: 0,
+      o2DiffUmolKg: f.o2UmolKg - 200,
+      fasO2UmolM2S: 0,
+      ncpOffsetUmolM2S: 0,
+      pq: 1,
+      fasCo2UmolM2S: 0,
+      uMS: 0.05,
+      depthM: 1,
+      rhoKgM3: f.rhoKgM3,
+      lengthM: 400,
+      baroHpa: 1013.25,
+    };
+    const o = { bracketMmolM2H: 100, maxDoublings: 3, tolMmolM2H: 1e-7 };
+    const r = solveInverseNec(x, o);
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    expect(r.necUmolM2S * 3.6).toBeCloseTo(7, 5);
+    expect(r.dgdN).toBeGreaterThan(0); // g increases with N (Frankignoulle et al. 1994)
+    for (const [key, s] of [
+      ['downPco2Uatm', 2],
+      ['upPco2Uatm', 2],
+      ['uMS', 0.005],
+      ['pq', 0.1],
+      ['upTaUmolKg', 10],
+    ] as const) {
+      const sig = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { [key]: s });
+      const plus = solveInverseNec({ ...x, [key]: x[key] + s }, o);
+      const minus = solveInverseNec({ ...x, [key]: x[key] - s }, o);
+      if (!plus.ok || !minus.ok) throw new Error('re-solve failed');
+      const brute = Math.abs(plus.necUmolM2S - minus.necUmolM2S) / 2;
+      expect(Math.abs(sig.sigmaUmolM2S - brute)).toBeLessThan(0.02 * brute + 1e-6);
+    }
+  });
+
+  it('computeTransectFlux reports a finite inverse NEC sigma that grows with the pCO2 uncertainty', () => {
+    const a = computeTransectFlux(
+      win({ down: st(210, { pco2Uatm: 380, sigmaPco2Uatm: 1 }), up: st(200, { sigmaPco2Uatm: 1 }) }),
+      undefined,
+      params,
+    );
+    const b = computeTransectFlux(
+      win({ down: st(210, { pco2Uatm: 380, sigmaPco2Uatm: 5 }), up: st(200, { sigmaPco2Uatm: 5 }) }),
+      undefined,
+      params,
+    );
+    expect(a.sigmaNecMmolM2H).not.toBeNull();
+    expect(b.sigmaNecMmolM2H as number).toBeGreaterThan(a.sigmaNecMmolM2H as number);
+    const noSig = computeTransectFlux(win(), undefined, params, { uncertainty: false });
+    expect(noSig.sigmaNecMmolM2H).toBeNull();
+    expect(noSig.necMmolM2H).toBeCloseTo(a.necMmolM2H as number, 8);
+  });
+});

@@ -1,0 +1,341 @@
+// Transect fluxes per window (science.md 6.1-6.6, 9.2; contract.md `flux`): NCP from the O2 budget, NEC from the
+// alkalinity budget (`ta`) or the pCO2 + O2 inverse (`inverse`), validity and first-order uncertainties.
+// Method: Eulerian control volume of Falter et al. (2008, J. Geophys. Res.), alkalinity anomaly of Smith (1973)
+// and Kinsey (1978); salinity normalisation of Friis et al. (2003, Geophys. Res. Lett.).
+
+import { airSeaFluxes } from './air-sea.js';
+import {
+  advectionRate,
+  benthicFluxUmolM2S,
+  fluxSigmaUmolM2S,
+  storageFraction,
+  storageRate,
+  UMOL_M2_S_TO_MMOL_M2_H,
+} from './budget.js';
+import { densityKgM3 } from './chem.js';
+import { alongBearingMS, angleOffBearingDeg, defaultCurrentSigmaMS } from './geometry.js';
+import { inverseNecSigma, solveInverseNec, type InverseInput } from './inverse.js';
+import { hasGradientTa, ncpCFromDic, taBudget, taSigma, type BudgetContext } from './nec-ta.js';
+import type {
+  FluxResult,
+  InvalidReason,
+  InverseState,
+  QcFlag,
+  StationWindowMean,
+  TransectParams,
+  TransectWindow,
+} from './types.js';
+
+export interface ComputeFluxOptions {
+  /** The result of the previous window: its inverse solution starts the storage form of the inverse. */
+  previousResult?: FluxResult;
+  /** Skip the uncertainty propagation (sigmas null) for speed. Default true (propagate). */
+  uncertainty?: boolean;
+}
+
+const worst = (...flags: (QcFlag | undefined)[]): QcFlag => {
+  let w: QcFlag = 1;
+  for (const f of flags) if (f !== undefined && f > w) w = f;
+  return w;
+};
+
+// Typical accuracies (science.md 9.3) used when a station mean carries no sigma.
+const sigO2 = (s: StationWindowMean) => s.sigmaO2UmolKg ?? 0.02 * s.o2UmolKg;
+const sigPco2 = (s: StationWindowMean, p: number) => s.sigmaPco2Uatm ?? Math.max(2, 0.01 * p);
+const sigDepth = (s: StationWindowMean) => s.sigmaDepthM ?? 0.01; // ~1 hPa barometer + 0.05 % FS logger
+
+/**
+ * Fluxes of one transect window. `previous` is the preceding window of the same transect (for storage);
+ * without it (or further back than maxPreviousGapMin) storage is taken as zero and noted.
+ */
+export function computeTransectFlux(
+  current: TransectWindow,
+  previous: TransectWindow | undefined,
+  params: TransectParams,
+  options: ComputeFluxOptions = {},
+): FluxResult {
+  const wantSigma = options.uncertainty ?? true;
+  const reasons: InvalidReason[] = [];
+  const addReason = (r: InvalidReason) => {
+    if (!reasons.includes(r)) reasons.push(r);
+  };
+  const notes: string[] = [];
+  const L = params.lengthM;
+
+  // Geometry: U on the bearing; reverse flow swaps roles or invalidates.
+  let u = alongBearingMS(current.eastMS, current.northMS, params.bearingDeg);
+  let angle = angleOffBearingDeg(current.eastMS, current.northMS, params.bearingDeg);
+  let up = current.up;
+  let down = current.down;
+  let prevUp = previous?.up;
+  let prevDown = previous?.down;
+  let swapped = false;
+  if (u < 0) {
+    if (params.swapOnReverse) {
+      [up, down] = [down, up];
+      if (prevUp && prevDown) [prevUp, prevDown] = [prevDown, prevUp];
+      u = -u;
+      angle = 180 - angle;
+      swapped = true;
+    } else {
+      addReason('reverse_flow');
+    }
+  }
+  let flag: QcFlag = worst(up.flag, down.flag, current.currentFlag);
+  if (Math.abs(u) < params.minSpeedMS) addReason('speed_below_min');
+  if (angle > params.maxAngleDeg && !reasons.includes('reverse_flow')) {
+    addReason('angle_off_transect');
+    flag = worst(flag, angle <= params.suspectAngleDeg ? 3 : 4);
+  }
+  const sigmaU = current.sigmaUMS ?? defaultCurrentSigmaMS(u);
+
+  const h = 0.5 * (up.depthM + down.depthM);
+  const sigmaH = 0.5 * Math.hypot(sigDepth(up), sigDepth(down));
+  if (Math.min(up.depthM, down.depthM) < params.minDepthM) addReason('depth_below_min');
+  const residenceS = u !== 0 ? L / Math.abs(u) : Number.POSITIVE_INFINITY;
+  const residenceMin = Number.isFinite(residenceS) ? residenceS / 60 : null;
+  if (residenceS / 60 > params.maxResidenceMin) addReason('residence_above_max');
+
+  const rho = 0.5 * (densityKgM3(up.salinity, up.tempC) + densityKgM3(down.salinity, down.tempC));
+  const tMean = 0.5 * (up.tempC + down.tempC);
+  const sMean = 0.5 * (up.salinity + down.salinity);
+
+  const dtS = previous ? (current.tCentreMs - previous.tCentreMs) / 1000 : Number.NaN;
+  const hasPrev =
+    prevUp !== undefined && prevDown !== undefined && dtS > 0 && dtS <= params.maxPreviousGapMin * 60;
+  if (!hasPrev) notes.push('no_storage');
+  const pU: StationWindowMean | undefined = hasPrev ? prevUp : undefined;
+  const pD: StationWindowMean | undefined = hasPrev ? prevDown : undefined;
+
+  const physFlag = worst(up.flag, down.flag, current.currentFlag);
+  const o2Flag = worst(physFlag, up.o2Flag, down.o2Flag);
+  const pco2Flag = worst(physFlag, up.pco2Flag ?? up.flag, down.pco2Flag ?? down.flag);
+  const pco2Present = up.pco2Uatm !== undefined && down.pco2Uatm !== undefined;
+  const pco2Mean = pco2Present ? 0.5 * ((up.pco2Uatm as number) + (down.pco2Uatm as number)) : undefined;
+
+  // Air-sea exchange from transect means.
+  if (current.windMS === undefined) notes.push('no_wind');
+  if (current.baroHpa === undefined) notes.push('no_baro');
+  const xco2 = current.xco2AirPpm ?? params.xco2AirPpm;
+  if (current.xco2AirPpm === undefined) notes.push('xco2_configured');
+  const as = airSeaFluxes({
+    tempC: tMean,
+    salinity: sMean,
+    rhoKgM3: rho,
+    o2UmolKg: up.o2UmolKg,
+    o2DownUmolKg: down.o2UmolKg,
+    o2Mean: params.airSeaO2Mean,
+    residenceS: u !== 0 ? L / u : residenceS, // signed: reversed flow weights the other station
+    depthM: h,
+    ...(pco2Mean !== undefined && pco2Flag < 4 ? { pco2Uatm: pco2Mean } : {}),
+    ...(current.windMS !== undefined ? { windMS: current.windMS } : {}),
+    windHeightM: current.windHeightM ?? params.windHeightM,
+    ...(current.baroHpa !== undefined ? { baroHpa: current.baroHpa } : {}),
+    xco2AirPpm: xco2,
+  });
+  if (current.metFlag !== undefined) flag = worst(flag, current.metFlag >= 4 ? 3 : current.metFlag);
+
+  // O2 budget -> NCP.
+  const stO2 = pU && pD ? storageRate(up.o2UmolKg, down.o2UmolKg, pU.o2UmolKg, pD.o2UmolKg, dtS) : 0;
+  const dO2 = down.o2UmolKg - up.o2UmolKg;
+  const adO2 = advectionRate(u, up.o2UmolKg, down.o2UmolKg, L);
+  let ncp: number | null = null;
+  let sigmaNcp: number | null = null;
+  let stFrac: number | null = null;
+  let sigmaNcpO2Only = 0;
+  if (o2Flag >= 4) {
+    addReason(o2Flag === 9 ? 'input_missing' : 'input_qc_failed');
+    flag = worst(flag, o2Flag);
+  } else {
+    ncp = benthicFluxUmolM2S(rho, h, stO2, adO2, as.fasO2UmolM2S);
+    flag = worst(flag, o2Flag);
+    if (hasPrev) {
+      stFrac = storageFraction(stO2, adO2);
+      if (stFrac > params.maxStorageFraction) addReason('storage_dominates');
+    }
+    if (wantSigma) {
+      const semNow = 0.5 * Math.hypot(up.semO2UmolKg ?? 0, down.semO2UmolKg ?? 0);
+      const semPrev = pU && pD ? 0.5 * Math.hypot(pU.semO2UmolKg ?? 0, pD.semO2UmolKg ?? 0) : 0;
+      const sigmaSt = hasPrev ? Math.hypot(semNow, semPrev) / dtS : 0;
+      const sigmaDeq = 0.5 * Math.hypot(sigO2(up), sigO2(down));
+      const sigmaFas = Math.hypot(as.fasO2UmolM2S * params.sigmaKRel, as.kO2MS * rho * sigmaDeq);
+      const base = {
+        rhoKgM3: rho,
+        depthM: h,
+        uMS: u,
+        lengthM: L,
+        dC: dO2,
+        storage: stO2,
+        advection: adO2,
+        sigmaStorage: sigmaSt,
+        sigmaDC: Math.hypot(sigO2(up), sigO2(down)),
+        sigmaAirSeaUmolM2S: sigmaFas,
+      };
+      sigmaNcp = fluxSigmaUmolM2S({
+        ...base,
+        sigmaUMS: sigmaU,
+        sigmaLengthM: params.sigmaLengthM,
+        sigmaDepthM: sigmaH,
+      });
+      sigmaNcpO2Only = fluxSigmaUmolM2S({ ...base, sigmaUMS: 0, sigmaLengthM: 0, sigmaDepthM: 0 });
+    }
+  }
+  if (physFlag >= 4) addReason(physFlag === 9 ? 'input_missing' : 'input_qc_failed');
+
+  // NEC and NCP_C.
+  let nec: number | null = null;
+  let sigmaNec: number | null = null;
+  let necMethod: FluxResult['necMethod'] = null;
+  let ncpC: number | null = null;
+  let inverseState: InverseState | null = null;
+  let necFailure: FluxResult['necFailure'] = null;
+  const s0 = sMean;
+  const taFlag = worst(physFlag, up.taFlag, down.taFlag);
+  if (hasGradientTa(up) && hasGradientTa(down) && taFlag < 4) {
+    necMethod = 'ta';
+    const ctx: BudgetContext = {
+      rhoKgM3: rho,
+      depthM: h,
+      uMS: u,
+      lengthM: L,
+      s0,
+      dtS,
+      sigmaUMS: sigmaU,
+      sigmaDepthM: sigmaH,
+      sigmaLengthM: params.sigmaLengthM,
+      ...(pU && pD ? { prevUp: pU, prevDown: pD } : {}),
+    };
+    const ta = taBudget(ctx, up, down, params.sigmaTaFromSalinityUmolKg);
+    nec = ta.necUmolM2S;
+    if (wantSigma) sigmaNec = ta.sigmaNecUmolM2S;
+    flag = worst(flag, taFlag);
+    const dicFlag = worst(physFlag, up.dicFlag, down.dicFlag);
+    if (up.dicUmolKg !== undefined && down.dicUmolKg !== undefined && dicFlag < 4) {
+      ncpC = ncpCFromDic(ctx, up, down, ta, as.fasCo2UmolM2S ?? 0);
+    }
+  } else if (pco2Present && up.pco2Uatm !== undefined && down.pco2Uatm !== undefined && ncp !== null) {
+    necMethod = 'inverse';
+    if (pco2Flag >= 4) {
+      addReason(pco2Flag === 9 ? 'input_missing' : 'input_qc_failed');
+    } else {
+      const taA = up.taUmolKg ?? (params.taS35UmolKg * up.salinity) / 35;
+      const prevState = options.previousResult?.inverseState;
+      const usePrev = hasPrev && prevState !== null && prevState !== undefined;
+      const x: InverseInput = {
+        upTempC: up.tempC,
+        upSalinity: up.salinity,
+        upPco2Uatm: up.pco2Uatm,
+        upTaUmolKg: taA,
+        downTempC: down.tempC,
+        downSalinity: down.salinity,
+        downPco2Uatm: down.pco2Uatm,
+        o2StorageUmolKgS: stO2,
+        o2DiffUmolKg: dO2,
+        fasO2UmolM2S: as.fasO2UmolM2S,
+        ncpOffsetUmolM2S: 0,
+        pq: params.pq,
+        fasCo2UmolM2S: as.fasCo2UmolM2S ?? 0,
+        uMS: u,
+        depthM: h,
+        rhoKgM3: rho,
+        lengthM: L,
+        baroHpa: current.baroHpa ?? 1013.25,
+        ...(usePrev && prevState
+          ? {
+              previous: {
+                dtS,
+                upTaUmolKg: prevState.upTaUmolKg,
+                upDicUmolKg: prevState.upDicUmolKg,
+                upSalinity: prevState.upSalinity,
+                downTaUmolKg: prevState.downTaUmolKg,
+                downDicUmolKg: prevState.downDicUmolKg,
+                downSalinity: prevState.downSalinity,
+              },
+            }
+          : {}),
+      };
+      if (!usePrev) {
+        notes.push('steady_form');
+        flag = worst(flag, 3);
+      }
+      flag = worst(flag, pco2Flag, up.taFlag);
+      const r = solveInverseNec(x, {
+        bracketMmolM2H: params.necBracketMmolM2H,
+        maxDoublings: params.necMaxDoublings,
+        tolMmolM2H: params.necTolMmolM2H,
+      });
+      if (r.ok) {
+        nec = r.necUmolM2S;
+        inverseState = {
+          tCentreMs: current.tCentreMs,
+          upTaUmolKg: taA,
+          upDicUmolKg: r.upDicUmolKg,
+          upSalinity: up.salinity,
+          downTaUmolKg: r.downTaUmolKg,
+          downDicUmolKg: r.downDicUmolKg,
+          downSalinity: down.salinity,
+        };
+        if (wantSigma) {
+          const sigmaDeqCo2 = 0.5 * Math.hypot(sigPco2(up, up.pco2Uatm), sigPco2(down, down.pco2Uatm));
+          const fas = as.fasCo2UmolM2S ?? 0;
+          sigmaNec = inverseNecSigma(x, r.necUmolM2S, r.dgdN, {
+            upPco2Uatm: sigPco2(up, up.pco2Uatm),
+            downPco2Uatm: sigPco2(down, down.pco2Uatm),
+            upTaUmolKg: taSigma(up, params.sigmaTaFromSalinityUmolKg),
+            upTempC: up.sigmaTempC ?? 0.01,
+            downTempC: down.sigmaTempC ?? 0.01,
+            upSalinity: up.sigmaSalinity ?? 0.02,
+            downSalinity: down.sigmaSalinity ?? 0.02,
+            ncpOffsetUmolM2S: sigmaNcpO2Only,
+            pq: params.sigmaPq,
+            fasCo2UmolM2S: Math.hypot(fas * params.sigmaKRel, as.kCo2MS * rho * as.k0MolKgAtm * sigmaDeqCo2),
+            uMS: sigmaU,
+            depthM: sigmaH,
+            lengthM: params.sigmaLengthM,
+          }).sigmaUmolM2S;
+        }
+      } else {
+        notes.push(r.code === 'REEFD_METABOLISM_NEC_NO_ROOT' ? 'nec_no_root' : 'nec_carbonate_failed');
+        necFailure = { code: r.code, reason: r.reason };
+        flag = worst(flag, 4);
+      }
+    }
+  }
+
+  const valid = reasons.length === 0;
+  if (!valid) flag = worst(flag, 3);
+  const toMmol = (v: number | null) => (v === null ? null : v * UMOL_M2_S_TO_MMOL_M2_H);
+  return {
+    tCentreMs: current.tCentreMs,
+    ncpMmolM2H: toMmol(ncp),
+    sigmaNcpMmolM2H: toMmol(sigmaNcp),
+    necMmolM2H: toMmol(nec),
+    sigmaNecMmolM2H: toMmol(sigmaNec),
+    necMethod,
+    ncpCMmolM2H: toMmol(ncpC),
+    uMS: u,
+    sigmaUMS: sigmaU,
+    depthM: h,
+    sigmaDepthM: sigmaH,
+    rhoKgM3: rho,
+    residenceMin,
+    angleOffDeg: angle,
+    swapped,
+    storageFractionO2: stFrac,
+    valid,
+    invalidReasons: reasons,
+    flag,
+    notes,
+    airSea: {
+      u10MS: as.u10MS,
+      kO2MS: as.kO2MS,
+      kCo2MS: as.kCo2MS,
+      o2SatUmolKg: as.o2SatUmolKg,
+      fasO2MmolM2H: as.fasO2UmolM2S * UMOL_M2_S_TO_MMOL_M2_H,
+      fasCo2MmolM2H: toMmol(as.fasCo2UmolM2S),
+      fco2AirUatm: as.fco2AirUatm,
+    },
+    necFailure,
+    inverseState,
+  };
+}
