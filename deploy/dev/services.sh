@@ -377,7 +377,7 @@ cmd_up() {
   # Daemons that drop privileges (mosquitto) must be able to enter the state folder.
   chmod 755 "$STATE"
   ensure_packages
-  ensure_kafka_jars
+  pid_alive kafka || ensure_kafka_jars
   local name
   for name in "${SERVICES[@]}"; do
     if pid_alive "$name"; then
