@@ -2,7 +2,7 @@
 // carbonate system is speciated (libs/carbonate's solveCarbonate, default options: Lueker et al. 2000 K1 K2,
 // Lee et al. 2010 boron; science 3).
 import { k0, solveCarbonate } from '../carbonate/index.js';
-import { densityKgM3, o2SolubilityUmolKg } from './seawater.js';
+import { densityEos80, o2SolubilityUmolKg } from '../seawater/index.js';
 
 /** Conservative and biological tracers of one parcel of water. */
 export interface Water {
@@ -49,7 +49,7 @@ export function co2SolubilityMolKgAtm(w: Water): number {
 }
 
 export function density(w: Water): number {
-  return densityKgM3(w.sal, w.tempC);
+  return densityEos80(w.sal, w.tempC);
 }
 
 export function o2Saturation(w: Water): number {

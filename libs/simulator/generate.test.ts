@@ -10,7 +10,7 @@ import {
 import { processEnsemble } from '../currents/index.js';
 import { analyzeBurst } from '../waves/index.js';
 import { simulateMessages, type SimMessage } from './generate.js';
-import { densityKgM3 } from './seawater.js';
+import { densityEos80 as densityKgM3, recompensateO2Salinity, umolLToUmolKg } from '../seawater/index.js';
 import type { FaultTruth, StationTruth } from './truth.js';
 
 function ornenConfig() {
@@ -181,6 +181,19 @@ describe('simulateMessages', () => {
     const i = o2.findIndex((m) => m.tMs >= spike.startMs);
     const v = (k: number) => o2[k]!.payload.o2_umol_l as number;
     expect(v(i) - (v(i - 1) + v(i + 1)) / 2).toBeGreaterThan(60);
+  });
+
+  it('the optode set to S = 0 reads high, and re-compensation gives the truth back', () => {
+    // An optode set to 0 reads ~20 % high in S 35 water (science spec 2.4).
+    const msgs = run.messages.filter((m) => m.topic.endsWith('/o2-flat')).slice(0, 50);
+    for (const m of msgs) {
+      const truth = truthAt('flat', m.tMs);
+      const raw = m.payload.o2_umol_l as number;
+      expect(raw / (truth.o2_umol_kg * 1.022)).toBeGreaterThan(1.15);
+      const fixed = recompensateO2Salinity(raw, 0, truth.sal, m.payload.temp_c as number);
+      const umolKg = umolLToUmolKg(fixed, densityKgM3(truth.sal, truth.temp_c));
+      expect(Math.abs(umolKg - truth.o2_umol_kg)).toBeLessThan(4); // optode noise 0.8 umol/L; 5-min truth grid
+    }
   });
 
   it('has a low-oxygen night in the lagoon: below 2 mg/L for more than an hour', () => {

@@ -14,7 +14,7 @@ import {
 import { ReefModel, type ReefSnapshot, type WaveClimateOverride } from './model.js';
 import { createRng, type Rng } from './prng.js';
 import { solarHour } from './signals.js';
-import { o2UmolKgToMgL, optodeSalinityFactor } from './seawater.js';
+import { recompensateO2Salinity, umolKgToMgL } from '../seawater/index.js';
 import { siteLayout, type Role } from './site.js';
 import { stationTruth, transectTruth, type TruthRow } from './truth.js';
 
@@ -228,13 +228,12 @@ function buildMessage(
       const umolL = (w.o2UmolKg * rho) / 1000 + 0.8 * n();
       const payload: Record<string, unknown> = { ...base, temp_c: tempC };
       if (s.config.sal_setting !== undefined) {
-        // The optode computes with its own salinity setting, so it reports O2(S_set) = O2(S)/factor.
-        payload.o2_umol_l = r(
-          Math.max(0, umolL / optodeSalinityFactor(w.sal, s.config.sal_setting, w.tempC)),
-          2,
-        );
+        // The optode computes with its own salinity setting (combined fit of Garcia & Gordon 1992), so it
+        // reports O2(S_set) = O2(S)/factor, the inverse of the daemon's re-compensation (science 2.4).
+        const factor = recompensateO2Salinity(1, s.config.sal_setting, w.sal, tempC);
+        payload.o2_umol_l = r(Math.max(0, umolL / factor), 2);
       } else if (s.role === 'back') {
-        payload.o2_mg_l = r(Math.max(0, o2UmolKgToMgL(w.o2UmolKg, rho) + 0.025 * n()), 3);
+        payload.o2_mg_l = r(Math.max(0, umolKgToMgL(w.o2UmolKg, rho) + 0.025 * n()), 3);
       } else payload.o2_umol_l = r(Math.max(0, umolL), 2);
       return { topic, tMs: t, payload };
     }

@@ -4,7 +4,7 @@ import type { TransectConfig } from '../contract/index.js';
 import { density, speciate } from './chemistry.js';
 import type { ScriptedFault } from './faults.js';
 import type { ReefSnapshot } from './model.js';
-import { o2UmolKgToMgL } from './seawater.js';
+import { umolKgToMgL } from '../seawater/index.js';
 import type { Role, SiteLayout } from './site.js';
 
 export interface StationTruth {
@@ -84,7 +84,7 @@ export function stationTruth(
     temp_c: r(w.tempC, 4),
     sal: r(w.sal, 4),
     o2_umol_kg: r(w.o2UmolKg, 2),
-    o2_mg_l: r(o2UmolKgToMgL(w.o2UmolKg, density(w)), 3),
+    o2_mg_l: r(umolKgToMgL(w.o2UmolKg, density(w)), 3),
     pco2_uatm: r(c.pco2Uatm, 2),
     ph_total: r(c.phTotal, 4),
     ta_umol_kg: r(w.taUmolKg, 2),
