@@ -2,7 +2,7 @@
 // despiking, Welch spectrum, linear pressure-response correction up to a cutoff, spectral bulk statistics and
 // zero-crossing statistics of the reconstructed surface, each with its QARTOD flag.
 import { cutoffFrequency, spectralStats } from './bulk.js';
-import { G_STANDARD, solveDispersionRow, pressureResponse } from './dispersion.js';
+import { G_STANDARD, responseOnGrid } from './dispersion.js';
 import { despike, detrend, fillGaps } from './prep.js';
 import type { BurstInput, QartodFlag, WaveOptions, WavesErrorCode, WavesFail, WavesResult } from './types.js';
 import { chooseSegmentLength, welchDof, welchInto } from './welch.js';
@@ -31,9 +31,11 @@ interface Work {
   readonly eta: Float64Array;
   readonly scratch: Float64Array; // 2n, for the medians and the wave heights
   readonly recon: ReconWork;
+  readonly kFine: Float64Array; // n/2 + 1
+  readonly kpFine: Float64Array;
   psd: Float64Array;
   kBins: Float64Array;
-  omegaBins: Float64Array;
+  kpBins: Float64Array;
 }
 
 // Module state, deliberately: the scratch arrays for the last few burst lengths, so that a station's stream of
@@ -52,16 +54,18 @@ function workFor(n: number, ns: number): Work {
       eta: new Float64Array(n),
       scratch: new Float64Array(2 * n),
       recon: makeReconWork(n),
+      kFine: new Float64Array((n >> 1) + 1),
+      kpFine: new Float64Array((n >> 1) + 1),
       psd: new Float64Array(0),
       kBins: new Float64Array(0),
-      omegaBins: new Float64Array(0),
+      kpBins: new Float64Array(0),
     };
     works.set(n, w);
   }
   if (w.psd.length !== ns / 2 + 1) {
     w.psd = new Float64Array(ns / 2 + 1);
     w.kBins = new Float64Array(ns / 2 + 1);
-    w.omegaBins = new Float64Array(ns / 2 + 1);
+    w.kpBins = new Float64Array(ns / 2 + 1);
   }
   return w;
 }
@@ -149,7 +153,7 @@ export function analyzeBurst(input: BurstInput, options: WaveOptions = {}): Wave
   }
 
   // 4.1.5 despike; the robust sigma is floored at the flat-record threshold (see prep.ts)
-  const spikes = despike(x, n, o.spikeSigma, o.minSdM, w.scratch);
+  const spikes = despike(x, n, o.spikeSigma, o.minSdM, w.scratch, w.eta);
   if (spikes > 0.05 * n) {
     return fail(4, 'REEFD_WAVES_SPIKY', `${spikes} of ${n} samples are spikes (> 5 %)`, depthM);
   }
@@ -162,16 +166,31 @@ export function analyzeBurst(input: BurstInput, options: WaveOptions = {}): Wave
   const df = fs / ns;
   notes.push(`Welch: nperseg ${ns}, ${k} segments, df ${df.toPrecision(3)} Hz, nu ${dof.toPrecision(3)}`);
 
-  // 4.3 cutoff and pressure response, on the Welch bins up to the cutoff
+  // 4.3 cutoff and pressure response. k and Kp are computed once on the whole-burst grid f = m fs/N (needed
+  // by the reconstruction); when Ns divides N the Welch bins are every (N/Ns)-th of those bins.
   const cut = cutoffFrequency(depthM, zs, fs, o.maxFreqHz, o.minKp2, g);
   notes.push(`cutoff ${cut.fHz.toPrecision(3)} Hz (${cut.by})`);
   const mTop = Math.min(ns / 2, Math.floor((cut.fHz + 1e-9 * df) / df));
+  const dfN = fs / n;
+  // the Welch bins up to mTop must be covered exactly, whatever the rounding of the two floors
+  const mTopN = Math.max(
+    Math.min(n >> 1, Math.floor((cut.fHz + 1e-9 * dfN) / dfN)),
+    n % ns === 0 ? mTop * (n / ns) : 0,
+  );
+  responseOnGrid(dfN, mTopN + 1, depthM, zs, g, w.kFine, w.kpFine);
   const sEta = w.psd;
-  for (let m = 0; m <= mTop; m++) w.omegaBins[m] = 2 * Math.PI * m * df;
-  solveDispersionRow(w.omegaBins, depthM, g, w.kBins, mTop + 1);
-  for (let m = 0; m <= mTop; m++) {
-    const kp = pressureResponse(w.kBins[m] as number, zs, depthM);
-    sEta[m] = (sEta[m] as number) / (kp * kp);
+  if (n % ns === 0) {
+    const step = n / ns;
+    for (let m = 0; m <= mTop; m++) {
+      const kp = w.kpFine[m * step] as number;
+      sEta[m] = (sEta[m] as number) / (kp * kp);
+    }
+  } else {
+    responseOnGrid(df, mTop + 1, depthM, zs, g, w.kBins, w.kpBins);
+    for (let m = 0; m <= mTop; m++) {
+      const kp = w.kpBins[m] as number;
+      sEta[m] = (sEta[m] as number) / (kp * kp);
+    }
   }
   for (let m = mTop + 1; m < sEta.length; m++) sEta[m] = 0;
 
@@ -193,7 +212,8 @@ export function analyzeBurst(input: BurstInput, options: WaveOptions = {}): Wave
 
   // 4.5 surface reconstruction over the total band, zero-crossing statistics
   const fLo = evaluateIg ? o.igLowHz : o.splitHz;
-  reconstructSurface(x, fs, depthM, zs, g, fLo, cut.fHz, w.recon, w.eta);
+  const mLoN = Math.max(1, Math.ceil((fLo - 1e-9 * dfN) / dfN));
+  reconstructSurface(x, w.kpFine, mLoN, mTopN, w.recon, w.eta);
   const zc = zeroCrossingStats(w.eta, n, fs, w.scratch);
   const zcFlag = worst(qc, zc.nWaves < o.minWaves ? 3 : 1);
 

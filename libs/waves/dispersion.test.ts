@@ -1,6 +1,12 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { G_STANDARD, guoGuess, pressureResponse, solveDispersion, solveDispersionRow } from './dispersion.js';
+import {
+  G_STANDARD,
+  guoGuess,
+  pressureResponse,
+  solveDispersion,
+  solveDispersionGrid,
+} from './dispersion.js';
 
 describe('solveDispersion', () => {
   it('satisfies omega^2 = g k tanh(kh) to 1e-12 relative (identity, property over kh 1e-3..50)', () => {
@@ -65,16 +71,20 @@ describe('solveDispersion', () => {
     expect(() => solveDispersion(1, 0)).toThrow(RangeError);
   });
 
-  it('the row solver gives the same roots as the single solver (to 1e-13 relative)', () => {
-    const n = 800;
-    const omega = new Float64Array(n);
-    for (let i = 0; i < n; i++) omega[i] = (2 * Math.PI * i) / 1024;
-    const out = new Float64Array(n);
-    solveDispersionRow(omega, 2.5, G_STANDARD, out, n);
-    expect(out[0]).toBe(0);
-    for (let i = 1; i < n; i++) {
-      const k = solveDispersion(omega[i] as number, 2.5);
-      expect(Math.abs((out[i] as number) / k - 1)).toBeLessThan(1e-13);
+  it('the grid solver gives the same roots as solveDispersion to 1e-13 relative (fine and coarse grids)', () => {
+    for (const [w0, dw, n, h] of [
+      [0, (2 * Math.PI) / 1024, 800, 2.5], // whole-burst grid, 2 Hz, N = 2048
+      [0.3, (2 * Math.PI) / 128, 60, 0.4], // coarse Welch grid, very shallow
+      [0.01, 0.05, 200, 40], // coarse, deep water at the top end
+    ] as const) {
+      const out = new Float64Array(n);
+      solveDispersionGrid(w0, dw, n, h, G_STANDARD, out);
+      for (let i = 0; i < n; i++) {
+        const w = w0 + i * dw;
+        const k = solveDispersion(w, h);
+        if (w === 0) expect(out[i]).toBe(0);
+        else expect(Math.abs((out[i] as number) / k - 1)).toBeLessThan(1e-13);
+      }
     }
   });
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { complexDft, nextPowerOfTwo, planFor, realForward } from './fft.js';
+import { complexDft, nextPowerOfTwo, planFor, realForward, realInverse } from './fft.js';
 
 /** naive O(N^2) DFT, the definition X_m = sum x_n exp(-2 pi i m n/N) */
 function naive(re: Float64Array, im: Float64Array): { re: Float64Array; im: Float64Array } {
@@ -65,6 +65,18 @@ describe('realForward (fft.js realTransform)', () => {
         expect(out[2 * m]).toBeCloseTo(ref.re[m] as number, 9);
         expect(out[2 * m + 1]).toBeCloseTo(ref.im[m] as number, 9);
       }
+    });
+  }
+
+  for (const n of [4, 8, 64, 2048]) {
+    it(`realInverse N = ${n}: inverts realForward to 1e-13`, () => {
+      const x = signal(n, 4);
+      const spec = new Float64Array(2 * n);
+      realForward(planFor(n), x, spec);
+      const back = new Float64Array(n);
+      realInverse(spec, back, n);
+      for (let i = 0; i < n; i++)
+        expect(Math.abs((back[i] as number) - (x[i] as number))).toBeLessThan(1e-13);
     });
   }
 

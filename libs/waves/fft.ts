@@ -150,3 +150,53 @@ export function complexDft(data: Float64Array, out: Float64Array, n: number, inv
     out[2 * j + 1] = sgn * scale * (yr * wi + yi * wr);
   }
 }
+
+// Twiddles e^{+2 pi i k/n}, k < n/2, for realInverse; module state for the same reason as the plans.
+const halfTwiddles = new Map<number, Float64Array>();
+
+/**
+ * Inverse DFT of a Hermitian spectrum (real signal) of power-of-two length n >= 4: spec holds bins 0..n/2
+ * interleaved (bins above n/2 are implied by symmetry and not read); out receives the n real samples,
+ * x_j = (1/n) sum_m X_m e^{+2 pi i m j/n}. Uses one complex transform of size n/2 (the even samples as the
+ * real part, the odd samples as the imaginary part): E_k = (X_k + conj X_{n/2-k})/2,
+ * O_k = e^{2 pi i k/n} (X_k - conj X_{n/2-k})/2, Z_k = E_k + i O_k, z = IDFT_{n/2}(Z), x_2j = Re z_j,
+ * x_2j+1 = Im z_j (common practice; e.g. Brigham 1988, The FFT and its Applications).
+ */
+export function realInverse(spec: Float64Array, out: Float64Array, n: number): void {
+  const h = n >> 1;
+  let tw = halfTwiddles.get(n);
+  if (tw === undefined) {
+    if (halfTwiddles.size >= MAX_PLANS) halfTwiddles.clear();
+    tw = new Float64Array(2 * h);
+    for (let k = 0; k < h; k++) {
+      tw[2 * k] = Math.cos((2 * Math.PI * k) / n);
+      tw[2 * k + 1] = Math.sin((2 * Math.PI * k) / n);
+    }
+    halfTwiddles.set(n, tw);
+  }
+  const p = planFor(h);
+  const z = p.a;
+  for (let k = 0; k < h; k++) {
+    const xr = spec[2 * k] as number;
+    const xi = spec[2 * k + 1] as number;
+    const yr = spec[2 * (h - k)] as number; // X_{n/2-k}
+    const yi = -(spec[2 * (h - k) + 1] as number); // conj
+    const er = 0.5 * (xr + yr);
+    const ei = 0.5 * (xi + yi);
+    const dr = 0.5 * (xr - yr);
+    const di = 0.5 * (xi - yi);
+    const cr = tw[2 * k] as number;
+    const ci = tw[2 * k + 1] as number;
+    const or = dr * cr - di * ci;
+    const oi = dr * ci + di * cr;
+    // Z = E + i O
+    z[2 * k] = er - oi;
+    z[2 * k + 1] = ei + or;
+  }
+  p.fft.inverseTransform(p.b, z);
+  const b = p.b;
+  for (let j = 0; j < h; j++) {
+    out[2 * j] = b[2 * j] as number;
+    out[2 * j + 1] = b[2 * j + 1] as number;
+  }
+}

@@ -3,7 +3,7 @@
 // (Longuet-Higgins, Cartwright & Smith 1963), mean direction and spread sigma1 after Kuik, van Vledder &
 // Holthuijsen (1988), J. Phys. Oceanogr. 18, 1020-1034, with the linear-theory energy ratio r as QC.
 import { cutoffFrequency } from './bulk.js';
-import { G_STANDARD, solveDispersionRow, pressureResponse } from './dispersion.js';
+import { G_STANDARD, solveDispersionGrid, pressureResponse } from './dispersion.js';
 import { detrend, fillGaps } from './prep.js';
 import type { QartodFlag, WavesErrorCode } from './types.js';
 import { chooseSegmentLength, hannWindow, segmentCount, segmentTransform, welchDof } from './welch.js';
@@ -151,7 +151,7 @@ export function puvDirection(input: PuvInput, options: PuvOptions = {}): PuvResu
   const omega = new Float64Array(count);
   const kk = new Float64Array(count);
   for (let j = 0; j < count; j++) omega[j] = 2 * Math.PI * (mLo + j) * df;
-  solveDispersionRow(omega, h, g, kk, count);
+  solveDispersionGrid(omega[0] as number, 2 * Math.PI * df, count, h, g, kk);
   let sw = 0,
     a1 = 0,
     b1 = 0,

@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { responseOnGrid } from './dispersion.js';
 import { jonswapPressureBurst } from './synthetic.js';
 import { makeReconWork, reconstructSurface, zeroCrossingStats } from './zerocross.js';
 
@@ -51,7 +52,12 @@ describe('reconstructSurface (linear transfer function 1/Kp inside the band)', (
       mean /= n;
       for (let i = 0; i < n; i++) head[i] = (head[i] as number) - mean;
       const out = new Float64Array(n);
-      reconstructSurface(head, 2, h, zs, g, 0.005, 0.469, makeReconWork(n), out);
+      const k = new Float64Array(n / 2 + 1);
+      const kp = new Float64Array(n / 2 + 1);
+      const df = 2 / n;
+      const mHi = Math.floor(0.469 / df);
+      responseOnGrid(df, mHi + 1, h, zs, g, k, kp);
+      reconstructSurface(head, kp, Math.ceil(0.005 / df), mHi, makeReconWork(n), out);
       let se = 0;
       let ss = 0;
       for (let i = 0; i < n; i++) {

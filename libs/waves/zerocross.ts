@@ -2,52 +2,37 @@
 // eta = IDFT[ DFT(head)/Kp(f) ] inside the analysis band, 0 outside (linear transfer function, e.g.
 // Bishop & Donelan 1987, Coastal Eng. 11; Jones & Monismith 2007, Limnol. Oceanogr. Methods 5). Zero-upcrossing
 // heights and periods after IAHR (1989): H1/3, H1/10, Hmax, Tz.
-import { solveDispersionRow, pressureResponse } from './dispersion.js';
-import { complexDft, isPowerOfTwo, planFor, realForward } from './fft.js';
+import { selectKth } from './prep.js';
+import { complexDft, isPowerOfTwo, planFor, realForward, realInverse } from './fft.js';
 
 /** Scratch for one burst length n; reused across bursts of the same length (see analyze.ts). */
 export interface ReconWork {
   readonly n: number;
   readonly cplx: Float64Array; // 2n
   readonly spec: Float64Array; // 2n
-  readonly omega: Float64Array; // n/2 + 1
-  readonly k: Float64Array; // n/2 + 1
 }
 
 export function makeReconWork(n: number): ReconWork {
-  const half = (n >> 1) + 1;
-  return {
-    n,
-    cplx: new Float64Array(2 * n),
-    spec: new Float64Array(2 * n),
-    omega: new Float64Array(half),
-    k: new Float64Array(half),
-  };
+  return { n, cplx: new Float64Array(2 * n), spec: new Float64Array(2 * n) };
 }
 
 /**
- * Surface elevation eta [m] from the detrended head x [m] (length n, no window): bins with fLo <= f_m <= fHi
- * are divided by Kp(f_m) = cosh(k z)/cosh(k h), all others set to 0; the exact N-point DFT is used for any n.
- * Writes eta into out (length n).
+ * Surface elevation eta [m] from the detrended head x [m] (length n, no window): bins mLo..mHi of the exact
+ * N-point DFT (f_m = m fs/n) are divided by kp[m] = Kp(f_m), all other bins set to 0 (mHi <= n/2). Power-of-
+ * two n uses fft.js forward and a half-size inverse; other n use Bluestein both ways. Writes eta into out.
  */
 export function reconstructSurface(
   x: Float64Array,
-  fsHz: number,
-  depthM: number,
-  sensorHeightM: number,
-  g: number,
-  fLoHz: number,
-  fHiHz: number,
+  kp: Float64Array,
+  mLo: number,
+  mHi: number,
   work: ReconWork,
   out: Float64Array,
 ): void {
   const n = work.n;
-  const { cplx, spec, omega, k } = work;
-  const df = fsHz / n;
-  const eps = 1e-9 * df;
-  const mLo = Math.max(1, Math.ceil((fLoHz - eps) / df));
-  const mHi = Math.min(n >> 1, Math.floor((fHiHz + eps) / df));
-  if (isPowerOfTwo(n)) {
+  const { cplx, spec } = work;
+  const pow2 = isPowerOfTwo(n) && n >= 4;
+  if (pow2) {
     realForward(planFor(n), x, spec);
   } else {
     for (let i = 0; i < n; i++) {
@@ -56,22 +41,22 @@ export function reconstructSurface(
     }
     complexDft(cplx, spec, n, false);
   }
-  const count = mHi >= mLo ? mHi - mLo + 1 : 0;
-  for (let j = 0; j < count; j++) omega[j] = 2 * Math.PI * (mLo + j) * df;
-  solveDispersionRow(omega, depthM, g, k, count);
   // Hermitian spectrum: bins mLo..mHi scaled, their mirrors n - m conjugate; everything else zero.
-  cplx.fill(0);
-  for (let j = 0; j < count; j++) {
-    const m = mLo + j;
-    const gain = 1 / pressureResponse(k[j] as number, sensorHeightM, depthM);
+  cplx.fill(0, 0, pow2 ? n + 2 : 2 * n);
+  for (let m = mLo; m <= mHi; m++) {
+    const gain = 1 / (kp[m] as number);
     const re = (spec[2 * m] as number) * gain;
     const im = (spec[2 * m + 1] as number) * gain;
     cplx[2 * m] = re;
     cplx[2 * m + 1] = im;
-    if (m !== n - m) {
+    if (!pow2 && m !== n - m) {
       cplx[2 * (n - m)] = re;
       cplx[2 * (n - m) + 1] = -im;
     }
+  }
+  if (pow2) {
+    realInverse(cplx, out, n);
+    return;
   }
   complexDft(cplx, spec, n, true);
   for (let i = 0; i < n; i++) out[i] = spec[2 * i] as number;
@@ -124,19 +109,27 @@ export function zeroCrossingStats(
     }
   }
   if (nw === 0) return { nWaves: 0, h13M: null, h110M: null, hmaxM: null, tzS: null };
-  const hs = heights.subarray(0, nw);
-  hs.sort();
+  // The c highest waves by selection rather than a sort: after selectKth(.., nw - c) the c largest heights
+  // sit at the top of the array (in no particular order), which is all a mean of them needs.
+  const c3 = Math.floor(nw / 3);
+  const c10 = Math.floor(nw / 10);
+  let hmax = 0;
+  for (let i = 0; i < nw; i++) if ((heights[i] as number) > hmax) hmax = heights[i] as number;
   const meanTop = (count: number): number | null => {
     if (count === 0) return null;
     let s = 0;
-    for (let i = nw - count; i < nw; i++) s += hs[i] as number;
+    for (let i = nw - count; i < nw; i++) s += heights[i] as number;
     return s / count;
   };
+  if (c3 > 0) selectKth(heights, nw - c3, 0, nw - 1);
+  const h13 = meanTop(c3);
+  if (c10 > 0) selectKth(heights, nw - c10, nw - c3, nw - 1);
+  const h110 = meanTop(c10);
   return {
     nWaves: nw,
-    h13M: meanTop(Math.floor(nw / 3)),
-    h110M: meanTop(Math.floor(nw / 10)),
-    hmaxM: hs[nw - 1] as number,
+    h13M: h13,
+    h110M: h110,
+    hmaxM: hmax,
     tzS: (tPrev - tFirst) / nw / fsHz,
   };
 }
