@@ -1,0 +1,120 @@
+// `reefd alerts list --data DIR [--all] [--json]` and `reefd alerts ack ID --data DIR [--by NAME]`: read and
+// acknowledge alerts in the notifier's state files (DIR/alerts/outbox.jsonl and acks.jsonl). An ack is an
+// fsynced append to acks.jsonl; a running daemon picks it up on its next pass (within 30 s) and stops reminding.
+import { parseArgs } from 'node:util';
+import { alertsStateDir, appendAck, loadOutboxState, type Episode } from '../../notifiers/index.js';
+import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
+
+const HELP = `Usage: reefd alerts list --data DIR [--all] [--json]
+       reefd alerts ack ID --data DIR [--by NAME]
+
+list   shows the alerts raised and not yet cleared (--all: also the cleared ones kept in the state),
+       with their acknowledgement and the messages still queued per channel.
+ack    acknowledges an alert by its id (or a unique prefix of at least 4 characters): reminders for
+       it stop. The clear is still notified when it comes.
+
+Options:
+  --data DIR   the daemon's data folder (required)
+  --by NAME    who acknowledges (default: $USER, else "cli")
+  --all        list cleared alerts too
+  --json       print the list as JSON
+`;
+
+function describe(e: Episode): string {
+  const a = e.raised ?? e.last;
+  const where = a.sensor === undefined ? a.station : `${a.station}/${a.sensor}`;
+  const what = a.metric ?? a.fault ?? '';
+  const value = a.value === null ? '' : ` value ${a.value}`;
+  const state = e.cleared ? `cleared ${e.last.t}` : 'raised';
+  const ack = e.ack ? ` acked by ${e.ack.by} ${new Date(e.ack.atMs).toISOString()}` : '';
+  return `${e.id}  ${a.t}  ${a.severity.padEnd(8)} ${a.rule} ${where} ${what}${value}  ${state}${ack}`;
+}
+
+function findEpisode(eps: Episode[], idArg: string, io: CliIo): Episode | null {
+  const exact = eps.find((e) => e.id === idArg);
+  if (exact) return exact;
+  const matches = idArg.length >= 4 ? eps.filter((e) => e.id.startsWith(idArg)) : [];
+  if (matches.length === 1) return matches[0] as Episode;
+  io.stderr(
+    matches.length > 1
+      ? `reefd alerts ack: REEFD_NOTIFY_AMBIGUOUS_ID: "${idArg}" matches ${matches.length} alerts; give more of the id\n`
+      : `reefd alerts ack: REEFD_NOTIFY_UNKNOWN_ALERT: no alert with id "${idArg}"; see "reefd alerts list --data DIR"\n`,
+  );
+  return null;
+}
+
+export const run: CommandRun = async (args, io) => {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args,
+      allowPositionals: true,
+      options: {
+        data: { type: 'string' },
+        by: { type: 'string' },
+        all: { type: 'boolean', default: false },
+        json: { type: 'boolean', default: false },
+        help: { type: 'boolean', short: 'h', default: false },
+      },
+    });
+  } catch (err) {
+    io.stderr(`reefd alerts: ${(err as Error).message}\n\n${HELP}`);
+    return EXIT_USAGE;
+  }
+  const { values, positionals } = parsed;
+  if (values.help) {
+    io.stdout(HELP);
+    return EXIT_OK;
+  }
+  const [sub, ...rest] = positionals;
+  if ((sub !== 'list' && sub !== 'ack') || values.data === undefined) {
+    io.stderr(
+      `reefd alerts: ${values.data === undefined ? 'give --data DIR' : `unknown subcommand "${sub ?? ''}"`}\n\n${HELP}`,
+    );
+    return EXIT_USAGE;
+  }
+  const dir = alertsStateDir(values.data);
+  let state;
+  try {
+    state = (await loadOutboxState(dir)).state;
+  } catch (err) {
+    io.stderr(`reefd alerts: cannot read ${dir} (${(err as Error).message}); check --data\n`);
+    return EXIT_FAILURE;
+  }
+  const episodes = [...state.episodes.values()].sort((a, b) =>
+    (a.raised ?? a.last).t < (b.raised ?? b.last).t ? -1 : 1,
+  );
+
+  if (sub === 'list') {
+    const shown = values.all ? episodes : episodes.filter((e) => !e.cleared);
+    const pending: Record<string, number> = {};
+    for (const it of state.items.values()) for (const c of it.pending) pending[c] = (pending[c] ?? 0) + 1;
+    if (values.json) {
+      io.stdout(JSON.stringify({ alerts: shown, queued: pending }, null, 2) + '\n');
+      return EXIT_OK;
+    }
+    if (shown.length === 0) io.stdout(values.all ? 'no alerts\n' : 'no active alerts\n');
+    for (const e of shown) io.stdout(describe(e) + '\n');
+    const q = Object.entries(pending);
+    if (q.length > 0) io.stdout(`queued: ${q.map(([c, n]) => `${c} ${n}`).join(', ')}\n`);
+    return EXIT_OK;
+  }
+
+  if (rest.length !== 1) {
+    io.stderr(`reefd alerts ack: give exactly one alert id\n\n${HELP}`);
+    return EXIT_USAGE;
+  }
+  const ep = findEpisode(episodes, rest[0] as string, io);
+  if (ep === null) return EXIT_FAILURE;
+  if (ep.ack) {
+    io.stdout(
+      `${ep.id} was already acknowledged by ${ep.ack.by} at ${new Date(ep.ack.atMs).toISOString()}\n`,
+    );
+    return EXIT_OK;
+  }
+  const by = values.by ?? io.env.USER ?? 'cli';
+  // The ack carries wall-clock time: it is an operator's action, not an event of the data.
+  await appendAck(dir, { op: 'ack', id: ep.id, by, at: Date.now() });
+  io.stdout(`acknowledged ${ep.id} (${(ep.raised ?? ep.last).rule} at ${ep.last.station}) by ${by}\n`);
+  return EXIT_OK;
+};
