@@ -264,3 +264,24 @@ describe('storage form: two windows 10 min apart, upstream water changing', () =
     expect(i2s.flag).toBe(3);
   });
 });
+
+describe('air-sea O2 mean: exact steady path mean vs the station mean (air-sea.ts)', () => {
+  it('the trapezoid keeps NCP within 1 %; the default exponential weighting is closer in every case', () => {
+    const trap = makeTransectParams({ lengthM: L, bearingDeg: 270, pq: 1.05, airSeaO2Mean: 'trapezoid' });
+    for (const cs of CASES) {
+      const w0 = window(cs.u, { o2: O2_A, ta: TA_A, pco2: PCO2_A }, 'sample');
+      const rho = computeTransectFlux(w0, undefined, params).rhoKgM3;
+      const d = rk4Downstream(cs.ncp, cs.nec, params.pq, cs.u, rho, true);
+      const w = window(cs.u, d, 'salinity');
+      const rT = computeTransectFlux(w, undefined, trap);
+      const rE = computeTransectFlux(w, undefined, params);
+      const errT = Math.abs((rT.ncpMmolM2H as number) - cs.ncp);
+      const errE = Math.abs((rE.ncpMmolM2H as number) - cs.ncp);
+      expect(errT).toBeLessThan(0.01 * Math.abs(cs.ncp));
+      expect(errE).toBeLessThan(errT);
+      expect(Math.abs((rE.necMmolM2H as number) - cs.nec)).toBeLessThan(
+        Math.abs((rT.necMmolM2H as number) - cs.nec),
+      );
+    }
+  });
+});
