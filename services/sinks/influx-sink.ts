@@ -8,7 +8,9 @@
 //
 // Idempotence: a point is identified by measurement, tag set and timestamp; writing it again overwrites it
 // in InfluxDB. VictoriaMetrics keeps both copies unless it runs with -dedup.minScrapeInterval (1ms is
-// enough for reefd's ms timestamps), which a deployment must set for replays to duplicate nothing.
+// enough for reefd's ms timestamps), which a deployment must set for replays to duplicate nothing; even
+// then it keeps one of the copies, not necessarily the last (measured on 1.79), so a replay with changed
+// values does not reliably replace old ones there: delete the time range first.
 import { gzip as gzipCb } from 'node:zlib';
 import { promisify } from 'node:util';
 import { recordToLine } from '../../libs/lineproto/index.js';

@@ -30,7 +30,7 @@ export interface ReadBackItem {
 }
 
 export interface SinkContractOptions {
-  semantics: 'upsert' | 'log';
+  semantics: 'upsert' | 'dedup' | 'log';
   cleanup?: (ctx: ContractContext) => Promise<void>;
   /** How long read-back polls for the expected count (default 20 s). */
   timeoutMs?: number;
@@ -127,30 +127,42 @@ export function runSinkContract(
       expect(sink.stats().failed).toBe(0);
     });
 
-    it('keeps the write order', async () => {
-      const sink = await makeSink(ctx);
-      // Versions 0, 1, 2 of the same 40 points, written one after the other in small writes.
-      const all: DerivedRecord[] = [];
-      for (let v = 0; v < 3; v++) {
-        const recs = contractRecords(ctx.site, 0, 40, v);
-        all.push(...recs);
-        for (let i = 0; i < 40; i += 7) sink.write(recs.slice(i, i + 7));
-      }
-      await sink.flush();
-      await sink.close();
-      if (opts.semantics === 'upsert') {
-        const got = await readCount(40);
-        // The last write of each point wins only if the writes arrived in order.
-        await new Promise((r) => setTimeout(r, 300));
-        expect(lastWins(await readBack(ctx))).toEqual(
-          lastWins(expected(contractRecords(ctx.site, 0, 40, 2))),
-        );
-        expect(got.every((g) => g.version === 2)).toBe(true);
-      } else {
-        const got = await readCount(120);
-        expect(perStation(got)).toEqual(perStation(expected(all)));
-      }
-    });
+    it(
+      opts.semantics === 'dedup'
+        ? 'keeps one sample per point (write order not observable)'
+        : 'keeps the write order',
+      async () => {
+        const sink = await makeSink(ctx);
+        // Versions 0, 1, 2 of the same 40 points, written one after the other in small writes.
+        const all: DerivedRecord[] = [];
+        for (let v = 0; v < 3; v++) {
+          const recs = contractRecords(ctx.site, 0, 40, v);
+          all.push(...recs);
+          for (let i = 0; i < 40; i += 7) sink.write(recs.slice(i, i + 7));
+        }
+        await sink.flush();
+        await sink.close();
+        if (opts.semantics === 'dedup') {
+          const got = await readCount(40);
+          await new Promise((r) => setTimeout(r, 300));
+          // One sample per point, of one of the written versions.
+          expect((await readBack(ctx)).length).toBe(40);
+          expect(got.every((g) => g.version >= 0 && g.version <= 2)).toBe(true);
+          expect(new Set(got.map(keyOf)).size).toBe(40);
+        } else if (opts.semantics === 'upsert') {
+          const got = await readCount(40);
+          // The last write of each point wins only if the writes arrived in order.
+          await new Promise((r) => setTimeout(r, 300));
+          expect(lastWins(await readBack(ctx))).toEqual(
+            lastWins(expected(contractRecords(ctx.site, 0, 40, 2))),
+          );
+          expect(got.every((g) => g.version === 2)).toBe(true);
+        } else {
+          const got = await readCount(120);
+          expect(perStation(got)).toEqual(perStation(expected(all)));
+        }
+      },
+    );
 
     it('loses nothing across close and reopen', async () => {
       const a = await makeSink(ctx);
@@ -172,7 +184,7 @@ export function runSinkContract(
       sink.write(recs);
       await sink.flush();
       await sink.close();
-      const want = opts.semantics === 'upsert' ? 60 : 120;
+      const want = opts.semantics === 'log' ? 120 : 60;
       const got = await readCount(want);
       await new Promise((r) => setTimeout(r, 300));
       const again = await readBack(ctx);
