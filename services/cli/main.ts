@@ -20,7 +20,10 @@ const notBuilt =
 
 export const COMMANDS: Record<string, CommandEntry> = {
   run: { summary: 'run the daemon (no --config: the built-in demo)', load: notBuilt('run') },
-  replay: { summary: 'reprocess a raw archive into derived records (NDJSON)', load: notBuilt('replay') },
+  replay: {
+    summary: 'reprocess a raw archive into derived records (NDJSON)',
+    load: () => import('./commands/replay.js'),
+  },
   config: {
     summary: 'validate a configuration file (config check FILE)',
     load: () => import('./commands/config.js'),
@@ -28,7 +31,7 @@ export const COMMANDS: Record<string, CommandEntry> = {
   carbonate: { summary: 'solve the seawater carbonate system once', load: notBuilt('carbonate') },
   simulate: { summary: 'publish the fictional demo reef to a broker', load: notBuilt('simulate') },
   alerts: { summary: 'list or acknowledge alerts (alerts list|ack ID)', load: notBuilt('alerts') },
-  doctor: { summary: 'check a live install and say what to fix', load: notBuilt('doctor') },
+  doctor: { summary: 'check a live install and say what to fix', load: () => import('./commands/doctor.js') },
 };
 
 export function version(): string {

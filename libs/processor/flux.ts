@@ -1,0 +1,227 @@
+// Transect fluxes on the event-time cadence (science.md 1 "Time base", 6): station block means over the
+// window of length W ending at each cadence tick, the previous window W earlier for storage, and the
+// metabolism library's budget. A window is computed once, when the watermark passes its end.
+import type { FluxRecord, ReefdConfig, TransectConfig } from '../contract/index.js';
+import {
+  computeTransectFlux,
+  makeTransectParams,
+  windowMean,
+  type FluxResult,
+  type StationWindowMean,
+  type TransectParams,
+  type TransectWindow,
+} from '../metabolism/index.js';
+import { medianIntervalMs, type Series } from './series.js';
+import type { ProcessorState, StationVar } from './state.js';
+
+const MIN = 60_000;
+
+export function transectParams(config: ReefdConfig, tr: TransectConfig): TransectParams {
+  const mastWind = Object.values(config.stations)
+    .flatMap((s) => Object.values(s.sensors))
+    .find((s) => s.kind === 'met');
+  return makeTransectParams({
+    lengthM: tr.length_m,
+    bearingDeg: tr.bearing_deg ?? config.reef_axis_deg,
+    pq: tr.pq,
+    windowMin: config.processing.window_min,
+    minSpeedMS: tr.min_speed_m_s,
+    maxAngleDeg: tr.max_angle_deg,
+    maxResidenceMin: tr.max_residence_min,
+    swapOnReverse: tr.swap_on_reverse,
+    xco2AirPpm: config.processing.xco2_air_ppm,
+    taS35UmolKg: config.alkalinity.ta_s35_umol_kg,
+    maxPreviousGapMin: 2 * config.processing.window_min,
+    ...(mastWind?.kind === 'met' ? { windHeightM: mastWind.wind_height_m } : {}),
+  });
+}
+
+interface Mean {
+  mean: number;
+  sem: number;
+  flag: number;
+}
+
+/** Block mean of a series over [start, end), expecting samples at the series' observed interval. */
+function mean(s: Series, startMs: number, endMs: number): Mean | undefined {
+  const interval = medianIntervalMs(s);
+  const expected =
+    interval !== undefined && interval > 0 ? Math.max(1, Math.floor((endMs - startMs) / interval)) : 1;
+  const r = windowMean(s.t, s.v, s.f, startMs, endMs, expected);
+  return r.mean === null ? undefined : { mean: r.mean, sem: r.sem, flag: r.flag };
+}
+
+function stationMean(
+  state: ProcessorState,
+  station: string,
+  startMs: number,
+  endMs: number,
+): { mean?: StationWindowMean; missing: string[] } {
+  const st = state.stations[station];
+  const missing: string[] = [];
+  if (!st) return { missing: ['station'] };
+  const get = (v: StationVar) => mean(st[v], startMs, endMs);
+  const temp = get('temp');
+  const sal = get('sal');
+  const o2 = get('o2');
+  const depth = get('depth');
+  if (!temp) missing.push(`${station}.temp`);
+  if (!sal) missing.push(`${station}.sal`);
+  if (!o2) missing.push(`${station}.o2`);
+  if (!depth) missing.push(`${station}.depth`);
+  if (!temp || !sal || !o2 || !depth) return { missing };
+  const m: StationWindowMean = {
+    tempC: temp.mean,
+    salinity: sal.mean,
+    o2UmolKg: o2.mean,
+    depthM: depth.mean,
+    flag: Math.max(temp.flag, sal.flag, depth.flag) as StationWindowMean['flag'],
+    o2Flag: o2.flag as StationWindowMean['flag'],
+    semO2UmolKg: o2.sem,
+  };
+  const pco2 = get('pco2');
+  if (pco2) {
+    m.pco2Uatm = pco2.mean;
+    m.pco2Flag = pco2.flag as StationWindowMean['flag'];
+    m.semPco2Uatm = pco2.sem;
+  }
+  // TA with a biological gradient comes only from bottles (or a TA sensor) in the window; TA from salinity
+  // never enters the TA budget (science.md 6.3).
+  const ta = get('sampleTa');
+  if (ta) {
+    m.taUmolKg = ta.mean;
+    m.taSource = 'sample';
+    m.taFlag = ta.flag as StationWindowMean['flag'];
+    m.semTaUmolKg = ta.sem;
+  }
+  const dic = get('sampleDic');
+  if (dic) {
+    m.dicUmolKg = dic.mean;
+    m.dicFlag = dic.flag as StationWindowMean['flag'];
+    m.semDicUmolKg = dic.sem;
+  }
+  return { mean: m, missing };
+}
+
+function transectWindow(
+  state: ProcessorState,
+  tr: TransectConfig,
+  startMs: number,
+  endMs: number,
+): { window?: TransectWindow; missing: string[] } {
+  const up = stationMean(state, tr.upstream, startMs, endMs);
+  const down = stationMean(state, tr.downstream, startMs, endMs);
+  const cur = state.stations[tr.current];
+  const east = cur ? mean(cur.east, startMs, endMs) : undefined;
+  const north = cur ? mean(cur.north, startMs, endMs) : undefined;
+  const missing = [...up.missing, ...down.missing];
+  if (!east || !north) missing.push(`${tr.current}.current`);
+  if (!up.mean || !down.mean || !east || !north) return { missing };
+  const w: TransectWindow = {
+    tCentreMs: (startMs + endMs) / 2,
+    up: up.mean,
+    down: down.mean,
+    eastMS: east.mean,
+    northMS: north.mean,
+    currentFlag: Math.max(east.flag, north.flag) as TransectWindow['currentFlag'] & number,
+  };
+  const wind = mean(state.site.wind, startMs, endMs);
+  const baro = mean(state.site.baro, startMs, endMs);
+  const xco2 = mean(state.site.xco2, startMs, endMs);
+  if (wind) w.windMS = wind.mean;
+  if (baro) w.baroHpa = baro.mean;
+  if (xco2) w.xco2AirPpm = xco2.mean;
+  if (wind || baro)
+    w.metFlag = Math.max(wind?.flag ?? 1, baro?.flag ?? 1) as TransectWindow['metFlag'] & number;
+  return { window: w, missing };
+}
+
+/** True when any of the transect's stations has a sample in [start, end): empty stretches emit nothing. */
+function hasData(state: ProcessorState, tr: TransectConfig, startMs: number, endMs: number): boolean {
+  for (const id of [tr.upstream, tr.downstream, tr.current]) {
+    const st = state.stations[id];
+    if (!st) continue;
+    for (const v of ['o2', 'temp', 'depth', 'east'] as const) {
+      const s = st[v];
+      const n = s.t.length;
+      if (n > 0 && (s.t[n - 1] as number) >= startMs && (s.t[0] as number) < endMs) {
+        for (const t of s.t) if (t >= startMs && t < endMs) return true;
+      }
+    }
+  }
+  return false;
+}
+
+const fin = (x: number | null | undefined): number | null =>
+  x === null || x === undefined || !Number.isFinite(x) ? null : x;
+
+/** The flux records of every transect for the window ending at endMs. */
+export function fluxAt(
+  config: ReefdConfig,
+  state: ProcessorState,
+  endMs: number,
+  params: Map<string, TransectParams>,
+): FluxRecord[] {
+  const W = config.processing.window_min * MIN;
+  const out: FluxRecord[] = [];
+  for (const [id, tr] of Object.entries(config.transects)) {
+    const startMs = endMs - W;
+    if (!hasData(state, tr, startMs, endMs)) continue;
+    const p = params.get(id) as TransectParams;
+    const cur = transectWindow(state, tr, startMs, endMs);
+    const t = new Date(endMs - W / 2).toISOString();
+    const results = (state.transects[id] ??= {});
+    if (!cur.window) {
+      out.push({
+        type: 'flux',
+        site: config.site,
+        t,
+        transect: id,
+        ncp_mmol_m2_h: null,
+        nec_mmol_m2_h: null,
+        nec_method: null,
+        u_m_s: null,
+        depth_m: null,
+        residence_min: null,
+        valid: false,
+        flag: 9,
+        invalid_reasons: 'input_missing',
+        missing: cur.missing.join(','),
+      });
+      continue;
+    }
+    const prev = transectWindow(state, tr, startMs - W, startMs).window;
+    const prevResult = results[String(startMs)] as FluxResult | undefined;
+    const r = computeTransectFlux(cur.window, prev, p, prevResult ? { previousResult: prevResult } : {});
+    results[String(endMs)] = r;
+    for (const k of Object.keys(results)) if (Number(k) < endMs - 2 * W) delete results[k];
+    const rec: FluxRecord = {
+      type: 'flux',
+      site: config.site,
+      t,
+      transect: id,
+      ncp_mmol_m2_h: fin(r.ncpMmolM2H),
+      nec_mmol_m2_h: fin(r.necMmolM2H),
+      nec_method: r.necMethod,
+      u_m_s: fin(r.uMS),
+      depth_m: fin(r.depthM),
+      residence_min: fin(r.residenceMin),
+      valid: r.valid,
+      flag: r.flag,
+      ncp_sigma_mmol_m2_h: fin(r.sigmaNcpMmolM2H),
+      nec_sigma_mmol_m2_h: fin(r.sigmaNecMmolM2H),
+      invalid_reasons: r.invalidReasons.join(','),
+      upstream: r.swapped ? tr.downstream : tr.upstream,
+      downstream: r.swapped ? tr.upstream : tr.downstream,
+      angle_off_deg: fin(r.angleOffDeg),
+      storage_fraction: fin(r.storageFractionO2),
+    };
+    if (r.airSea) {
+      rec.fas_o2_mmol_m2_h = fin(r.airSea.fasO2MmolM2H);
+      rec.fas_co2_mmol_m2_h = fin(r.airSea.fasCo2MmolM2H);
+    }
+    if (r.notes.length > 0) rec.notes = r.notes.join(',');
+    out.push(rec);
+  }
+  return out;
+}

@@ -1,0 +1,97 @@
+// The processor's state: plain JSON data, so a checkpoint is JSON.stringify and a restart resumes the windows.
+import type { Series } from './series.js';
+import { createSeries } from './series.js';
+
+export const STATE_VERSION = 1;
+
+/** Per-sensor bookkeeping: duplicate detection, warm starts. */
+export interface SensorState {
+  lastTMs: number;
+  /** Recent sample times and sequence numbers, bounded, for duplicate detection. */
+  recentT: number[];
+  recentSeq: number[];
+  /** Last pH solution of a pCO2 sensor: the warm start of the next solve. */
+  lastPh?: number;
+  count: number;
+}
+
+/** The variables the processor remembers per station (time series, bounded in time). */
+export const STATION_VARS = [
+  'temp', // CTD temperature, degC
+  'sal', // CTD practical salinity
+  'o2', // O2, umol/kg (oxygen records)
+  'pco2', // pCO2 at the CTD temperature, uatm (carbonate records)
+  'ta', // TA used for the carbonate record, umol/kg
+  'dic', // DIC of the carbonate record, umol/kg
+  'sampleTa', // bottle TA, umol/kg
+  'sampleDic', // bottle DIC, umol/kg
+  'sampleSal', // salinity of the bottle sample
+  'depth', // mean water depth of a burst, m
+  'hm0ss', // sea-swell Hm0 of a burst, m
+  'east', // depth-averaged current, m/s
+  'north',
+] as const;
+export type StationVar = (typeof STATION_VARS)[number];
+
+export const SITE_VARS = ['wind', 'baro', 'xco2', 'par'] as const;
+export type SiteVar = (typeof SITE_VARS)[number];
+
+export interface ProcessorCounters {
+  accepted: number;
+  duplicates: number;
+  /** Arrived after the watermark had passed their time (still derived; not in closed windows). */
+  late: number;
+  /** Sample time more than 1 min after the receive time (clock fault, QARTOD timing test: fail). */
+  clockFaults: number;
+  unknownSensor: number;
+  disabledSensor: number;
+  records: Record<string, number>;
+}
+
+export interface ProcessorState {
+  version: number;
+  /** Highest accepted event time, ms (0 before the first). The watermark is this minus the lateness. */
+  maxEventMs: number;
+  /** End of the last flux window computed (a cadence tick), ms; -1 before the first. */
+  lastTickMs: number;
+  sensors: Record<string, SensorState>;
+  stations: Record<string, Record<StationVar, Series>>;
+  site: Record<SiteVar, Series>;
+  /** Recent flux results per transect, keyed by window end (ms): the storage form of the inverse needs them. */
+  transects: Record<string, Record<string, unknown>>;
+  /** QC state per `station/sensor/variable` (libs/qc state objects, plain data). */
+  qc: Record<string, unknown>;
+  /** Alert engine snapshot (libs/alerts). */
+  alerts: unknown;
+  counters: ProcessorCounters;
+}
+
+export function createState(stationIds: readonly string[]): ProcessorState {
+  const stations: ProcessorState['stations'] = {};
+  for (const id of stationIds) stations[id] = emptyStation();
+  const site = Object.fromEntries(SITE_VARS.map((v) => [v, createSeries()])) as Record<SiteVar, Series>;
+  return {
+    version: STATE_VERSION,
+    maxEventMs: 0,
+    lastTickMs: -1,
+    sensors: {},
+    stations,
+    site,
+    transects: {},
+    qc: {},
+    alerts: undefined,
+    counters: {
+      accepted: 0,
+      duplicates: 0,
+      late: 0,
+      clockFaults: 0,
+      unknownSensor: 0,
+      disabledSensor: 0,
+      records: {},
+    },
+  };
+}
+
+export function emptyStation(): Record<StationVar, Series> {
+  return Object.fromEntries(STATION_VARS.map((v) => [v, createSeries()])) as Record<StationVar, Series>;
+}
