@@ -18,6 +18,7 @@ import {
   totalSulfate,
 } from './constants/totals.js';
 import { k0Weiss1974, virialBWeiss1974, virialDeltaWeiss1974 } from './constants/weiss1974.js';
+import type { FitTerms } from './constants/terms.js';
 import { kpYaoMillero1995Sws, ksiYaoMillero1995Sws } from './constants/yao-millero1995.js';
 import type { CarbonateOptions, ResolvedCarbonateOptions } from './types.js';
 import { CARBONATE_OPTION_NAMES, DEFAULT_CARBONATE_OPTIONS } from './types.js';
@@ -49,10 +50,8 @@ const FIT_RANGES: Record<string, readonly [number, number, number, number, strin
  * Every constant and total needed by the solver at one (S, t, P), mol/kg units, total pH scale unless noted.
  * Plain numbers in a fixed shape so the hot path reads fields without allocation.
  */
-export interface EquilibriumConstants {
-  salinity: number;
+export interface EquilibriumConstants extends FitTerms {
   tempC: number;
-  tempK: number;
   seaPressureDbar: number;
   /** K0, mol kg-1 atm-1 (no pressure correction: it applies at the sea surface). */
   k0: number;
@@ -114,8 +113,10 @@ function check(key: string, value: string, valid: readonly string[]): void {
 export function createConstants(): EquilibriumConstants {
   return {
     salinity: 0,
-    tempC: 0,
+    sqrtS: 0,
     tempK: 0,
+    lnT: 0,
+    tempC: 0,
     seaPressureDbar: 0,
     k0: 0,
     k1: 0,
@@ -159,20 +160,27 @@ export function equilibriumConstants(
   return out;
 }
 
-/** Allocation-free form of equilibriumConstants, writing into `out` (options already resolved). */
+/**
+ * Allocation-free form of equilibriumConstants, writing into `out` (options already resolved). With
+ * `nutrients` false the phosphate and silicate constants are left NaN (a solve that then uses phosphate
+ * or silicate fails loudly instead of silently), which saves four exponentials on the hot path.
+ */
 export function equilibriumConstantsInto(
   out: EquilibriumConstants,
   salinity: number,
   tempC: number,
   seaPressureDbar: number,
   options: ResolvedCarbonateOptions,
+  nutrients = true,
 ): EquilibriumConstants {
   const tempK = tempC + 273.15;
   const pBar = seaPressureDbar / 10;
   const s = salinity;
   out.salinity = s;
-  out.tempC = tempC;
+  out.sqrtS = Math.sqrt(s);
   out.tempK = tempK;
+  out.lnT = Math.log(tempK);
+  out.tempC = tempC;
   out.seaPressureDbar = seaPressureDbar;
 
   const st = totalSulfate(s);
@@ -183,8 +191,8 @@ export function equilibriumConstantsInto(
   out.ca = totalCalcium(s);
 
   // Scale factor at 1 atm, for moving total-scale fits to the seawater scale before the pressure step.
-  const ks0 = ksDickson1990(s, tempK);
-  const kf0 = kfPerezFraga1987(s, tempK);
+  const ks0 = ksDickson1990(out);
+  const kf0 = kfPerezFraga1987(out);
   const swsPerTotal0 = (1 + st / ks0 + ft / kf0) / (1 + st / ks0);
   const ks = ks0 * pressureFactor(PRESSURE_COEFFS.ks, tempC, tempK, pBar);
   const kf = kf0 * pressureFactor(PRESSURE_COEFFS.kf, tempC, tempK, pBar);
@@ -199,19 +207,24 @@ export function equilibriumConstantsInto(
   let k1Sws: number;
   let k2Sws: number;
   if (options.k1k2 === 'dickson-millero1987') {
-    k1Sws = k1DicksonMillero1987Sws(s, tempK);
-    k2Sws = k2DicksonMillero1987Sws(s, tempK);
+    k1Sws = k1DicksonMillero1987Sws(out);
+    k2Sws = k2DicksonMillero1987Sws(out);
   } else {
-    k1Sws = k1Lueker2000(s, tempK) * swsPerTotal0;
-    k2Sws = k2Lueker2000(s, tempK) * swsPerTotal0;
+    k1Sws = k1Lueker2000(out) * swsPerTotal0;
+    k2Sws = k2Lueker2000(out) * swsPerTotal0;
   }
-  const kbSws = kbDickson1990(s, tempK) * swsPerTotal0;
+  const kbSws = kbDickson1990(out) * swsPerTotal0;
   const kwSws =
-    options.kw === 'millero1995-sws'
-      ? kwMillero1995Sws(s, tempK)
-      : kwMillero1995Total(s, tempK) * swsPerTotal0;
-  kpYaoMillero1995Sws(s, tempK, out); // seawater scale, corrected in place below
-  const ksiSws = ksiYaoMillero1995Sws(s, tempK);
+    options.kw === 'millero1995-sws' ? kwMillero1995Sws(out) : kwMillero1995Total(out) * swsPerTotal0;
+  let ksiSws = NaN;
+  if (nutrients) {
+    kpYaoMillero1995Sws(out, out); // seawater scale, corrected in place below
+    ksiSws = ksiYaoMillero1995Sws(out);
+  } else {
+    out.kp1 = NaN;
+    out.kp2 = NaN;
+    out.kp3 = NaN;
+  }
 
   // Pressure, then to the total scale with the pressure-corrected KS, KF.
   const toTotal = 1 / swsPerTotal;
@@ -219,25 +232,29 @@ export function equilibriumConstantsInto(
   out.k2 = k2Sws * pressureFactor(PRESSURE_COEFFS.k2, tempC, tempK, pBar) * toTotal;
   out.kb = kbSws * pressureFactor(PRESSURE_COEFFS.kb, tempC, tempK, pBar) * toTotal;
   out.kw = kwSws * pressureFactor(PRESSURE_COEFFS.kw, tempC, tempK, pBar) * toTotal;
-  out.kp1 *= pressureFactor(PRESSURE_COEFFS.kp1, tempC, tempK, pBar) * toTotal;
-  out.kp2 *= pressureFactor(PRESSURE_COEFFS.kp2, tempC, tempK, pBar) * toTotal;
-  out.kp3 *= pressureFactor(PRESSURE_COEFFS.kp3, tempC, tempK, pBar) * toTotal;
-  out.ksi = ksiSws * pressureFactor(PRESSURE_COEFFS.ksi, tempC, tempK, pBar) * toTotal;
-  out.kspAr = kspAragoniteMucci1983(s, tempK) * pressureFactor(PRESSURE_COEFFS.kspAr, tempC, tempK, pBar);
-  out.kspCa = kspCalciteMucci1983(s, tempK) * pressureFactor(PRESSURE_COEFFS.kspCa, tempC, tempK, pBar);
-  out.k0 = k0Weiss1974(s, tempK);
+  if (nutrients) {
+    out.kp1 *= pressureFactor(PRESSURE_COEFFS.kp1, tempC, tempK, pBar) * toTotal;
+    out.kp2 *= pressureFactor(PRESSURE_COEFFS.kp2, tempC, tempK, pBar) * toTotal;
+    out.kp3 *= pressureFactor(PRESSURE_COEFFS.kp3, tempC, tempK, pBar) * toTotal;
+    out.ksi = ksiSws * pressureFactor(PRESSURE_COEFFS.ksi, tempC, tempK, pBar) * toTotal;
+  } else out.ksi = NaN;
+  out.kspAr = kspAragoniteMucci1983(out) * pressureFactor(PRESSURE_COEFFS.kspAr, tempC, tempK, pBar);
+  out.kspCa = kspCalciteMucci1983(out) * pressureFactor(PRESSURE_COEFFS.kspCa, tempC, tempK, pBar);
+  out.k0 = k0Weiss1974(s, tempK, out.lnT);
   out.virialB = virialBWeiss1974(tempK);
   out.virialDelta = virialDeltaWeiss1974(tempK);
   out.virialMoleFraction = options.fugacity === 'weiss1974-dilute' ? 0 : 1;
 
+  // Published ranges (FIT_RANGES), inlined: string-keyed lookups cost more than the fits on this path.
   let mask = 0;
-  if (outside(FIT_RANGES.k0, tempC, s)) mask |= RANGE_BITS.k0;
-  if (outside(FIT_RANGES[options.k1k2], tempC, s)) mask |= RANGE_BITS.k1k2;
-  if (outside(FIT_RANGES.kb, tempC, s)) mask |= RANGE_BITS.kb;
-  if (outside(FIT_RANGES.kw, tempC, s)) mask |= RANGE_BITS.kw;
-  if (outside(FIT_RANGES.ks, tempC, s)) mask |= RANGE_BITS.ks;
-  if (outside(FIT_RANGES.kf, tempC, s)) mask |= RANGE_BITS.kf;
-  if (outside(FIT_RANGES.ksp, tempC, s)) mask |= RANGE_BITS.ksp;
+  if (tempC < -1 || tempC > 40 || s > 40) mask |= RANGE_BITS.k0;
+  if (options.k1k2 === 'lueker2000') {
+    if (tempC < 2 || tempC > 35 || s < 19 || s > 43) mask |= RANGE_BITS.k1k2;
+  } else if (tempC < 2 || tempC > 35 || s < 20 || s > 40) mask |= RANGE_BITS.k1k2;
+  if (tempC < 0 || tempC > 45 || s < 5 || s > 45) mask |= RANGE_BITS.kb | RANGE_BITS.ks;
+  if (tempC < 0 || tempC > 45 || s > 45) mask |= RANGE_BITS.kw;
+  if (tempC < 9 || tempC > 33 || s < 10 || s > 40) mask |= RANGE_BITS.kf;
+  if (tempC < 5 || tempC > 40 || s < 5 || s > 44) mask |= RANGE_BITS.ksp;
   out.rangeMask = mask;
   return out;
 }

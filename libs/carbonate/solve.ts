@@ -102,14 +102,15 @@ export function solveCarbonate(input: CarbonateInput, options?: CarbonateOptions
   }
   const bad = checkConditions(input);
   if (bad) return bad;
+  const nutrients = (input.po4UmolKg ?? 0) !== 0 || (input.sio4UmolKg ?? 0) !== 0;
   const cIn = createConstants();
-  equilibriumConstantsInto(cIn, input.salinity, input.tempC, input.seaPressureDbar ?? 0, resolved);
+  equilibriumConstantsInto(cIn, input.salinity, input.tempC, input.seaPressureDbar ?? 0, resolved, nutrients);
   const outTempC = input.outTempC ?? input.tempC;
   const outP = input.outSeaPressureDbar ?? input.seaPressureDbar ?? 0;
   let cOut = cIn;
   if (outTempC !== input.tempC || outP !== (input.seaPressureDbar ?? 0)) {
     cOut = createConstants();
-    equilibriumConstantsInto(cOut, input.salinity, outTempC, outP, resolved);
+    equilibriumConstantsInto(cOut, input.salinity, outTempC, outP, resolved, nutrients);
   }
   const state = new Float64Array(STATE_LENGTH);
   const r = solveWithConstants(cIn, cOut, input, state);
@@ -165,7 +166,7 @@ export function solveWithConstants(
   const tp = (input.po4UmolKg ?? 0) * 1e-6;
   const tsi = (input.sio4UmolKg ?? 0) * 1e-6;
   const baro = input.baroHpa ?? STANDARD_BARO_HPA;
-  const ph0 = input.initialPh ?? 8;
+  const ph0 = input.initialPh ?? NaN; // NaN: start from the carbonate-alkalinity estimate
   const ta = input.taUmolKg === undefined ? undefined : input.taUmolKg * 1e-6;
   const dic = input.dicUmolKg === undefined ? undefined : input.dicUmolKg * 1e-6;
   const ph = input.phTotal;

@@ -5,12 +5,12 @@
  * Valid t -1 to 40 degC, S 0 to 40. Check value: ln K0 = -3.5617 at S 35, t 25 degC
  * (Dickson, Sabine & Christian 2007, Guide to Best Practices, ch. 5).
  */
-export function k0Weiss1974(salinity: number, tempK: number): number {
+export function k0Weiss1974(salinity: number, tempK: number, lnT = Math.log(tempK)): number {
   const t100 = tempK / 100;
   return Math.exp(
     -60.2409 +
       93.4517 / t100 +
-      23.3585 * Math.log(t100) +
+      23.3585 * (lnT - Math.LN10 * 2) +
       salinity * (0.023517 - 0.023656 * t100 + 0.0047036 * t100 * t100),
   );
 }
