@@ -47,6 +47,25 @@ describe('validity (science.md 6.6)', () => {
     expect(r.necMethod).toBe('inverse');
   });
 
+  it('met inputs: full met gives flag 1; configured xCO2 flag 2; defaulted barometer flag 3', () => {
+    const prev = win({ tCentreMs: T0 - 600_000 });
+    const met = { windMS: 6, windHeightM: 4, baroHpa: 1011, xco2AirPpm: 425 };
+    const full = computeTransectFlux(win(met), prev, params, {
+      previousResult: computeTransectFlux(prev, undefined, params),
+    });
+    expect(full.flag).toBe(1);
+    expect(full.airSea?.u10MS).toBeCloseTo(6 * Math.pow(10 / 4, 0.11), 12);
+    expect(full.airSea?.fasO2MmolM2H).toBeGreaterThan(0); // 205 umol/kg is above saturation at 27 degC
+    const { xco2AirPpm: _x, ...noXco2 } = met;
+    const r2 = computeTransectFlux(win(noXco2), prev, params, { previousResult: full });
+    expect(r2.notes).toContain('xco2_configured');
+    expect(r2.flag).toBe(2);
+    const { baroHpa: _b, ...noBaro } = met;
+    const r3 = computeTransectFlux(win(noBaro), prev, params, { previousResult: full });
+    expect(r3.notes).toContain('no_baro');
+    expect(r3.flag).toBe(3);
+  });
+
   it('slow flow, long residence, shallow water', () => {
     const r = computeTransectFlux(win({ eastMS: -0.015 }), undefined, params);
     expect(r.valid).toBe(false);

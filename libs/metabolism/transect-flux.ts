@@ -134,6 +134,8 @@ export function computeTransectFlux(
     xco2AirPpm: xco2,
   });
   if (current.metFlag !== undefined) flag = worst(flag, current.metFlag >= 4 ? 3 : current.metFlag);
+  // science.md 1: a defaulted barometer makes the dependent values (here the exchange terms) suspect.
+  if (current.windMS !== undefined && current.baroHpa === undefined) flag = worst(flag, 3);
 
   // O2 budget -> NCP.
   const stO2 = pU && pD ? storageRate(up.o2UmolKg, down.o2UmolKg, pU.o2UmolKg, pD.o2UmolKg, dtS) : 0;
@@ -259,6 +261,8 @@ export function computeTransectFlux(
         flag = worst(flag, 3);
       }
       flag = worst(flag, pco2Flag, up.taFlag);
+      // science.md 6.2: a configured site xCO2 instead of the met sensor's is flagged 2.
+      if (current.xco2AirPpm === undefined && current.windMS !== undefined) flag = worst(flag, 2);
       const r = solveInverseNec(x, {
         bracketMmolM2H: params.necBracketMmolM2H,
         maxDoublings: params.necMaxDoublings,
