@@ -259,15 +259,6 @@ export function equilibriumConstantsInto(
   return out;
 }
 
-function outside(
-  range: readonly [number, number, number, number, string] | undefined,
-  t: number,
-  s: number,
-): boolean {
-  if (range === undefined) return false;
-  return t < range[0] || t > range[1] || s < range[2] || s > range[3];
-}
-
 /** Human-readable notes for the fits flagged in `mask` (for flag 3 results). */
 export function rangeNotes(
   mask: number,
