@@ -33,7 +33,7 @@ function mono(n: number, fs: number, h: number, zs: number, a: number, periodS: 
   return p;
 }
 
-const base = (p: ArrayLike<number>, fs: number, zs: number): BurstInput => ({
+const base = (p: ArrayLike<number | null>, fs: number, zs: number): BurstInput => ({
   pDbar: p,
   fsHz: fs,
   t0Ms: 1_700_000_000_000,
@@ -68,6 +68,33 @@ describe('analyzeBurst: monochromatic wave (linear theory, common practice: Hm0 
     const r = ok(analyzeBurst(base(p, 2, 0.5)));
     expect(Math.abs(r.hm0M / (2 * Math.SQRT2 * 0.4) - 1)).toBeLessThan(0.01);
     expect(r.depthM).toBeCloseTo(3, 9);
+  });
+});
+
+describe('analyzeBurst: gaps as null and long bursts', () => {
+  it('null samples (as in the contract bursts) are gaps like NaN', () => {
+    const p: (number | null)[] = Array.from(mono(2048, 2, 3, 0.5, 0.4, 8));
+    for (let i = 0; i < 15; i++) p[7 + i * 130] = null;
+    const r = ok(analyzeBurst(base(p, 2, 0.5)));
+    expect(r.flag).toBe(1); // 0.7 % < 1 %
+    expect(r.notes).toContain('interpolated 15 non-finite samples');
+    expect(Math.abs(r.hm0M / (2 * Math.SQRT2 * 0.4) - 1)).toBeLessThan(0.01);
+  });
+
+  it('a 2 h burst with a curved tide (0.5 m quadratic) is detrended quadratically: Hm0 within 1 %', () => {
+    const n = 14400; // 2 Hz x 2 h
+    const p = mono(n, 2, 3, 0.5, 0.4, 8);
+    const lin = mono(n, 2, 3, 0.5, 0.4, 8);
+    for (let i = 0; i < n; i++) {
+      const u = (2 * i) / (n - 1) - 1;
+      p[i] = (p[i] as number) + DBAR_PER_M * 0.5 * u * u;
+      lin[i] = (lin[i] as number) + DBAR_PER_M * 0.5 * u * u;
+    }
+    const r = ok(analyzeBurst(base(p, 2, 0.5)));
+    expect(Math.abs(r.hm0M / (2 * Math.SQRT2 * 0.4) - 1)).toBeLessThan(0.01);
+    // forcing the linear detrend (threshold above 2 h) leaves the parabola in the IG band
+    const rLin = ok(analyzeBurst(base(lin, 2, 0.5), { quadraticDetrendAboveS: 1e9 }));
+    expect(rLin.hm0IgM as number).toBeGreaterThan(10 * (r.hm0IgM as number));
   });
 });
 

@@ -10,8 +10,8 @@ export type CutoffReason = 'max' | 'nyquist' | 'kp';
  * Upper frequency limit fmax = min(maxFreqHz, fs/2, f*) [Hz], with f* the frequency where
  * Kp^2 = cosh^2(k z)/cosh^2(k h) falls to minKp2 (Kp decreases monotonically with f for z < h). f* is
  * found by bisection in k on the bracket [ln(1/r), ln(2/r)]/(h - z), r = sqrt(minKp2), which holds because
- * e^-k(h-z) <= Kp <= 2 e^-k(h-z); then omega* = sqrt(g k tanh(k h)). Check: h = 2 m, z = 0.5 m, minKp2 = 0.1
- * gives f* = 0.43 Hz (value of this routine, cross-checked in the test by evaluating Kp at f*).
+ * e^-k(h-z) <= Kp <= 2 e^-k(h-z); then omega* = sqrt(g k tanh(k h)). Check: h = 2 m, z = 0.5 m, minKp2 = 0.1,
+ * g = 9.80665 gives k* = 0.968389 rad/m, f* = 0.480372 Hz (scipy.optimize.brentq on Kp^2 - 0.1).
  */
 export function cutoffFrequency(
   depthM: number,

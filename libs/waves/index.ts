@@ -22,3 +22,4 @@ export type {
   QartodFlag,
 } from './types.js';
 export { jonswapShape, jonswapPressureBurst, type SeaSpec, type PressureBurstSpec } from './synthetic.js';
+export { depthSigmaM, type DepthSigmaInput } from './uncertainty.js';

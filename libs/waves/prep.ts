@@ -2,16 +2,16 @@
 // detrending, and despiking with the Hampel (1974, J. Am. Stat. Assoc.) identifier, sigma_r = 1.4826 MAD.
 
 /**
- * Copies x into out, replacing non-finite samples by linear interpolation between the nearest finite
+ * Copies x into out, replacing null and non-finite samples by linear interpolation between the nearest finite
  * neighbours (nearest finite value at the ends). Returns the count of non-finite samples, or -1 if none is
  * finite.
  */
-export function fillGaps(x: ArrayLike<number>, out: Float64Array, n: number): number {
+export function fillGaps(x: ArrayLike<number | null>, out: Float64Array, n: number): number {
   let bad = 0;
   let last = -1; // index of the last finite sample
   for (let i = 0; i < n; i++) {
-    const v = x[i] as number;
-    if (Number.isFinite(v)) {
+    const v = x[i];
+    if (typeof v === 'number' && Number.isFinite(v)) {
       if (last < i - 1) {
         const gapStart = last + 1;
         const right = v;

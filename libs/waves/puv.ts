@@ -9,12 +9,12 @@ import type { QartodFlag, WavesErrorCode } from './types.js';
 import { chooseSegmentLength, hannWindow, segmentCount, segmentTransform, welchDof } from './welch.js';
 
 export interface PuvInput {
-  /** absolute pressure [dbar] */
-  readonly pDbar: ArrayLike<number>;
+  /** absolute pressure [dbar]; null or non-finite samples are gaps (as in analyzeBurst) */
+  readonly pDbar: ArrayLike<number | null>;
   /** east velocity [m s-1], same length and clock as p */
-  readonly uMS: ArrayLike<number>;
+  readonly uMS: ArrayLike<number | null>;
   /** north velocity [m s-1] */
-  readonly vMS: ArrayLike<number>;
+  readonly vMS: ArrayLike<number | null>;
   readonly fsHz: number;
   /** pressure sensor height above the bed z_p [m] */
   readonly sensorHeightM: number;
@@ -94,7 +94,7 @@ export function puvDirection(input: PuvInput, options: PuvOptions = {}): PuvResu
   const chans = [new Float64Array(n), new Float64Array(n), new Float64Array(n)] as const;
   const srcs = [input.pDbar, input.uMS, input.vMS];
   for (let c = 0; c < 3; c++) {
-    const bad = fillGaps(srcs[c] as ArrayLike<number>, chans[c] as Float64Array, n);
+    const bad = fillGaps(srcs[c] as ArrayLike<number | null>, chans[c] as Float64Array, n);
     if (bad < 0 || bad > 0.05 * n)
       return fail(4, 'REEFD_WAVES_NONFINITE', `channel ${'puv'[c]}: > 5 % non-finite`);
   }

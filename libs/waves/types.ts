@@ -5,8 +5,8 @@ export type QartodFlag = 1 | 2 | 3 | 4 | 9;
 
 /** One bottom-pressure burst. */
 export interface BurstInput {
-  /** absolute pressure samples [dbar]; non-finite samples are gaps */
-  readonly pDbar: ArrayLike<number>;
+  /** absolute pressure samples [dbar]; null or non-finite samples are gaps */
+  readonly pDbar: ArrayLike<number | null>;
   /** sampling rate [Hz] */
   readonly fsHz: number;
   /** time of the first sample [ms since epoch, UTC] */
