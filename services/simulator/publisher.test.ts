@@ -80,6 +80,29 @@ describe('publishSimulation', () => {
     expect(waits.every((w) => w > 0)).toBe(true);
   });
 
+  it('with notAheadOfWallClock, catches up at speed and then follows the wall clock', async () => {
+    const startMs = Date.UTC(2026, 2, 1);
+    let wall = startMs + 30 * 60_000; // the run starts half an hour in the past
+    const summary = await publishSimulation({
+      config,
+      brokerUrl: broker.url,
+      speed: 60,
+      seed: 5,
+      startMs,
+      durationMs: 3.6e6,
+      notAheadOfWallClock: true,
+      logger: quiet,
+      now: () => wall,
+      sleep: async (ms) => {
+        wall += ms;
+      },
+    });
+    expect(summary.messages).toBeGreaterThan(100);
+    // The simulated hour ends an hour after its start, so the wall clock ends there too, never before.
+    expect(wall).toBeGreaterThanOrEqual(summary.lastTMs);
+    expect(wall - summary.lastTMs).toBeLessThan(60_000);
+  });
+
   it('fails at once for a broker that is not there', async () => {
     await expect(
       publishSimulation({

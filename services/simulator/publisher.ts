@@ -16,6 +16,9 @@ export interface PublishOptions {
   startMs: number;
   durationMs: number;
   truthPath?: string;
+  /** Never send a message before the wall clock reaches its time: a run that starts in the past plays
+   * at `speed` until it catches up with now, then in real time, as one continuous simulation. */
+  notAheadOfWallClock?: boolean;
   logger: Pick<Logger, 'info' | 'warn' | 'error' | 'debug'>;
   signal?: AbortSignal;
   /** Injected for tests: the wall clock (ms) and a sleep. */
@@ -91,8 +94,9 @@ export async function publishSimulation(opts: PublishOptions): Promise<PublishSu
         continue;
       }
       const m = ev.message;
-      if (opts.speed !== 'max') {
-        const due = wallStart + (m.tMs - opts.startMs) / opts.speed;
+      if (opts.speed !== 'max' || opts.notAheadOfWallClock) {
+        let due = opts.speed === 'max' ? 0 : wallStart + (m.tMs - opts.startMs) / opts.speed;
+        if (opts.notAheadOfWallClock) due = Math.max(due, m.tMs);
         const wait = due - now();
         if (wait > 0) await sleep(wait, opts.signal);
         if (opts.signal?.aborted) {
