@@ -3,6 +3,8 @@
 // Chan, Golub & LeVeque (1979, "Updating formulae and a pairwise algorithm for computing sample variances";
 // from memory: verify). Memory is fixed (nBins + 1 slots) whatever the sample rate; the price is that the window
 // edge is resolved to one bin (windowMs / nBins), which is documented at each test that uses it.
+// Plain number arrays, not typed arrays, and null for "empty": the state must survive a JSON round trip (the
+// processor snapshots it), and typed arrays or NaN do not.
 
 export interface WindowSummary {
   n: number;
@@ -18,14 +20,14 @@ export interface WindowSummary {
 export interface BinnedStats {
   readonly binMs: number;
   readonly slots: number;
-  /** Bin index held by each slot (NaN when empty). */
-  readonly key: Float64Array;
-  readonly n: Float64Array;
-  readonly mean: Float64Array;
-  readonly m2: Float64Array;
-  readonly min: Float64Array;
-  readonly max: Float64Array;
-  readonly first: Float64Array;
+  /** Bin index held by each slot (null when empty). */
+  readonly key: (number | null)[];
+  readonly n: number[];
+  readonly mean: number[];
+  readonly m2: number[];
+  readonly min: number[];
+  readonly max: number[];
+  readonly first: number[];
 }
 
 /** A window of `windowMs` resolved into `nBins` bins (default 64). */
@@ -39,13 +41,13 @@ export function createBinnedStats(windowMs: number, nBins = 64): BinnedStats {
   return {
     binMs: windowMs / nBins,
     slots,
-    key: new Float64Array(slots).fill(Number.NaN),
-    n: new Float64Array(slots),
-    mean: new Float64Array(slots),
-    m2: new Float64Array(slots),
-    min: new Float64Array(slots),
-    max: new Float64Array(slots),
-    first: new Float64Array(slots),
+    key: new Array<number | null>(slots).fill(null),
+    n: new Array<number>(slots).fill(0),
+    mean: new Array<number>(slots).fill(0),
+    m2: new Array<number>(slots).fill(0),
+    min: new Array<number>(slots).fill(0),
+    max: new Array<number>(slots).fill(0),
+    first: new Array<number>(slots).fill(0),
   };
 }
 
@@ -85,8 +87,8 @@ export function binnedSummary(s: BinnedStats, fromMs: number, toMs: number): Win
   let max = -Infinity;
   let firstMs = Infinity;
   for (let i = 0; i < s.slots; i++) {
-    const k = s.key[i] ?? Number.NaN;
-    if (!(k >= k0 && k <= k1)) continue;
+    const k = s.key[i];
+    if (k === null || k === undefined || k < k0 || k > k1) continue;
     const nb = s.n[i] ?? 0;
     if (nb === 0) continue;
     const mb = s.mean[i] ?? 0;

@@ -143,6 +143,36 @@ describe('qcUpdate: rate of change, flat line, attenuated signal, timing', () =>
   });
 });
 
+describe('restart', () => {
+  it('a JSON round trip of the state mid-series gives the same flags as an uninterrupted run (property)', () => {
+    fc.assert(
+      fc.property(
+        fc.array(
+          fc.oneof(fc.double({ min: 24, max: 30, noNaN: true }), fc.constant(Number.NaN), fc.constant(27)),
+          {
+            minLength: 2,
+            maxLength: 120,
+          },
+        ),
+        fc.nat(),
+        (xs, cut) => {
+          const k = cut % xs.length;
+          const times = xs.map((_, i) => T0 + i * 10 * MIN + (i % 7 === 3 ? 40 * MIN : 0));
+          const a = createQcState('temp_c');
+          const whole = xs.map((v, i) => qcUpdate(a, times[i]!, v));
+          let b = createQcState('temp_c');
+          const parts = xs.map((v, i) => {
+            if (i === k) b = JSON.parse(JSON.stringify(b)) as typeof b;
+            return qcUpdate(b, times[i]!, v);
+          });
+          expect(parts).toEqual(whole);
+        },
+      ),
+      { numRuns: 200 },
+    );
+  });
+});
+
 describe('bounded memory', () => {
   it('keeps fixed-size windows whatever the sample rate (1 Hz for 2 days)', () => {
     const s = createQcState({ variable: 'temp_c' });

@@ -20,16 +20,19 @@ export interface QcConfig extends Partial<QcLimits> {
 
 interface Sample {
   tMs: number;
-  v: number;
+  /** null for a missing value (JSON has no NaN). */
+  v: number | null;
   /** Usable as a neighbour for the spike and rate-of-change tests (not 4 or 9). */
   good: boolean;
   tests: QcTests;
 }
 
+/** Plain JSON-safe data: JSON.parse(JSON.stringify(state)) resumes exactly (the processor snapshots it). */
 export interface QcState {
   readonly variable: string;
   readonly limits: QcLimits;
-  lastMs: number;
+  /** Time of the last sample, ms; null before the first. */
+  lastMs: number | null;
   /** V_{n-1}: its spike flag is still open until the next sample arrives. */
   prev: Sample | null;
   /** V_{n-2}, kept for V_{n-1}'s spike test. */
@@ -80,7 +83,7 @@ export function createQcState(config: QcConfig | string): QcState {
   return {
     variable,
     limits,
-    lastMs: -Infinity,
+    lastMs: null,
     prev: null,
     prev2: null,
     roc: limits.rateOfChange ? createBinnedStats(limits.rateOfChange.windowMs, 100) : null,
@@ -98,8 +101,10 @@ function stripUndefined<T extends object>(o: T): Partial<T> {
  * A non-finite value is missing (flag 9) and only closes the previous sample's spike test.
  */
 export function qcUpdate(state: QcState, tMs: number, value: number, receiveMs?: number): QcResult {
-  if (tMs === state.lastMs) return { flag: 4, tests: { timing: 4 }, dropped: 'duplicate' };
-  if (tMs < state.lastMs) return { flag: 4, tests: { timing: 4 }, dropped: 'out_of_order' };
+  if (state.lastMs !== null && tMs === state.lastMs)
+    return { flag: 4, tests: { timing: 4 }, dropped: 'duplicate' };
+  if (state.lastMs !== null && tMs < state.lastMs)
+    return { flag: 4, tests: { timing: 4 }, dropped: 'out_of_order' };
   const lim = state.limits;
   const prev = state.prev;
   const gapOk = prev !== null && tMs - prev.tMs <= lim.maxGapMs;
@@ -114,7 +119,7 @@ export function qcUpdate(state: QcState, tMs: number, value: number, receiveMs?:
 
   if (!Number.isFinite(value)) {
     state.prev2 = null;
-    state.prev = { tMs, v: value, good: false, tests: {} };
+    state.prev = { tMs, v: null, good: false, tests: {} };
     return finalizedPrevious ? { flag: 9, tests: {}, finalizedPrevious } : { flag: 9, tests: {} };
   }
 
@@ -128,7 +133,9 @@ export function qcUpdate(state: QcState, tMs: number, value: number, receiveMs?:
     const w = binnedSummary(state.roc, tMs - r.windowMs, tMs);
     const sd = w.n >= r.minSamples ? w.sd : Number.NaN;
     tests.rate_of_change =
-      gapOk && prev !== null && prev.good ? rateOfChange(prev.v, value, sd, r.nSd, r.minSd) : 2;
+      gapOk && prev !== null && prev.good && prev.v !== null
+        ? rateOfChange(prev.v, value, sd, r.nSd, r.minSd)
+        : 2;
     if (usable) binnedAdd(state.roc, tMs, value);
   }
   if (lim.flatLine && state.flat) {
@@ -163,12 +170,12 @@ export function qcFlush(state: QcState): QcFinalized | undefined {
 }
 
 function finalize(state: QcState, s: Sample, next: number): QcFinalized {
-  if (!Number.isFinite(s.v)) return { tMs: s.tMs, flag: 9, tests: {} };
+  if (s.v === null) return { tMs: s.tMs, flag: 9, tests: {} };
   const tests: QcTests = { ...s.tests };
   const lim = state.limits.spike;
   if (lim) {
     const p2 = state.prev2;
-    tests.spike = s.good && p2 !== null && p2.good ? spike(p2.v, s.v, next, lim) : 2;
+    tests.spike = s.good && p2 !== null && p2.good && p2.v !== null ? spike(p2.v, s.v, next, lim) : 2;
   }
   return { tMs: s.tMs, flag: aggregateFlags(Object.values(tests)), tests };
 }
