@@ -3,7 +3,7 @@
 // transect-flux.ts (same salinity normalisation, same transect-mean air-sea terms), used by the simulator and
 // in tests. Carbonate speciation from libs/carbonate (pCO2 from TA and DIC).
 
-import { airSeaFluxes } from './air-sea.js';
+import { airSeaFluxes, pathMeanWeight } from './air-sea.js';
 import { forwardSteady, forwardWithStorage, UMOL_M2_S_TO_MMOL_M2_H } from './budget.js';
 import { constantsAt, densityKgM3, solveTaDic, STATE, STATE_LENGTH } from './chem.js';
 
@@ -96,15 +96,49 @@ export function forwardDownstream(x: ForwardInput): ForwardResult {
 
   let fasO2 = x.airSea?.kind === 'fixed' ? x.airSea.fasO2MmolM2H / UMOL_M2_S_TO_MMOL_M2_H : 0;
   let fasCo2 = x.airSea?.kind === 'fixed' ? x.airSea.fasCo2MmolM2H / UMOL_M2_S_TO_MMOL_M2_H : 0;
-  const iterations = x.airSea?.kind === 'wind' ? 30 : 1;
-  let o2B = Number.NaN;
+  const wind = x.airSea?.kind === 'wind' ? x.airSea : undefined;
+  const airSeaAt = (o2Down: number, pco2Down: number) =>
+    airSeaFluxes({
+      tempC: 0.5 * (x.up.tempC + tB),
+      salinity: s0,
+      rhoKgM3: rho,
+      o2UmolKg: x.up.o2UmolKg,
+      o2DownUmolKg: o2Down,
+      o2Mean: wind?.o2Mean ?? 'exponential',
+      residenceS: x.lengthM / x.uMS,
+      depthM: x.depthM,
+      pco2Uatm: 0.5 * (upPco2 + pco2Down),
+      ...(wind ? { windMS: wind.windMS } : {}),
+      windHeightM: wind?.windHeightM ?? 10,
+      baroHpa: baro,
+      xco2AirPpm: wind?.xco2AirPpm ?? 0,
+    });
+
+  // O2 is not salinity-normalised (science.md 6.1). Its exchange term is linear in O2_B, so the budget is solved
+  // for O2_B exactly: o2B = m0 + m1 q with q = (NCP - F_as(o2B))/(rho h). (A fixed point would diverge once
+  // w k tau/h > 1, i.e. for strong wind over a shallow, slow flat.)
+  const o2March = (q: number) => march(x.up.o2UmolKg, p?.up.o2UmolKg, p?.down.o2UmolKg, q);
+  let o2B: number;
+  if (wind) {
+    const as0 = airSeaAt(x.up.o2UmolKg, upPco2);
+    const w =
+      wind.o2Mean === 'trapezoid' ? 0.5 : pathMeanWeight((as0.kO2MS * (x.lengthM / x.uMS)) / x.depthM);
+    const kr = as0.kO2MS * rho;
+    const m0 = o2March(0);
+    const m1 = o2March(1) - m0;
+    const base = ncp - kr * ((1 - w) * x.up.o2UmolKg - as0.o2SatUmolKg);
+    o2B = (m0 + (m1 * base) / rh) / (1 + (m1 * kr * w) / rh);
+    fasO2 = kr * ((1 - w) * x.up.o2UmolKg + w * o2B - as0.o2SatUmolKg);
+  } else {
+    o2B = o2March((ncp - fasO2) / rh);
+  }
+
+  // TA and DIC; the CO2 exchange depends on pCO2_B weakly (a k0 dfCO2/dDIC ~ 0.06 a): a fixed point converges.
   let taB = Number.NaN;
   let dicB = Number.NaN;
   let pco2B = Number.NaN;
   let phB = Number.NaN;
-  for (let it = 0; it < iterations; it++) {
-    // O2 is not salinity-normalised (science.md 6.1).
-    o2B = march(x.up.o2UmolKg, p?.up.o2UmolKg, p?.down.o2UmolKg, (ncp - fasO2) / rh);
+  for (let it = 0; it < 50; it++) {
     const nTaB = march(
       n(x.up.taUmolKg, x.up.salinity),
       p ? n(p.up.taUmolKg, p.up.salinity) : undefined,
@@ -119,37 +153,18 @@ export function forwardDownstream(x: ForwardInput): ForwardResult {
     );
     taB = (nTaB * sB) / s0;
     dicB = (nDicB * sB) / s0;
-    if (!(taB > 0 && dicB > 0 && solveTaDic(cDown, taB, dicB, baro, state))) {
+    if (!(taB > 0 && dicB > 0 && solveTaDic(cDown, taB, dicB, baro, state, Number.isNaN(phB) ? 8 : phB))) {
       return {
         ok: false,
         code: 'REEFD_METABOLISM_CARBONATE_FAILED',
         reason: `downstream TA ${taB} and DIC ${dicB} umol/kg have no solution; the fluxes are too large for the residence time`,
       };
     }
-    const change = Math.abs((state[STATE.pco2] as number) - pco2B);
     pco2B = state[STATE.pco2] as number;
     phB = state[STATE.ph] as number;
-    if (x.airSea?.kind !== 'wind') break;
-    const as = airSeaFluxes({
-      tempC: 0.5 * (x.up.tempC + tB),
-      salinity: s0,
-      rhoKgM3: rho,
-      o2UmolKg: x.up.o2UmolKg,
-      o2DownUmolKg: o2B,
-      o2Mean: x.airSea.o2Mean ?? 'exponential',
-      residenceS: x.lengthM / x.uMS,
-      depthM: x.depthM,
-      pco2Uatm: 0.5 * (upPco2 + pco2B),
-      windMS: x.airSea.windMS,
-      windHeightM: x.airSea.windHeightM ?? 10,
-      baroHpa: baro,
-      xco2AirPpm: x.airSea.xco2AirPpm,
-    });
-    const newO2 = as.fasO2UmolM2S;
-    const newCo2 = as.fasCo2UmolM2S ?? 0;
-    const done =
-      it > 0 && change < 1e-10 && Math.abs(newO2 - fasO2) < 1e-14 && Math.abs(newCo2 - fasCo2) < 1e-14;
-    fasO2 = newO2;
+    if (!wind) break;
+    const newCo2 = airSeaAt(o2B, pco2B).fasCo2UmolM2S ?? 0;
+    const done = Math.abs(newCo2 - fasCo2) < 1e-13;
     fasCo2 = newCo2;
     if (done) break;
   }
