@@ -48,6 +48,8 @@ export interface InfluxSinkOptions {
   random?: () => number;
   sleep?: Sleep;
   onNearLimit?: (s: { spoolBytes: number; maxBytes: number }) => void;
+  /** close() waits up to this long for the spool to drain (default 5 s). */
+  closeDrainMs?: number;
 }
 
 export type InfluxSink = SpooledSink;
@@ -102,6 +104,7 @@ export async function createInfluxSink(o: InfluxSinkOptions): Promise<InfluxSink
     random: o.random,
     sleep: o.sleep,
     onNearLimit: o.onNearLimit,
+    closeDrainMs: o.closeDrainMs,
     spoolDir: o.spoolDir,
     spoolMaxBytes: o.spoolMaxMb * 1024 * 1024,
   });

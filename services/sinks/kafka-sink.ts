@@ -28,6 +28,8 @@ export interface KafkaSinkOptions {
   logger: Logger;
   backoff?: { baseMs: number; maxMs: number };
   sleep?: Sleep;
+  /** close() waits up to this long for the spool to drain (default 5 s). */
+  closeDrainMs?: number;
 }
 
 export function recordKey(r: DerivedRecord): string {
@@ -115,6 +117,7 @@ export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink>
     logger: o.logger,
     backoff: o.backoff,
     sleep: o.sleep,
+    closeDrainMs: o.closeDrainMs,
     spoolDir: o.spoolDir,
     spoolMaxBytes: o.spoolMaxMb * 1024 * 1024,
     onClose: () => producer.disconnect(),

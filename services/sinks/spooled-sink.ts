@@ -30,6 +30,8 @@ export interface SpooledSinkOptions {
   /** Called once each time the spool passes 80 % of its bound (and again after it fell below 70 %). */
   onNearLimit?: ((s: { spoolBytes: number; maxBytes: number }) => void) | undefined;
   onClose?: (() => Promise<void>) | undefined;
+  /** close() waits up to this long for the spool to drain (default 5 s; 0 = not at all). */
+  closeDrainMs?: number | undefined;
 }
 
 /** The destination answered and refused the data: retrying cannot help. */
@@ -115,6 +117,10 @@ export class SpooledSink implements RecordSink {
   async close(): Promise<void> {
     if (this.#closing) return this.#pump;
     await this.flush();
+    // Give a reachable destination a bounded moment to take what is spooled; the rest stays on disk
+    // and is replayed at the next start.
+    const deadline = Date.now() + (this.#o.closeDrainMs ?? 5_000);
+    while (!this.#spool.isEmpty() && Date.now() < deadline) await new Promise((r) => setTimeout(r, 20));
     this.#closing = true;
     this.#abort.abort(new Error('sink closing'));
     this.#poke();

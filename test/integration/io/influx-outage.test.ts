@@ -129,6 +129,7 @@ describe('time-series sink through an outage (local HTTP server)', () => {
       spoolMaxMb: 16,
       logger: quietLogger(),
       backoff: { baseMs: 10, maxMs: 50 },
+      closeDrainMs: 100,
     };
     const a = await createInfluxSink(opts);
     a.write(oxygenRecords(100, { site: 'reopen-reef' }));
