@@ -26,12 +26,18 @@ const DIGEST_LINES = 20;
 
 export function alertLine(a: AlertRecord, kind: 'alert' | 'reminder' = 'alert'): string {
   const what = a.metric ?? a.fault ?? a.rule;
-  const where = a.sensor === undefined ? a.station : `${a.station}/${a.sensor}`;
+  const where = placeOf(a);
   const state = kind === 'reminder' ? 'still raised' : a.state;
-  const val = a.value === null ? '' : ` value ${fmt(a.value)}`;
-  const lim = a.limit === null ? '' : ` limit ${fmt(a.limit)}`;
+  const val = typeof a.value === 'number' ? ` value ${fmt(a.value)}` : '';
+  const lim = typeof a.limit === 'number' ? ` limit ${fmt(a.limit)}` : '';
   return `[${a.severity}] ${a.rule} ${state} at ${where} (${what})${val}${lim} t=${a.t} id=${a.id}`;
 }
+
+/** station/sensor; a site-level record (no station) shows the site. */
+const placeOf = (a: AlertRecord): string => {
+  const st = (a.station as string | undefined) ?? a.site;
+  return a.sensor === undefined ? st : `${st}/${a.sensor}`;
+};
 
 const fmt = (x: number): string => (Number.isInteger(x) ? String(x) : x.toPrecision(4));
 
@@ -54,10 +60,12 @@ export function groupMessage(site: string, items: readonly QueuedItem[]): Notifi
   const a = first.alert;
   const kind: MessageKind = first.kind === 'reminder' ? 'reminder' : 'alerts';
   const state = first.kind === 'reminder' ? 'still raised' : a.state;
-  const stations = [...new Set(items.map((i) => i.alert.station))].sort();
+  const stations = [
+    ...new Set(items.map((i) => (i.alert.station as string | undefined) ?? i.alert.site)),
+  ].sort();
   const subject =
     items.length === 1
-      ? `reefd ${site}: ${a.rule} ${state} at ${a.sensor === undefined ? a.station : `${a.station}/${a.sensor}`}`
+      ? `reefd ${site}: ${a.rule} ${state} at ${placeOf(a)}`
       : `reefd ${site}: ${a.rule} ${state} x${items.length} (${stations.join(', ')})`;
   return {
     kind,

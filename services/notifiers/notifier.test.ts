@@ -282,3 +282,38 @@ describe('re-notification and acknowledgement', () => {
     ]);
   });
 });
+
+describe('records from other producers', () => {
+  it('delivers an alert without station, severity or id (the daemon operational alerts)', async () => {
+    const clock = manualClock();
+    const seen: NotificationMessage[] = [];
+    const n = createNotifier({
+      dir: await tempDir(),
+      site: 'demo-reef',
+      clock,
+      timers: idleTimers,
+      channels: [{ ...createDashboardChannel('ui', (m) => seen.push(m)), minSeverity: 'warning' }],
+    });
+    await n.start();
+    cleanups.push(() => n.stop());
+    const bare = {
+      type: 'alert',
+      site: 'demo-reef',
+      t: new Date(clock.ms).toISOString(),
+      rule: 'reefd.disk_full',
+      class: 'fault',
+      state: 'raised',
+      value: 0,
+      limit: 0,
+    };
+    await n.enqueue(bare as never);
+    clock.advance(31 * S);
+    await n.tick();
+    expect(seen).toHaveLength(1);
+    expect(seen[0]!.subject).toBe('reefd demo-reef: reefd.disk_full raised at demo-reef');
+    expect(seen[0]!.alerts[0]).toMatchObject({
+      severity: 'warning',
+      id: expect.stringMatching(/^[0-9a-f]{8}$/),
+    });
+  });
+});

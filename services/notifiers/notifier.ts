@@ -5,7 +5,7 @@
 // cleared. Clock, timers and the jitter source are injected: tests drive tick() without sleeping.
 
 import { join } from 'node:path';
-import type { AlertRecord, Severity } from '../../libs/alerts/index.js';
+import { alertId, type AlertRecord, type Severity } from '../../libs/alerts/index.js';
 import type { Channel } from './channels/types.js';
 import { Journal } from './journal.js';
 import {
@@ -86,6 +86,23 @@ export interface Notifier {
 }
 
 const SEVERITY_RANK: Record<Severity, number> = { info: 0, warning: 1, critical: 2 };
+
+/**
+ * Records from other producers (the daemon's own operational alerts) may lack our extension fields: an alert
+ * without a severity counts as a warning, one without an id gets the engine's kind of id, so nothing is dropped
+ * by a channel filter or merged into another episode.
+ */
+function normaliseAlert(a: AlertRecord): AlertRecord {
+  const severity: Severity = a.severity in SEVERITY_RANK ? a.severity : 'warning';
+  const id =
+    typeof a.id === 'string' && a.id !== ''
+      ? a.id
+      : alertId(
+          `${a.site}|${a.rule}|${String(a.station)}|${a.sensor ?? ''}|${a.metric ?? ''}`,
+          Date.parse(a.t) || 0,
+        );
+  return a.severity === severity && a.id === id ? a : { ...a, severity, id };
+}
 
 interface ChannelState {
   attempts: number;
@@ -285,8 +302,9 @@ export function createNotifier(o: NotifierOptions): Notifier {
       await outbox.close();
       await acks.close();
     },
-    async enqueue(alert) {
+    async enqueue(input) {
       if (!started) throw new Error('REEFD_NOTIFY_NOT_STARTED: call start() before enqueue()');
+      const alert = normaliseAlert(input);
       await record([
         { op: 'enq', seq: ++seqAlloc, kind: 'alert', at: clock.now(), alert, ch: channelsFor(alert) },
       ]);
