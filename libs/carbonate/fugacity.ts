@@ -54,7 +54,7 @@ export function pco2FromFco2(c: EquilibriumConstants, fco2Uatm: number, baroHpa 
 /**
  * pCO2 (uatm, wet at 100 % humidity) from the dry-air mole fraction xCO2 (umol/mol, ppm):
  * pCO2 = xCO2 (P - pw), P and pw in atm, pw at the sea-surface t and S (Weiss & Price 1980).
- * Check value: 400 ppm at 1013.25 hPa, S 35, t 25 degC gives 387.48 uatm (evaluated).
+ * Check value: 400 ppm at 1013.25 hPa, S 35, t 25 degC gives 387.74 uatm (evaluated).
  */
 export function pco2FromXco2(xco2Ppm: number, baroHpa: number, salinity: number, tempC: number): number {
   return xco2Ppm * (baroHpa / STANDARD_BARO_HPA - vapourPressureAtm(salinity, tempC));

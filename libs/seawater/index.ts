@@ -1,20 +1,27 @@
 // Public API of the seawater library (science spec 2). Other code imports only this file.
 
-export { vapourPressureAtm } from './vapour.js';
-export { densityEos80, densityEos80T68 } from './density.js';
-export { gravity, depthFromPressure, depthUnesco, G_STANDARD } from './gravity.js';
+export { densityEos80 } from './density.js';
+export { depthFromPressure, gravity, STANDARD_GRAVITY, unescoDepth } from './depth.js';
+export type { GarciaGordonCoefficients } from './oxygen.js';
 export {
-  MG_L_TO_UMOL_L,
-  ML_L_TO_UMOL_L,
-  OPTODE_SALINITY_FITS,
-  mgLToUmolKg,
-  o2SaturationPct,
+  GG92_BK_ML_L,
+  GG92_BK_UMOL_KG,
+  GG92_COMBINED_ML_L,
+  O2_MOLAR_MASS,
+  o2MgLFromUmolKg,
+  o2MgLFromUmolL,
+  o2SatPct,
   o2SolubilityAtPressureUmolKg,
+  o2SolubilityMlL,
   o2SolubilityUmolKg,
+  o2UmolKgFromMgL,
+  o2UmolKgFromSatPct,
+  o2UmolKgFromUmolL,
+  o2UmolLFromMgL,
+  o2UmolLFromMlL,
+  o2UmolLFromUmolKg,
   recompensateO2Salinity,
   scaledTemperature,
-  umolKgToMgL,
-  umolKgToUmolL,
-  umolLToUmolKg,
-  type OptodeSalinityFit,
+  UMOL_PER_ML_O2,
 } from './oxygen.js';
+export { vapourPressureAtm } from './vapour.js';

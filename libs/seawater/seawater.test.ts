@@ -1,92 +1,95 @@
-// Seawater basics against published check values (science.md 2 and its check-value table).
 import { describe, expect, it } from 'vitest';
 import {
   densityEos80,
-  densityEos80T68,
   depthFromPressure,
-  depthUnesco,
+  GG92_COMBINED_ML_L,
   gravity,
-  mgLToUmolKg,
-  o2SaturationPct,
+  o2MgLFromUmolKg,
+  o2MgLFromUmolL,
+  o2SatPct,
   o2SolubilityAtPressureUmolKg,
+  o2SolubilityMlL,
   o2SolubilityUmolKg,
+  o2UmolKgFromMgL,
+  o2UmolKgFromSatPct,
+  o2UmolKgFromUmolL,
+  o2UmolLFromMgL,
+  o2UmolLFromMlL,
+  o2UmolLFromUmolKg,
   recompensateO2Salinity,
-  umolKgToMgL,
+  unescoDepth,
+  vapourPressureAtm,
 } from './index.js';
 
-describe('EOS-80 one-atmosphere density', () => {
-  it('reproduces the check value 1023.343 kg m-3 at S 35, t68 25 degC (Millero & Poisson 1981; from memory)', () => {
-    expect(densityEos80T68(35, 25)).toBeCloseTo(1023.343, 3);
+describe('density (EOS-80 one atmosphere)', () => {
+  it('1023.343 kg m-3 at S 35, t68 25 degC (Millero & Poisson 1981 check value)', () => {
+    expect(densityEos80(35, 25 / 1.00024)).toBeCloseTo(1023.343, 3);
   });
-  it('gives pure water 999.842594 kg m-3 at 0 degC (the rho_w constant of EOS-80)', () => {
-    expect(densityEos80(0, 0)).toBeCloseTo(999.842594, 6);
-  });
-  it('grows with salinity and falls with temperature in reef water (common practice)', () => {
-    expect(densityEos80(36, 27)).toBeGreaterThan(densityEos80(35, 27));
-    expect(densityEos80(35, 30)).toBeLessThan(densityEos80(35, 25));
+  it('pure water 999.842594 kg m-3 at 0 degC (EOS-80 rho_w constant term)', () => {
+    expect(densityEos80(0, 0)).toBe(999.842594);
   });
 });
 
 describe('gravity and depth', () => {
-  it('matches the latitude formula at the equator and the pole (Fofonoff & Millard 1983)', () => {
-    expect(gravity(0)).toBeCloseTo(9.780318, 6);
-    expect(gravity(90)).toBeCloseTo(9.780318 * (1 + 5.2788e-3 + 2.36e-5), 9);
+  it('g = 9.780318 at the equator and 9.832177 at the pole (Fofonoff & Millard 1983 formula); standard 9.80665 without latitude', () => {
+    expect(gravity(0)).toBe(9.780318);
+    expect(gravity(90)).toBeCloseTo(9.832177, 6);
     expect(gravity()).toBe(9.80665);
   });
-  it('reproduces the UNESCO depth check value 9712.653 m at 10000 dbar, 30 deg (Fofonoff & Millard 1983)', () => {
-    expect(depthUnesco(10000, 30)).toBeCloseTo(9712.653, 3);
+  it('UNESCO depth 9712.653 m at 10000 dbar, latitude 30 (Fofonoff & Millard 1983 check value)', () => {
+    expect(unescoDepth(10000, 30)).toBeCloseTo(9712.653, 3);
   });
-  it('converts 1 dbar of sea pressure to ~0.99 m in reef water and adds the sensor height', () => {
-    const rho = densityEos80(35, 27);
-    const h = depthFromPressure(10.1325 + 1, 10.1325, rho, 9.80665, 0.2);
-    expect(h).toBeCloseTo(0.2 + 1e4 / (rho * 9.80665), 12);
-    expect(h).toBeGreaterThan(1.19);
-    expect(h).toBeLessThan(1.2);
+  it('h = z_s + 1e4 (p - p_atm)/(rho g): 10 dbar of sea pressure in rho 1023.343 at standard g is 9.9646 m above a 0.2 m sensor (science spec 2.2)', () => {
+    const h = depthFromPressure(10 + 10.1325, 1013.25, 1023.343, 0.2);
+    expect(h).toBeCloseTo(0.2 + 1e5 / (1023.343 * 9.80665), 12);
+    expect(h - 0.2).toBeCloseTo(9.9646, 4);
+    // 1 hPa of barometer error is about 1 cm (science spec 2.2).
+    expect(h - depthFromPressure(10 + 10.1325, 1014.25, 1023.343, 0.2)).toBeCloseTo(0.00996, 5);
   });
 });
 
-describe('O2 solubility (Garcia & Gordon 1992)', () => {
-  it('reproduces the check value 274.610 umol/kg at S 35, t 10 degC', () => {
-    expect(o2SolubilityUmolKg(35, 10)).toBeCloseTo(274.61, 2);
+describe('oxygen', () => {
+  it('O2* = 274.610 umol/kg and 6.315 mL/L at S 35, t 10 degC (Garcia & Gordon 1992 check values, Benson & Krause fits)', () => {
+    expect(o2SolubilityUmolKg(35, 10)).toBeCloseTo(274.61, 3);
+    expect(o2SolubilityMlL(35, 10)).toBeCloseTo(6.315, 3);
   });
-  it('is lower in warm salty water: ~200 umol/kg at S 35, 27 degC (common practice)', () => {
-    const c = o2SolubilityUmolKg(35, 27);
-    expect(c).toBeGreaterThan(195);
-    expect(c).toBeLessThan(210);
+  it('the combined fit gives 6.3 mL/L too at S 35, 10 degC (Garcia & Gordon 1992: the fits agree within 0.5 %)', () => {
+    expect(Math.abs(o2SolubilityMlL(35, 10, GG92_COMBINED_ML_L) / o2SolubilityMlL(35, 10) - 1)).toBeLessThan(
+      0.005,
+    );
   });
-  it('equals the 1 atm value at P = 1 and scales nearly with P - pw', () => {
-    expect(o2SolubilityAtPressureUmolKg(35, 25, 1)).toBeCloseTo(o2SolubilityUmolKg(35, 25), 10);
+  it('pressure correction is exact at 1 atm and near-proportional to P - pw (Benson & Krause 1984)', () => {
+    expect(o2SolubilityAtPressureUmolKg(35, 25, 1)).toBeCloseTo(o2SolubilityUmolKg(35, 25), 12);
+    const pw = vapourPressureAtm(35, 25);
     const ratio = o2SolubilityAtPressureUmolKg(35, 25, 0.98) / o2SolubilityUmolKg(35, 25);
-    expect(ratio).toBeGreaterThan(0.975);
-    expect(ratio).toBeLessThan(0.98);
+    expect(ratio).toBeCloseTo((0.98 - pw) / (1 - pw), 4);
   });
-  it('gives 100 % at equilibrium', () => {
-    expect(o2SaturationPct(o2SolubilityUmolKg(34, 28), 34, 28)).toBeCloseTo(100, 10);
+  it('unit factors: 1 mg/L = 31.2512 umol/L; 1 mL/L = 44.6596 umol/L (science spec 2.3)', () => {
+    expect(o2UmolLFromMgL(1)).toBeCloseTo(31.2512, 4);
+    expect(o2MgLFromUmolL(31.2512)).toBeCloseTo(1, 5);
+    expect(o2UmolLFromMlL(1)).toBe(44.6596);
   });
-});
-
-describe('O2 units and re-compensation', () => {
-  it('maps the 2 mg/L hypoxia limit to ~61 umol/kg at S 35, 25-30 degC (science.md 8)', () => {
-    for (const t of [25, 30]) {
-      const v = mgLToUmolKg(2, densityEos80(35, t));
-      expect(v).toBeGreaterThan(60.5);
-      expect(v).toBeLessThan(61.3);
-    }
+  it('umol/kg <-> umol/L <-> mg/L round-trip with rho(S, t) (science spec 2.3)', () => {
+    const rho = densityEos80(35, 28);
+    expect(o2UmolKgFromUmolL(200, 35, 28)).toBeCloseTo((200 * 1000) / rho, 12);
+    expect(o2UmolLFromUmolKg(o2UmolKgFromUmolL(200, 35, 28), 35, 28)).toBeCloseTo(200, 10);
+    expect(o2UmolKgFromMgL(o2MgLFromUmolKg(180, 35, 28), 35, 28)).toBeCloseTo(180, 10);
+    // 2.0 mg/L (the low-oxygen alert) is 61.13 umol/kg in S 35, 28 degC water (62.5 umol/L over rho 1.0223).
+    expect(o2UmolKgFromMgL(2, 35, 28)).toBeCloseTo(61.13, 2);
   });
-  it('round-trips mg/L and umol/kg', () => {
-    const rho = densityEos80(35, 27);
-    expect(umolKgToMgL(mgLToUmolKg(6.1, rho), rho)).toBeCloseTo(6.1, 12);
+  it('% saturation: 100 % is O2*; back-conversion is exact (science spec 2.3)', () => {
+    expect(o2SatPct(o2SolubilityUmolKg(35, 27), 35, 27)).toBeCloseTo(100, 10);
+    expect(o2UmolKgFromSatPct(o2SatPct(150, 35, 27, 0.995), 35, 27, 0.995)).toBeCloseTo(150, 10);
   });
-  it('re-compensates an optode set to S 0 downwards by ~18-20 % at S 35 (Bittig et al. 2018; common practice)', () => {
-    const f = recompensateO2Salinity(1, 0, 35, 25);
-    expect(f).toBeLessThan(0.84);
-    expect(f).toBeGreaterThan(0.8);
-    // and it is consistent with the solubility's own salinity dependence per litre (combined vs B&K fit)
-    const solRatio =
-      (o2SolubilityUmolKg(35, 25) * densityEos80(35, 25)) / (o2SolubilityUmolKg(0, 25) * densityEos80(0, 25));
-    expect(Math.abs(f - solRatio) / solRatio).toBeLessThan(0.01);
-  });
-  it('is the identity when the setting equals the salinity', () => {
-    expect(recompensateO2Salinity(211.3, 34.2, 34.2, 27)).toBe(211.3);
+  it('salinity re-compensation: S_set 0 -> S 35 multiplies by O2*(35)/O2*(0) of the fit, 0.80000 at 10 degC (combined fit)', () => {
+    const f = recompensateO2Salinity(1, 10, 35, 0);
+    expect(f).toBeCloseTo(
+      o2SolubilityMlL(35, 10, GG92_COMBINED_ML_L) / o2SolubilityMlL(0, 10, GG92_COMBINED_ML_L),
+      12,
+    );
+    expect(f).toBeCloseTo(0.8, 4);
+    // No change when the setting is the measured salinity; the inverse undoes it.
+    expect(recompensateO2Salinity(250, 27, 35, 35)).toBe(250);
+    expect(recompensateO2Salinity(recompensateO2Salinity(250, 27, 34, 0), 27, 0, 34)).toBeCloseTo(250, 10);
   });
 });
