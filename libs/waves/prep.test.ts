@@ -94,3 +94,30 @@ describe('despike (Hampel 1974, 5 sigma_r, sigma_r = 1.4826 MAD)', () => {
     expect(despike(x, n, 5, 0.002, new Float64Array(n), new Float64Array(n))).toBe(0);
   });
 });
+
+describe('despike shortcut (no second selection when no spike is possible)', () => {
+  it('gives the same replacements as the full rule on random records with and without spikes', () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.double({ min: -1, max: 1, noNaN: true }), { minLength: 5, maxLength: 200 }),
+        fc.array(fc.nat(199), { maxLength: 5 }),
+        (arr, spikeAt) => {
+          const x = Float64Array.from(arr);
+          for (const i of spikeAt) if (i < x.length) x[i] = 40 * ((i % 2) - 0.5);
+          // reference: the rule written out with a full sort
+          const s = Float64Array.from(x).sort();
+          const n = x.length;
+          const mid = (a: Float64Array): number =>
+            n % 2 ? (a[n >> 1] as number) : 0.5 * ((a[n / 2 - 1] as number) + (a[n / 2] as number));
+          const med = mid(s);
+          const dev = Float64Array.from(x, (v) => Math.abs(v - med)).sort();
+          const limit = 5 * Math.max(1.4826 * mid(dev), 0.002);
+          let want = 0;
+          for (const v of x) if (Math.abs(v - med) > limit) want++;
+          return despike(x, n, 5, 0.002, new Float64Array(n), new Float64Array(n)) === want;
+        },
+      ),
+      { numRuns: 1000, seed: 11 },
+    );
+  });
+});

@@ -3,7 +3,7 @@
 // (scipy 1.17.1, numpy 2.4.6), committed in test/reference/vectors/waves.json.
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { chi2Quantile, solveDispersion, welchPsd } from '../../libs/waves/index.js';
+import { analyzeBurst, chi2Quantile, solveDispersion, welchPsd } from '../../libs/waves/index.js';
 import { complexDft } from '../../libs/waves/fft.js';
 
 interface Vectors {
@@ -12,6 +12,16 @@ interface Vectors {
   chi2: { nu: number; p: number; x: number }[];
   dispersion: { h: number; period: number; k0h: number; kh: number }[];
   dft: { x: number[]; re: number[]; im: number[] };
+  pipeline: {
+    name: string;
+    fs: number;
+    sensorHeightM: number;
+    rhoKgM3: number;
+    patmDbar: number;
+    p: number[];
+    nperseg: number;
+    expected: Record<string, number>;
+  }[];
 }
 
 const v = JSON.parse(readFileSync(new URL('./vectors/waves.json', import.meta.url), 'utf8')) as Vectors;
@@ -70,4 +80,28 @@ describe('Bluestein N-point DFT vs numpy.fft.fft', () => {
     }
     expect(worst).toBeLessThan(1e-9);
   });
+});
+
+describe('analyzeBurst vs an independent numpy/scipy implementation of science.md 4.1-4.5', () => {
+  for (const c of v.pipeline) {
+    it(`${c.name}: every statistic to 1e-9 relative (IG height to 1e-9 of Hm0)`, () => {
+      const r = analyzeBurst({
+        pDbar: c.p,
+        fsHz: c.fs,
+        t0Ms: 0,
+        sensorHeightM: c.sensorHeightM,
+        patmDbar: c.patmDbar,
+        rhoKgM3: c.rhoKgM3,
+        gMS2: v.g,
+      });
+      if (!r.ok) throw new Error(r.reason);
+      expect(r.notes.some((s) => s.startsWith(`Welch: nperseg ${c.nperseg},`))).toBe(true);
+      const got = r as unknown as Record<string, number>;
+      for (const [key, want] of Object.entries(c.expected)) {
+        if (key === 'nWaves') expect(r.nWaves).toBe(want);
+        else if (key === 'hm0IgM') expect(Math.abs((r.hm0IgM as number) - want)).toBeLessThan(1e-9 * r.hm0M);
+        else expect(relErr(got[key] as number, want), key).toBeLessThan(1e-9);
+      }
+    });
+  }
 });
