@@ -4,6 +4,11 @@
 import { k0, solveCarbonate } from '../carbonate/index.js';
 import { densityEos80, o2SolubilityUmolKg } from '../seawater/index.js';
 
+/** O2 umol/kg to mg/L at density rho (kg m-3): x rho/1000 / 31.2512 (1000/31.9988 umol per mg, science 2.3). */
+export function o2MgL(o2UmolKg: number, rhoKgM3: number): number {
+  return (o2UmolKg * rhoKgM3) / 1000 / (1000 / 31.9988);
+}
+
 /** Conservative and biological tracers of one parcel of water. */
 export interface Water {
   tempC: number;

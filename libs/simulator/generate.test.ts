@@ -10,7 +10,8 @@ import {
 import { processEnsemble } from '../currents/index.js';
 import { analyzeBurst } from '../waves/index.js';
 import { simulateMessages, type SimMessage } from './generate.js';
-import { densityEos80 as densityKgM3, recompensateO2Salinity, umolLToUmolKg } from '../seawater/index.js';
+import { densityEos80 as densityKgM3 } from '../seawater/index.js';
+import { optodeSalinityFactor } from './optode.js';
 import type { FaultTruth, StationTruth } from './truth.js';
 
 function ornenConfig() {
@@ -190,8 +191,8 @@ describe('simulateMessages', () => {
       const truth = truthAt('flat', m.tMs);
       const raw = m.payload.o2_umol_l as number;
       expect(raw / (truth.o2_umol_kg * 1.022)).toBeGreaterThan(1.15);
-      const fixed = recompensateO2Salinity(raw, 0, truth.sal, m.payload.temp_c as number);
-      const umolKg = umolLToUmolKg(fixed, densityKgM3(truth.sal, truth.temp_c));
+      const fixed = raw * optodeSalinityFactor(truth.sal, 0, m.payload.temp_c as number);
+      const umolKg = (fixed * 1000) / densityKgM3(truth.sal, truth.temp_c); // umol/L to umol/kg (science 2.3)
       expect(Math.abs(umolKg - truth.o2_umol_kg)).toBeLessThan(4); // optode noise 0.8 umol/L; 5-min truth grid
     }
   });

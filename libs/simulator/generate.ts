@@ -3,7 +3,7 @@
 import type { ReefdConfig, SensorConfig } from '../contract/index.js';
 import { adcpEnsemble, type AdcpSetup } from './adcp.js';
 import { synthesizeBurst } from './burst.js';
-import { density, speciate } from './chemistry.js';
+import { density, o2MgL, speciate } from './chemistry.js';
 import {
   failingBatteryV,
   healthyBatteryV,
@@ -12,9 +12,9 @@ import {
   type SensorRef,
 } from './faults.js';
 import { ReefModel, type ReefSnapshot, type WaveClimateOverride } from './model.js';
+import { optodeSalinityFactor } from './optode.js';
 import { createRng, type Rng } from './prng.js';
 import { solarHour } from './signals.js';
-import { recompensateO2Salinity, umolKgToMgL } from '../seawater/index.js';
 import { siteLayout, type Role } from './site.js';
 import { stationTruth, transectTruth, type TruthRow } from './truth.js';
 
@@ -230,10 +230,10 @@ function buildMessage(
       if (s.config.sal_setting !== undefined) {
         // The optode computes with its own salinity setting (combined fit of Garcia & Gordon 1992), so it
         // reports O2(S_set) = O2(S)/factor, the inverse of the daemon's re-compensation (science 2.4).
-        const factor = recompensateO2Salinity(1, s.config.sal_setting, w.sal, tempC);
+        const factor = optodeSalinityFactor(w.sal, s.config.sal_setting, tempC);
         payload.o2_umol_l = r(Math.max(0, umolL / factor), 2);
       } else if (s.role === 'back') {
-        payload.o2_mg_l = r(Math.max(0, umolKgToMgL(w.o2UmolKg, rho) + 0.025 * n()), 3);
+        payload.o2_mg_l = r(Math.max(0, o2MgL(w.o2UmolKg, rho) + 0.025 * n()), 3);
       } else payload.o2_umol_l = r(Math.max(0, umolL), 2);
       return { topic, tMs: t, payload };
     }

@@ -1,10 +1,9 @@
 // The truth beside the messages: what the reef model actually held, per station and per transect, so tests
 // can score the daemon's derived records. Field names follow the derived records (contract section 4).
 import type { TransectConfig } from '../contract/index.js';
-import { density, speciate } from './chemistry.js';
+import { density, o2MgL, speciate } from './chemistry.js';
 import type { ScriptedFault } from './faults.js';
 import type { ReefSnapshot } from './model.js';
-import { umolKgToMgL } from '../seawater/index.js';
 import type { Role, SiteLayout } from './site.js';
 
 export interface StationTruth {
@@ -84,7 +83,7 @@ export function stationTruth(
     temp_c: r(w.tempC, 4),
     sal: r(w.sal, 4),
     o2_umol_kg: r(w.o2UmolKg, 2),
-    o2_mg_l: r(umolKgToMgL(w.o2UmolKg, density(w)), 3),
+    o2_mg_l: r(o2MgL(w.o2UmolKg, density(w)), 3),
     pco2_uatm: r(c.pco2Uatm, 2),
     ph_total: r(c.phTotal, 4),
     ta_umol_kg: r(w.taUmolKg, 2),
