@@ -130,6 +130,27 @@ class DeadLetters implements DeadLetterSink {
   }
 }
 
+/** Dead letters to MQTT at QoS 1 through the daemon's client. */
+export function mqttPublisher(client: {
+  publishAsync(topic: string, payload: string, opts: { qos: 1 }): Promise<unknown>;
+}): TopicPublisher {
+  return { publish: async (topic, payload) => void (await client.publishAsync(topic, payload, { qos: 1 })) };
+}
+
+/** Dead letters to Kafka (acks = -1), keyed by the original topic. */
+export function kafkaPublisher(producer: {
+  send(r: { topic: string; acks: number; messages: { key?: string; value: string }[] }): Promise<unknown>;
+}): TopicPublisher {
+  return {
+    publish: async (topic, payload, key) =>
+      void (await producer.send({
+        topic,
+        acks: -1,
+        messages: [key !== undefined ? { key, value: payload } : { value: payload }],
+      })),
+  };
+}
+
 export async function createDeadLetterSink(o: DeadLetterOptions): Promise<DeadLetterSink> {
   const file = o.path !== undefined ? new TextFile(await open(o.path, 'a')) : undefined;
   return new DeadLetters(o, file);

@@ -2,7 +2,13 @@
 export { createInfluxSink, type InfluxSink, type InfluxSinkOptions } from './influx-sink.js';
 export { createKafkaSink, recordKey, kafkaClient, type KafkaSinkOptions } from './kafka-sink.js';
 export { createNdjsonSink, type NdjsonSinkOptions } from './ndjson-sink.js';
-export { createDeadLetterSink, type DeadLetterOptions, type TopicPublisher } from './dead-letter.js';
+export {
+  createDeadLetterSink,
+  mqttPublisher,
+  kafkaPublisher,
+  type DeadLetterOptions,
+  type TopicPublisher,
+} from './dead-letter.js';
 export { SpooledSink, type SpooledSinkOptions } from './spooled-sink.js';
 export { retry, backoffDelayMs, realSleep, type RetryOptions, type Sleep } from './retry.js';
 export { tlsOptions, type TlsFiles } from './http.js';
