@@ -2,6 +2,7 @@
 // code reads in its own units and the hot path reuses equilibrium constants across the inverse's iterations.
 
 import {
+  DEFAULT_CONSTANT_SIGMAS,
   equilibriumConstants,
   fco2FromPco2,
   pco2FromXco2,
@@ -15,7 +16,7 @@ import {
 import { densityEos80, o2SolubilityAtPressureUmolKg } from '../seawater/index.js';
 
 export type Constants = EquilibriumConstants;
-export { STATE, STATE_LENGTH };
+export { DEFAULT_CONSTANT_SIGMAS, STATE, STATE_LENGTH };
 
 /** Carbonate constants at the sea surface for practical salinity S and t degC (libs/carbonate defaults). */
 export function constantsAt(salinity: number, tempC: number): Constants {

@@ -32,6 +32,16 @@ export interface InverseInput {
   lengthM: number;
   /** Barometric pressure [hPa] for pCO2 <-> fCO2. */
   baroHpa: number;
+  /**
+   * Shifts of the carbonate constants shared by both stations (pK = -log10 K; BT relative), for the
+   * uncertainty step only (science.md 9.1: station differences share constants). Default 0.
+   */
+  dpK0?: number;
+  dpK1?: number;
+  dpK2?: number;
+  dpKB?: number;
+  dpKW?: number;
+  dBtRel?: number;
   /** Previous window (storage form of science.md 6.4), else the steady form. */
   previous?: {
     dtS: number;
@@ -69,16 +79,27 @@ export function ncpOfInput(x: InverseInput): number {
   );
 }
 
+/** Applies the shared constant shifts of an input set to freshly evaluated constants (mutates c). */
+function shiftConstants(c: Constants, x: InverseInput): Constants {
+  if (x.dpK0) c.k0 *= Math.pow(10, -x.dpK0);
+  if (x.dpK1) c.k1 *= Math.pow(10, -x.dpK1);
+  if (x.dpK2) c.k2 *= Math.pow(10, -x.dpK2);
+  if (x.dpKB) c.kb *= Math.pow(10, -x.dpKB);
+  if (x.dpKW) c.kw *= Math.pow(10, -x.dpKW);
+  if (x.dBtRel) c.bt *= 1 + x.dBtRel;
+  return c;
+}
+
 function prepare(x: InverseInput): Prepared {
   const state = new Float64Array(STATE_LENGTH);
-  const cUp = constantsAt(x.upSalinity, x.upTempC);
+  const cUp = shiftConstants(constantsAt(x.upSalinity, x.upTempC), x);
   const ok = solveTaPco2(cUp, x.upTaUmolKg, x.upPco2Uatm, x.baroHpa, state);
   const upDic = ok ? (state[STATE.dic] as number) : Number.NaN;
   const ph = ok ? (state[STATE.ph] as number) : 8;
   const cDown =
     x.downSalinity === x.upSalinity && x.downTempC === x.upTempC
       ? cUp
-      : constantsAt(x.downSalinity, x.downTempC);
+      : shiftConstants(constantsAt(x.downSalinity, x.downTempC), x);
   return { x, cDown, upDic, state, ph };
 }
 
@@ -209,7 +230,13 @@ export type InverseSigmaKey =
   | 'fasCo2UmolM2S'
   | 'uMS'
   | 'depthM'
-  | 'lengthM';
+  | 'lengthM'
+  | 'dpK0'
+  | 'dpK1'
+  | 'dpK2'
+  | 'dpKB'
+  | 'dpKW'
+  | 'dBtRel';
 
 /**
  * First-order sigma of the inverse NEC [umol m-2 s-1] (science.md 9.1-9.2): dN/dx_i = -(dg/dx_i)/(dg/dN) with
@@ -228,8 +255,9 @@ export function inverseNecSigma(
     const s = sigmas[key];
     if (s === undefined || !(s > 0)) continue;
     const d = 0.01 * s;
-    const xp: InverseInput = { ...x, [key]: x[key] + d };
-    const xm: InverseInput = { ...x, [key]: x[key] - d };
+    const x0 = x[key] ?? 0;
+    const xp: InverseInput = { ...x, [key]: x0 + d };
+    const xm: InverseInput = { ...x, [key]: x0 - d };
     const dgdx = (inverseResidual(xp, necUmolM2S) - inverseResidual(xm, necUmolM2S)) / (2 * d);
     const part = Math.abs((dgdx / dgdN) * s);
     if (Number.isFinite(part)) {

@@ -209,14 +209,22 @@ describe('uncertainty (science.md 9.2)', () => {
       ['uMS', 0.005],
       ['pq', 0.1],
       ['upTaUmolKg', 10],
+      ['dpK1', 0.0075],
+      ['dBtRel', 0.02],
     ] as const) {
       const sig = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { [key]: s });
-      const plus = solveInverseNec({ ...x, [key]: x[key] + s }, o);
-      const minus = solveInverseNec({ ...x, [key]: x[key] - s }, o);
+      const plus = solveInverseNec({ ...x, [key]: (x[key] ?? 0) + s }, o);
+      const minus = solveInverseNec({ ...x, [key]: (x[key] ?? 0) - s }, o);
       if (!plus.ok || !minus.ok) throw new Error('re-solve failed');
       const brute = Math.abs(plus.necUmolM2S - minus.necUmolM2S) / 2;
       expect(Math.abs(sig.sigmaUmolM2S - brute)).toBeLessThan(0.02 * brute + 1e-6);
+      expect(sig.sigmaUmolM2S).toBeGreaterThan(0);
     }
+    // Shared constants largely cancel in the station difference (science.md 9.1): pK1 +-0.0075 moves NEC far
+    // less than a 2 uatm pCO2 inter-calibration error does.
+    const k1 = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { dpK1: 0.0075 }).sigmaUmolM2S;
+    const pB = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { downPco2Uatm: 2 }).sigmaUmolM2S;
+    expect(k1).toBeLessThan(0.2 * pB);
   });
 
   it('computeTransectFlux reports a finite inverse NEC sigma that grows with the pCO2 uncertainty', () => {

@@ -12,7 +12,7 @@ import {
   storageRate,
   UMOL_M2_S_TO_MMOL_M2_H,
 } from './budget.js';
-import { densityKgM3 } from './chem.js';
+import { DEFAULT_CONSTANT_SIGMAS, densityKgM3 } from './chem.js';
 import { alongBearingMS, angleOffBearingDeg, defaultCurrentSigmaMS } from './geometry.js';
 import { inverseNecSigma, solveInverseNec, type InverseInput } from './inverse.js';
 import { hasGradientTa, ncpCFromDic, taBudget, taSigma, type BudgetContext } from './nec-ta.js';
@@ -296,6 +296,13 @@ export function computeTransectFlux(
             uMS: sigmaU,
             depthM: sigmaH,
             lengthM: params.sigmaLengthM,
+            // Constants shared by both stations (Orr et al. 2018 via libs/carbonate): they largely cancel.
+            dpK0: DEFAULT_CONSTANT_SIGMAS.pK0,
+            dpK1: DEFAULT_CONSTANT_SIGMAS.pK1,
+            dpK2: DEFAULT_CONSTANT_SIGMAS.pK2,
+            dpKB: DEFAULT_CONSTANT_SIGMAS.pKB,
+            dpKW: DEFAULT_CONSTANT_SIGMAS.pKW,
+            dBtRel: DEFAULT_CONSTANT_SIGMAS.btRel,
           }).sigmaUmolM2S;
         }
       } else {
