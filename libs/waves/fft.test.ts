@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { complexDft, nextPowerOfTwo, planFor, realForward, realInverse } from './fft.js';
+import { complexDft, nextPowerOfTwo, planFor, realForward, realForwardEven, realInverse } from './fft.js';
 
 /** naive O(N^2) DFT, the definition X_m = sum x_n exp(-2 pi i m n/N) */
 function naive(re: Float64Array, im: Float64Array): { re: Float64Array; im: Float64Array } {
@@ -68,15 +68,29 @@ describe('realForward (fft.js realTransform)', () => {
     });
   }
 
-  for (const n of [4, 8, 64, 2048]) {
-    it(`realInverse N = ${n}: inverts realForward to 1e-13`, () => {
+  for (const n of [4, 8, 64, 2048, 6, 30, 1800]) {
+    it(`realInverse N = ${n}: inverts the forward transform to 1e-13`, () => {
       const x = signal(n, 4);
       const spec = new Float64Array(2 * n);
-      realForward(planFor(n), x, spec);
+      if (nextPowerOfTwo(n) === n) realForward(planFor(n), x, spec);
+      else realForwardEven(x, n, spec, new Float64Array(n));
       const back = new Float64Array(n);
-      realInverse(spec, back, n);
+      realInverse(spec, back, n, new Float64Array(n));
       for (let i = 0; i < n; i++)
         expect(Math.abs((back[i] as number) - (x[i] as number))).toBeLessThan(1e-13);
+    });
+  }
+
+  for (const n of [2, 6, 10, 30, 1800]) {
+    it(`realForwardEven N = ${n}: bins 0..N/2 equal the naive DFT`, () => {
+      const x = signal(n, 5);
+      const spec = new Float64Array(2 * n);
+      realForwardEven(x, n, spec, new Float64Array(n));
+      const ref = naive(x, new Float64Array(n));
+      for (let m = 0; m <= n / 2; m++) {
+        expect(Math.abs((spec[2 * m] as number) - (ref.re[m] as number))).toBeLessThan(1e-9);
+        expect(Math.abs((spec[2 * m + 1] as number) - (ref.im[m] as number))).toBeLessThan(1e-9);
+      }
     });
   }
 

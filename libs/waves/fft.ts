@@ -151,22 +151,15 @@ export function complexDft(data: Float64Array, out: Float64Array, n: number, inv
   }
 }
 
-// Twiddles e^{+2 pi i k/n}, k < n/2, for realInverse; module state for the same reason as the plans.
+// Twiddles e^{+2 pi i k/n}, k < n/2, for the half-length real transforms; module state for the same
+// reason as the plans (data-independent, bounded, private).
 const halfTwiddles = new Map<number, Float64Array>();
 
-/**
- * Inverse DFT of a Hermitian spectrum (real signal) of power-of-two length n >= 4: spec holds bins 0..n/2
- * interleaved (bins above n/2 are implied by symmetry and not read); out receives the n real samples,
- * x_j = (1/n) sum_m X_m e^{+2 pi i m j/n}. Uses one complex transform of size n/2 (the even samples as the
- * real part, the odd samples as the imaginary part): E_k = (X_k + conj X_{n/2-k})/2,
- * O_k = e^{2 pi i k/n} (X_k - conj X_{n/2-k})/2, Z_k = E_k + i O_k, z = IDFT_{n/2}(Z), x_2j = Re z_j,
- * x_2j+1 = Im z_j (common practice; e.g. Brigham 1988, The FFT and its Applications).
- */
-export function realInverse(spec: Float64Array, out: Float64Array, n: number): void {
-  const h = n >> 1;
+function twiddlesFor(n: number): Float64Array {
   let tw = halfTwiddles.get(n);
   if (tw === undefined) {
     if (halfTwiddles.size >= MAX_PLANS) halfTwiddles.clear();
+    const h = n >> 1;
     tw = new Float64Array(2 * h);
     for (let k = 0; k < h; k++) {
       tw[2 * k] = Math.cos((2 * Math.PI * k) / n);
@@ -174,8 +167,50 @@ export function realInverse(spec: Float64Array, out: Float64Array, n: number): v
     }
     halfTwiddles.set(n, tw);
   }
-  const p = planFor(h);
-  const z = p.a;
+  return tw;
+}
+
+/**
+ * Forward DFT of a real signal x of even length n >= 2 into spec (interleaved, bins 0..n/2), by one complex
+ * DFT of length n/2 of z_j = x_2j + i x_2j+1 (x itself, read as interleaved complex): with
+ * E_k = (Z_k + conj Z_{n/2-k})/2 and O_k = (Z_k - conj Z_{n/2-k})/(2i), X_k = E_k + e^{-2 pi i k/n} O_k
+ * (common practice; e.g. Brigham 1988, The FFT and its Applications). zbuf is scratch of length n. Used for
+ * even lengths that are not a power of two, where it halves the Bluestein size.
+ */
+export function realForwardEven(x: Float64Array, n: number, spec: Float64Array, zbuf: Float64Array): void {
+  const h = n >> 1;
+  complexDft(x, zbuf, h, false);
+  const tw = twiddlesFor(n);
+  for (let k = 0; k <= h; k++) {
+    const a = k === h ? 0 : k;
+    const b = k === 0 ? 0 : h - k;
+    const zr = zbuf[2 * a] as number;
+    const zi = zbuf[2 * a + 1] as number;
+    const cr = zbuf[2 * b] as number;
+    const ci = -(zbuf[2 * b + 1] as number);
+    const er = 0.5 * (zr + cr);
+    const ei = 0.5 * (zi + ci);
+    // O = (Z - conj Z')/(2i) = (di, -dr)/2 with d = Z - conj Z'
+    const or = 0.5 * (zi - ci);
+    const oi = -0.5 * (zr - cr);
+    // e^{-2 pi i k/n}: conjugate of the table; k = n/2 gives -1
+    const wr = k === h ? -1 : (tw[2 * k] as number);
+    const wi = k === h ? 0 : -(tw[2 * k + 1] as number);
+    spec[2 * k] = er + (or * wr - oi * wi);
+    spec[2 * k + 1] = ei + (or * wi + oi * wr);
+  }
+}
+
+/**
+ * Inverse DFT of a Hermitian spectrum (real signal) of even length n >= 4: spec holds bins 0..n/2
+ * interleaved (bins above n/2 are implied by symmetry and not read); out receives the n real samples,
+ * x_j = (1/n) sum_m X_m e^{+2 pi i m j/n}. One complex inverse DFT of size n/2: E_k = (X_k + conj X_{n/2-k})/2,
+ * O_k = e^{2 pi i k/n} (X_k - conj X_{n/2-k})/2, Z_k = E_k + i O_k, z = IDFT_{n/2}(Z); z read as interleaved
+ * complex is x (x_2j = Re z_j, x_2j+1 = Im z_j). zbuf is scratch of length n; it must not alias spec or out.
+ */
+export function realInverse(spec: Float64Array, out: Float64Array, n: number, zbuf: Float64Array): void {
+  const h = n >> 1;
+  const tw = twiddlesFor(n);
   for (let k = 0; k < h; k++) {
     const xr = spec[2 * k] as number;
     const xi = spec[2 * k + 1] as number;
@@ -190,13 +225,8 @@ export function realInverse(spec: Float64Array, out: Float64Array, n: number): v
     const or = dr * cr - di * ci;
     const oi = dr * ci + di * cr;
     // Z = E + i O
-    z[2 * k] = er - oi;
-    z[2 * k + 1] = ei + or;
+    zbuf[2 * k] = er - oi;
+    zbuf[2 * k + 1] = ei + or;
   }
-  p.fft.inverseTransform(p.b, z);
-  const b = p.b;
-  for (let j = 0; j < h; j++) {
-    out[2 * j] = b[2 * j] as number;
-    out[2 * j + 1] = b[2 * j + 1] as number;
-  }
+  complexDft(zbuf, out, h, true);
 }

@@ -3,7 +3,7 @@
 // Bishop & Donelan 1987, Coastal Eng. 11; Jones & Monismith 2007, Limnol. Oceanogr. Methods 5). Zero-upcrossing
 // heights and periods after IAHR (1989): H1/3, H1/10, Hmax, Tz.
 import { selectKth } from './prep.js';
-import { complexDft, isPowerOfTwo, planFor, realForward, realInverse } from './fft.js';
+import { complexDft, isPowerOfTwo, planFor, realForward, realForwardEven, realInverse } from './fft.js';
 
 /** Scratch for one burst length n; reused across bursts of the same length (see analyze.ts). */
 export interface ReconWork {
@@ -18,8 +18,9 @@ export function makeReconWork(n: number): ReconWork {
 
 /**
  * Surface elevation eta [m] from the detrended head x [m] (length n, no window): bins mLo..mHi of the exact
- * N-point DFT (f_m = m fs/n) are divided by kp[m] = Kp(f_m), all other bins set to 0 (mHi <= n/2). Power-of-
- * two n uses fft.js forward and a half-size inverse; other n use Bluestein both ways. Writes eta into out.
+ * N-point DFT (f_m = m fs/n) are divided by kp[m] = Kp(f_m), all other bins set to 0 (mHi <= n/2). Even n uses
+ * half-length complex transforms (fft.js directly for powers of two, Bluestein of size n/2 otherwise); odd n
+ * a full-length Bluestein transform. Writes eta into out.
  */
 export function reconstructSurface(
   x: Float64Array,
@@ -31,31 +32,31 @@ export function reconstructSurface(
 ): void {
   const n = work.n;
   const { cplx, spec } = work;
-  const pow2 = isPowerOfTwo(n) && n >= 4;
-  if (pow2) {
-    realForward(planFor(n), x, spec);
-  } else {
+  const even = n % 2 === 0 && n >= 4;
+  if (even && isPowerOfTwo(n)) realForward(planFor(n), x, spec);
+  else if (even) realForwardEven(x, n, spec, cplx);
+  else {
     for (let i = 0; i < n; i++) {
       cplx[2 * i] = x[i] as number;
       cplx[2 * i + 1] = 0;
     }
     complexDft(cplx, spec, n, false);
   }
-  // Hermitian spectrum: bins mLo..mHi scaled, their mirrors n - m conjugate; everything else zero.
-  cplx.fill(0, 0, pow2 ? n + 2 : 2 * n);
+  // Hermitian spectrum: bins mLo..mHi scaled (their mirrors n - m conjugate in the full-length case).
+  cplx.fill(0, 0, even ? n + 2 : 2 * n);
   for (let m = mLo; m <= mHi; m++) {
     const gain = 1 / (kp[m] as number);
     const re = (spec[2 * m] as number) * gain;
     const im = (spec[2 * m + 1] as number) * gain;
     cplx[2 * m] = re;
     cplx[2 * m + 1] = im;
-    if (!pow2 && m !== n - m) {
+    if (!even && m !== n - m) {
       cplx[2 * (n - m)] = re;
       cplx[2 * (n - m) + 1] = -im;
     }
   }
-  if (pow2) {
-    realInverse(cplx, out, n);
+  if (even) {
+    realInverse(cplx, out, n, spec);
     return;
   }
   complexDft(cplx, spec, n, true);
