@@ -256,7 +256,7 @@ export function dicFromPhCo2(c: EquilibriumConstants, ph: number, co2: number): 
  * Fills every STATE entry from DIC (mol/kg), pH and TA (mol/kg); concentrations out in umol/kg.
  * knownPco2Uatm (when the input was that pCO2 at these conditions) skips the fCO2 -> pCO2 inversion.
  * The Revelle factor is the analytic derivative d ln [CO2*] / d ln DIC at constant TA (implicit function
- * theorem), which the +-1 umol/kg central difference of science spec 3.9 approximates to 1e-7.
+ * theorem), which the +-1 umol/kg central difference of science spec 3.9 approximates to its truncation error (1e-5).
  */
 export function fillState(
   c: EquilibriumConstants,

@@ -1,0 +1,60 @@
+import { describe, expect, it } from 'vitest';
+import { carbonateUncertainty, solveCarbonate, UNCERTAIN_OUTPUTS } from './index.js';
+
+const base = { salinity: 35, tempC: 25, taUmolKg: 2300, pco2Uatm: 400 };
+
+describe('carbonateUncertainty (science spec 9.1)', () => {
+  it('an input passes its own sigma through unchanged (TA +- 5 -> sigma TA 5)', () => {
+    const r = carbonateUncertainty(base, { taUmolKg: 5, constants: 'none' });
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    expect(r.sigma.taUmolKg).toBeCloseTo(5, 8);
+    expect(r.sigma.pco2Uatm).toBeLessThan(1e-9);
+  });
+
+  it('equals a hand-made central difference for pCO2 +- 2 uatm (first-order rule)', () => {
+    const r = carbonateUncertainty(base, { pco2Uatm: 2, constants: 'none' });
+    if (!r.ok) throw new Error(r.reason);
+    const up = solveCarbonate({ ...base, pco2Uatm: 400.02 });
+    const dn = solveCarbonate({ ...base, pco2Uatm: 399.98 });
+    if (!up.ok || !dn.ok) throw new Error('solve failed');
+    expect(r.sigma.phTotal).toBeCloseTo((Math.abs(up.phTotal - dn.phTotal) / 0.04) * 2, 10);
+    // d pH / d ln pCO2 is about -0.85 here (common practice: pH falls ~0.002 per 1 % pCO2): 2 uatm ~ 0.0018.
+    expect(r.sigma.phTotal).toBeGreaterThan(0.0015);
+    expect(r.sigma.phTotal).toBeLessThan(0.0022);
+  });
+
+  it('sigma^2 is the sum of the contributions of the sources', () => {
+    const r = carbonateUncertainty(base, { taUmolKg: 5, pco2Uatm: 2, tempC: 0.05, salinity: 0.05 });
+    if (!r.ok) throw new Error(r.reason);
+    for (const out of UNCERTAIN_OUTPUTS) {
+      const sum = Object.values(r.contributions).reduce((acc, c) => acc + c[out], 0);
+      expect(r.sigma[out] ** 2).toBeCloseTo(sum, 12);
+    }
+    expect(Object.keys(r.contributions)).toEqual(
+      expect.arrayContaining(['taUmolKg', 'pco2Uatm', 'tempC', 'salinity', 'pK1', 'pK2', 'pKspAr', 'btRel']),
+    );
+  });
+
+  it('TA + pCO2 at S 35, t 25 with Orr et al. (2018) constant sigmas: sigma(pH) 0.0070, sigma(Omega_ar) 0.18, pK1 dominant', () => {
+    // Orr et al. (2018, Mar. Chem.) find sigma(pH) near 0.01 and sigma(Omega) near 0.2 for this kind of pair
+    // with their (slightly larger) input uncertainties; from memory, order of magnitude only.
+    const r = carbonateUncertainty(base, { taUmolKg: 5, pco2Uatm: 2, tempC: 0.05, salinity: 0.05 });
+    if (!r.ok) throw new Error(r.reason);
+    expect(r.sigma.phTotal).toBeCloseTo(0.00703, 4);
+    expect(r.sigma.omegaAr).toBeGreaterThan(0.15);
+    expect(r.sigma.omegaAr).toBeLessThan(0.22);
+    const pk1 = r.contributions.pK1!.phTotal;
+    for (const [name, c] of Object.entries(r.contributions))
+      if (name !== 'pK1') expect(c.phTotal).toBeLessThan(pk1);
+    // Only Omega depends on Ksp.
+    expect(r.contributions.pKspAr!.omegaAr).toBeGreaterThan(0);
+    expect(r.contributions.pKspAr!.phTotal).toBe(0);
+  });
+
+  it('returns the solver failure unchanged when there is no solution', () => {
+    const r = carbonateUncertainty({ salinity: 35, tempC: 25, dicUmolKg: 5, pco2Uatm: 400 }, { pco2Uatm: 2 });
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.code).toBe('REEFD_CARBONATE_NO_ROOT');
+  });
+});
