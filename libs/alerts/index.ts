@@ -25,3 +25,4 @@ export {
 } from './config-schema.js';
 export type { AlertRecord, AlertClass, AlertState, FaultName, QcInfo, ThresholdRule } from './types.js';
 export { alertId } from './id.js';
+export { ALERTS_ERRORS, type AlertsErrorCode } from './errors.js';

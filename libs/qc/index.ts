@@ -51,3 +51,4 @@ export {
   salinityBubble,
   type CheckResult,
 } from './multivariate.js';
+export { QC_ERRORS, type QcErrorCode } from './errors.js';

@@ -31,3 +31,4 @@ export {
   type OutboxState,
   type AckRecord,
 } from './outbox-state.js';
+export { NOTIFY_ERRORS, type NotifyErrorCode } from './errors.js';

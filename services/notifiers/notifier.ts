@@ -85,6 +85,8 @@ export interface Notifier {
   status(): NotifierStatus;
 }
 
+const MAX_DIGEST_ITEMS = 500;
+
 const SEVERITY_RANK: Record<Severity, number> = { info: 0, warning: 1, critical: 2 };
 
 /**
@@ -188,9 +190,10 @@ export function createNotifier(o: NotifierOptions): Notifier {
     if (now - first.enqMs < groupWindowMs && queued.length < digestThreshold) return;
     refill(c, cs, now);
     const items: QueuedItem[] = queued.map((i) => ({ seq: i.seq, kind: i.kind, alert: i.alert }));
+    // A digest covers at most MAX_DIGEST_ITEMS, so a long outage drains in bounded messages.
     const messages: NotificationMessage[] =
       items.length >= digestThreshold
-        ? [digestMessage(o.site, items)]
+        ? [digestMessage(o.site, items.slice(0, MAX_DIGEST_ITEMS))]
         : groupItems(items).map((g) => groupMessage(o.site, g));
     for (const m of messages) {
       if (cs.tokens < 1) return; // rate limited: stays queued; a later pass may fold it into a digest
