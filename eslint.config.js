@@ -3,7 +3,16 @@ import js from '@eslint/js';
 import tseslint from 'typescript-eslint';
 
 export default tseslint.config(
-  { ignores: ['dist/**', 'node_modules/**', 'coverage/**', '.venv/**', 'services/dashboard/static/vendor/**', '.cache/**'] },
+  {
+    ignores: [
+      'dist/**',
+      'node_modules/**',
+      'coverage/**',
+      '.venv/**',
+      'services/dashboard/static/vendor/**',
+      '.cache/**',
+    ],
+  },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {
@@ -19,7 +28,18 @@ export default tseslint.config(
     rules: {
       'no-restricted-imports': [
         'error',
-        { patterns: ['node:fs*', 'node:net', 'node:http*', 'node:child_process', 'fs', 'net', 'http', '../../services/*'] },
+        {
+          patterns: [
+            'node:fs*',
+            'node:net',
+            'node:http*',
+            'node:child_process',
+            'fs',
+            'net',
+            'http',
+            '../../services/*',
+          ],
+        },
       ],
       'no-restricted-globals': ['error', 'process', 'setTimeout', 'setInterval', 'console'],
       'no-restricted-properties': [
@@ -31,6 +51,27 @@ export default tseslint.config(
   },
   {
     files: ['services/dashboard/static/**/*.js', 'bin/**/*.js'],
-    languageOptions: { globals: { window: 'readonly', document: 'readonly', fetch: 'readonly', EventSource: 'readonly', console: 'readonly', process: 'readonly', URL: 'readonly', localStorage: 'readonly', setTimeout: 'readonly', setInterval: 'readonly', clearTimeout: 'readonly', location: 'readonly', uPlot: 'readonly', navigator: 'readonly', matchMedia: 'readonly', requestAnimationFrame: 'readonly', ResizeObserver: 'readonly', Intl: 'readonly' } },
+    languageOptions: {
+      globals: {
+        window: 'readonly',
+        document: 'readonly',
+        fetch: 'readonly',
+        EventSource: 'readonly',
+        console: 'readonly',
+        process: 'readonly',
+        URL: 'readonly',
+        localStorage: 'readonly',
+        setTimeout: 'readonly',
+        setInterval: 'readonly',
+        clearTimeout: 'readonly',
+        location: 'readonly',
+        uPlot: 'readonly',
+        navigator: 'readonly',
+        matchMedia: 'readonly',
+        requestAnimationFrame: 'readonly',
+        ResizeObserver: 'readonly',
+        Intl: 'readonly',
+      },
+    },
   },
 );

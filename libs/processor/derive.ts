@@ -16,11 +16,12 @@ import { processEnsemble } from '../currents/index.js';
 import {
   densityEos80,
   gravity,
-  o2SolubilityUmolKg,
-  o2SaturationPct,
+  o2MgLFromUmolKg,
+  o2SatPct,
+  o2UmolKgFromSatPct,
+  o2UmolKgFromUmolL,
+  o2UmolLFromMgL,
   recompensateO2Salinity,
-  umolLToUmolKg,
-  MG_L_TO_UMOL_L,
 } from '../seawater/index.js';
 import { analyzeBurst } from '../waves/index.js';
 import { interpolate, localMean, nearest, type Pick, type Series } from './series.js';
@@ -93,24 +94,22 @@ export function deriveOxygen(
   if (!ctd) return { skip: 'no_ctd' };
   const S = ctd.sal.value;
   const t = m.temp_c;
-  const rho = densityEos80(S, t);
   const baro = baroAt(ctx, m.tMs);
-  const sat1 = o2SolubilityUmolKg(S, t); // at 1 atm
   let o2: number;
   let source: string;
   if (m.o2_umol_l !== undefined || m.o2_mg_l !== undefined) {
-    const umolL = m.o2_umol_l ?? (m.o2_mg_l as number) * MG_L_TO_UMOL_L;
+    const umolL = m.o2_umol_l ?? o2UmolLFromMgL(m.o2_mg_l as number);
     const set = m.sal_setting ?? salSetting;
-    const recomp = set !== undefined ? recompensateO2Salinity(umolL, set, S, t) : umolL;
-    o2 = umolLToUmolKg(recomp, rho);
+    const recomp = set !== undefined ? recompensateO2Salinity(umolL, t, S, set) : umolL;
+    o2 = o2UmolKgFromUmolL(recomp, S, t);
     source = m.o2_umol_l !== undefined ? 'umol_l' : 'mg_l';
   } else {
     // An instrument's % saturation refers to 1 atm unless its set-up says otherwise (science.md 2.3).
-    o2 = ((m.o2_sat_pct as number) / 100) * sat1;
+    o2 = o2UmolKgFromSatPct(m.o2_sat_pct as number, S, t, 1);
     source = 'sat_pct';
   }
-  const satPct = o2SaturationPct(o2, S, t, baro.hpa / STD_BARO_HPA);
-  const mgL = (o2 * rho) / 1000 / MG_L_TO_UMOL_L;
+  const satPct = o2SatPct(o2, S, t, baro.hpa / STD_BARO_HPA);
+  const mgL = o2MgLFromUmolKg(o2, S, t);
   const flag = worst(ctd.sal.flag, ctd.temp.flag === 4 ? 3 : 1, baro.source === 'default' ? 2 : 1);
   const record: OxygenRecord = {
     type: 'oxygen',

@@ -3,7 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { parseConfigText, parseMessage, type DerivedRecord, type SensorMessage } from '../contract/index.js';
 import { solveCarbonate } from '../carbonate/index.js';
-import { densityEos80, gravity, o2SaturationPct, recompensateO2Salinity } from '../seawater/index.js';
+import { densityEos80, gravity, o2SatPct, recompensateO2Salinity } from '../seawater/index.js';
 import { createProcessor } from './index.js';
 
 const CONFIG = `
@@ -88,7 +88,7 @@ function run(upDown: { o2Down: number; pco2Down: number } | undefined, hours: nu
     const o2Down = upDown?.o2Down ?? O2_UP;
     feed(msg('crest/oxygen/o2', { t: iso, o2_umol_l: (O2_UP * RHO) / 1000, temp_c: T }));
     // The back optode is set to S 0: it reports the concentration an S 0 calibration gives.
-    const back0 = recompensateO2Salinity((o2Down * RHO) / 1000, S, 0, T);
+    const back0 = recompensateO2Salinity((o2Down * RHO) / 1000, T, 0, S);
     feed(msg('back/oxygen/o2', { t: iso, o2_umol_l: back0, temp_c: T }));
     if ((t - T0) % (2 * MIN) === 0) {
       feed(msg('crest/pco2/co2', { t: iso, pco2_uatm: PCO2_UP }));
@@ -116,7 +116,7 @@ describe('per-reading records', () => {
     const back = ox.find((r) => r.station === 'back')!;
     expect(crest.o2_umol_kg).toBeCloseTo(O2_UP, 9);
     expect(back.o2_umol_kg).toBeCloseTo(O2_UP, 9);
-    expect(crest.o2_sat_pct).toBeCloseTo(o2SaturationPct(O2_UP, S, T, BARO_HPA / 1013.25), 9);
+    expect(crest.o2_sat_pct).toBeCloseTo(o2SatPct(O2_UP, S, T, BARO_HPA / 1013.25), 9);
     expect(crest.o2_mg_l).toBeCloseTo((O2_UP * RHO) / 1000 / (1000 / 31.9988), 9);
   });
 
@@ -212,7 +212,7 @@ describe('flux windows', () => {
       collect(
         msg('back/oxygen/o2', {
           t: iso,
-          o2_umol_l: recompensateO2Salinity((o2Down * RHO) / 1000, S, 0, T),
+          o2_umol_l: recompensateO2Salinity((o2Down * RHO) / 1000, T, 0, S),
           temp_c: T,
         }),
       );

@@ -30,7 +30,10 @@ export const COMMANDS: Record<string, CommandEntry> = {
   },
   carbonate: { summary: 'solve the seawater carbonate system once', load: notBuilt('carbonate') },
   simulate: { summary: 'publish the fictional demo reef to a broker', load: notBuilt('simulate') },
-  alerts: { summary: 'list or acknowledge alerts (alerts list|ack ID)', load: () => import('./commands/alerts.js') },
+  alerts: {
+    summary: 'list or acknowledge alerts (alerts list|ack ID)',
+    load: () => import('./commands/alerts.js'),
+  },
   doctor: { summary: 'check a live install and say what to fix', load: () => import('./commands/doctor.js') },
 };
 

@@ -20,10 +20,14 @@ if (scenarios.length === 0) {
 let failed = 0;
 for (const name of scenarios) {
   console.log(`\n=== bench: ${name} ===`);
-  const r = spawnSync(process.execPath, ['--import', 'tsx', '--expose-gc', path.join(here, `${name}.bench.ts`)], {
-    stdio: 'inherit',
-    env: process.env,
-  });
+  const r = spawnSync(
+    process.execPath,
+    ['--import', 'tsx', '--expose-gc', path.join(here, `${name}.bench.ts`)],
+    {
+      stdio: 'inherit',
+      env: process.env,
+    },
+  );
   if (r.status !== 0) {
     failed++;
     console.log(`=== bench: ${name} FAILED (exit ${r.status}) ===`);
