@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeBurst } from './analyze.js';
+import { chi2Quantile } from './chi2.js';
 import { G_STANDARD, pressureResponse, solveDispersion } from './dispersion.js';
 import { jonswapPressureBurst } from './synthetic.js';
 import type { BurstInput, WavesOk, WavesResult } from './types.js';
@@ -53,6 +54,12 @@ describe('analyzeBurst: monochromatic wave (linear theory, common practice: Hm0 
     expect(r.tCentreMs).toBe(1_700_000_000_000 + 512_000);
     expect(r.flag).toBe(1);
     expect(r.nWaves).toBe(127);
+    // nu = 13.36 for K = 7 (Welch 1967); 95 % factors from chi2 quantiles (Jenkins & Watts 1968)
+    expect(r.dof).toBeCloseTo(13.3636, 4);
+    expect(r.psdCi95.lower).toBeCloseTo(r.dof / chi2Quantile(0.975, r.dof), 14);
+    expect(r.psdCi95.upper).toBeCloseTo(r.dof / chi2Quantile(0.025, r.dof), 14);
+    expect(r.psdCi95.lower).toBeGreaterThan(0.5);
+    expect(r.psdCi95.upper).toBeLessThan(3);
   });
 
   for (const n of [1800, 1799]) {

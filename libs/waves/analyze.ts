@@ -2,6 +2,7 @@
 // despiking, Welch spectrum, linear pressure-response correction up to a cutoff, spectral bulk statistics and
 // zero-crossing statistics of the reconstructed surface, each with its QARTOD flag.
 import { cutoffFrequency, spectralStats } from './bulk.js';
+import { chi2Quantile } from './chi2.js';
 import { G_STANDARD, responseOnGrid } from './dispersion.js';
 import { despike, detrend, fillGaps } from './prep.js';
 import type { BurstInput, QartodFlag, WaveOptions, WavesErrorCode, WavesFail, WavesResult } from './types.js';
@@ -231,6 +232,7 @@ export function analyzeBurst(input: BurstInput, options: WaveOptions = {}): Wave
     depthM,
     cutoffHz: cut.fHz,
     dof,
+    psdCi95: { lower: dof / chi2Quantile(0.975, dof), upper: dof / chi2Quantile(0.025, dof) },
     hm0SigmaM: stats.hm0SigmaM,
     h13M: zc.h13M,
     h110M: zc.h110M,

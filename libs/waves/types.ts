@@ -67,6 +67,8 @@ export interface WavesOk {
   readonly cutoffHz: number;
   /** Welch degrees of freedom per bin */
   readonly dof: number;
+  /** 95 % confidence factors of each spectral bin: S_true in [lower S, upper S] (Jenkins & Watts 1968) */
+  readonly psdCi95: { readonly lower: number; readonly upper: number };
   /** sampling standard error of hm0 [m] (upper bound, 4.4) */
   readonly hm0SigmaM: number;
   readonly h13M: number | null;

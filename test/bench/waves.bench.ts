@@ -1,7 +1,7 @@
 // Benchmark: one 2048-sample bottom-pressure burst (2 Hz, 17 min) through analyzeBurst (gaps, head, detrend,
 // despike, Welch, dispersion and Kp per bin, bulk statistics, whole-burst reconstruction and zero crossings),
 // against baselines measured in the same run: the bare fft.js 2048-point real transform, and welchPsd alone.
-// A 1800-sample burst shows the cost of the Bluestein path for lengths that are not a power of two.
+// A 1800-sample burst shows the cost of the Bluestein path (half-length) for lengths that are not a power of two.
 // Run: npx tsx test/bench/waves.bench.ts   (goal: under 200 us per 2048-sample burst on one core)
 import FFT from 'fft.js';
 import { analyzeBurst, jonswapPressureBurst, welchPsd } from '../../libs/waves/index.js';
@@ -90,7 +90,7 @@ const [base, welch, full, odd] = bench([
     },
   },
   {
-    label: 'analyzeBurst, 1800 samples (Bluestein)',
+    label: 'analyzeBurst, 1800 samples (Bluestein, size N/2)',
     iter: 300,
     fn: () => {
       const r = analyzeBurst(input(p1800));
