@@ -23,7 +23,7 @@ export interface BudgetContext {
 
 /** True when the station mean has a TA that carries a biological gradient (measured or sampled). */
 export function hasGradientTa(s: StationWindowMean): boolean {
-  return s.taUmolKg !== undefined && s.taSource !== undefined && s.taSource !== 'salinity';
+  return Number.isFinite(s.taUmolKg) && s.taSource !== undefined && s.taSource !== 'salinity';
 }
 
 /** Default sigma of a station's TA [umol/kg] (science.md 9.3): salinity regression residual, else 3. */

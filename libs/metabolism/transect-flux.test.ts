@@ -133,6 +133,17 @@ describe('validity (science.md 6.6)', () => {
     expect(co2bad.necMmolM2H).toBeNull();
   });
 
+  it('non-finite inputs count as missing: null values, never NaN', () => {
+    const r = computeTransectFlux(win({ up: st(200, { depthM: Number.NaN }) }), undefined, params);
+    expect(r.ncpMmolM2H).toBeNull();
+    expect(r.necMmolM2H).toBeNull();
+    expect(r.flag).toBe(9);
+    expect(r.invalidReasons).toContain('input_missing');
+    const o2 = computeTransectFlux(win({ down: st(Number.NaN) }), undefined, params);
+    expect(o2.ncpMmolM2H).toBeNull();
+    expect(o2.flag).toBe(9);
+  });
+
   it('no NEC root gives null NEC, a stable code and flag 4', () => {
     const r = computeTransectFlux(win({ down: st(210, { pco2Uatm: 0.5 }) }), undefined, params);
     expect(r.necMethod).toBe('inverse');

@@ -107,10 +107,15 @@ export function computeTransectFlux(
   const pU: StationWindowMean | undefined = hasPrev ? prevUp : undefined;
   const pD: StationWindowMean | undefined = hasPrev ? prevDown : undefined;
 
-  const physFlag = worst(up.flag, down.flag, current.currentFlag);
-  const o2Flag = worst(physFlag, up.o2Flag, down.o2Flag);
+  // Non-finite inputs count as missing (flag 9): the outputs become null, never NaN.
+  const finiteState = (x: StationWindowMean) =>
+    Number.isFinite(x.tempC) && Number.isFinite(x.salinity) && Number.isFinite(x.depthM);
+  const physOk = finiteState(up) && finiteState(down) && Number.isFinite(u) && Number.isFinite(rho);
+  const physFlag = physOk ? worst(up.flag, down.flag, current.currentFlag) : 9;
+  const o2Ok = Number.isFinite(up.o2UmolKg) && Number.isFinite(down.o2UmolKg);
+  const o2Flag = o2Ok ? worst(physFlag, up.o2Flag, down.o2Flag) : 9;
   const pco2Flag = worst(physFlag, up.pco2Flag ?? up.flag, down.pco2Flag ?? down.flag);
-  const pco2Present = up.pco2Uatm !== undefined && down.pco2Uatm !== undefined;
+  const pco2Present = Number.isFinite(up.pco2Uatm) && Number.isFinite(down.pco2Uatm);
   const pco2Mean = pco2Present ? 0.5 * ((up.pco2Uatm as number) + (down.pco2Uatm as number)) : undefined;
 
   // Air-sea exchange from transect means.
@@ -183,6 +188,7 @@ export function computeTransectFlux(
     }
   }
   if (physFlag >= 4) addReason(physFlag === 9 ? 'input_missing' : 'input_qc_failed');
+  flag = worst(flag, physFlag);
 
   // NEC and NCP_C.
   let nec: number | null = null;
