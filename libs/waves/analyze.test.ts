@@ -157,6 +157,13 @@ describe('analyzeBurst: QC outcomes (science.md 4.1, QARTOD flags)', () => {
     expect(r.ok ? 0 : r.code).toBe('REEFD_WAVES_FLAT');
   });
 
+  it('a flat record with a few large spikes is still flat once they are removed', () => {
+    const p = new Float64Array(2048).fill(PATM + 2 * DBAR_PER_M);
+    for (let i = 0; i < 8; i++) p[200 * i + 50] = PATM + 3 * DBAR_PER_M; // +1 m spikes
+    const r = analyzeBurst(base(p, 2, 0.5));
+    expect(r.ok ? 0 : [r.code, r.flag]).toEqual(['REEFD_WAVES_FLAT', 4]);
+  });
+
   it('> 5 % non-finite: flag 4; 3 % non-finite: interpolated, flag 3, same Hm0 within 1 %', () => {
     const p1 = good();
     for (let i = 0; i < 120; i++) p1[i * 17] = NaN;

@@ -159,7 +159,24 @@ export function analyzeBurst(input: BurstInput, options: WaveOptions = {}): Wave
     return fail(4, 'REEFD_WAVES_SPIKY', `${spikes} of ${n} samples are spikes (> 5 %)`, depthM);
   }
   if (spikes > 0.01 * n) qc = worst(qc, 3);
-  if (spikes > 0) notes.push(`replaced ${spikes} spikes`);
+  if (spikes > 0) {
+    notes.push(`replaced ${spikes} spikes`);
+    // a flat record with a few spikes passed the sd test on the strength of the spikes: test again
+    let m2 = 0;
+    for (let i = 0; i < n; i++) m2 += x[i] as number;
+    m2 /= n;
+    let ss2 = 0;
+    for (let i = 0; i < n; i++) ss2 += ((x[i] as number) - m2) ** 2;
+    const sd2 = Math.sqrt(ss2 / n);
+    if (!(sd2 >= o.minSdM)) {
+      return fail(
+        4,
+        'REEFD_WAVES_FLAT',
+        `head sd is ${(sd2 * 1000).toFixed(2)} mm once ${spikes} spikes are removed (< ${o.minSdM * 1000} mm): flat record with spikes`,
+        depthM,
+      );
+    }
+  }
 
   // 4.2 Welch spectrum of the head
   const k = welchInto(x, n, fs, ns, w.psd);
