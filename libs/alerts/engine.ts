@@ -3,6 +3,7 @@
 // the alert records of the transitions they cause. All state is plain JSON (snapshot/restore), so a restart
 // resumes mid-episode with no second raise and no lost clear.
 
+import { DEFAULT_QC_LIMITS } from '../qc/index.js';
 import { alertsConfigSchema, type AlertsConfigInput } from './config-schema.js';
 import {
   newMetricFaults,
@@ -181,7 +182,7 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
         m.rangeOkSinceMs = null;
         if (m.range === null) {
           m.range = { raisedAtMs: tMs };
-          const lim = qc.limits;
+          const lim = qc.limits ?? DEFAULT_QC_LIMITS[metric.slice(metric.indexOf('.') + 1)]?.sensor;
           const limit =
             lim === undefined ? null : lim.min !== undefined && value < lim.min ? lim.min : (lim.max ?? null);
           emit('range', 'raised', tMs, tMs, value, limit, f.range.severity);
@@ -189,7 +190,7 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
       } else if (m.range !== null) {
         m.rangeOkSinceMs ??= tMs;
         if (tMs - m.rangeOkSinceMs >= f.range.clearAfterMs) {
-          const lim = qc.limits;
+          const lim = qc.limits ?? DEFAULT_QC_LIMITS[metric.slice(metric.indexOf('.') + 1)]?.sensor;
           emit(
             'range',
             'cleared',

@@ -72,6 +72,13 @@ describe('faults from the QC tests of libs/qc', () => {
     ]);
   });
 
+  it('range: without limits passed in, the record reports the libs/qc default sensor limit', () => {
+    const e = createAlertEngine(undefined, 'demo-reef');
+    const qc = createQcState('sal');
+    const r = e.observe('ctd.sal', 'crest', 'ctd', T0, -1, qcUpdate(qc, T0, -1));
+    expect(r).toMatchObject([{ rule: 'range', state: 'raised', value: -1, limit: 0 }]); // sal sensor min 0 (7.3)
+  });
+
   it('flatline: raised when the flat-line test fails (4 h for temperature), cleared when the value moves', () => {
     const e = createAlertEngine(undefined, 'demo-reef');
     const qc = createQcState('temp_c');

@@ -58,6 +58,6 @@ export interface QcInfo {
     readonly flag: number;
     readonly tests: Readonly<Partial<Record<string, number>>>;
   };
-  /** Sensor (fail) limits, to report in a range fault. */
+  /** Sensor (fail) limits, to report in a range fault; default the libs/qc defaults of the metric's field. */
   readonly limits?: { readonly min?: number; readonly max?: number };
 }
