@@ -154,3 +154,28 @@ describe('archive writer', () => {
     expect((await readAll(dir)).seqs).toEqual([0, 1, 2]);
   });
 });
+
+describe('archive writer and compressed days', () => {
+  it('never writes into a day that is already compressed, even for a line stamped with it', async () => {
+    const { gzipSync } = await import('node:zlib');
+    await writeFile(join(dir, 'raw-2026-12-02.ndjson.gz'), gzipSync(line(1, DEC2) + '\n'));
+    // Restarted with a clock still on 2026-12-02 (e.g. compressed by an earlier run after a clock fix).
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 0, clock: () => DEC2 });
+    await w.append(line(2, DEC2), DEC2);
+    await w.close();
+    expect((await readdir(dir)).sort()).toEqual(['raw-2026-12-02.ndjson.gz', 'raw-2026-12-03.ndjson']);
+    expect((await readAll(dir)).seqs).toEqual([1, 2]);
+  });
+
+  it('reads a truncated gz up to the cut and reports the damage', async () => {
+    const { gzipSync } = await import('node:zlib');
+    const text = Array.from({ length: 2000 }, (_, i) => line(i, DEC2)).join('\n') + '\n';
+    const gz = gzipSync(text);
+    await writeFile(join(dir, 'raw-2026-12-01.ndjson.gz'), gz.subarray(0, Math.floor(gz.length / 2)));
+    const { seqs, errors } = await readAll(dir);
+    expect(seqs.length).toBeGreaterThan(100);
+    expect(seqs).toEqual(Array.from({ length: seqs.length }, (_, i) => i));
+    expect(errors.length).toBeGreaterThanOrEqual(1);
+    expect(errors.at(-1)).toMatch(/^raw-2026-12-01\.ndjson\.gz:\d+:gzip:/);
+  });
+});

@@ -74,6 +74,8 @@ class Writer implements RawArchiveWriter {
   readonly #maxBatch: number;
   #file: AppendFile | undefined;
   #fileDay = -1;
+  /** First day that may still be written: every earlier day with a `.gz` is closed for good. */
+  #minDay = -1;
   /** Bytes known to be complete lines in the open file; a failed write is truncated back to it. */
   #goodSize = 0;
   #queue: Pending[] = [];
@@ -96,6 +98,10 @@ class Writer implements RawArchiveWriter {
   async init(): Promise<void> {
     await mkdir(this.#o.dir, { recursive: true });
     const removed = await repairArchiveDir(this.#o.dir);
+    for (const name of await readdir(this.#o.dir)) {
+      const day = dayOfName(name);
+      if (day !== undefined && name.endsWith('.gz')) this.#minDay = Math.max(this.#minDay, day + 1);
+    }
     if (removed.length > 0)
       this.#o.logger?.warn({ removed }, 'raw archive: removed leftovers of an interrupted gzip');
     this.#maintTimer = setInterval(() => {
@@ -109,8 +115,8 @@ class Writer implements RawArchiveWriter {
   append(line: string, rxMs: number): Promise<void> {
     if (this.#closed) return Promise.reject(new Error('REEFD_ARCHIVE_CLOSED: append after close()'));
     // Days never go backwards: a line stamped with an already closed day goes to the open file, so a
-    // compressed day is never reopened.
-    const day = Math.max(dayOf(rxMs), this.#fileDay);
+    // compressed day is never reopened (a plain file beside its .gz would be taken for crash leftovers).
+    const day = Math.max(dayOf(rxMs), this.#fileDay, this.#minDay);
     return new Promise<void>((resolve, reject) => {
       const data = Buffer.from(line.includes('\n') ? line.replace(/\n/g, ' ') : line, 'utf8');
       this.#queue.push({ data, day, resolve, reject });
@@ -244,6 +250,7 @@ class Writer implements RawArchiveWriter {
       }
       const open = this.#file !== undefined && day === this.#fileDay;
       if (!name.endsWith('.gz') && day < today && !open) {
+        this.#minDay = Math.max(this.#minDay, day + 1);
         await compressFile(this.#o.dir, name);
         this.#o.logger?.info({ file: name }, 'raw archive: day closed and compressed');
       }

@@ -69,6 +69,8 @@ export class SpooledSink implements RecordSink {
   }
 
   start(): void {
+    // A spool left near its bound by an earlier run is reported at once.
+    this.#checkNear();
     this.#pump = this.#run().catch((err: unknown) => {
       this.#o.logger.error({ err, sink: this.name }, 'sink stopped on an unexpected error');
     });
