@@ -181,25 +181,16 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
       if (tests.gross_range === 4) {
         m.rangeOkSinceMs = null;
         if (m.range === null) {
-          m.range = { raisedAtMs: tMs };
           const lim = qc.limits ?? DEFAULT_QC_LIMITS[metric.slice(metric.indexOf('.') + 1)]?.sensor;
           const limit =
             lim === undefined ? null : lim.min !== undefined && value < lim.min ? lim.min : (lim.max ?? null);
+          m.range = { raisedAtMs: tMs, limit };
           emit('range', 'raised', tMs, tMs, value, limit, f.range.severity);
         }
       } else if (m.range !== null) {
         m.rangeOkSinceMs ??= tMs;
         if (tMs - m.rangeOkSinceMs >= f.range.clearAfterMs) {
-          const lim = qc.limits ?? DEFAULT_QC_LIMITS[metric.slice(metric.indexOf('.') + 1)]?.sensor;
-          emit(
-            'range',
-            'cleared',
-            m.range.raisedAtMs,
-            tMs,
-            value,
-            lim?.max ?? lim?.min ?? null,
-            f.range.severity,
-          );
+          emit('range', 'cleared', m.range.raisedAtMs, tMs, value, m.range.limit ?? null, f.range.severity);
           m.range = null;
           m.rangeOkSinceMs = null;
         }

@@ -77,6 +77,10 @@ describe('faults from the QC tests of libs/qc', () => {
     const qc = createQcState('sal');
     const r = e.observe('ctd.sal', 'crest', 'ctd', T0, -1, qcUpdate(qc, T0, -1));
     expect(r).toMatchObject([{ rule: 'range', state: 'raised', value: -1, limit: 0 }]); // sal sensor min 0 (7.3)
+    const t1 = T0 + 20 * MIN;
+    e.observe('ctd.sal', 'crest', 'ctd', T0 + 5 * MIN, 35, qcUpdate(qc, T0 + 5 * MIN, 35));
+    const c = e.observe('ctd.sal', 'crest', 'ctd', t1, 35, qcUpdate(qc, t1, 35));
+    expect(c).toMatchObject([{ rule: 'range', state: 'cleared', limit: 0 }]); // the limit that was violated
   });
 
   it('flatline: raised when the flat-line test fails (4 h for temperature), cleared when the value moves', () => {

@@ -4,6 +4,8 @@
 /** Episode of an active fault. */
 export interface ActiveFault {
   raisedAtMs: number;
+  /** The limit reported at the raise (range faults), repeated on the clear. */
+  limit?: number | null;
 }
 
 export interface SensorTrack {
