@@ -64,3 +64,13 @@ export function pco2FromXco2(xco2Ppm: number, baroHpa: number, salinity: number,
 export function xco2FromPco2(pco2Uatm: number, baroHpa: number, salinity: number, tempC: number): number {
   return pco2Uatm / (baroHpa / STANDARD_BARO_HPA - vapourPressureAtm(salinity, tempC));
 }
+
+/**
+ * pCO2 at t2 from pCO2 at t1 without any TA (science spec 3.8 fallback): pCO2(t2) = pCO2(t1) exp[0.0423
+ * (t2 - t1)] (Takahashi et al. 1993, Global Biogeochem. Cycles 7, 843-878). Flag results 3: with TA from
+ * salinity, solveCarbonate with outTempC is better. Check value: +4.32 % per degC, 400 -> 417.28 uatm for
+ * +1 degC (evaluated from the formula).
+ */
+export function pco2AtTemperatureTakahashi(pco2Uatm: number, fromTempC: number, toTempC: number): number {
+  return pco2Uatm * Math.exp(0.0423 * (toTempC - fromTempC));
+}

@@ -35,6 +35,7 @@ export { k0Weiss1974 } from './constants/weiss1974.js';
 export {
   fco2FromPco2,
   fugacityFactorAt,
+  pco2AtTemperatureTakahashi,
   pco2FromFco2,
   pco2FromXco2,
   STANDARD_BARO_HPA,
@@ -78,3 +79,4 @@ export function k0(salinity: number, tempC: number): number {
 }
 
 export { carbonateUncertainty } from './uncertainty.js';
+export { CARBONATE_ERRORS } from './errors.js';

@@ -25,3 +25,31 @@ describe('solveCarbonate', () => {
     if (!r.ok) expect(r.code).toBe('REEFD_CARBONATE_NO_ROOT');
   });
 });
+
+describe('helpers', () => {
+  it('Takahashi et al. (1993) temperature coefficient: 400 uatm at +1 degC -> 417.28 uatm (0.0423 per degC)', async () => {
+    const { pco2AtTemperatureTakahashi } = await import('./index.js');
+    expect(pco2AtTemperatureTakahashi(400, 25, 26)).toBeCloseTo(400 * Math.exp(0.0423), 12);
+    expect(pco2AtTemperatureTakahashi(400, 25, 26)).toBeCloseTo(417.28, 2);
+  });
+  it('xCO2 400 ppm at 1013.25 hPa, S 35, t 25 is 387.74 uatm wet (Weiss & Price 1980 vapour pressure)', async () => {
+    const { pco2FromXco2, xco2FromPco2 } = await import('./index.js');
+    expect(pco2FromXco2(400, 1013.25, 35, 25)).toBeCloseTo(387.74, 2);
+    expect(xco2FromPco2(pco2FromXco2(415, 1005, 35, 28), 1005, 35, 28)).toBeCloseTo(415, 10);
+  });
+  it('pH scales: free > total > seawater, by log10(1 + ST/KS) and log10 of the fluoride term (science spec 3.3)', async () => {
+    const { equilibriumConstants, phTotalToFree, phFreeToTotal, phTotalToSws, phSwsToTotal } =
+      await import('./index.js');
+    const c = equilibriumConstants(35, 25, 0);
+    expect(phTotalToFree(c, 8) - 8).toBeCloseTo(Math.log10(1 + c.st / c.ks), 14);
+    expect(phTotalToFree(c, 8) - 8).toBeCloseTo(0.1077, 3);
+    expect(8 - phTotalToSws(c, 8)).toBeCloseTo(0.0101, 3);
+    expect(phFreeToTotal(c, phTotalToFree(c, 7.9))).toBeCloseTo(7.9, 14);
+    expect(phSwsToTotal(c, phTotalToSws(c, 7.9))).toBeCloseTo(7.9, 14);
+  });
+  it('flags 3 with a note when a fit is used outside its range (t 36 > 35 for Lueker 2000)', () => {
+    const r = solveCarbonate({ salinity: 35, tempC: 36, taUmolKg: 2300, pco2Uatm: 400 });
+    expect(r.ok && r.flag).toBe(3);
+    expect(r.ok && r.notes.join(' ')).toMatch(/Lueker et al\. \(2000\)/);
+  });
+});
