@@ -1,7 +1,7 @@
 // Waves from one bottom-pressure burst (science.md 4.1-4.5): gap filling, head (2.2), detrending, Hampel
 // despiking, Welch spectrum, linear pressure-response correction up to a cutoff, spectral bulk statistics and
 // zero-crossing statistics of the reconstructed surface, each with its QARTOD flag.
-import { cutoffFrequency, spectralStats } from './bulk.js';
+import { cutoffFrequency, fitF4Tail, spectralStats } from './bulk.js';
 import { chi2Quantile } from './chi2.js';
 import { G_STANDARD, responseOnGrid } from './dispersion.js';
 import { despike, detrend, fillGaps } from './prep.js';
@@ -211,11 +211,21 @@ export function analyzeBurst(input: BurstInput, options: WaveOptions = {}): Wave
     }
   }
   for (let m = mTop + 1; m < sEta.length; m++) sEta[m] = 0;
+  let statsTopHz = cut.fHz;
+  if (o.tailToHz !== undefined && o.tailToHz > cut.fHz) {
+    const mTail = Math.min(ns / 2, Math.floor((o.tailToHz + 1e-9 * df) / df));
+    const a = fitF4Tail(sEta, df, Math.max(1, Math.ceil(0.75 * mTop)), mTop);
+    if (a > 0 && mTail > mTop) {
+      for (let m = mTop + 1; m <= mTail; m++) sEta[m] = a / (m * df) ** 4;
+      statsTopHz = mTail * df;
+      notes.push(`f^-4 tail added from ${cut.fHz.toPrecision(3)} to ${statsTopHz.toPrecision(3)} Hz`);
+    }
+  }
 
   // 4.4 bulk statistics
   const evaluateIg = df <= o.maxIgDfHz;
   if (!evaluateIg) notes.push(`IG band not evaluated: df ${df.toPrecision(3)} Hz > ${o.maxIgDfHz} Hz`);
-  const stats = spectralStats(sEta, df, cut.fHz, o.igLowHz, o.splitHz, evaluateIg, dof);
+  const stats = spectralStats(sEta, df, statsTopHz, o.igLowHz, o.splitHz, evaluateIg, dof);
   if (stats === null) {
     return fail(
       4,

@@ -129,3 +129,19 @@ export function spectralStats(
     nBins: mHi - mLo + 1,
   };
 }
+
+/**
+ * Least-squares level a of S(f) = a f^-4 over bins mLo..mHi of sEta (f_m = m df): a = sum S f^-4 / sum f^-8.
+ * The f^-4 (saturation-range) tail of Jones & Monismith (2007), Limnol. Oceanogr. Methods 5, 317-327, used
+ * to extend a spectrum above the pressure-response cutoff. Returns 0 for an empty range.
+ */
+export function fitF4Tail(sEta: Float64Array, dfHz: number, mLo: number, mHi: number): number {
+  let num = 0;
+  let den = 0;
+  for (let m = mLo; m <= mHi; m++) {
+    const f4 = (m * dfHz) ** -4;
+    num += (sEta[m] as number) * f4;
+    den += f4 * f4;
+  }
+  return den > 0 ? num / den : 0;
+}

@@ -45,6 +45,12 @@ export interface WaveOptions {
   readonly maxIgDfHz?: number;
   /** zero-crossing statistics flagged 3 below this many waves, default 50 */
   readonly minWaves?: number;
+  /**
+   * If set [Hz], bins from the cutoff up to this frequency (at most fs/2) get an f^-4 tail fitted to the last
+   * quarter of the band below the cutoff (Jones & Monismith 2007); spectral statistics then include it. Off
+   * by default; the zero-crossing reconstruction never uses it.
+   */
+  readonly tailToHz?: number;
 }
 
 export interface WavesOk {
