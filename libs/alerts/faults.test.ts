@@ -1,4 +1,5 @@
 import { describe, it, expect } from 'vitest';
+import fc from 'fast-check';
 import { createQcState, qcUpdate, DEFAULT_QC_LIMITS } from '../qc/index.js';
 import { createAlertEngine, type AlertRecord, type EngineSnapshot } from './index.js';
 
@@ -167,6 +168,46 @@ describe('snapshot / restore', () => {
     expect(e2.observe('par.par_umol_m2_s', 'crest', 'par', T0 + 95 * MIN, 480, 1)).toMatchObject([
       { state: 'cleared', id: r[0]!.id },
     ]);
+  });
+
+  it('property: a JSON snapshot/restore at any point gives the same records as an uninterrupted run', () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.tuple(fc.double({ min: 1, max: 4, noNaN: true }), fc.integer({ min: 1, max: 20 })), {
+          minLength: 1,
+          maxLength: 150,
+        }),
+        fc.nat(),
+        (steps, cut) => {
+          const k = cut % steps.length;
+          const run = (restartAt: number | null): AlertRecord[] => {
+            let e = createAlertEngine(
+              { rules: { hi: { metric: 'oxygen.o2_mg_l', above: 3.5, clear: 3.2, raise_after_min: 5 } } },
+              'demo-reef',
+            );
+            const qc = createQcState('o2_mg_l');
+            const out: AlertRecord[] = [];
+            let t = T0;
+            steps.forEach(([v, dtMin], i) => {
+              if (i === restartAt) {
+                const snap = JSON.parse(JSON.stringify(e.snapshot())) as EngineSnapshot;
+                e = createAlertEngine(
+                  { rules: { hi: { metric: 'oxygen.o2_mg_l', above: 3.5, clear: 3.2, raise_after_min: 5 } } },
+                  'demo-reef',
+                );
+                e.restore(snap);
+              }
+              t += dtMin * MIN;
+              out.push(...e.observe('oxygen.o2_mg_l', 'crest', 'o2', t, v, qcUpdate(qc, t, v)));
+              if (i % 5 === 4) out.push(...e.advance(t + 3 * MIN));
+            });
+            return out;
+          };
+          expect(run(k)).toEqual(run(null));
+        },
+      ),
+      { numRuns: 150 },
+    );
   });
 
   it('refuses a snapshot of another site', () => {
