@@ -6,6 +6,7 @@ export {
   type Processor,
   type PushResult,
   type PushStatus,
+  type SensorHealthRow,
 } from './processor.js';
 export { STATE_VERSION, type ProcessorState, type ProcessorCounters } from './state.js';
 export { messageFromArchiveLine, type ArchiveInput } from './intake.js';

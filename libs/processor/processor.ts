@@ -53,6 +53,17 @@ export interface Processor {
   counters(): ProcessorState['counters'];
   /** Alerts raised and not yet cleared. */
   activeAlerts(): DerivedRecord[];
+  /** Last seen, battery and last flag of every sensor that has reported. */
+  sensorHealth(): SensorHealthRow[];
+}
+
+export interface SensorHealthRow {
+  station: string;
+  sensor: string;
+  kind: string;
+  lastSeenMs: number;
+  batteryV: number | null;
+  flag: number | null;
 }
 
 /**
@@ -349,6 +360,16 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
       const late = m.tMs < watermark();
       if (late) state.counters.late++;
       derive(m, rxMs, out);
+      const ss = state.sensors[`${m.station}/${m.sensor}`];
+      if (ss) {
+        if (m.battery_v !== undefined) ss.batteryV = m.battery_v;
+        let worstFlag = 1;
+        for (const r of out) {
+          const f = (r as { flag?: unknown }).flag;
+          if (r.type !== 'alert' && typeof f === 'number' && f > worstFlag) worstFlag = f;
+        }
+        ss.lastFlag = worstFlag;
+      }
       if (m.tMs > state.maxEventMs) state.maxEventMs = m.tMs;
       advance(watermark(), out);
       for (const r of out) count(r);
@@ -367,5 +388,17 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
     watermarkMs: watermark,
     counters: () => structuredClone(state.counters),
     activeAlerts: () => alerts.active().map(alertRecord),
+    sensorHealth: () =>
+      Object.entries(state.sensors).map(([key, s]) => {
+        const [station = '', sensor = ''] = key.split('/');
+        return {
+          station,
+          sensor,
+          kind: config.stations[station]?.sensors[sensor]?.kind ?? 'unknown',
+          lastSeenMs: s.lastTMs,
+          batteryV: s.batteryV ?? null,
+          flag: s.lastFlag ?? null,
+        };
+      }),
   };
 }

@@ -13,6 +13,10 @@ export interface SensorState {
   /** Last pH solution of a pCO2 sensor: the warm start of the next solve. */
   lastPh?: number;
   count: number;
+  /** Supply voltage of the last message that carried one. */
+  batteryV?: number;
+  /** Worst QARTOD flag among the last message's values and records. */
+  lastFlag?: number;
 }
 
 /** The variables the processor remembers per station (time series, bounded in time). */

@@ -9,17 +9,11 @@ interface CommandEntry {
   load: () => Promise<{ run: CommandRun }>;
 }
 
-const notBuilt =
-  (name: string): (() => Promise<{ run: CommandRun }>) =>
-  async () => ({
-    run: async (_args, io) => {
-      io.stderr(`reefd ${name}: not built yet in this version\n`);
-      return EXIT_USAGE;
-    },
-  });
-
 export const COMMANDS: Record<string, CommandEntry> = {
-  run: { summary: 'run the daemon (no --config: the built-in demo)', load: notBuilt('run') },
+  run: {
+    summary: 'run the daemon (no --config: the built-in demo)',
+    load: () => import('./commands/run.js'),
+  },
   replay: {
     summary: 'reprocess a raw archive into derived records (NDJSON)',
     load: () => import('./commands/replay.js'),
@@ -28,8 +22,14 @@ export const COMMANDS: Record<string, CommandEntry> = {
     summary: 'validate a configuration file (config check FILE)',
     load: () => import('./commands/config.js'),
   },
-  carbonate: { summary: 'solve the seawater carbonate system once', load: notBuilt('carbonate') },
-  simulate: { summary: 'publish the fictional demo reef to a broker', load: notBuilt('simulate') },
+  carbonate: {
+    summary: 'solve the seawater carbonate system once',
+    load: () => import('./commands/carbonate.js'),
+  },
+  simulate: {
+    summary: 'publish the fictional demo reef to a broker',
+    load: () => import('./commands/simulate.js'),
+  },
   alerts: {
     summary: 'list or acknowledge alerts (alerts list|ack ID)',
     load: () => import('./commands/alerts.js'),

@@ -31,6 +31,14 @@ export interface MqttSourceOptions {
   site: string;
   logger: Logger;
   clock?: () => number;
+  /**
+   * 5 (default) for Mosquitto; 4 (MQTT 3.1.1) for brokers without MQTT 5 such as the demo's embedded one.
+   * The held-PUBACK mechanism works the same on both; session expiry and Receive Maximum are MQTT 5 only
+   * (with 4 a persistent session is `clean: false` and lasts as long as the broker keeps it).
+   * Without Receive Maximum the broker's own in-flight limit bounds the held PUBACKs (Mosquitto:
+   * max_inflight_messages, 20 by default), which also caps intake at that many messages per archive fsync.
+   */
+  protocolVersion?: 4 | 5;
   /** MQTT 5 Receive Maximum: messages in flight without PUBACK (default 1000). */
   receiveMaximum?: number;
   reconnect?: { baseMs: number; maxMs: number };
@@ -73,11 +81,16 @@ class MqttIntake implements MqttSource {
 
   start(push: (input: RawInput) => void): Promise<void> {
     const o = this.#o;
+    const v5 = (o.protocolVersion ?? 5) === 5;
     const opts: IClientOptions = {
-      protocolVersion: 5,
+      protocolVersion: v5 ? 5 : 4,
       clientId: o.clientId,
       clean: o.cleanStart,
-      properties: { sessionExpiryInterval: o.sessionExpiryS, receiveMaximum: o.receiveMaximum ?? 1000 },
+      ...(v5
+        ? {
+            properties: { sessionExpiryInterval: o.sessionExpiryS, receiveMaximum: o.receiveMaximum ?? 1000 },
+          }
+        : {}),
       // Reconnects are ours, with backoff and jitter (below); mqtt.js' own retry is a fixed period.
       reconnectPeriod: 0,
       connectTimeout: 10_000,

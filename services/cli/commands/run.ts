@@ -1,0 +1,170 @@
+// `reefd run [--config FILE]`: the daemon. Without a configuration: the built-in demo (embedded broker,
+// simulated fictional reef, local data folder, dashboard on http://127.0.0.1:8080 or the next free port).
+import path from 'node:path';
+import { parseArgs } from 'node:util';
+import type { DerivedRecord, ReefdConfig } from '../../../libs/contract/index.js';
+import { formatProblem } from '../../../libs/contract/index.js';
+import { loadConfigFile } from '../../config/load.js';
+import { startDaemon, type Daemon } from '../../daemon/daemon.js';
+import { prepareDemo, type DemoSetup } from '../../daemon/demo.js';
+import { startHttp, type HttpFront } from '../../daemon/http.js';
+import { createLogger, LOG_LEVELS, type Logger } from '../../log/logger.js';
+import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
+
+const HELP = `Usage: reefd run [--config FILE] [options]
+
+Runs the daemon for the site in FILE. Without --config, runs the built-in demo: an embedded
+MQTT broker, the simulated fictional Ornen Reef, the full pipeline writing to ./reefd-data/demo,
+and the dashboard on http://127.0.0.1:8080 (the next free port if that one is taken).
+
+Options:
+  --config FILE      site configuration (see reefd config check)
+  --port N           dashboard/HTTP port (overrides http.port)
+  --data DIR         demo data folder (default ./reefd-data/demo)
+  --speed X          demo simulation speed, simulated seconds per second (default 120)
+  --seed N           demo random seed (default 1)
+  --log-level LEVEL  ${LOG_LEVELS.join('|')} (default info)
+`;
+
+export const run: CommandRun = async (args, io) => {
+  let values;
+  try {
+    ({ values } = parseArgs({
+      args,
+      options: {
+        config: { type: 'string' },
+        port: { type: 'string' },
+        data: { type: 'string' },
+        speed: { type: 'string', default: '120' },
+        seed: { type: 'string', default: '1' },
+        'log-level': { type: 'string', default: 'info' },
+        help: { type: 'boolean', short: 'h' },
+      },
+    }));
+  } catch (err) {
+    io.stderr(`reefd run: ${(err as Error).message}\n\n${HELP}`);
+    return EXIT_USAGE;
+  }
+  if (values.help) {
+    io.stdout(HELP);
+    return EXIT_OK;
+  }
+  const level = values['log-level'] as (typeof LOG_LEVELS)[number];
+  if (!LOG_LEVELS.includes(level)) {
+    io.stderr(`reefd run: --log-level must be one of ${LOG_LEVELS.join(', ')}\n`);
+    return EXIT_USAGE;
+  }
+  const port = values.port === undefined ? undefined : Number(values.port);
+  if (port !== undefined && !(Number.isInteger(port) && port >= 0 && port < 65536)) {
+    io.stderr('reefd run: --port must be an integer 0-65535\n');
+    return EXIT_USAGE;
+  }
+  const logger = createLogger({ level, pretty: Boolean(process.stderr.isTTY) });
+
+  let config: ReefdConfig;
+  let baseDir: string;
+  let demo: DemoSetup | undefined;
+  if (values.config) {
+    const r = await loadConfigFile(values.config).catch((err: Error) => err);
+    if (r instanceof Error) {
+      io.stderr(`reefd run: ${r.message}\n`);
+      return EXIT_USAGE;
+    }
+    if (!r.ok) {
+      for (const p of r.problems) io.stderr(`${values.config}: ${formatProblem(p)}\n`);
+      return EXIT_USAGE;
+    }
+    config = r.config;
+    baseDir = path.dirname(path.resolve(values.config));
+  } else {
+    const speed = Number(values.speed);
+    if (!(speed > 1)) {
+      io.stderr('reefd run: --speed must be a number above 1 for the demo\n');
+      return EXIT_USAGE;
+    }
+    demo = await prepareDemo({
+      logger,
+      dataDir: path.resolve(values.data ?? path.join('reefd-data', 'demo')),
+      speed,
+      backfillHours: 24,
+      seed: Number(values.seed),
+      httpPort: port ?? 8080,
+    });
+    config = demo.config;
+    baseDir = process.cwd();
+  }
+
+  let http: HttpFront | undefined;
+  const pending: DerivedRecord[][] = [];
+  let daemon: Daemon;
+  try {
+    daemon = await startDaemon({
+      config,
+      baseDir,
+      logger,
+      env: io.env,
+      ...(demo ? { mqttProtocolVersion: 4 as const } : {}),
+      onRecords: (records) => {
+        if (http) http.publish(records);
+        else pending.push([...records]);
+      },
+    });
+  } catch (err) {
+    logger.fatal(
+      { err: (err as Error).message, code: (err as { code?: string }).code },
+      'reefd could not start',
+    );
+    await demo?.broker.close();
+    return EXIT_FAILURE;
+  }
+  try {
+    http = await startHttp({
+      config,
+      daemon,
+      logger,
+      baseDir,
+      env: io.env,
+      ...(port !== undefined ? { port } : {}),
+      tryNextPorts: demo !== undefined || port === undefined,
+    });
+  } catch (err) {
+    logger.fatal({ err: (err as Error).message }, 'reefd could not open its HTTP port');
+    await daemon.stop('http failed');
+    await demo?.broker.close();
+    return EXIT_FAILURE;
+  }
+  for (const batch of pending.splice(0)) http.publish(batch);
+  logger.info({ url: http.url }, 'dashboard listening');
+  if (demo) io.stderr(`\nreefd demo: open ${http.url} in a browser (Ctrl-C to stop)\n\n`);
+
+  const abort = new AbortController();
+  const simulation = demo
+    ?.simulate(abort.signal)
+    .catch((err: unknown) => logger.error({ err: (err as Error).message }, 'simulator stopped'));
+
+  await new Promise<void>((resolve) => {
+    const onSignal = (sig: string) => {
+      logger.info({ signal: sig }, 'signal received');
+      resolve();
+    };
+    process.once('SIGTERM', () => onSignal('SIGTERM'));
+    process.once('SIGINT', () => onSignal('SIGINT'));
+  });
+  // Hard bound on shutdown: whatever hangs, the process is gone within 10 s.
+  const killer = setTimeout(() => {
+    logger.error('shutdown took longer than 10 s; exiting');
+    process.exit(1);
+  }, 10_000);
+  killer.unref();
+  abort.abort();
+  await simulation;
+  await daemon.stop('signal');
+  await http.close();
+  await demo?.broker.close();
+  await flushLogger(logger);
+  return EXIT_OK;
+};
+
+function flushLogger(logger: Logger): Promise<void> {
+  return new Promise((r) => logger.flush(() => r()));
+}

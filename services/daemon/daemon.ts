@@ -1,0 +1,345 @@
+// The daemon: wires sources, archive, processor, sinks, dashboard and notifier, checkpoints the processor,
+// and shuts down in order on SIGTERM (stop intake, flush, checkpoint) within 10 s.
+import { mkdir } from 'node:fs/promises';
+import path from 'node:path';
+import type { DerivedRecord, ReefdConfig, SecretRef } from '../../libs/contract/index.js';
+import { createProcessor, type Processor } from '../../libs/processor/index.js';
+import { createArchiveWriter, type RawArchiveWriter } from '../archive/index.js';
+import { resolveSecret } from '../config/load.js';
+import type { Logger } from '../log/logger.js';
+import { alertsStateDir, channelsFromConfig, createNotifier, type Notifier } from '../notifiers/index.js';
+import type { DeadLetterSink, RecordSink, Source } from '../pipeline/types.js';
+import {
+  createDeadLetterSink,
+  createInfluxSink,
+  createKafkaSink,
+  createNdjsonSink,
+  type TlsFiles,
+} from '../sinks/index.js';
+import { createKafkaSource, createMqttSource } from '../sources/index.js';
+import { readCheckpoint, writeCheckpoint } from './checkpoint.js';
+import { createMetrics, type DaemonMetrics } from './metrics.js';
+import { createPipeline, type Pipeline } from './pipeline.js';
+import { replayArchiveTail } from './resume.js';
+import { createSystemdNotifier } from './systemd.js';
+
+/** The checkpoint: the processor state plus the receive time of the last message it covers. */
+type Checkpointed = ReturnType<Processor['snapshot']> & { lastRxMs?: number };
+
+export interface DaemonOptions {
+  config: ReefdConfig;
+  /** Folder that relative paths in the configuration are relative to. */
+  baseDir: string;
+  logger: Logger;
+  env: Readonly<Record<string, string | undefined>>;
+  /** MQTT protocol version for the source (5 for Mosquitto; the embedded demo broker speaks 4). */
+  mqttProtocolVersion?: 4 | 5;
+  /** Extra record consumers (the dashboard). */
+  onRecords?: (records: readonly DerivedRecord[]) => void;
+  checkpointEveryMs?: number;
+  metrics?: DaemonMetrics;
+}
+
+export interface Daemon {
+  readonly processor: Processor;
+  readonly pipeline: Pipeline;
+  readonly metrics: DaemonMetrics;
+  readonly notifier: Notifier | undefined;
+  readonly dataDir: string;
+  ready(): boolean;
+  /** Everything the HTTP layer shows at /readyz. */
+  status(): Record<string, unknown>;
+  checkpoint(): Promise<void>;
+  stop(reason?: string): Promise<void>;
+}
+
+export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
+  const { config, logger } = o;
+  const dataDir = path.resolve(o.baseDir, config.data_dir);
+  await mkdir(dataDir, { recursive: true });
+  const secret = async (ref: SecretRef | undefined) =>
+    ref ? resolveSecret(ref, o.env, o.baseDir) : undefined;
+  const metrics = o.metrics ?? createMetrics();
+  const checkpointFile = path.join(dataDir, 'checkpoint.json');
+
+  // 1. The processor, resumed from its checkpoint.
+  const cp = await readCheckpoint(checkpointFile);
+  if (cp.warning) logger.warn({ code: cp.warning.code }, cp.warning.message);
+  const saved = cp.state as Checkpointed | undefined;
+  const processor = createProcessor(config, saved);
+
+  // 2. The raw archive, and the lines it holds that the checkpoint has not seen (a crash after the last
+  //    checkpoint): they are fed to the processor again so the windows resume where they were.
+  const archiveDir = path.resolve(o.baseDir, config.archive.dir ?? path.join(dataDir, 'archive'));
+  const archive: RawArchiveWriter = await createArchiveWriter({
+    dir: archiveDir,
+    fsyncMs: config.archive.fsync_ms,
+    retentionDays: config.archive.retention_days,
+    clock: Date.now,
+    logger,
+  });
+
+  // 3. Outputs.
+  const sinks: RecordSink[] = [];
+  const out = config.outputs;
+  if (out.ndjson)
+    sinks.push(await createNdjsonSink({ name: 'ndjson', path: path.resolve(o.baseDir, out.ndjson.path) }));
+  if (out.influx) {
+    const i = out.influx;
+    sinks.push(
+      await createInfluxSink({
+        name: `influx-${i.api}`,
+        url: i.url,
+        api: i.api,
+        org: i.org,
+        bucket: i.bucket,
+        db: i.db,
+        token: await secret(i.token),
+        username: i.username,
+        password: await secret(i.password),
+        tls: tlsFiles(o.baseDir, i.tls),
+        batchSize: i.batch_size,
+        flushMs: i.flush_ms,
+        spoolDir: path.join(dataDir, 'spool', 'influx'),
+        spoolMaxMb: i.spool_max_mb,
+        logger,
+        onNearLimit: (s) => spoolNear('influx', s.spoolBytes, s.maxBytes),
+      }),
+    );
+  }
+  if (out.kafka) {
+    const k = out.kafka;
+    sinks.push(
+      await createKafkaSink({
+        brokers: k.brokers,
+        clientId: k.client_id,
+        topic: k.topic,
+        tls: tlsFiles(o.baseDir, k.tls),
+        sasl: k.sasl
+          ? {
+              mechanism: k.sasl.mechanism,
+              username: k.sasl.username,
+              password: (await secret(k.sasl.password)) ?? '',
+            }
+          : undefined,
+        spoolDir: path.join(dataDir, 'spool', 'kafka'),
+        spoolMaxMb: 512,
+        logger,
+      }),
+    );
+  }
+  const deadLetter: DeadLetterSink = await createDeadLetterSink({
+    path: path.resolve(o.baseDir, out.dead_letter?.path ?? path.join(dataDir, 'dead-letter.ndjson')),
+    maxPerMin: out.dead_letter?.max_per_min ?? 600,
+    clock: Date.now,
+    logger,
+  });
+
+  // 4. Alert delivery: a durable outbox in the data folder.
+  let notifier: Notifier | undefined;
+  if (config.notify) {
+    const channels = await channelsFromConfig(config.notify, { site: config.site, env: o.env });
+    notifier = createNotifier({
+      dir: alertsStateDir(dataDir),
+      site: config.site,
+      channels,
+      onError: (err, channelId) =>
+        logger.warn({ channel: channelId, err: (err as Error).message }, 'notification failed; retrying'),
+    });
+    await notifier.start();
+  }
+
+  function spoolNear(sink: string, bytes: number, max: number) {
+    logger.warn(
+      { sink, spoolBytes: bytes, maxBytes: max, code: 'REEFD_SPOOL_NEAR_LIMIT' },
+      'spool near its bound',
+    );
+    const alert = operationalAlert('spool_near_limit', bytes, max, sink);
+    o.onRecords?.([alert]);
+    void notifier?.enqueue(alert as never);
+  }
+
+  function operationalAlert(rule: string, value: number, limit: number, sensor?: string): DerivedRecord {
+    return {
+      type: 'alert',
+      site: config.site,
+      t: new Date().toISOString(),
+      rule: `reefd.${rule}`,
+      class: 'fault',
+      state: 'raised',
+      value,
+      limit,
+      ...(sensor !== undefined ? { sensor } : {}),
+      severity: 'critical',
+      id: `reefd.${rule}.${Date.now()}`,
+    } as DerivedRecord;
+  }
+
+  let diskFullSince = 0;
+  const pipeline = createPipeline({
+    config,
+    processor,
+    archive,
+    sinks,
+    deadLetter,
+    metrics,
+    logger,
+    onRecords: (records) => {
+      o.onRecords?.(records);
+      if (notifier) for (const r of records) if (r.type === 'alert') void notifier.enqueue(r as never);
+    },
+    onArchiveError: (err) => {
+      if ((err as { code?: string }).code === 'REEFD_DISK_FULL' && Date.now() - diskFullSince > 10 * 60_000) {
+        diskFullSince = Date.now();
+        const a = operationalAlert('disk_full', 0, 0);
+        o.onRecords?.([a]);
+        void notifier?.enqueue(a as never);
+      }
+    },
+  });
+
+  const resumed = await replayArchiveTail(archiveDir, saved?.lastRxMs, config, processor);
+  if (resumed.lines > 0) {
+    logger.info(
+      { lines: resumed.lines, records: resumed.records.length },
+      'resumed the windows from the archive tail',
+    );
+    for (const s of sinks) s.write(resumed.records);
+  }
+  let lastRxMs = resumed.lastRxMs;
+
+  // 5. Sources.
+  const sources: Source[] = [];
+  const src = config.sources;
+  if (src?.mqtt) {
+    const m = src.mqtt;
+    sources.push(
+      createMqttSource({
+        url: m.url,
+        clientId: m.client_id,
+        username: m.username,
+        password: await secret(m.password),
+        tls: tlsFiles(o.baseDir, m.tls),
+        cleanStart: m.clean_start,
+        sessionExpiryS: m.session_expiry_s,
+        topicPrefix: config.topic_prefix,
+        site: config.site,
+        logger,
+        ...(o.mqttProtocolVersion !== undefined ? { protocolVersion: o.mqttProtocolVersion } : {}),
+      }),
+    );
+  }
+  if (src?.kafka) {
+    const k = src.kafka;
+    sources.push(
+      createKafkaSource({
+        brokers: k.brokers,
+        clientId: k.client_id,
+        groupId: k.group_id,
+        topic: k.topic,
+        topicPrefix: config.topic_prefix,
+        tls: tlsFiles(o.baseDir, k.tls),
+        sasl: k.sasl
+          ? {
+              mechanism: k.sasl.mechanism,
+              username: k.sasl.username,
+              password: (await secret(k.sasl.password)) ?? '',
+            }
+          : undefined,
+        logger,
+      }),
+    );
+  }
+
+  const push = (input: Parameters<Pipeline['handle']>[0]) => {
+    if (lastRxMs === undefined || input.rxMs > lastRxMs) lastRxMs = input.rxMs;
+    void pipeline.handle(input);
+  };
+  for (const s of sources) await s.start(push);
+
+  const systemd = createSystemdNotifier(process.env);
+  let lastBeat = Date.now();
+  const beat = setInterval(() => (lastBeat = Date.now()), 1000);
+  beat.unref();
+  systemd.startWatchdog(() => Date.now() - lastBeat < 10_000);
+  systemd.ready();
+
+  async function checkpoint(): Promise<void> {
+    // Flush first, so the checkpoint covers exactly the lines on disk (the cursor counts appended lines).
+    await archive.flush();
+    const state: Checkpointed = processor.snapshot();
+    if (lastRxMs !== undefined) state.lastRxMs = lastRxMs;
+    await writeCheckpoint(checkpointFile, state);
+  }
+  const cpTimer = setInterval(() => {
+    checkpoint().catch((err: unknown) => logger.error({ err: (err as Error).message }, 'checkpoint failed'));
+  }, o.checkpointEveryMs ?? 30_000);
+  cpTimer.unref();
+  const spoolTimer = setInterval(() => {
+    for (const s of sinks) metrics.spoolBytes.set({ sink: s.name }, s.stats().spoolBytes ?? 0);
+  }, 5000);
+  spoolTimer.unref();
+
+  let stopping: Promise<void> | undefined;
+  async function stop(reason = 'stop'): Promise<void> {
+    stopping ??= (async () => {
+      logger.info({ reason }, 'stopping: intake first, then flush and checkpoint');
+      systemd.stopping();
+      clearInterval(cpTimer);
+      clearInterval(spoolTimer);
+      clearInterval(beat);
+      await Promise.allSettled(sources.map((s) => s.stop()));
+      const deadline = new Promise<void>((r) => setTimeout(r, 7000).unref());
+      await Promise.race([
+        Promise.allSettled([archive.flush(), ...sinks.map((s) => s.flush()), deadLetter.flush()]),
+        deadline,
+      ]);
+      try {
+        await checkpoint();
+      } catch (err) {
+        logger.error({ err: (err as Error).message }, 'final checkpoint failed');
+      }
+      await Promise.race([
+        Promise.allSettled([
+          ...sinks.map((s) => s.close()),
+          deadLetter.close(),
+          archive.close(),
+          notifier?.stop(),
+        ]),
+        deadline,
+      ]);
+      systemd.close();
+      logger.info({ stats: pipeline.stats() }, 'stopped');
+    })();
+    return stopping;
+  }
+
+  return {
+    processor,
+    pipeline,
+    metrics,
+    notifier,
+    dataDir,
+    ready: () => sources.every((s) => s.connected()),
+    status: () => ({
+      sources: Object.fromEntries(sources.map((s) => [s.name, s.connected()])),
+      sinks: Object.fromEntries(sinks.map((s) => [s.name, s.stats()])),
+      watermark: new Date(processor.watermarkMs()).toISOString(),
+      pipeline: pipeline.stats(),
+    }),
+    checkpoint,
+    stop,
+  };
+}
+
+/** TLS file names of the configuration, resolved against the configuration's folder. */
+function tlsFiles(baseDir: string, tls: TlsFiles | undefined): TlsFiles | undefined {
+  if (!tls) return undefined;
+  const r = (f: string | undefined) => (f ? path.resolve(baseDir, f) : undefined);
+  return {
+    ca_file: r(tls.ca_file),
+    cert_file: r(tls.cert_file),
+    key_file: r(tls.key_file),
+    verify: tls.verify,
+  };
+}
