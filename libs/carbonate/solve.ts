@@ -245,7 +245,9 @@ export function solveWithConstants(
     }
     phS = phOut;
   }
-  fillState(cOut, taS, dicS, phS, tp, tsi, baro, state);
+  // A pCO2 input at unchanged conditions is its own output: skip the fCO2 -> pCO2 inversion.
+  const knownPco2 = cOut === cIn && input.pco2Uatm !== undefined ? input.pco2Uatm : NaN;
+  fillState(cOut, taS, dicS, phS, tp, tsi, baro, state, knownPco2);
   for (let i = 0; i < STATE_LENGTH; i++) {
     if (!Number.isFinite(state[i]!)) {
       return fail(

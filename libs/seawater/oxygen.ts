@@ -45,12 +45,12 @@ export function scaledTemperature(tempC: number): number {
 /** ln O2* of one fit. */
 function lnSolubility(k: GarciaGordonCoefficients, salinity: number, tempC: number): number {
   const ts = scaledTemperature(tempC);
-  const [a0, a1, a2, a3, a4, a5] = k.a;
-  const [b0, b1, b2, b3] = k.b;
+  const a = k.a;
+  const b = k.b;
   return (
-    a0 +
-    ts * (a1 + ts * (a2 + ts * (a3 + ts * (a4 + ts * a5)))) +
-    salinity * (b0 + ts * (b1 + ts * (b2 + ts * b3))) +
+    a[0] +
+    ts * (a[1] + ts * (a[2] + ts * (a[3] + ts * (a[4] + ts * a[5])))) +
+    salinity * (b[0] + ts * (b[1] + ts * (b[2] + ts * b[3]))) +
     k.c0 * salinity * salinity
   );
 }
@@ -142,8 +142,8 @@ export function recompensateO2Salinity(
   fit: GarciaGordonCoefficients = GG92_COMBINED_ML_L,
 ): number {
   const ts = scaledTemperature(tempC);
-  const [b0, b1, b2, b3] = fit.b;
-  const bTerm = b0 + ts * (b1 + ts * (b2 + ts * b3));
+  const b = fit.b;
+  const bTerm = b[0] + ts * (b[1] + ts * (b[2] + ts * b[3]));
   return (
     o2AtSetting *
     Math.exp((salinity - salSetting) * bTerm + fit.c0 * (salinity * salinity - salSetting * salSetting))

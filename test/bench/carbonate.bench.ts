@@ -1,10 +1,14 @@
 // Benchmark: carbonate solves per second (TA + pCO2, one core) against PyCO2SYS 1.8.3.4 on the same grid,
 // measured in the same run (issue 3 goal: >= 20x PyCO2SYS and > 1e6 solves/s).
-// Run: npx tsx test/bench/carbonate.bench.ts [N]. Needs the reference venv for the baseline
-// (REEFD_REFERENCE_PYTHON, default .cache/venv/bin/python); without it only our rates are printed.
+// Run: npx tsx test/bench/carbonate.bench.ts [N] (or npm run bench carbonate). Needs the reference venv
+// for the baseline (REEFD_VENV_PYTHON, default .cache/venv/bin/python); without it only our rates print.
+// Rates are given by wall clock and by this process's CPU time: on a shared 2-core machine the CPU-time
+// figure is the one-core rate; the ratio is taken on like terms (PyCO2SYS's process time likewise).
 
 import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import {
   createConstants,
   equilibriumConstantsInto,
@@ -97,10 +101,13 @@ const api = best('solveCarbonate (object API, constants each call)', () => {
   return sum / n;
 });
 
-const python = process.env.REEFD_REFERENCE_PYTHON ?? '.cache/venv/bin/python';
-const script = new URL('./carbonate_pyco2sys_timing.py', import.meta.url).pathname;
+const repo = fileURLToPath(new URL('../..', import.meta.url));
+const python = process.env.REEFD_VENV_PYTHON ?? path.join(repo, '.cache/venv/bin/python');
+const script = fileURLToPath(new URL('./carbonate_pyco2sys_timing.py', import.meta.url));
 if (!existsSync(python)) {
-  console.log(`PyCO2SYS baseline skipped: ${python} not found (set REEFD_REFERENCE_PYTHON)`);
+  console.log(
+    `PyCO2SYS baseline skipped: ${python} not found (deploy/dev/venv.sh makes it, or set REEFD_VENV_PYTHON)`,
+  );
 } else {
   // One thread for the baseline too (numpy's elementwise work is single-threaded; BLAS is pinned anyway).
   const env = { ...process.env, OMP_NUM_THREADS: '1', OPENBLAS_NUM_THREADS: '1', MKL_NUM_THREADS: '1' };
