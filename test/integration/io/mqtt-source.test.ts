@@ -31,8 +31,9 @@ async function dropSession(clientId: string): Promise<void> {
   await c.endAsync();
 }
 
-function source(prefix: string, clientId: string): MqttSource {
+function source(prefix: string, clientId: string, protocolVersion: 4 | 5 = 5): MqttSource {
   return createMqttSource({
+    protocolVersion,
     url: MQTT_URL,
     clientId,
     cleanStart: false,
@@ -119,5 +120,28 @@ describe('MQTT source (Mosquitto)', () => {
     expect(again.unacked()).toBe(0);
     await again.stop();
     await dropSession(clientId);
+  });
+
+  it('holds PUBACKs the same way over MQTT 3.1.1 (protocolVersion 4, e.g. for the embedded demo broker)', async () => {
+    const prefix = `reefd-it-${randomSuffix()}`;
+    const clientId = `reefd-it-${randomSuffix()}`;
+    const a = source(prefix, clientId, 4);
+    const gotA: RawInput[] = [];
+    await a.start((m) => gotA.push(m));
+    await new Promise((r) => setTimeout(r, 200));
+    await publish(`${prefix}/demo-reef/crest/ctd/c1`, ['{"seq":1}', '{"seq":2}']);
+    await pollUntil('2 messages over 3.1.1', async () => (gotA.length === 2 ? true : undefined), 10_000);
+    gotA[0]?.ack();
+    await a.stop();
+    const b = source(prefix, clientId, 4);
+    const gotB: RawInput[] = [];
+    await b.start((m) => gotB.push(m));
+    await pollUntil('redelivery over 3.1.1', async () => (gotB.length >= 1 ? true : undefined), 10_000);
+    await new Promise((r) => setTimeout(r, 300));
+    expect(gotB.map((m) => Buffer.from(m.payload).toString())).toEqual(['{"seq":2}']);
+    gotB[0]?.ack();
+    await b.stop();
+    const c = await mqtt.connectAsync(MQTT_URL, { protocolVersion: 4, clientId, clean: true });
+    await c.endAsync();
   });
 });
