@@ -180,7 +180,13 @@ export type CarbonateUncertaintyResult =
       value: CarbonateSolution;
       /** One standard uncertainty per output (same units). */
       sigma: Record<UncertainOutput, number>;
-      /** Each source's share of the variance of each output, sigma_i^2 (same units squared). */
+      /** Each source's share of the variance of each output, (J_i sigma_i)^2 (same units squared). */
       contributions: Record<string, Record<UncertainOutput, number>>;
+      /**
+       * Signed sensitivities dy/dx_i per source (per unit of the source: umol/kg, uatm, degC, pK unit, or
+       * relative BT). For station differences, which share constants, propagate the Jacobian of the
+       * difference with these (science spec 9.1), not the difference of the sigmas.
+       */
+      jacobian: Record<string, Record<UncertainOutput, number>>;
     }
   | CarbonateFailure;

@@ -57,4 +57,15 @@ describe('carbonateUncertainty (science spec 9.1)', () => {
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.code).toBe('REEFD_CARBONATE_NO_ROOT');
   });
+
+  it('jacobian: signed sensitivities; dpH/dpK1 is about +1 at TA + pCO2 (pH tracks pK1), dpH/dTA > 0', () => {
+    const r = carbonateUncertainty(base, { taUmolKg: 5, pco2Uatm: 2 });
+    if (!r.ok) throw new Error(r.reason);
+    // K' = K 10^-dpK: a larger pK1 (weaker acid) at fixed CO2* and TA raises pH, by less than one unit.
+    expect(r.jacobian.pK1!.phTotal).toBeGreaterThan(0.5);
+    expect(r.jacobian.pK1!.phTotal).toBeLessThan(1);
+    expect(r.jacobian.taUmolKg!.phTotal).toBeGreaterThan(0);
+    expect(r.jacobian.pco2Uatm!.phTotal).toBeLessThan(0);
+    expect(r.jacobian.taUmolKg!.phTotal ** 2 * 25).toBeCloseTo(r.contributions.taUmolKg!.phTotal, 15);
+  });
 });

@@ -135,6 +135,7 @@ export function carbonateUncertainty(
 
   const sigma = zeroRecord();
   const contributions: Record<string, Record<UncertainOutput, number>> = {};
+  const jacobian: Record<string, Record<UncertainOutput, number>> = {};
   const plus = new Float64Array(STATE_LENGTH);
   const minus = new Float64Array(STATE_LENGTH);
   const mid = new Float64Array(STATE_LENGTH);
@@ -158,17 +159,20 @@ export function carbonateUncertainty(
       };
     }
     const contrib = zeroRecord();
+    const jrow = zeroRecord();
     for (const out of UNCERTAIN_OUTPUTS) {
       const i = STATE_OF[out];
       const jac = (hi[i]! - lo[i]!) / width;
       const v = jac * src.sigma;
+      jrow[out] = jac;
       contrib[out] = v * v;
       sigma[out] += v * v;
     }
     contributions[src.name] = contrib;
+    jacobian[src.name] = jrow;
   }
   for (const out of UNCERTAIN_OUTPUTS) sigma[out] = Math.sqrt(sigma[out]);
-  return { ok: true, flag: central.flag, value: central, sigma, contributions };
+  return { ok: true, flag: central.flag, value: central, sigma, contributions, jacobian };
 }
 
 function zeroRecord(): Record<UncertainOutput, number> {
