@@ -14,6 +14,7 @@ import {
   equilibriumConstantsInto,
   resolveCarbonateOptions,
   solveCarbonate,
+  solveTaDicInto,
   solveTaPco2Into,
   STATE,
   STATE_LENGTH,
@@ -83,6 +84,18 @@ const solveOnly = best('solve only, fixed constants (solveTaPco2Into)', () => {
   let sum = 0;
   for (let i = 0; i < n; i++) {
     solveTaPco2Into(c, ta[i]!, pco2[i]!, state);
+    sum += state[STATE.ph]!;
+  }
+  return sum / n;
+});
+
+// 2b. TA + DIC at fixed constants (the output-conditions step and the Revelle-free re-solve).
+const dicGrid = new Float64Array(n);
+for (let i = 0; i < n; i++) dicGrid[i] = ta[i]! * (0.8 + (0.15 * ((i * 7919) % 997)) / 996);
+best('solve only, TA + DIC (solveTaDicInto)', () => {
+  let sum = 0;
+  for (let i = 0; i < n; i++) {
+    solveTaDicInto(c, ta[i]!, dicGrid[i]!, state);
     sum += state[STATE.ph]!;
   }
   return sum / n;
