@@ -273,7 +273,10 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
       const out: AlertRecord[] = [];
       if (!Number.isFinite(tMs)) return out;
       const qc: QcInfo = typeof flag === 'number' ? { flag } : flag;
+      // A sample failing the timing test (stamped ahead of its receipt: a clock fault) or dropped as a duplicate
+      // says nothing trustworthy about when the sensor last spoke.
       if (
+        qc.tests?.timing !== 4 &&
         sensor !== undefined &&
         rules.faults.stale.enabled &&
         inScope(rules.faults.stale, station, sensor)

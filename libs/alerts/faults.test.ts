@@ -46,6 +46,18 @@ describe('stale (contract: no message for 3 x the usual interval, at least 5 min
     expect(e.advance(T0 + 91 * MIN)).toMatchObject([{ t: at(T0 + 90 * MIN), limit: 1800 }]);
   });
 
+  it('ignores sample times that failed the timing test (a clock running ahead)', () => {
+    const e = createAlertEngine(undefined, 'demo-reef');
+    const qc = createQcState('temp_c');
+    for (let i = 0; i < 5; i++) {
+      const t = T0 + i * MIN;
+      e.observe('ctd.temp_c', 'crest', 'ctd', t, 27, qcUpdate(qc, t, 27, t));
+    }
+    const ahead = T0 + 5 * MIN + 3_600_000; // stamped an hour ahead of its receipt
+    e.observe('ctd.temp_c', 'crest', 'ctd', ahead, 27, qcUpdate(qc, ahead, 27, T0 + 5 * MIN));
+    expect(e.advance(T0 + 20 * MIN)).toMatchObject([{ rule: 'stale', t: at(T0 + 9 * MIN) }]);
+  });
+
   it('ten sensors going silent at once give ten records from one advance, in a stable order', () => {
     const e = createAlertEngine(undefined, 'demo-reef');
     for (let s = 9; s >= 0; s--)
