@@ -17,7 +17,7 @@ import {
   TRACERS,
   type Water,
 } from './chemistry.js';
-import { forwardDownstreamInterim } from './forward-interim.js';
+import { forwardDownstream, forwardSteady, forwardWithStorage } from '../metabolism/index.js';
 import { crossReef, depthLimitedHrmsM, type CrossReefState } from './hydro.js';
 import type { Rng } from './prng.js';
 import {
@@ -217,29 +217,50 @@ export class ReefModel {
       } satisfies Record<keyof Water, number>;
     };
 
+    const baroHpa = this.#baro.at(tS);
+    const station = (w: Water) => ({
+      tempC: w.tempC,
+      salinity: w.sal,
+      o2UmolKg: w.o2UmolKg,
+      taUmolKg: w.taUmolKg,
+      dicUmolKg: w.dicUmolKg,
+    });
+    // One flat segment: heat and salt by the budget algebra of science 6.4, O2, TA and DIC (and so pCO2)
+    // by libs/metabolism's forward model of the same budget, with wind-driven air-sea exchange.
     const segment = (
       up: Water,
-      upPrev: Water,
-      downPrev: Water,
+      before: { up: Water; down: Water } | undefined,
       h: number,
       u: number,
       len: number,
       m: { ncpMmolM2H: number; necMmolM2H: number },
     ): Water => {
       const q = sources(up, h, m);
-      const out = copyWater(up);
-      for (const tr of TRACERS) {
-        out[tr] = forwardDownstreamInterim({
-          cUp: up[tr],
-          cUpPrev: upPrev[tr],
-          cDownPrev: downPrev[tr],
-          qPerS: q[tr],
-          uMS: u,
-          lengthM: len,
-          windowS: W,
-        });
-      }
-      return out;
+      const carry = (tr: 'tempC' | 'sal') =>
+        before
+          ? forwardWithStorage(up[tr], before.up[tr], before.down[tr], q[tr], u, len, W)
+          : forwardSteady(up[tr], q[tr], u, len);
+      const tempC = carry('tempC');
+      const sal = carry('sal');
+      const f = forwardDownstream({
+        up: station(up),
+        downTempC: tempC,
+        downSalinity: sal,
+        ncpMmolM2H: m.ncpMmolM2H,
+        necMmolM2H: m.necMmolM2H,
+        pq: 1,
+        uMS: u,
+        depthM: h,
+        lengthM: len,
+        baroHpa,
+        airSea: { kind: 'wind', windMS: wind, windHeightM: windHeight, xco2AirPpm: 424 },
+        ...(before ? { previous: { dtS: W, up: station(before.up), down: station(before.down) } } : {}),
+      });
+      if (!f.ok)
+        throw new Error(
+          `REEFD_SIMULATOR_FORWARD: ${f.reason}; the reef model left the carbonate solver's range`,
+        );
+      return { tempC, sal, o2UmolKg: f.o2UmolKg, taUmolKg: f.taUmolKg, dicUmolKg: f.dicUmolKg };
     };
 
     const frontDepth = depth.crest + 1.5; // spur-and-groove front, ~1.5 m deeper than the crest (fictional)
@@ -249,41 +270,31 @@ export class ReefModel {
     const outer = communityRates(par, hOuter, FLAT_COMMUNITY, prod);
     const inner = communityRates(par, hInner, FLAT_COMMUNITY, prod);
     const prev = this.#prev;
-    let crest: Water;
-    let flatW: Water;
-    let back: Water;
-    if (prev === undefined) {
-      // First step: steady form (storage zero), iterated from the offshore water.
-      const steady = (up: Water, h: number, u: number, len: number, m: typeof outer) => {
-        const q = sources(up, h, m);
-        const out = copyWater(up);
-        for (const tr of TRACERS) out[tr] = up[tr] + (q[tr] * len) / u;
-        return out;
-      };
-      crest = steady(off, frontDepth, flow.qM2S / frontDepth, L.frontToCrestM, frontRates);
-      flatW = steady(crest, hOuter, flow.uFlatMS, L.crestToFlatM, outer);
-      back = steady(flatW, hInner, flow.uBackMS, L.flatToBackM, inner);
-    } else {
-      crest = segment(
-        off,
-        prev.front,
-        prev.crest,
-        frontDepth,
-        flow.qM2S / frontDepth,
-        L.frontToCrestM,
-        frontRates,
-      );
-      flatW = segment(crest, prev.crest, prev.flat, hOuter, flow.uFlatMS, L.crestToFlatM, outer);
-      back = segment(
-        flatW,
-        prev.flat,
-        prev.back,
-        hInner,
-        (flow.uFlatMS + flow.uBackMS) / 2,
-        L.flatToBackM,
-        inner,
-      );
-    }
+    // The first step has no previous window: the steady form (science 6.4).
+    const crest = segment(
+      off,
+      prev && { up: prev.front, down: prev.crest },
+      frontDepth,
+      flow.qM2S / frontDepth,
+      L.frontToCrestM,
+      frontRates,
+    );
+    const flatW = segment(
+      crest,
+      prev && { up: prev.crest, down: prev.flat },
+      hOuter,
+      flow.uFlatMS,
+      L.crestToFlatM,
+      outer,
+    );
+    const back = segment(
+      flatW,
+      prev && { up: prev.flat, down: prev.back },
+      hInner,
+      (flow.uFlatMS + flow.uBackMS) / 2,
+      L.flatToBackM,
+      inner,
+    );
     this.#prev = { front: off, crest, flat: flatW, back };
 
     // Lagoon: a well-mixed box fed by the back-reef water, flushed through the channel.
