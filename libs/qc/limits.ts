@@ -161,6 +161,9 @@ export const DEFAULT_QC_LIMITS: Readonly<Record<string, QcLimits>> = Object.free
     flatLine: flat(0.01, 6, 12),
     maxGapMs: 3 * HOUR_MS,
   },
+  // ADCP total tilt acos(cos p cos r), degrees (science.md 5.4: 3 above 10 deg, 4 above 20 deg). Feeding it through
+  // gross range turns a frame that fell over into a `range` fault alert. Compute it with adcpTilt().
+  tilt_deg: { sensor: { min: 0, max: 20 }, user: { max: 10 }, maxGapMs: 3 * HOUR_MS },
   // Not in 7.3: supply voltage plausibility only; low-voltage alerts are the alert engine's `battery` rule.
   battery_v: { sensor: { min: 0, max: 30 }, user: {}, maxGapMs: 3 * HOUR_MS },
 } satisfies Record<string, QcLimits>);

@@ -138,6 +138,13 @@ describe('qcUpdate: rate of change, flat line, attenuated signal, timing', () =>
     expect(qcUpdate(s, T0 + 6 * MIN, 50, T0 + 6 * MIN + 2000).flag).toBe(1);
   });
 
+  it('ADCP tilt through gross range: 3 above 10 deg, 4 above 20 deg (science.md 5.4)', () => {
+    const s = createQcState('tilt_deg');
+    expect(qcUpdate(s, T0, 4.2).flag).toBe(1);
+    expect(qcUpdate(s, T0 + MIN, 12).flag).toBe(3);
+    expect(qcUpdate(s, T0 + 2 * MIN, 87).flag).toBe(4); // the frame lies on its side
+  });
+
   it('unknown variables need explicit limits', () => {
     expect(() => createQcState('no_such_var')).toThrow(/REEFD_QC_UNKNOWN_VARIABLE/);
   });
