@@ -40,7 +40,8 @@ export interface Timers {
 export interface NotifierOptions {
   /** Folder of outbox.jsonl and acks.jsonl (alertsStateDir(dataDir) for the daemon). */
   readonly dir: string;
-  readonly site: string;
+  /** Site id for message subjects; default the `site` of the queued records. */
+  readonly site?: string;
   readonly channels: readonly Channel[];
   readonly clock?: Clock;
   readonly timers?: Timers;
@@ -193,8 +194,8 @@ export function createNotifier(o: NotifierOptions): Notifier {
     // A digest covers at most MAX_DIGEST_ITEMS, so a long outage drains in bounded messages.
     const messages: NotificationMessage[] =
       items.length >= digestThreshold
-        ? [digestMessage(o.site, items.slice(0, MAX_DIGEST_ITEMS))]
-        : groupItems(items).map((g) => groupMessage(o.site, g));
+        ? [digestMessage(o.site ?? first.alert.site, items.slice(0, MAX_DIGEST_ITEMS))]
+        : groupItems(items).map((g) => groupMessage(o.site ?? first.alert.site, g));
     for (const m of messages) {
       if (cs.tokens < 1) return; // rate limited: stays queued; a later pass may fold it into a digest
       try {
