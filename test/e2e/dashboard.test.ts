@@ -107,6 +107,11 @@ describe('dashboard in the browser', () => {
     // Overview: every station placed on the schematic and listed with its freshness.
     expect(await page.locator('#map g.station').count()).toBe(Object.keys(config.stations).length);
     expect(await page.locator('#station-list li[data-fresh="ok"]').count()).toBeGreaterThanOrEqual(5);
+    for (const k of ['Lowest O₂', 'Lowest Ω arag', 'Highest pCO₂', 'Biggest waves']) {
+      expect(await page.locator(`#site-now [data-now="${k}"] .v`).innerText()).toMatch(
+        /^\d+(\.\d+)?( \S+)*$/,
+      );
+    }
     // Station panels: each metric tile has a number and a plot.
     for (const [station, metrics] of Object.entries({
       crest: ['pco2_uatm', 'o2_mg_l', 'omega_ar', 'ph_total', 'temp_c', 'hm0_m', 'speed_m_s'],

@@ -130,9 +130,45 @@ function renderOverview() {
       ),
     );
   }
+  renderSiteNow();
   const live = document.getElementById('live-text');
   if (document.getElementById('live').dataset.state === 'live')
     live.textContent = `live · data to ${dateTimeUtc(new Date(state.latestMs).toISOString())} UTC`;
+}
+
+/** Extremes across the site right now: the numbers a person on the boat asks for first. */
+function renderSiteNow() {
+  const pick = (type, key, better) => {
+    let best;
+    for (const s of state.site.stations) {
+      const r = last(type, s.id);
+      const v = r?.[key];
+      if (typeof v === 'number' && (best === undefined || better(v, best.v))) best = { v, s };
+    }
+    return best;
+  };
+  const lo = (a, b) => a < b;
+  const hi = (a, b) => a > b;
+  const items = [
+    ['Lowest O₂', pick('oxygen', 'o2_mg_l', lo), 2, 'mg/L', (v) => v < 2],
+    ['Lowest Ω arag', pick('carbonate', 'omega_ar', lo), 2, '', (v) => v < 3],
+    ['Highest pCO₂', pick('carbonate', 'pco2_uatm', hi), 0, 'µatm', () => false],
+    ['Biggest waves', pick('waves', 'hm0_m', hi), 2, 'm Hm0', () => false],
+  ];
+  document
+    .getElementById('site-now')
+    .replaceChildren(
+      el('h3', { text: 'Now across the site' }),
+      ...items.map(([k, b, dp, unit, bad]) =>
+        el(
+          'div',
+          { class: `tile${b && bad(b.v) ? ' alarm' : ''}`, 'data-now': k },
+          el('div', { class: 'k', text: k }),
+          el('div', { class: 'v', text: b ? `${fmt(b.v, dp)} ${unit}` : '—' }),
+          el('div', { class: 'at', text: b ? b.s.label : '' }),
+        ),
+      ),
+    );
 }
 
 // -------------------------------------------------------------------------------------------- alerts
