@@ -115,7 +115,8 @@ class MqttIntake implements MqttSource {
         'mqtt connected',
       );
       // Subscribing again on a present session is harmless; it also covers a broker that lost the session.
-      client.subscribe(this.filter, { qos: 1 }, (err) => {
+      // Retain handling 1 (MQTT 5): retained messages only for a new subscription, not on every reconnect.
+      client.subscribe(this.filter, v5 ? { qos: 1, rh: 1 } : { qos: 1 }, (err) => {
         if (err) o.logger.error({ err: err.message, filter: this.filter }, 'mqtt subscribe failed');
       });
     });

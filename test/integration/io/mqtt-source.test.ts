@@ -144,4 +144,32 @@ describe('MQTT source (Mosquitto)', () => {
     const c = await mqtt.connectAsync(MQTT_URL, { protocolVersion: 4, clientId, clean: true });
     await c.endAsync();
   });
+
+  it('gets a retained message once, not again on every reconnect of the persistent session', async () => {
+    const prefix = `reefd-it-${randomSuffix()}`;
+    const clientId = `reefd-it-${randomSuffix()}`;
+    const topic = `${prefix}/demo-reef/weather/met/m1`;
+    const pub = await mqtt.connectAsync(MQTT_URL, {
+      protocolVersion: 5,
+      clientId: `reefd-it-${randomSuffix()}`,
+    });
+    await pub.publishAsync(topic, '{"seq":1}', { qos: 1, retain: true });
+    const a = source(prefix, clientId);
+    const gotA: RawInput[] = [];
+    await a.start((m) => {
+      gotA.push(m);
+      m.ack();
+    });
+    await pollUntil('the retained message', async () => (gotA.length === 1 ? true : undefined), 10_000);
+    await a.stop();
+    const b = source(prefix, clientId);
+    const gotB: RawInput[] = [];
+    await b.start((m) => gotB.push(m));
+    await new Promise((r) => setTimeout(r, 500));
+    expect(gotB.length).toBe(0);
+    await b.stop();
+    await pub.publishAsync(topic, '', { qos: 1, retain: true }); // clears the retained message
+    await pub.endAsync();
+    await dropSession(clientId);
+  });
 });
