@@ -12,7 +12,7 @@ import { analyzeBurst } from '../waves/index.js';
 import { simulateMessages, type SimMessage } from './generate.js';
 import { densityEos80 as densityKgM3 } from '../seawater/index.js';
 import { optodeSalinityFactor } from './optode.js';
-import type { FaultTruth, StationTruth } from './truth.js';
+import type { FaultTruth, StationTruth, TransectTruth } from './truth.js';
 
 function ornenConfig() {
   const text = readFileSync(new URL('../../deploy/demo/ornen-reef.yaml', import.meta.url), 'utf8');
@@ -195,6 +195,29 @@ describe('simulateMessages', () => {
       const umolKg = (fixed * 1000) / densityKgM3(truth.sal, truth.temp_c); // umol/L to umol/kg (science 2.3)
       expect(Math.abs(umolKg - truth.o2_umol_kg)).toBeLessThan(4); // optode noise 0.8 umol/L; 5-min truth grid
     }
+  });
+
+  it('the truth is self-consistent: the O2 gradient across a transect gives back its NCP', () => {
+    // Steady control-volume budget (science 6.4): NCP ~ 3.6 rho h U (O2_B - O2_A)/L; the storage and
+    // air-sea terms it leaves out are small over a ~35 min residence, so the median ratio is near 1.
+    const transects = run.truth.filter(
+      (r): r is TransectTruth => r.kind === 'transect' && r.transect === 'outer',
+    );
+    const ratios: number[] = [];
+    for (const tr of transects) {
+      if (Math.abs(tr.ncp_mmol_m2_h) < 10) continue;
+      const a = stationRows.find((r) => r.station === 'crest' && r.t === tr.t)!;
+      const b = stationRows.find((r) => r.station === 'flat' && r.t === tr.t)!;
+      const est =
+        (3.6 * 1022 * tr.depth_m * tr.u_m_s * (b.o2_umol_kg - a.o2_umol_kg)) /
+        config.transects.outer!.length_m;
+      ratios.push(est / tr.ncp_mmol_m2_h);
+    }
+    ratios.sort((x, y) => x - y);
+    expect(ratios.length).toBeGreaterThan(50);
+    const median = ratios[Math.floor(ratios.length / 2)]!;
+    expect(median).toBeGreaterThan(0.8);
+    expect(median).toBeLessThan(1.2);
   });
 
   it('has a low-oxygen night in the lagoon: below 2 mg/L for more than an hour', () => {
