@@ -183,6 +183,17 @@ describe('grouping, digest, rate limit', () => {
     expect(n.status().pending).toEqual({ ui: 0 });
   });
 
+  it('never holds a critical alert back for the rate limit', async () => {
+    const { n, clock, seen } = await setup({ rateLimit: { maxMessages: 1, perMs: H } });
+    await n.enqueue(alert({ rule: 'spike', station: 'crest', severity: 'info' }));
+    await n.enqueue(alert({ rule: 'range', station: 'crest', severity: 'warning' }));
+    await n.enqueue(alert({ rule: 'low_oxygen', station: 'back', severity: 'critical' }));
+    clock.advance(31 * S);
+    await n.tick();
+    expect(seen.map((m) => m.alerts[0]!.rule)).toEqual(['spike', 'low_oxygen']); // range waits for a token
+    expect(n.status().pending).toEqual({ ui: 1 });
+  });
+
   it('honours a channel minimum severity', async () => {
     const dir = await tempDir();
     const clock = manualClock();

@@ -197,7 +197,10 @@ export function createNotifier(o: NotifierOptions): Notifier {
         ? [digestMessage(o.site ?? first.alert.site, items.slice(0, MAX_DIGEST_ITEMS))]
         : groupItems(items).map((g) => groupMessage(o.site ?? first.alert.site, g));
     for (const m of messages) {
-      if (cs.tokens < 1) return; // rate limited: stays queued; a later pass may fold it into a digest
+      // Rate limited: stays queued (a later pass may fold it into a digest). Critical alerts are never held back
+      // by the limit: a hypoxia warning must not wait behind a burst of sensor faults.
+      const critical = m.alerts.some((a) => a.severity === 'critical');
+      if (cs.tokens < 1 && !critical) continue;
       try {
         await c.send(m);
       } catch (err) {
@@ -206,7 +209,7 @@ export function createNotifier(o: NotifierOptions): Notifier {
         o.onError?.(err, c.id);
         return;
       }
-      cs.tokens -= 1;
+      cs.tokens = Math.max(-rateOf(c).maxMessages, cs.tokens - 1);
       cs.attempts = 0;
       cs.retryAtMs = 0;
       await record([{ op: 'sent', seqs: [...m.seqs], ch: c.id, at: clock.now() }]);
