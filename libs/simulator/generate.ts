@@ -52,6 +52,7 @@ export const CADENCE_S: Readonly<Record<SensorConfig['kind'], number>> = Object.
 });
 
 const STEP_S = 60;
+const FAULT_CYCLE_MS = 48 * 3_600_000;
 const r = (x: number, dp: number) => Math.round(x * 10 ** dp) / 10 ** dp;
 const iso = (ms: number) => new Date(ms).toISOString();
 
@@ -77,15 +78,12 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
   const layout = siteLayout(config);
   const root = createRng(opts.seed);
   const withFaults = opts.faults ?? true;
-  const eventCentre = withFaults
-    ? lagoonEventCentre(opts.startMs, opts.durationMs, layout.lonDeg)
-    : undefined;
+
   const model = new ReefModel(layout, root.fork('model'), {
     startMs: opts.startMs,
     stepS: STEP_S,
     taS35UmolKg: config.alkalinity.ta_s35_umol_kg,
     ...(opts.waves ? { waves: opts.waves } : {}),
-    ...(eventCentre !== undefined ? { lagoonEvent: { centreMs: eventCentre, demandMmolM2H: 180 } } : {}),
   });
   const sensors: SensorRun[] = [];
   for (const [station, st] of Object.entries(config.stations)) {
@@ -123,7 +121,8 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
       sensors.push(run);
     }
   }
-  const faults = withFaults ? planFaults(sensors, opts.startMs, opts.durationMs) : [];
+  // Faults and the low-oxygen night are scripted per 48-h cycle, so a long live run shows them every two days.
+  let faults: ScriptedFault[] = [];
   const faultOf = (s: SensorRef, kind: ScriptedFault['fault'], tMs: number) =>
     faults.find(
       (f) =>
@@ -133,13 +132,19 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
         tMs >= f.startMs &&
         tMs < f.endMs + (kind === 'spike' ? CADENCE_S[s.kind as SensorConfig['kind']] * 1000 : 0),
     );
-
-  for (const f of faults) yield { type: 'truth', row: { kind: 'fault', t: iso(f.startMs), ...f } };
-  if (eventCentre !== undefined) {
-    yield {
-      type: 'truth',
-      row: { kind: 'event', t: iso(eventCentre), event: 'lagoon_low_oxygen', centreMs: eventCentre },
-    };
+  let nextCycleMs = opts.startMs;
+  function* startCycle(cycleMs: number): Generator<SimEvent> {
+    const lengthMs = Math.min(FAULT_CYCLE_MS, opts.startMs + opts.durationMs - cycleMs);
+    faults = planFaults(sensors, cycleMs, lengthMs);
+    for (const f of faults) yield { type: 'truth', row: { kind: 'fault', t: iso(f.startMs), ...f } };
+    const centre = lagoonEventCentre(cycleMs, lengthMs, layout.lonDeg);
+    if (centre !== undefined) {
+      model.scheduleLagoonEvent(centre);
+      yield {
+        type: 'truth',
+        row: { kind: 'event', t: iso(centre), event: 'lagoon_low_oxygen', centreMs: centre },
+      };
+    }
   }
 
   const pending: SimMessage[] = [];
@@ -148,6 +153,10 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
   const endMs = opts.startMs + opts.durationMs;
   const spiked = new Set<ScriptedFault>();
   for (let tMs = opts.startMs; tMs < endMs; tMs += STEP_S * 1000) {
+    if (withFaults && tMs >= nextCycleMs) {
+      yield* startCycle(nextCycleMs);
+      nextCycleMs += FAULT_CYCLE_MS;
+    }
     const snap = model.step();
     if (tMs >= nextTruth) {
       for (const [station] of Object.entries(config.stations)) {

@@ -51,7 +51,8 @@ export interface ModelOptions {
   taS35UmolKg: number;
   waves?: WaveClimateOverride;
   /** Centre (ms) and peak extra oxygen demand (mmol m-2 h-1) of the lagoon's low-oxygen night. */
-  lagoonEvent?: { centreMs: number; demandMmolM2H: number };
+  /** Peak extra oxygen demand (mmol m-2 h-1) of a scheduled low-oxygen night (scheduleLagoonEvent). */
+  lagoonEventDemandMmolM2H?: number;
 }
 
 export interface RoleState {
@@ -101,6 +102,7 @@ export class ReefModel {
   readonly #dailyP: Rng;
   readonly #dailyScale = new Map<number, number>();
   #tS = 0;
+  #eventCentresMs: number[] = [];
   #prev: { crest: Water; flat: Water; back: Water; front: Water } | undefined;
   #lagoon: Water | undefined;
   #dic0 = 0;
@@ -147,6 +149,12 @@ export class ReefModel {
     return s;
   }
 
+  /** Schedules a low-oxygen night in the lagoon centred at centreMs (a calm, stratified night with a decaying
+   * bloom's oxygen demand). */
+  scheduleLagoonEvent(centreMs: number): void {
+    this.#eventCentresMs.push(centreMs);
+  }
+
   /** Advances to step k (tS = k stepS) and returns the state. Call with consecutive k from 0. */
   step(): ReefSnapshot {
     const tS = this.#tS;
@@ -159,8 +167,11 @@ export class ReefModel {
     const tp0 = this.#opts.waves?.tpS ?? 8 + (4 * (hrms0 - 0.5)) / 1.5;
     const sinE = sinSolarElevation(tMs, L.latDeg, L.lonDeg);
     const par = clearSkyParUmolM2S(sinE) * this.#clouds.transmission(tS);
-    const ev = this.#opts.lagoonEvent;
-    const eventShape = ev ? Math.exp(-0.5 * ((tMs - ev.centreMs) / (1.6 * 3.6e6)) ** 2) : 0;
+    this.#eventCentresMs = this.#eventCentresMs.filter((c) => tMs - c < 12 * 3.6e6);
+    let eventShape = 0;
+    for (const c of this.#eventCentresMs)
+      eventShape = Math.max(eventShape, Math.exp(-0.5 * ((tMs - c) / (1.6 * 3.6e6)) ** 2));
+    const eventDemand = this.#opts.lagoonEventDemandMmolM2H ?? 180;
     const hour = solarHour(tMs, L.lonDeg);
     const wind = Math.max(
       0.3,
@@ -306,7 +317,7 @@ export class ReefModel {
     const lag = this.#lagoon ?? copyWater(back);
     const lagRates = communityRates(par, hLag, LAGOON_COMMUNITY, prod);
     // Extra oxygen demand of the event night, limited as O2 runs out (Michaelis-Menten, K = 15 umol/kg).
-    const demand = ev ? (ev.demandMmolM2H * eventShape * lag.o2UmolKg) / (lag.o2UmolKg + 15) : 0;
+    const demand = (eventDemand * eventShape * lag.o2UmolKg) / (lag.o2UmolKg + 15);
     const qLag = sources(lag, hLag, lagRates, demand);
     for (const tr of TRACERS) lag[tr] += W * ((back[tr] - lag[tr]) * flushPerS + qLag[tr]);
     this.#lagoon = lag;
