@@ -276,11 +276,14 @@ start_victoriametrics() {
   mkdir -p "$d/data"
   # -search.latencyOffset=0s: points are searchable as soon as they are flushed (tests read back at once).
   # -retentionPeriod=100y: fixtures and replays carry old timestamps that the default 1 month would drop.
+  # -dedup.minScrapeInterval=1ms: one sample per series and millisecond, so a batch written twice (spool
+  # replay after a crash, a replayed archive) is stored once; reefd's exactly-once-in-effect relies on it.
   spawn victoriametrics "$(logfile_of victoriametrics)" victoria-metrics \
     -httpListenAddr="$VM_ADDR" \
     -storageDataPath="$d/data" \
     -retentionPeriod=100y \
     -search.latencyOffset=0s \
+    -dedup.minScrapeInterval=1ms \
     -search.disableCache \
     -memory.allowedBytes=512MiB \
     -loggerLevel=INFO

@@ -176,6 +176,23 @@ const influxOutputSchema = z.strictObject({
 const kafkaOutputSchema = z.strictObject({
   ...kafkaCommon,
   topic: z.string().min(1).default('reefd.derived'),
+  spool_max_mb: z.number().positive().default(512),
+});
+
+/**
+ * Edge mode (deploy/SCALING.md): every accepted raw message is forwarded to Kafka with the contract's
+ * record key `<site>/<station>/<sensor>`, through a spooled, ordered producer. The partition is chosen by
+ * site (default: a site's transects need all of its stations in one processor) or by station.
+ */
+const bridgeSchema = z.strictObject({
+  kafka: z.strictObject({
+    ...kafkaCommon,
+    topic: z.string().min(1),
+    partition_by: z.enum(['site', 'station']).default('site'),
+    spool_max_mb: z.number().positive().default(512),
+  }),
+  /** Also run the processor at the edge (local dashboard); by default an edge only archives and forwards. */
+  derive: z.boolean().default(false),
 });
 
 const deadLetterSchema = z.strictObject({
@@ -207,6 +224,7 @@ export const configSchema = z
     sources: z
       .strictObject({ mqtt: mqttSourceSchema.optional(), kafka: kafkaSourceSchema.optional() })
       .optional(),
+    bridge: bridgeSchema.optional(),
     outputs: z
       .strictObject({
         ndjson: z.strictObject({ path: z.string() }).optional(),
