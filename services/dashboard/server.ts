@@ -38,7 +38,8 @@ export interface DashboardOptions {
   ready?: () => boolean | Promise<boolean>;
   /** Per-sensor health from the daemon (last seen, battery, flags); merged with the fault alerts. */
   health?: () => SensorHealth[] | Promise<SensorHealth[]>;
-  /** Further ports to try when the port is taken, before falling back to any free port (default 10). */
+  /** Further ports to try when the port is taken, before falling back to any free port (default 10);
+   * 0 binds exactly `port` and rejects with EADDRINUSE if it is taken. */
   portAttempts?: number;
   now?: () => number;
 }
@@ -133,9 +134,10 @@ async function listen(server: Server, host: string, port: number, attempts: numb
       server.once('listening', onListening);
       server.listen(p, host);
     });
+  // portAttempts 0 means exactly this port (fail if taken); otherwise the next ones, then any free port.
   const candidates =
-    port === 0
-      ? [0]
+    port === 0 || attempts === 0
+      ? [port]
       : [...Array.from({ length: attempts + 1 }, (_, i) => port + i).filter((p) => p <= 65535), 0];
   let last: unknown;
   for (const p of candidates) {
