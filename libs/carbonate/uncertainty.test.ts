@@ -68,4 +68,11 @@ describe('carbonateUncertainty (science spec 9.1)', () => {
     expect(r.jacobian.pco2Uatm!.phTotal).toBeLessThan(0);
     expect(r.jacobian.taUmolKg!.phTotal ** 2 * 25).toBeCloseTo(r.contributions.taUmolKg!.phTotal, 15);
   });
+
+  it('Omega from pKsp: sigma = ln(10) Omega sigma_pK to 4e-8, the central difference truncation (Omega is proportional to 10^pKsp)', () => {
+    const r = carbonateUncertainty(base, { constants: { pK0: 0, pK1: 0, pK2: 0, pKB: 0, pKW: 0, btRel: 0 } });
+    if (!r.ok) throw new Error(r.reason);
+    expect(Math.abs(r.sigma.omegaAr / (Math.LN10 * r.value.omegaAr * 0.02) - 1)).toBeLessThan(1e-7);
+    expect(Math.abs(r.sigma.omegaCa / (Math.LN10 * r.value.omegaCa * 0.02) - 1)).toBeLessThan(1e-7);
+  });
 });

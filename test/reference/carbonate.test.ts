@@ -7,7 +7,13 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import type { CarbonateInput, CarbonateOptions } from '../../libs/carbonate/index.js';
-import { equilibriumConstants, fugacityFactorAt, solveCarbonate } from '../../libs/carbonate/index.js';
+import {
+  carbonateUncertainty,
+  equilibriumConstants,
+  fugacityFactorAt,
+  solveCarbonate,
+} from '../../libs/carbonate/index.js';
+import type { CarbonateSigmas, UncertainOutput } from '../../libs/carbonate/index.js';
 
 interface Case {
   block: string;
@@ -34,9 +40,25 @@ interface Block {
   cases: Case[];
   constants: ConstRow[];
 }
+interface UncertaintyCase {
+  pair: string;
+  sal: number;
+  temp: number;
+  in: Record<string, number>;
+  sigma_in: Record<string, number>;
+  sigma: Record<string, number>;
+}
 interface Doc {
   source: string;
   blocks: Block[];
+  uncertainty: {
+    options: CarbonateOptions;
+    sigma_temp: number;
+    sigma_sal: number;
+    omega_calcium_factor: number;
+    constants: Record<string, number>;
+    cases: UncertaintyCase[];
+  };
 }
 
 const doc = JSON.parse(readFileSync(new URL('./vectors/carbonate.json', import.meta.url), 'utf8')) as Doc;
@@ -154,4 +176,50 @@ describe(`carbonate vs ${doc.source}`, () => {
       });
     });
   }
+
+  describe('first-order uncertainties vs PyCO2SYS uncertainty_from (inputs, t, S, Orr et al. 2018 constants)', () => {
+    const u = doc.uncertainty;
+    const OUT: Record<string, UncertainOutput> = {
+      ta: 'taUmolKg',
+      dic: 'dicUmolKg',
+      ph: 'phTotal',
+      pco2: 'pco2Uatm',
+      co3: 'co3UmolKg',
+      omega_ar: 'omegaAr',
+      omega_ca: 'omegaCa',
+      revelle: 'revelle',
+    };
+    // PyCO2SYS takes forward differences; for Omega's pKsp term its truncation is 1.2e-4 relative (the
+    // exact derivative is ln(10) Omega, which ours reproduces to 4e-8: uncertainty.test.ts). So 3e-4.
+    it(`${u.cases.length} cases (TA + pCO2, TA + DIC, pH + pCO2): every sigma within 3e-4 relative`, () => {
+      let worst = 0;
+      for (const c of u.cases) {
+        const input = toInput({ ...c, pres: 0, po4: 0, sio4: 0, block: 'uncertainty', expect: {} });
+        const sigmas: CarbonateSigmas = {
+          tempC: u.sigma_temp,
+          salinity: u.sigma_sal,
+          constants: {
+            pK0: u.constants.pK0!,
+            pK1: u.constants.pK1!,
+            pK2: u.constants.pK2!,
+            pKB: u.constants.pKB!,
+            pKW: u.constants.pKW!,
+            pKspAr: u.constants.pKspAr!,
+            pKspCa: u.constants.pKspCa!,
+            btRel: u.constants.btRel!,
+          },
+        };
+        for (const [k, v] of Object.entries(c.sigma_in)) (sigmas as Record<string, unknown>)[IN_KEY[k]!] = v;
+        const r = carbonateUncertainty(input, sigmas, u.options);
+        if (!r.ok) throw new Error(r.reason);
+        for (const [k, ref] of Object.entries(c.sigma)) {
+          const ours = r.sigma[OUT[k]!];
+          // PyCO2SYS's calcium is 40.078/40.087 of ours (generate.py), and Omega sigmas scale with it.
+          const theirs = k.startsWith('omega') ? ref * u.omega_calcium_factor : ref;
+          worst = Math.max(worst, Math.abs(ours - theirs) / Math.max(theirs, 1e-12));
+        }
+      }
+      expect(worst).toBeLessThan(3e-4);
+    });
+  });
 });

@@ -109,6 +109,7 @@ def run(k1k2, boron, base, par1_type, par2_type, par1, par2, extra):
         opt_pressured_kCO2=0,
     )
     kw.update(extra)
+    kw = {k: v for k, v in kw.items() if v is not None}
     return pyco2.sys(**kw)
 
 
@@ -166,6 +167,66 @@ def block(name, k1k2, boron, kw_option, grid, pairs, out_conditions):
         "options": {"k1k2": k1k2, "boron": boron, "kw": kw_option, "fugacity": "weiss1974-dilute"},
         "cases": cases,
         "constants": constants,
+    }
+
+
+# First-order uncertainties (PyCO2SYS uncertainty_from/uncertainty_into, forward finite differences).
+# Our names -> PyCO2SYS keys; pK sigmas after Orr et al. (2018) as in science spec 9.1.
+U_CONSTANTS = {
+    "pK0": ("pk_CO2", 0.002),
+    "pK1": ("pk_carbonic_1", 0.0075),
+    "pK2": ("pk_carbonic_2", 0.015),
+    "pKB": ("pk_borate", 0.01),
+    "pKW": ("pk_water", 0.01),
+    "pKspAr": ("pk_aragonite", 0.02),
+    "pKspCa": ("pk_calcite", 0.02),
+    "btRel": ("total_borate__f", 0.02),
+}
+U_INPUT = {1: 5.0, 2: 2.0, 3: 0.01, 4: 2.0}
+U_OUT = {
+    "ta": "alkalinity",
+    "dic": "dic",
+    "ph": "pH_total",
+    "pco2": "pCO2",
+    "co3": "carbonate",
+    "omega_ar": "saturation_aragonite",
+    "omega_ca": "saturation_calcite",
+    "revelle": "revelle_factor",
+}
+
+
+def uncertainty_block(g):
+    base = {k: np.array([x[k] for x in g], dtype=float) for k in g[0]}
+    seed = run("lueker2000", "lee2010", base, 1, 4, base["ta"], base["pco2"], {})
+    values = {1: seed["alkalinity"], 2: seed["dic"], 3: seed["pH_total"], 4: seed["pCO2"]}
+    cases = []
+    for pair in ["ta_pco2", "ta_dic", "ph_pco2"]:
+        t1, t2 = PAIRS[pair]
+        u_from = {"par1": U_INPUT[t1], "par2": U_INPUT[t2], "temperature": 0.05, "salinity": 0.05}
+        u_from.update({v[0]: v[1] for v in U_CONSTANTS.values()})
+        extra = dict(uncertainty_into=list(U_OUT.values()), uncertainty_from=u_from)
+        # PyCO2SYS holds a given total_calcium fixed when it perturbs salinity; let it scale calcium with
+        # salinity (its 40.087 g/mol) here instead. Our Omega sigmas are then theirs x 40.087/40.078 exactly.
+        extra["total_calcium"] = None
+        r = run("lueker2000", "lee2010", base, t1, t2, values[t1], values[t2], extra)
+        for i in range(len(g)):
+            cases.append(
+                {
+                    "pair": pair,
+                    "sal": float(base["sal"][i]),
+                    "temp": float(base["temp"][i]),
+                    "in": {PAR_KEY[t1]: float(values[t1][i]), PAR_KEY[t2]: float(values[t2][i])},
+                    "sigma_in": {PAR_KEY[t1]: U_INPUT[t1], PAR_KEY[t2]: U_INPUT[t2]},
+                    "sigma": {k: float(r["u_" + v][i]) for k, v in U_OUT.items()},
+                }
+            )
+    return {
+        "options": {"k1k2": "lueker2000", "boron": "lee2010", "kw": "millero1995-sws", "fugacity": "weiss1974-dilute"},
+        "sigma_temp": 0.05,
+        "sigma_sal": 0.05,
+        "omega_calcium_factor": 40.087 / 40.078,
+        "constants": {k: v[1] for k, v in U_CONSTANTS.items()},
+        "cases": cases,
     }
 
 
@@ -248,6 +309,7 @@ def main(path):
     ]
     doc = {
         "source": f"PyCO2SYS {pyco2.__version__}",
+        "uncertainty": uncertainty_block(grid(**small)),
         "generator": "test/reference/carbonate/generate.py",
         "units": "umol/kg, uatm, total pH scale; constants mol/kg units on the total scale (ks, kf free scale)",
         "blocks": blocks,
