@@ -83,7 +83,8 @@ describe('fault a: kill -9 of reefd mid-stream', () => {
       'killed after acks': kills.join(' and '),
       archived: a.byKey.size,
       'archive lines': a.lines,
-      'archive duplicates': a.duplicates,
+      'archive redelivered copies': a.duplicates,
+      'archive conflicts': a.conflicts,
       'missing from archive': missingArchive,
       'oxygen expected': expectedTs.size,
       'in db': db.byTs.size,
@@ -105,7 +106,9 @@ describe('fault a: kill -9 of reefd mid-stream', () => {
     expect(missingArchive).toBe(0);
     expect(missingDb).toBe(0);
     expect(db.byTs.size).toBe(expectedTs.size);
-    expect(a.duplicates).toBe(0);
+    // A message archived but not yet acknowledged at the kill comes again from the broker and is archived
+    // twice (QoS 1 is at-least-once; the known limit case b reports): identical copies only.
+    expect(a.conflicts).toBe(0);
     expect(db.duplicates).toBe(0);
   });
 });

@@ -9,11 +9,22 @@ export interface ArchiveCount {
   lines: number;
   rejected: number;
   badLines: number;
+  /** Lines beyond the first for one key (QoS 1 redeliveries). */
   duplicates: number;
+  /** Of those, copies whose payload differs from the first line's: a real conflict, never expected. */
+  conflicts: number;
 }
 
 export async function countArchive(archiveDir: string, prefix: string): Promise<ArchiveCount> {
-  const c: ArchiveCount = { byKey: new Map(), lines: 0, rejected: 0, badLines: 0, duplicates: 0 };
+  const c: ArchiveCount = {
+    byKey: new Map(),
+    lines: 0,
+    rejected: 0,
+    badLines: 0,
+    duplicates: 0,
+    conflicts: 0,
+  };
+  const firstPayload = new Map<string, string>();
   let names: string[];
   try {
     names = (await readdir(archiveDir)).filter((n) => /^raw-.*\.ndjson(\.gz)?$/.test(n)).sort();
@@ -34,7 +45,11 @@ export async function countArchive(archiveDir: string, prefix: string): Promise<
       const tMs = typeof msg === 'object' && msg !== null ? Date.parse(String(msg.t)) : Number.NaN;
       const key = `${parts.at(-3) ?? ''}/${parts.at(-1) ?? ''}/${tMs}`;
       const prev = c.byKey.get(key) ?? 0;
-      if (prev > 0) c.duplicates++;
+      const text = JSON.stringify(e.line.msg);
+      if (prev > 0) {
+        c.duplicates++;
+        if (firstPayload.get(key) !== text) c.conflicts++;
+      } else firstPayload.set(key, text);
       c.byKey.set(key, prev + 1);
     }
   }

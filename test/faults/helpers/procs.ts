@@ -193,16 +193,19 @@ export interface CountingHttpProxy {
   url: string;
   /** Line-protocol lines POSTed per measurement (every attempt the target accepted). */
   lines: Map<string, number>;
+  /** Timestamps (ms, precision=ms) of the accepted lines of `orderOf`, in the order they reached the target. */
+  order: number[];
   /** When false, every request is answered 503 without reaching the target. */
   setUp(up: boolean): void;
   close(): Promise<void>;
 }
 
 /** An HTTP proxy in front of a database that counts the line-protocol lines it forwarded successfully. */
-export async function startCountingProxy(target: string): Promise<CountingHttpProxy> {
+export async function startCountingProxy(target: string, orderOf = 'oxygen'): Promise<CountingHttpProxy> {
   const { createServer: createHttp } = await import('node:http');
   const { gunzipSync } = await import('node:zlib');
   const lines = new Map<string, number>();
+  const order: number[] = [];
   let up = true;
   const server = createHttp((req, res) => {
     const chunks: Buffer[] = [];
@@ -229,6 +232,7 @@ export async function startCountingProxy(target: string): Promise<CountingHttpPr
               if (l.trim() === '') continue;
               const m = /^([^,\s]+)/.exec(l)?.[1] ?? '';
               lines.set(m, (lines.get(m) ?? 0) + 1);
+              if (m === orderOf) order.push(Number(l.slice(l.lastIndexOf(' ') + 1)));
             }
           }
           res.writeHead(r.status).end(text);
@@ -241,6 +245,7 @@ export async function startCountingProxy(target: string): Promise<CountingHttpPr
   return {
     url: `http://127.0.0.1:${port}`,
     lines,
+    order,
     setUp: (u) => {
       up = u;
     },
