@@ -3,7 +3,7 @@
 import { mkdir } from 'node:fs/promises';
 import path from 'node:path';
 import type { DerivedRecord, ReefdConfig, SecretRef } from '../../libs/contract/index.js';
-import { createProcessor, type Processor } from '../../libs/processor/index.js';
+import type { Processor } from '../../libs/processor/index.js';
 import { createArchiveWriter, type RawArchiveWriter } from '../archive/index.js';
 import { resolveSecret } from '../config/load.js';
 import type { Logger } from '../log/logger.js';
@@ -17,6 +17,7 @@ import {
   type TlsFiles,
 } from '../sinks/index.js';
 import { createKafkaSource, createMqttSource } from '../sources/index.js';
+import { edgeFromConfig } from '../scaleout/edge-from-config.js';
 import { readCheckpoint, writeCheckpoint } from './checkpoint.js';
 import { createMetrics, type DaemonMetrics } from './metrics.js';
 import { createPipeline, type Pipeline } from './pipeline.js';
@@ -66,7 +67,15 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const cp = await readCheckpoint(checkpointFile);
   if (cp.warning) logger.warn({ code: cp.warning.code }, cp.warning.message);
   const saved = cp.state as Checkpointed | undefined;
-  const processor = createProcessor(config, saved);
+  // Edge mode (config `bridge`): accepted messages are forwarded to Kafka; see deploy/SCALING.md.
+  const { bridge, processor } = await edgeFromConfig({
+    config,
+    saved,
+    dataDir,
+    logger,
+    secret,
+    tls: (t) => tlsFiles(o.baseDir, t),
+  });
 
   // 2. The raw archive, and the lines it holds that the checkpoint has not seen (a crash after the last
   //    checkpoint): they are fed to the processor again so the windows resume where they were.
@@ -267,8 +276,13 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   async function checkpoint(): Promise<void> {
     // Flush first, so the checkpoint covers exactly the lines on disk (the cursor counts appended lines).
     await archive.flush();
+    // Edge mode: every message received up to now is queued at the bridge; once its flush resolves they
+    // are at the broker or in its disk spool, so the checkpoint may cover them (resume re-forwards the rest).
+    const bridgedRxMs = lastRxMs;
+    await bridge?.flush();
     const state: Checkpointed = processor.snapshot();
-    if (lastRxMs !== undefined) state.lastRxMs = lastRxMs;
+    const covered = bridge ? bridgedRxMs : lastRxMs;
+    if (covered !== undefined) state.lastRxMs = covered;
     await writeCheckpoint(checkpointFile, state);
   }
   const cpTimer = setInterval(() => {
@@ -291,7 +305,12 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
       await Promise.allSettled(sources.map((s) => s.stop()));
       const deadline = new Promise<void>((r) => setTimeout(r, 7000).unref());
       await Promise.race([
-        Promise.allSettled([archive.flush(), ...sinks.map((s) => s.flush()), deadLetter.flush()]),
+        Promise.allSettled([
+          archive.flush(),
+          ...sinks.map((s) => s.flush()),
+          deadLetter.flush(),
+          bridge?.flush(),
+        ]),
         deadline,
       ]);
       try {
@@ -302,6 +321,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
       await Promise.race([
         Promise.allSettled([
           ...sinks.map((s) => s.close()),
+          bridge?.close(),
           deadLetter.close(),
           archive.close(),
           notifier?.stop(),
@@ -326,6 +346,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
       sinks: Object.fromEntries(sinks.map((s) => [s.name, s.stats()])),
       watermark: new Date(processor.watermarkMs()).toISOString(),
       pipeline: pipeline.stats(),
+      ...(bridge ? { bridge: bridge.stats() } : {}),
     }),
     checkpoint,
     stop,
