@@ -202,10 +202,19 @@ describe('depth source and failures', () => {
       ok: false,
       code: 'REEFD_CURRENTS_HEAD_DRY',
     });
-    // h = 0.75 m: D = 0.4, limit 0.3625 m keeps two bins of 0.1 m = 27 % of h < 40 %
-    expect(processEnsemble(ENS, SENSOR, { ...CTX, depthM: 0.75 })).toMatchObject({
+    // h = 0.75 m: D = 0.4, the side-lobe limit keeps two bins, and bed to their top is > 40 % of h: valid
+    expect(processEnsemble(ENS, SENSOR, { ...CTX, depthM: 0.75 }).ok).toBe(true);
+    // h = 5 m with only the two lowest bins valid: the profile reaches ~0.6 m, 13 % of h < 40 %
+    const lowOnly = { ...ENS, velMS: ENS.velMS.map((b, i) => (i < 2 ? b : [null, null, null, null])) };
+    expect(processEnsemble(lowOnly, SENSOR, { ...CTX, depthM: 5 })).toMatchObject({
       ok: false,
       flag: 4,
+      reason: 'too_few_bins',
+    });
+    // one valid bin is never enough
+    const oneBin = { ...ENS, velMS: ENS.velMS.map((b, i) => (i < 1 ? b : [null, null, null, null])) };
+    expect(processEnsemble(oneBin, SENSOR, { ...CTX, depthM: 0.75 })).toMatchObject({
+      ok: false,
       reason: 'too_few_bins',
     });
     expect(processEnsemble({ ...ENS, velMS: [[0, 0, 0]] }, SENSOR, CTX)).toMatchObject({

@@ -152,18 +152,29 @@ export function processEnsemble(
   const north = new Float64Array(nBins);
   const tally = qcBins(plan, binFlags, z, east, north);
   const m = tally.valid;
-  const coverage = (m * ens.binM * cosTilt) / depthM;
-  if (m < qc.minBins || coverage < qc.minCoverage) {
-    return currentFail(
-      'REEFD_CURRENTS_TOO_FEW_BINS',
-      `${m} valid bins cover ${(100 * coverage).toFixed(0)} % of ${depthM.toFixed(2)} m`,
-    );
-  }
   if (sensor.orientation === 'down') {
     // bins run away from the head, i.e. downwards: the average wants z ascending
     z.subarray(0, m).reverse();
     east.subarray(0, m).reverse();
     north.subarray(0, m).reverse();
+  }
+  // Coverage: the part of the column the profile pins down. Up-looking: from the bed (the power law from
+  // the no-slip bottom through the first bin is a constrained extrapolation, science.md 5.5) to the top of
+  // the highest valid cell; down-looking: from the bottom of the lowest valid cell to the surface. Counting
+  // only the cells themselves would fail every shallow reef-flat ADCP: head height and blanking alone are
+  // ~25 % of a 1.5 m flat, and the wave troughs take the top (5.3).
+  const halfCellM = 0.5 * ens.binM * cosTilt;
+  const coverage =
+    m === 0
+      ? 0
+      : sensor.orientation === 'down'
+        ? (depthM - ((z[0] as number) - halfCellM)) / depthM
+        : ((z[m - 1] as number) + halfCellM) / depthM;
+  if (m < qc.minBins || coverage < qc.minCoverage) {
+    return currentFail(
+      'REEFD_CURRENTS_TOO_FEW_BINS',
+      `${m} valid bins reach ${(100 * Math.min(coverage, 1)).toFixed(0)} % of the ${depthM.toFixed(2)} m column`,
+    );
   }
   if (tally.threeBeam > 0) notes.push(`three_beam: ${tally.threeBeam} bins`);
   if (tally.worst > flag) flag = tally.worst;
