@@ -97,6 +97,10 @@ ensure_packages() {
   command -v curl >/dev/null || missing+=(curl)
   command -v java >/dev/null || missing+=(openjdk-17-jre-headless)
   command -v mvn >/dev/null || [[ -f "$KAFKA_HOME/.complete" ]] || missing+=(maven)
+  # Debian's Chromium for the dashboard's browser test (playwright-core drives /usr/bin/chromium).
+  [[ -x /usr/bin/chromium ]] || missing+=(chromium)
+  # mount/losetup for the disk-full fault case (present on Debian; listed for minimal images).
+  command -v mkfs.ext4 >/dev/null || missing+=(e2fsprogs)
   ((${#missing[@]} == 0)) && return 0
   [[ "$(id -u)" == 0 ]] || die "missing packages: ${missing[*]}; install them (sudo apt-get install ${missing[*]}) or run this script as root"
   log "installing Debian packages: ${missing[*]}"
