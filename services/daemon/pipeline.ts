@@ -41,6 +41,8 @@ export interface Pipeline {
 }
 
 const MAX_DEAD_LETTER_PAYLOAD = 4096;
+/** Archive retries on a full disk before the message is left to the broker's redelivery (~10 min). */
+const ARCHIVE_RETRIES = 125;
 const decoder = new TextDecoder('utf-8', { fatal: false });
 
 export function createPipeline(o: PipelineOptions): Pipeline {
@@ -69,9 +71,8 @@ export function createPipeline(o: PipelineOptions): Pipeline {
       const text = decoder.decode(input.payload);
       const rxIso = new Date(input.rxMs).toISOString();
       // Archive first: the broker's acknowledgement waits for the fsync (append resolves after it).
-      const archived = o.archive
-        ? o.archive.append(archiveLine(input.topic, rxIso, text, reason), input.rxMs)
-        : Promise.resolve();
+      const line = o.archive ? archiveLine(input.topic, rxIso, text, reason) : '';
+      let archived = o.archive ? o.archive.append(line, input.rxMs) : Promise.resolve();
 
       let records: DerivedRecord[] = [];
       if (reason !== undefined || !parsed.ok) {
@@ -103,13 +104,23 @@ export function createPipeline(o: PipelineOptions): Pipeline {
         o.onRecords?.(records);
       }
       end?.();
-      try {
-        await archived;
-      } catch (err) {
-        stats.archiveErrors++;
-        o.logger?.error({ err }, 'archive write failed; the message stays unacknowledged at the broker');
-        o.onArchiveError?.(err as Error);
-        return;
+      // A full disk is retried (the broker does not redeliver an unacknowledged message on the same
+      // connection, so giving up would leave it out of the archive until a reconnect). The messages waiting
+      // here are bounded by the source's in-flight window (MQTT Receive Maximum).
+      for (let attempt = 0; ; attempt++) {
+        try {
+          await archived;
+          break;
+        } catch (err) {
+          stats.archiveErrors++;
+          if (attempt === 0)
+            o.logger?.error({ err }, 'archive write failed; the message stays unacknowledged at the broker');
+          o.onArchiveError?.(err as Error);
+          const code = (err as { code?: string }).code;
+          if (code !== 'REEFD_DISK_FULL' || attempt >= ARCHIVE_RETRIES || !o.archive) return;
+          await new Promise((r) => setTimeout(r, Math.min(5000, 250 * 2 ** attempt)));
+          archived = o.archive.append(line, input.rxMs);
+        }
       }
       input.ack();
     },
