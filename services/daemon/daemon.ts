@@ -7,14 +7,28 @@ import type { Processor } from '../../libs/processor/index.js';
 import { createArchiveWriter, type RawArchiveWriter } from '../archive/index.js';
 import { resolveSecret } from '../config/load.js';
 import type { Logger } from '../log/logger.js';
-import { alertsStateDir, channelsFromConfig, createNotifier, type Notifier } from '../notifiers/index.js';
+import { notifyConfigSchema } from '../../libs/alerts/index.js';
+import {
+  alertsStateDir,
+  channelsFromConfig,
+  createNotifier,
+  notifierOptionsFromConfig,
+  type NotificationMessage,
+  type Notifier,
+} from '../notifiers/index.js';
 import type { DeadLetterSink, RecordSink, Source } from '../pipeline/types.js';
+import mqtt from 'mqtt';
 import {
   createDeadLetterSink,
   createInfluxSink,
   createKafkaSink,
   createNdjsonSink,
+  kafkaClient,
+  kafkaPublisher,
+  mqttPublisher,
+  tlsOptions,
   type TlsFiles,
+  type TopicPublisher,
 } from '../sinks/index.js';
 import { createKafkaSource, createMqttSource } from '../sources/index.js';
 import { edgeFromConfig } from '../scaleout/edge-from-config.js';
@@ -45,7 +59,9 @@ export interface Daemon {
   readonly processor: Processor;
   readonly pipeline: Pipeline;
   readonly metrics: DaemonMetrics;
-  readonly notifier: Notifier | undefined;
+  readonly notifier: Notifier;
+  /** Where the notifier's dashboard channel shows its notices (set once the dashboard is up). */
+  setNoticeSink(sink: (m: NotificationMessage) => void): void;
   readonly dataDir: string;
   ready(): boolean;
   /** Everything the HTTP layer shows at /readyz. */
@@ -132,31 +148,105 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
             }
           : undefined,
         spoolDir: path.join(dataDir, 'spool', 'kafka'),
-        spoolMaxMb: 512,
+        spoolMaxMb: k.spool_max_mb,
         logger,
       }),
     );
   }
+  // Dead letters: always a file; optionally an MQTT topic (a client of its own on the source broker) and a
+  // Kafka topic (a producer on the output or source cluster).
+  const dl = out.dead_letter;
+  const closers: (() => Promise<unknown>)[] = [];
+  let dlMqtt: { publisher: TopicPublisher; topic: string } | undefined;
+  if (dl?.mqtt_topic && config.sources?.mqtt) {
+    const m = config.sources.mqtt;
+    const password = await secret(m.password);
+    const client = mqtt.connect(m.url, {
+      clientId: `${m.client_id}-deadletter`,
+      protocolVersion: o.mqttProtocolVersion ?? 5,
+      ...(m.username !== undefined ? { username: m.username } : {}),
+      ...(password !== undefined ? { password } : {}),
+      ...(tlsOptions(tlsFiles(o.baseDir, m.tls)) as Record<string, unknown>),
+    });
+    client.on('error', (err) => logger.warn({ err: err.message }, 'dead-letter mqtt client error'));
+    closers.push(() => client.endAsync());
+    dlMqtt = { publisher: mqttPublisher(client), topic: dl.mqtt_topic };
+  }
+  let dlKafka: { publisher: TopicPublisher; topic: string } | undefined;
+  const kc = out.kafka ?? config.sources?.kafka;
+  if (dl?.kafka_topic && kc) {
+    const producer = kafkaClient({
+      brokers: kc.brokers,
+      clientId: `${kc.client_id}-deadletter`,
+      tls: tlsFiles(o.baseDir, kc.tls),
+      sasl: kc.sasl
+        ? {
+            mechanism: kc.sasl.mechanism,
+            username: kc.sasl.username,
+            password: (await secret(kc.sasl.password)) ?? '',
+          }
+        : undefined,
+      logger,
+    }).producer();
+    await producer
+      .connect()
+      .catch((err: unknown) =>
+        logger.warn({ err: (err as Error).message }, 'dead-letter kafka producer not connected yet'),
+      );
+    closers.push(() => producer.disconnect());
+    dlKafka = { publisher: kafkaPublisher(producer), topic: dl.kafka_topic };
+  }
   const deadLetter: DeadLetterSink = await createDeadLetterSink({
-    path: path.resolve(o.baseDir, out.dead_letter?.path ?? path.join(dataDir, 'dead-letter.ndjson')),
-    maxPerMin: out.dead_letter?.max_per_min ?? 600,
+    path: path.resolve(o.baseDir, dl?.path ?? path.join(dataDir, 'dead-letter.ndjson')),
+    ...(dlMqtt ? { mqtt: dlMqtt } : {}),
+    ...(dlKafka ? { kafka: dlKafka } : {}),
+    maxPerMin: dl?.max_per_min ?? 600,
     clock: Date.now,
     logger,
   });
 
-  // 4. Alert delivery: a durable outbox in the data folder.
-  let notifier: Notifier | undefined;
-  if (config.notify) {
-    const channels = await channelsFromConfig(config.notify, { site: config.site, env: o.env });
-    notifier = createNotifier({
-      dir: alertsStateDir(dataDir),
-      site: config.site,
-      channels,
-      onError: (err, channelId) =>
-        logger.warn({ channel: channelId, err: (err as Error).message }, 'notification failed; retrying'),
+  // 4. Alert delivery: a durable outbox in the data folder. Without a `notify:` section the default is one
+  //    dashboard channel, so `reefd alerts list|ack` always has an outbox to read.
+  const notifyConfig = config.notify ?? notifyConfigSchema.parse({});
+  let noticeSink: ((m: NotificationMessage) => void) | undefined;
+  let notifyClient: mqtt.MqttClient | undefined;
+  const wantsMqtt = Object.values(notifyConfig.channels).some((c) => c.enabled && c.type === 'mqtt');
+  if (wantsMqtt && config.sources?.mqtt) {
+    const m = config.sources.mqtt;
+    const password = await secret(m.password);
+    notifyClient = mqtt.connect(m.url, {
+      clientId: `${m.client_id}-notify`,
+      protocolVersion: o.mqttProtocolVersion ?? 5,
+      ...(m.username !== undefined ? { username: m.username } : {}),
+      ...(password !== undefined ? { password } : {}),
+      ...(tlsOptions(tlsFiles(o.baseDir, m.tls)) as Record<string, unknown>),
     });
-    await notifier.start();
+    notifyClient.on('error', (err) => logger.warn({ err: err.message }, 'notification mqtt client error'));
   }
+  const channels = await channelsFromConfig(notifyConfig, {
+    site: config.site,
+    env: o.env,
+    ...(notifyClient ? { mqtt: notifyClient } : {}),
+    dashboard: (m) => noticeSink?.(m),
+  });
+  const notifier: Notifier = createNotifier({
+    dir: alertsStateDir(dataDir),
+    site: config.site,
+    channels,
+    ...notifierOptionsFromConfig(notifyConfig),
+    onError: (err, channelId) =>
+      logger.warn({ channel: channelId, err: (err as Error).message }, 'notification failed; retrying'),
+  });
+  await notifier.start();
+  const enqueue = (r: DerivedRecord) =>
+    notifier
+      .enqueue(r as never)
+      .catch((err: unknown) =>
+        logger.error(
+          { err: (err as Error).message, rule: (r as { rule?: string }).rule },
+          'alert not queued for notification',
+        ),
+      );
 
   function spoolNear(sink: string, bytes: number, max: number) {
     logger.warn(
@@ -165,7 +255,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     );
     const alert = operationalAlert('spool_near_limit', bytes, max, sink);
     o.onRecords?.([alert]);
-    void notifier?.enqueue(alert as never);
+    void enqueue(alert);
   }
 
   function operationalAlert(rule: string, value: number, limit: number, sensor?: string): DerivedRecord {
@@ -195,14 +285,14 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     logger,
     onRecords: (records) => {
       o.onRecords?.(records);
-      if (notifier) for (const r of records) if (r.type === 'alert') void notifier.enqueue(r as never);
+      for (const r of records) if (r.type === 'alert') void enqueue(r);
     },
     onArchiveError: (err) => {
       if ((err as { code?: string }).code === 'REEFD_DISK_FULL' && Date.now() - diskFullSince > 10 * 60_000) {
         diskFullSince = Date.now();
         const a = operationalAlert('disk_full', 0, 0);
         o.onRecords?.([a]);
-        void notifier?.enqueue(a as never);
+        void enqueue(a);
       }
     },
   });
@@ -324,7 +414,8 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
           bridge?.close(),
           deadLetter.close(),
           archive.close(),
-          notifier?.stop(),
+          notifier.stop(),
+          notifyClient?.endAsync(),
         ]),
         deadline,
       ]);
@@ -339,6 +430,9 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     pipeline,
     metrics,
     notifier,
+    setNoticeSink: (sink) => {
+      noticeSink = sink;
+    },
     dataDir,
     ready: () => sources.every((s) => s.connected()),
     status: () => ({

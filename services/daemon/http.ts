@@ -79,10 +79,13 @@ export async function startHttp(o: HttpOptions): Promise<HttpFront> {
         qc_flag: h.flag,
       })),
     onAck: async (id, by) => {
-      const r = await o.daemon.notifier?.ack(id, by);
-      if (r && !r.ok)
-        o.logger.info({ id }, 'acknowledged on the dashboard only (not in the notification outbox)');
+      const r = await o.daemon.notifier.ack(id, by);
+      if (!r.ok) o.logger.info({ id }, 'acknowledged on the dashboard only (not in the notification outbox)');
     },
+  });
+  o.daemon.setNoticeSink((m) => {
+    const worst = m.alerts.some((a) => a.severity === 'critical') ? 'critical' : m.alerts[0]?.severity;
+    server.notify({ title: m.subject, body: m.text, ...(worst !== undefined ? { severity: worst } : {}) });
   });
   const persist = () =>
     writeHistory(file, server.history.records()).catch((err: unknown) =>
