@@ -118,8 +118,9 @@ describe('metabolism against the truth (issue 5)', () => {
       );
       expect(Math.abs(d) / scale).toBeLessThan(0.05);
     });
-    // The inner transect's velocity is measured at the back reef, downstream of where its depth and chemistry
-    // change most, so its budget carries a known bias the outer one does not (libs/simulator/README.md).
+    // The inner transect's velocity is measured at the back reef, where the model's continuity (q = U h,
+    // libs/simulator/README.md) gives a U for the back reef's own depth, while the budget uses the mean depth
+    // of the transect: U h differs from the model's flux by the depth ratio, a bias the outer one lacks.
     const necBound = id === 'outer' ? 0.1 : 0.25;
     it(`${id}: NEC by the pCO2 + O2 inverse, integrated, within ${100 * necBound} %`, () => {
       const withNec = pairs.filter((p) => num(p.f, 'nec_mmol_m2_h') !== null);
