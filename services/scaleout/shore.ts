@@ -149,7 +149,7 @@ class Member implements ShoreMember {
     for (const m of batch.messages) {
       if (this.#halt !== 'no' || gen !== this.#generation || !p.isRunning() || p.isStale()) return;
       const paced = this.#o.pace?.({ partition, offset: m.offset });
-      if (paced !== undefined) await paced;
+      if (paced !== undefined) await this.#waitBeating(paced, p);
       if (this.#halt !== 'no' || gen !== this.#generation) return;
       await this.#handle(partition, m);
       p.resolveOffset(m.offset);
@@ -160,6 +160,17 @@ class Member implements ShoreMember {
         beat = now;
         await p.heartbeat();
       }
+    }
+  }
+
+  /** Waits for `until` while heartbeating, so the group neither times the member out nor waits on it. */
+  async #waitBeating(until: Promise<void>, p: EachBatchPayload): Promise<void> {
+    let done = false;
+    void until.then(() => (done = true));
+    while (!done && this.#halt === 'no') {
+      await Promise.race([until, new Promise((r) => setTimeout(r, 500))]);
+      // Throws when the group rebalances: the batch ends and kafkajs rejoins.
+      if (!done && this.#halt === 'no') await p.heartbeat();
     }
   }
 
