@@ -11,8 +11,9 @@ import path from 'node:path';
 import { createInterface } from 'node:readline';
 import { Kafka, logLevel } from 'kafkajs';
 import pino from 'pino';
-import type { ReefdConfig } from '../../libs/contract/index.js';
+import { parseMessage, type ReefdConfig } from '../../libs/contract/index.js';
 import { checkAgainstConfig, createProcessor } from '../../libs/processor/index.js';
+import { rawRecordOf } from '../../services/scaleout/edge-bridge.js';
 import { KAFKA_BROKERS, randomSuffix } from '../integration/env.js';
 import { deployment, produceViaEdge, twoSites } from '../integration/scaleout/fixtures.js';
 
@@ -126,14 +127,24 @@ async function groupRate(
 const sites = await twoSites(2);
 const msgs = deployment(sites, START_MS, HOURS * 3600_000);
 
-// Baseline: the bare processor, one core, same messages (validated already; check + push only).
+// Baseline: the bare processor, one core, same messages from their wire text (parse + validate + check +
+// push: the shore's work without Kafka).
 const procs = new Map(sites.map((c) => [c.site, { cfg: c, p: createProcessor(c) }]));
+const wire = msgs.map((m) => {
+  const { message: x } = m;
+  return {
+    topic: `reef/${x.site}/${x.station}/${x.kind}/${x.sensor}`,
+    text: rawRecordOf(x).value,
+    rxMs: m.rxMs,
+  };
+});
 let t = performance.now();
 const cpuBare0 = process.cpuUsage();
-for (const m of msgs) {
-  const s = procs.get(m.message.site);
-  if (s === undefined || checkAgainstConfig(s.cfg, m.message) !== undefined) continue;
-  s.p.push(m.message, m.rxMs);
+for (const w of wire) {
+  const r = parseMessage(w.topic, w.text, 'reef');
+  const s = r.ok ? procs.get(r.message.site) : undefined;
+  if (!r.ok || s === undefined || checkAgainstConfig(s.cfg, r.message) !== undefined) continue;
+  s.p.push(r.message, w.rxMs);
 }
 const bare = msgs.length / ((performance.now() - t) / 1000);
 const cpuBare = process.cpuUsage(cpuBare0);
