@@ -79,6 +79,29 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const metrics = o.metrics ?? createMetrics();
   const checkpointFile = path.join(dataDir, 'checkpoint.json');
 
+  /** SASL settings with the password resolved from its secret reference. */
+  async function sasl(
+    s:
+      | { mechanism: 'plain' | 'scram-sha-256' | 'scram-sha-512'; username: string; password: SecretRef }
+      | undefined,
+  ) {
+    return s
+      ? { mechanism: s.mechanism, username: s.username, password: (await secret(s.password)) ?? '' }
+      : undefined;
+  }
+
+  /** A second MQTT client on the source broker (dead letters, notifications), never the intake's own. */
+  async function auxMqtt(m: NonNullable<NonNullable<ReefdConfig['sources']>['mqtt']>, role: string) {
+    const password = await secret(m.password);
+    return mqtt.connect(m.url, {
+      clientId: `${m.client_id}-${role}`,
+      protocolVersion: o.mqttProtocolVersion ?? 5,
+      ...(m.username !== undefined ? { username: m.username } : {}),
+      ...(password !== undefined ? { password } : {}),
+      ...(tlsOptions(tlsFiles(o.baseDir, m.tls)) as Record<string, unknown>),
+    });
+  }
+
   // 1. The processor, resumed from its checkpoint.
   const cp = await readCheckpoint(checkpointFile);
   if (cp.warning) logger.warn({ code: cp.warning.code }, cp.warning.message);
@@ -140,13 +163,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
         clientId: k.client_id,
         topic: k.topic,
         tls: tlsFiles(o.baseDir, k.tls),
-        sasl: k.sasl
-          ? {
-              mechanism: k.sasl.mechanism,
-              username: k.sasl.username,
-              password: (await secret(k.sasl.password)) ?? '',
-            }
-          : undefined,
+        sasl: await sasl(k.sasl),
         spoolDir: path.join(dataDir, 'spool', 'kafka'),
         spoolMaxMb: k.spool_max_mb,
         logger,
@@ -159,15 +176,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const closers: (() => Promise<unknown>)[] = [];
   let dlMqtt: { publisher: TopicPublisher; topic: string } | undefined;
   if (dl?.mqtt_topic && config.sources?.mqtt) {
-    const m = config.sources.mqtt;
-    const password = await secret(m.password);
-    const client = mqtt.connect(m.url, {
-      clientId: `${m.client_id}-deadletter`,
-      protocolVersion: o.mqttProtocolVersion ?? 5,
-      ...(m.username !== undefined ? { username: m.username } : {}),
-      ...(password !== undefined ? { password } : {}),
-      ...(tlsOptions(tlsFiles(o.baseDir, m.tls)) as Record<string, unknown>),
-    });
+    const client = await auxMqtt(config.sources.mqtt, 'deadletter');
     client.on('error', (err) => logger.warn({ err: err.message }, 'dead-letter mqtt client error'));
     closers.push(() => client.endAsync());
     dlMqtt = { publisher: mqttPublisher(client), topic: dl.mqtt_topic };
@@ -179,13 +188,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
       brokers: kc.brokers,
       clientId: `${kc.client_id}-deadletter`,
       tls: tlsFiles(o.baseDir, kc.tls),
-      sasl: kc.sasl
-        ? {
-            mechanism: kc.sasl.mechanism,
-            username: kc.sasl.username,
-            password: (await secret(kc.sasl.password)) ?? '',
-          }
-        : undefined,
+      sasl: await sasl(kc.sasl),
       logger,
     }).producer();
     await producer
@@ -212,15 +215,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   let notifyClient: mqtt.MqttClient | undefined;
   const wantsMqtt = Object.values(notifyConfig.channels).some((c) => c.enabled && c.type === 'mqtt');
   if (wantsMqtt && config.sources?.mqtt) {
-    const m = config.sources.mqtt;
-    const password = await secret(m.password);
-    notifyClient = mqtt.connect(m.url, {
-      clientId: `${m.client_id}-notify`,
-      protocolVersion: o.mqttProtocolVersion ?? 5,
-      ...(m.username !== undefined ? { username: m.username } : {}),
-      ...(password !== undefined ? { password } : {}),
-      ...(tlsOptions(tlsFiles(o.baseDir, m.tls)) as Record<string, unknown>),
-    });
+    notifyClient = await auxMqtt(config.sources.mqtt, 'notify');
     notifyClient.on('error', (err) => logger.warn({ err: err.message }, 'notification mqtt client error'));
   }
   const channels = await channelsFromConfig(notifyConfig, {
@@ -338,13 +333,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
         topic: k.topic,
         topicPrefix: config.topic_prefix,
         tls: tlsFiles(o.baseDir, k.tls),
-        sasl: k.sasl
-          ? {
-              mechanism: k.sasl.mechanism,
-              username: k.sasl.username,
-              password: (await secret(k.sasl.password)) ?? '',
-            }
-          : undefined,
+        sasl: await sasl(k.sasl),
         logger,
       }),
     );

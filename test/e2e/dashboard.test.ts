@@ -1,9 +1,9 @@
 // The dashboard in a real browser: headless Chromium (playwright-core) against createDashboardServer,
 // seeded with records made from the simulator's truth, then fed live records over server-sent events.
-import { mkdirSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { mkdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import type { BrowserContext, Page } from 'playwright-core';
+import { launchChromium } from './chromium.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { parseConfigText, type DerivedRecord, type ReefdConfig } from '../../libs/contract/index.js';
 import { simulateMessages } from '../../libs/simulator/index.js';
@@ -20,7 +20,7 @@ let config: ReefdConfig;
 let server: DashboardServer;
 let browser: BrowserContext;
 let page: Page;
-let userDir: string;
+let chrome: Awaited<ReturnType<typeof launchChromium>> | undefined;
 let live: DerivedRecord[];
 const acks: { id: string; by: string }[] = [];
 
@@ -43,22 +43,8 @@ beforeAll(async () => {
     metrics: () => '# HELP reefd_up 1\nreefd_up 1\n',
     health: () => healthFromMessages(sim.messages, SPLIT),
   });
-  userDir = mkdtempSync(path.join(tmpdir(), 'reefd-chromium-'));
-  // A fresh profile per run: the persistent context takes the user-data-dir itself.
-  browser = await chromium.launchPersistentContext(userDir, {
-    executablePath: '/usr/bin/chromium',
-    args: [
-      '--headless',
-      '--no-sandbox',
-      '--disable-gpu',
-      '--disable-quic',
-      '--no-first-run',
-      '--disable-background-networking',
-      '--disable-component-update',
-      '--disable-sync',
-    ],
-    viewport: { width: 1360, height: 900 },
-  });
+  chrome = await launchChromium();
+  browser = chrome.browser;
   page = await browser.newPage();
   const errors: string[] = [];
   page.on('pageerror', (e) => errors.push(String(e)));
@@ -69,9 +55,8 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  await browser?.close();
+  await chrome?.close();
   await server?.close();
-  if (userDir) rmSync(userDir, { recursive: true, force: true });
 });
 
 const tileText = (station: string, metric: string) =>

@@ -5,13 +5,14 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import type { BrowserContext, Page } from 'playwright-core';
+import { launchChromium } from './chromium.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
 let daemon: ChildProcess;
 let url: string;
 let dataDir: string;
-let userDir: string;
+let chrome: Awaited<ReturnType<typeof launchChromium>> | undefined;
 let browser: BrowserContext;
 let page: Page;
 let startedMs: number;
@@ -43,34 +44,20 @@ beforeAll(async () => {
     });
     daemon.once('exit', (code) => reject(new Error(`reefd run exited ${code}:\n${stderr}`)));
   });
-  userDir = mkdtempSync(path.join(tmpdir(), 'reefd-chromium-'));
-  browser = await chromium.launchPersistentContext(userDir, {
-    executablePath: '/usr/bin/chromium',
-    args: [
-      '--headless',
-      '--no-sandbox',
-      '--disable-gpu',
-      '--disable-quic',
-      '--no-first-run',
-      '--disable-background-networking',
-      '--disable-component-update',
-      '--disable-sync',
-    ],
-    viewport: { width: 1360, height: 900 },
-  });
+  chrome = await launchChromium();
+  browser = chrome.browser;
   page = await browser.newPage();
   await page.goto(url);
   await page.waitForSelector('body[data-ready="true"]', { timeout: 20_000 });
 }, 60_000);
 
 afterAll(async () => {
-  await browser?.close();
+  await chrome?.close();
   if (daemon && daemon.exitCode === null) {
     const exited = new Promise((r) => daemon.once('exit', r));
     daemon.kill('SIGTERM');
     await exited;
   }
-  if (userDir) rmSync(userDir, { recursive: true, force: true });
   if (dataDir) rmSync(dataDir, { recursive: true, force: true });
 });
 

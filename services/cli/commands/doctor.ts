@@ -3,10 +3,10 @@ import { execFile } from 'node:child_process';
 import { access, constants, mkdir, statfs } from 'node:fs/promises';
 import net from 'node:net';
 import path from 'node:path';
-import { parseArgs } from 'node:util';
 import { formatProblem, type ReefdConfig, type SecretRef } from '../../../libs/contract/index.js';
 import { loadConfigFile, resolveSecret } from '../../config/load.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
+import { parseCommand } from '../args.js';
 
 const HELP = `Usage: reefd doctor --config FILE [--timeout-ms N]
 
@@ -150,24 +150,18 @@ async function checks(config: ReefdConfig, io: CliIo, base: string, timeoutMs: n
 }
 
 export const run: CommandRun = async (args, io) => {
-  let values;
-  try {
-    ({ values } = parseArgs({
-      args,
-      options: {
-        config: { type: 'string' },
-        'timeout-ms': { type: 'string', default: '3000' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    }));
-  } catch (err) {
-    io.stderr(`reefd doctor: ${(err as Error).message}\n\n${HELP}`);
-    return EXIT_USAGE;
-  }
-  if (values.help) {
-    io.stdout(HELP);
-    return EXIT_OK;
-  }
+  const parsed = parseCommand(
+    'doctor',
+    args,
+    {
+      config: { type: 'string' },
+      'timeout-ms': { type: 'string', default: '3000' },
+    },
+    HELP,
+    io,
+  );
+  if (!parsed.ok) return parsed.exit;
+  const values = parsed.values;
   if (!values.config) {
     io.stderr(`reefd doctor: --config is required\n\n${HELP}`);
     return EXIT_USAGE;

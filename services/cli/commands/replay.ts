@@ -2,12 +2,12 @@
 // Output: derived records as NDJSON (stdout by default). Deterministic: the same archive and configuration
 // give byte-identical output.
 import { createWriteStream, existsSync, type WriteStream } from 'node:fs';
-import { parseArgs } from 'node:util';
 import { createProcessor, messageFromArchiveLine } from '../../../libs/processor/index.js';
 import { formatProblem, type DerivedRecord } from '../../../libs/contract/index.js';
 import { readArchive } from '../../archive/index.js';
 import { loadConfigFile } from '../../config/load.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
+import { parseCommand } from '../args.js';
 
 const HELP = `Usage: reefd replay --config FILE --input ARCHIVE [--out FILE] [options]
 
@@ -58,28 +58,22 @@ class ChunkWriter {
 }
 
 export const run: CommandRun = async (args, io) => {
-  let values;
-  try {
-    ({ values } = parseArgs({
-      args,
-      options: {
-        config: { type: 'string' },
-        input: { type: 'string' },
-        out: { type: 'string' },
-        'flush-tail': { type: 'boolean', default: false },
-        quiet: { type: 'boolean', default: false },
-        'summary-json': { type: 'string' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    }));
-  } catch (err) {
-    io.stderr(`reefd replay: ${(err as Error).message}\n\n${HELP}`);
-    return EXIT_USAGE;
-  }
-  if (values.help) {
-    io.stdout(HELP);
-    return EXIT_OK;
-  }
+  const parsed = parseCommand(
+    'replay',
+    args,
+    {
+      config: { type: 'string' },
+      input: { type: 'string' },
+      out: { type: 'string' },
+      'flush-tail': { type: 'boolean', default: false },
+      quiet: { type: 'boolean', default: false },
+      'summary-json': { type: 'string' },
+    },
+    HELP,
+    io,
+  );
+  if (!parsed.ok) return parsed.exit;
+  const values = parsed.values;
   if (!values.config || !values.input) {
     io.stderr(`reefd replay: --config and --input are required\n\n${HELP}`);
     return EXIT_USAGE;

@@ -1,7 +1,6 @@
 // `reefd run [--config FILE]`: the daemon. Without a configuration: the built-in demo (embedded broker,
 // simulated fictional reef, local data folder, dashboard on http://127.0.0.1:8080 or the next free port).
 import path from 'node:path';
-import { parseArgs } from 'node:util';
 import type { DerivedRecord, ReefdConfig } from '../../../libs/contract/index.js';
 import { formatProblem } from '../../../libs/contract/index.js';
 import { loadConfigFile } from '../../config/load.js';
@@ -10,6 +9,7 @@ import { prepareDemo, type DemoSetup } from '../../daemon/demo.js';
 import { startHttp, type HttpFront } from '../../daemon/http.js';
 import { createLogger, LOG_LEVELS, type Logger } from '../../log/logger.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
+import { parseCommand } from '../args.js';
 
 const HELP = `Usage: reefd run [--config FILE] [options]
 
@@ -27,28 +27,22 @@ Options:
 `;
 
 export const run: CommandRun = async (args, io) => {
-  let values;
-  try {
-    ({ values } = parseArgs({
-      args,
-      options: {
-        config: { type: 'string' },
-        port: { type: 'string' },
-        data: { type: 'string' },
-        speed: { type: 'string', default: '120' },
-        seed: { type: 'string', default: '1' },
-        'log-level': { type: 'string', default: 'info' },
-        help: { type: 'boolean', short: 'h' },
-      },
-    }));
-  } catch (err) {
-    io.stderr(`reefd run: ${(err as Error).message}\n\n${HELP}`);
-    return EXIT_USAGE;
-  }
-  if (values.help) {
-    io.stdout(HELP);
-    return EXIT_OK;
-  }
+  const parsed = parseCommand(
+    'run',
+    args,
+    {
+      config: { type: 'string' },
+      port: { type: 'string' },
+      data: { type: 'string' },
+      speed: { type: 'string', default: '120' },
+      seed: { type: 'string', default: '1' },
+      'log-level': { type: 'string', default: 'info' },
+    },
+    HELP,
+    io,
+  );
+  if (!parsed.ok) return parsed.exit;
+  const values = parsed.values;
   const level = values['log-level'] as (typeof LOG_LEVELS)[number];
   if (!LOG_LEVELS.includes(level)) {
     io.stderr(`reefd run: --log-level must be one of ${LOG_LEVELS.join(', ')}\n`);
