@@ -6,10 +6,11 @@ const net = new NotifyError('REEFD_NOTIFY_WEBHOOK_UNREACHABLE', 'x', true);
 
 describe('nextRetryDelayMs (exponential backoff, full jitter)', () => {
   it('grows as base 2^(n-1) with the jitter drawn below it, floored at base/2 and capped', () => {
-    expect(nextRetryDelayMs(net, 1, policy, () => 0.999999)).toBeCloseTo(5000, 0);
+    // the shared backoff helper works in whole milliseconds (floored)
+    expect(nextRetryDelayMs(net, 1, policy, () => 0.999999)).toBe(4999);
     expect(nextRetryDelayMs(net, 4, policy, () => 0.5)).toBe(20_000); // 0.5 x 40 s
     expect(nextRetryDelayMs(net, 4, policy, () => 0)).toBe(2500); // floor
-    expect(nextRetryDelayMs(net, 30, policy, () => 0.999999)).toBeCloseTo(900_000, -1); // cap
+    expect(nextRetryDelayMs(net, 30, policy, () => 0.999999)).toBe(899_999); // cap
   });
   it('waits the full cap on errors a retry cannot fix, and on programming errors', () => {
     expect(

@@ -1,6 +1,8 @@
-// The one retry helper of the notifiers: errors say at creation whether a retry can help (NotifyError.retriable);
-// nextRetryDelayMs turns an error and an attempt count into a delay with exponential backoff and full jitter
-// (the "full jitter" variant: uniform in [0, min(max, base 2^n)]; common practice).
+// Retry policy of the notifiers: errors say at creation whether a retry can help (NotifyError.retriable);
+// nextRetryDelayMs turns an error and an attempt count into a delay. The backoff itself is the project's one
+// helper (services/sinks/retry.ts: exponential with full jitter); only the outbox's rule for errors a retry
+// cannot fix differs, and lives here.
+import { backoffDelayMs } from '../sinks/retry.js';
 
 export class NotifyError extends Error {
   readonly code: string;
@@ -38,6 +40,10 @@ export function nextRetryDelayMs(
   random: () => number,
 ): number {
   if (!isRetriable(err)) return policy.maxMs;
-  const ceiling = Math.min(policy.maxMs, policy.baseMs * 2 ** Math.max(0, attempt - 1));
-  return Math.min(policy.maxMs, Math.max(policy.baseMs / 2, random() * ceiling));
+  const delay = backoffDelayMs(Math.max(0, attempt - 1), {
+    baseMs: policy.baseMs,
+    maxMs: policy.maxMs,
+    random,
+  });
+  return Math.min(policy.maxMs, Math.max(policy.baseMs / 2, delay));
 }
