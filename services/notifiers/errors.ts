@@ -6,8 +6,6 @@ export const NOTIFY_ERRORS = Object.freeze({
   REEFD_NOTIFY_MQTT_OFFLINE: 'retriable: the broker connection is down',
   REEFD_NOTIFY_MQTT_PUBLISH: 'retriable: the broker did not accept the publish',
   REEFD_NOTIFY_NO_MQTT: 'an mqtt channel is configured but the daemon has no MQTT client for it',
-  REEFD_NOTIFY_SECRET_MISSING:
-    'a { env } or { file } secret could not be read: set the variable or fix the file',
   REEFD_NOTIFY_DUPLICATE_CHANNEL: 'two channels share an id',
   REEFD_NOTIFY_NOT_STARTED: 'enqueue() or ack() before start()',
   REEFD_NOTIFY_JOURNAL_CLOSED: 'a journal write after stop()',

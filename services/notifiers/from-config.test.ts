@@ -1,20 +1,23 @@
 import { describe, it, expect } from 'vitest';
-import { writeFile } from 'node:fs/promises';
+import { chmod, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { notifyConfigSchema } from '../../libs/alerts/index.js';
-import { channelsFromConfig, notifierOptionsFromConfig, resolveSecret } from './index.js';
+import { resolveSecret } from '../config/load.js';
+import { channelsFromConfig, notifierOptionsFromConfig } from './index.js';
 import { tempDir } from './test-helpers.js';
 
 describe('secrets', () => {
-  it('reads { env } and { file } references and says what is missing', async () => {
+  it('reads { env } and { file } references (the daemon-wide resolver) and says what is missing', async () => {
     expect(await resolveSecret({ env: 'HOOK' }, { HOOK: 'abc' })).toBe('abc');
-    await expect(resolveSecret({ env: 'HOOK' }, {})).rejects.toThrow(
-      /REEFD_NOTIFY_SECRET_MISSING: environment variable HOOK/,
-    );
+    await expect(resolveSecret({ env: 'HOOK' }, {})).rejects.toThrow(/environment variable HOOK is not set/);
     const dir = await tempDir();
     await writeFile(join(dir, 'pass'), 'pa55\n');
-    expect(await resolveSecret({ file: join(dir, 'pass') }, {})).toBe('pa55'); // one trailing newline dropped
-    await expect(resolveSecret({ file: join(dir, 'nope') }, {})).rejects.toThrow(/cannot read secret file/);
+    // a secret file others can read is refused, with the command that fixes it
+    await chmod(join(dir, 'pass'), 0o644);
+    await expect(resolveSecret({ file: join(dir, 'pass') }, {})).rejects.toThrow(/chmod 600/);
+    await chmod(join(dir, 'pass'), 0o600);
+    expect(await resolveSecret({ file: join(dir, 'pass') }, {})).toBe('pa55'); // the trailing newline dropped
+    await expect(resolveSecret({ file: join(dir, 'nope') }, {})).rejects.toThrow(/does not exist/);
   });
 });
 
@@ -60,8 +63,8 @@ describe('channels from the notify: config', () => {
     const h = notifyConfigSchema.parse({
       channels: { h: { type: 'webhook', url: 'http://127.0.0.1:9/', secret: { env: 'X' } } },
     });
-    await expect(channelsFromConfig(h, { site: 's', env: {} })).rejects.toThrow(
-      /REEFD_NOTIFY_SECRET_MISSING/,
-    );
+    await expect(channelsFromConfig(h, { site: 's', env: {} })).rejects.toMatchObject({
+      code: 'REEFD_SECRET_MISSING',
+    });
   });
 });

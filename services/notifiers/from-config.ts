@@ -8,7 +8,7 @@ import { createSmtpChannel } from './channels/smtp.js';
 import { createWebhookChannel } from './channels/webhook.js';
 import type { NotificationMessage } from './messages.js';
 import type { NotifierOptions } from './notifier.js';
-import { resolveSecret } from './secrets.js';
+import { resolveSecret } from '../config/load.js';
 
 export interface ChannelDeps {
   readonly site: string;
@@ -17,7 +17,8 @@ export interface ChannelDeps {
   readonly mqtt?: MqttPublisher;
   /** Needed when a dashboard channel is configured. */
   readonly dashboard?: (m: NotificationMessage) => void;
-  readonly readFile?: (path: string) => Promise<string>;
+  /** Folder that relative secret file paths are relative to (the configuration's). */
+  readonly baseDir?: string;
 }
 
 export async function channelsFromConfig(cfg: NotifyConfig, deps: ChannelDeps): Promise<Channel[]> {
@@ -33,7 +34,7 @@ export async function channelsFromConfig(cfg: NotifyConfig, deps: ChannelDeps): 
     let ch: Channel;
     switch (c.type) {
       case 'webhook': {
-        const secret = c.secret ? await resolveSecret(c.secret, deps.env, deps.readFile) : undefined;
+        const secret = c.secret ? await resolveSecret(c.secret, deps.env, deps.baseDir) : undefined;
         ch = createWebhookChannel({
           id,
           url: c.url,
@@ -44,7 +45,7 @@ export async function channelsFromConfig(cfg: NotifyConfig, deps: ChannelDeps): 
         break;
       }
       case 'smtp': {
-        const pass = c.auth ? await resolveSecret(c.auth.pass, deps.env, deps.readFile) : undefined;
+        const pass = c.auth ? await resolveSecret(c.auth.pass, deps.env, deps.baseDir) : undefined;
         ch = createSmtpChannel({
           id,
           host: c.host,

@@ -21,7 +21,6 @@ export { createMqttChannel, type MqttPublisher, type MqttChannelOptions } from '
 export { createDashboardChannel } from './channels/dashboard.js';
 export { channelsFromConfig, notifierOptionsFromConfig } from './from-config.js';
 export { NotifyError, isRetriable, nextRetryDelayMs, type RetryPolicy } from './retry.js';
-export { resolveSecret } from './secrets.js';
 export type { NotificationMessage, MessageKind } from './messages.js';
 export {
   alertsStateDir,
