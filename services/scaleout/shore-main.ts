@@ -1,5 +1,6 @@
 // A shore processor member as its own process (benchmarks, tests, and a deployment's process manager):
-//   tsx services/scaleout/shore-main.ts --brokers H:P[,H:P] --topic RAW --group ID --state-dir DIR \
+//   tsx services/scaleout/shore-main.ts --brokers H:P[,H:P] --topic RAW --group ID \
+//     (--state-dir DIR | --state-topic RAW.state) \
 //     --site FILE [--site FILE ...] [--snapshot-ms N] [--out FILE.ndjson] [--hold]
 // Prints one JSON status line to stdout every 100 ms ({t, cpuMs, assigned, positions, stats}); with --hold it
 // processes nothing until a line `go` arrives on stdin. SIGTERM stores the state and leaves the group.
@@ -8,6 +9,7 @@ import { parseArgs } from 'node:util';
 import pino from 'pino';
 import { loadConfigOrThrow } from '../config/load.js';
 import { createShoreMember } from './shore.js';
+import { createKafkaStateStore } from './kafka-state-store.js';
 import { createDirectoryStateStore } from './state-store.js';
 
 const { values } = parseArgs({
@@ -16,6 +18,7 @@ const { values } = parseArgs({
     topic: { type: 'string' },
     group: { type: 'string' },
     'state-dir': { type: 'string' },
+    'state-topic': { type: 'string' },
     site: { type: 'string', multiple: true },
     'snapshot-ms': { type: 'string' },
     out: { type: 'string' },
@@ -30,6 +33,12 @@ const need = (v: string | undefined, name: string): string => {
   return v;
 };
 
+const logger = pino({ level: process.env.REEFD_LOG_LEVEL ?? 'warn' }, pino.destination(2));
+const brokers = need(values.brokers, 'brokers').split(',');
+const store =
+  values['state-topic'] !== undefined
+    ? await createKafkaStateStore({ brokers, clientId: 'reefd-shore', topic: values['state-topic'], logger })
+    : createDirectoryStateStore(need(values['state-dir'], 'state-dir'));
 const sites = await Promise.all((values.site ?? []).map((f) => loadConfigOrThrow(f)));
 let go: () => void = () => undefined;
 const started = values.hold ? new Promise<void>((r) => (go = r)) : Promise.resolve();
@@ -41,11 +50,11 @@ process.stdin.on('data', (d: Buffer) => {
 let out: string[] = [];
 const member = createShoreMember({
   sites,
-  brokers: need(values.brokers, 'brokers').split(','),
+  brokers,
   clientId: 'reefd-shore',
   groupId: need(values.group, 'group'),
   topic: need(values.topic, 'topic'),
-  store: createDirectoryStateStore(need(values['state-dir'], 'state-dir')),
+  store,
   snapshotEveryMs: Number(values['snapshot-ms'] ?? 10_000),
   onRecords: (records) => {
     if (values.out !== undefined) for (const r of records) out.push(JSON.stringify(r));
@@ -56,7 +65,7 @@ const member = createShoreMember({
     out = [];
     await appendFile(values.out, lines.join('\n') + '\n');
   },
-  logger: pino({ level: process.env.REEFD_LOG_LEVEL ?? 'warn' }, pino.destination(2)),
+  logger,
   pace: () => (running ? undefined : started),
 });
 await member.start();

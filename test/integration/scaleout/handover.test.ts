@@ -5,11 +5,12 @@
 import { mkdtemp } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { Kafka, logLevel } from 'kafkajs';
+import { ConfigResourceTypes, Kafka, logLevel } from 'kafkajs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { DerivedRecord, ReefdConfig } from '../../../libs/contract/index.js';
 import { createShoreMember, type ShoreMember } from '../../../services/scaleout/shore.js';
-import { createDirectoryStateStore } from '../../../services/scaleout/state-store.js';
+import { createKafkaStateStore, type KafkaStateStore } from '../../../services/scaleout/kafka-state-store.js';
+import { createDirectoryStateStore, type SiteStateStore } from '../../../services/scaleout/state-store.js';
 import { KAFKA_BROKERS, itTopic, pollUntil, randomSuffix, requireService } from '../env.js';
 import { quietLogger } from '../io/fixtures.js';
 import { byId, deployment, produceViaEdge, twoSites } from './fixtures.js';
@@ -28,7 +29,7 @@ function member(
   sites: readonly ReefdConfig[],
   topic: string,
   groupId: string,
-  stateDir: string,
+  store: SiteStateStore,
   out: DerivedRecord[],
   pace?: Parameters<typeof createShoreMember>[0]['pace'],
 ): ShoreMember {
@@ -38,7 +39,7 @@ function member(
     clientId: 'reefd-it-shore',
     groupId,
     topic,
-    store: createDirectoryStateStore(stateDir),
+    store,
     snapshotEveryMs: 200,
     maxBytesPerPartition: 64 * 1024,
     onRecords: (records) => out.push(...records),
@@ -60,85 +61,126 @@ async function drained(m: ShoreMember, hw: ReadonlyMap<number, bigint>, what: st
 }
 
 describe('scale-out: edge bridge and shore consumer group', () => {
-  it('two members, one killed mid-stream: the survivor resumes its windows and the records equal one member', async () => {
-    const sites = await twoSites(PARTITIONS);
-    const topic = itTopic();
-    const admin = kafka.admin();
-    await admin.connect();
-    await admin.createTopics({ topics: [{ topic, numPartitions: PARTITIONS }], waitForLeaders: true });
-    const msgs = deployment(sites, START_MS, 3 * 3600_000);
-    await produceViaEdge(KAFKA_BROKERS, topic, msgs, quietLogger());
-    const hw = new Map(
-      (await admin.fetchTopicOffsets(topic)).map((o) => [o.partition, BigInt(o.high)] as const),
-    );
-    await admin.disconnect();
-    // Every site on one partition, both partitions used (the site partitioner).
-    expect([...hw.values()].reduce((a, b) => a + b, 0n)).toBe(BigInt(msgs.length));
-    expect([...hw.values()].every((n) => n > 100n)).toBe(true);
+  it.each([
+    ['a shared directory', 'dir'],
+    ['a compacted Kafka topic', 'kafka'],
+  ] as const)(
+    'two members, one killed mid-stream, state in %s: the survivor resumes its windows and the records equal one member',
+    async (_label, kind) => {
+      const sites = await twoSites(PARTITIONS);
+      const topic = itTopic();
+      const admin = kafka.admin();
+      await admin.connect();
+      await admin.createTopics({ topics: [{ topic, numPartitions: PARTITIONS }], waitForLeaders: true });
+      const msgs = deployment(sites, START_MS, 3 * 3600_000);
+      await produceViaEdge(KAFKA_BROKERS, topic, msgs, quietLogger());
+      const hw = new Map(
+        (await admin.fetchTopicOffsets(topic)).map((o) => [o.partition, BigInt(o.high)] as const),
+      );
+      await admin.disconnect();
+      // Every site on one partition, both partitions used (the site partitioner).
+      expect([...hw.values()].reduce((a, b) => a + b, 0n)).toBe(BigInt(msgs.length));
+      expect([...hw.values()].every((n) => n > 100n)).toBe(true);
 
-    // 1. The reference: one member alone.
-    const single: DerivedRecord[] = [];
-    const one = member(sites, topic, `reefd-it-${randomSuffix()}`, await tmp(), single);
-    await one.start();
-    await drained(one, hw, 'single member drained the topic');
-    await one.stop();
-    const ref = byId(single);
-    expect(ref.dups).toBe(0);
-    // The demo site derives every record type over 3 h (waves, currents, carbonate, oxygen, fluxes).
-    const types = new Set(single.map((r) => r.type));
-    for (const t of ['waves', 'current', 'carbonate', 'oxygen', 'flux']) expect(types).toContain(t);
+      // 1. The reference: one member alone.
+      const single: DerivedRecord[] = [];
+      const one = member(
+        sites,
+        topic,
+        `reefd-it-${randomSuffix()}`,
+        createDirectoryStateStore(await tmp()),
+        single,
+      );
+      await one.start();
+      await drained(one, hw, 'single member drained the topic');
+      await one.stop();
+      const ref = byId(single);
+      expect(ref.dups).toBe(0);
+      // The demo site derives every record type over 3 h (waves, currents, carbonate, oxygen, fluxes).
+      const types = new Set(single.map((r) => r.type));
+      for (const t of ['waves', 'current', 'carbonate', 'oxygen', 'flux']) expect(types).toContain(t);
 
-    // 2. Two members in one group; member a is held at half of its partition and killed there.
-    const group = `reefd-it-${randomSuffix()}`;
-    const stateDir = await tmp();
-    const pair: DerivedRecord[] = [];
-    let both = false;
-    let release: (() => void) | undefined;
-    let heldAt: { partition: number; offset: bigint } | undefined;
-    const a: ShoreMember = member(sites, topic, group, stateDir, pair, ({ partition, offset }) => {
-      if (!both) return sleep(30); // slow until the group has settled on one partition each
-      const mine = a.assigned();
-      const half = (hw.get(partition) ?? 0n) / 2n;
-      if (mine.length !== 1 || mine[0] !== partition || BigInt(offset) < half) return undefined;
-      heldAt ??= { partition, offset: BigInt(offset) };
-      return new Promise<void>((r) => (release = r));
-    });
-    const b = member(sites, topic, group, stateDir, pair, () => (both ? undefined : sleep(30)));
-    await Promise.all([a.start(), b.start()]);
-    await pollUntil(
-      'each member owns one partition',
-      async () => (a.assigned().length === 1 && b.assigned().length === 1 ? true : undefined),
-      30_000,
-    );
-    both = true;
-    await pollUntil('member a held mid-stream', async () => heldAt, 30_000);
-    const aStored = a.storedAt().get(heldAt?.partition ?? -1);
-    const aStats = a.stats();
-    const killing = a.kill();
-    release?.();
-    await killing;
+      // 2. Two members in one group; member a is held at half of its partition and killed there.
+      const group = `reefd-it-${randomSuffix()}`;
+      const stateDir = await tmp();
+      const kafkaStores: KafkaStateStore[] = [];
+      const store = async (): Promise<SiteStateStore> => {
+        if (kind === 'dir') return createDirectoryStateStore(stateDir);
+        const k = await createKafkaStateStore({
+          brokers: KAFKA_BROKERS,
+          clientId: 'reefd-it-shore',
+          topic: `${topic}.state`,
+          logger: quietLogger(),
+        });
+        kafkaStores.push(k);
+        return k;
+      };
+      const storeA = await store();
+      const storeB = await store();
+      const pair: DerivedRecord[] = [];
+      let both = false;
+      let release: (() => void) | undefined;
+      let heldAt: { partition: number; offset: bigint } | undefined;
+      const a: ShoreMember = member(sites, topic, group, storeA, pair, ({ partition, offset }) => {
+        if (!both) return sleep(30); // slow until the group has settled on one partition each
+        const mine = a.assigned();
+        const half = (hw.get(partition) ?? 0n) / 2n;
+        if (mine.length !== 1 || mine[0] !== partition || BigInt(offset) < half) return undefined;
+        heldAt ??= { partition, offset: BigInt(offset) };
+        return new Promise<void>((r) => (release = r));
+      });
+      const b = member(sites, topic, group, storeB, pair, () => (both ? undefined : sleep(30)));
+      await Promise.all([a.start(), b.start()]);
+      await pollUntil(
+        'each member owns one partition',
+        async () => (a.assigned().length === 1 && b.assigned().length === 1 ? true : undefined),
+        30_000,
+      );
+      both = true;
+      await pollUntil('member a held mid-stream', async () => heldAt, 30_000);
+      const aStored = a.storedAt().get(heldAt?.partition ?? -1);
+      const aStats = a.stats();
+      const killing = a.kill();
+      release?.();
+      await killing;
 
-    // 3. b takes a's partition over, restores its sites from the store, and drains everything.
-    await pollUntil(
-      'b owns both partitions',
-      async () => (b.assigned().length === 2 ? true : undefined),
-      30_000,
-    );
-    await drained(b, hw, 'survivor drained the topic');
-    const bStats = b.stats();
-    await b.stop();
+      // 3. b takes a's partition over, restores its sites from the store, and drains everything.
+      await pollUntil(
+        'b owns both partitions',
+        async () => (b.assigned().length === 2 ? true : undefined),
+        30_000,
+      );
+      await drained(b, hw, 'survivor drained the topic');
+      const bStats = b.stats();
+      await b.stop();
+      await Promise.all(kafkaStores.map((k) => k.close()));
+      if (kind === 'kafka') {
+        // The state topic keeps the latest entry per site: compacted.
+        const adm = kafka.admin();
+        await adm.connect();
+        const d = await adm.describeConfigs({
+          resources: [
+            { type: ConfigResourceTypes.TOPIC, name: `${topic}.state`, configNames: ['cleanup.policy'] },
+          ],
+          includeSynonyms: false,
+        });
+        await adm.disconnect();
+        expect(d.resources[0]?.configEntries[0]?.configValue).toBe('compact');
+      }
 
-    // a stored state part-way (so the takeover restores rather than starts cold) before it was held.
-    expect(aStored).toBeDefined();
-    expect((aStored ?? 0n) > 0n && (aStored ?? 0n) <= (heldAt?.offset ?? 0n)).toBe(true);
-    expect(aStats.messages).toBeGreaterThan(0);
-    expect(bStats.restores).toBeGreaterThan(0);
+      // a stored state part-way (so the takeover restores rather than starts cold) before it was held.
+      expect(aStored).toBeDefined();
+      expect((aStored ?? 0n) > 0n && (aStored ?? 0n) <= (heldAt?.offset ?? 0n)).toBe(true);
+      expect(aStats.messages).toBeGreaterThan(0);
+      expect(bStats.restores).toBeGreaterThan(0);
 
-    const got = byId(pair);
-    expect(got.conflicts).toEqual([]);
-    expect([...got.map.keys()].sort()).toEqual([...ref.map.keys()].sort());
-    for (const [id, json] of ref.map) expect(got.map.get(id), id).toBe(json);
-  }, 90_000);
+      const got = byId(pair);
+      expect(got.conflicts).toEqual([]);
+      expect([...got.map.keys()].sort()).toEqual([...ref.map.keys()].sort());
+      for (const [id, json] of ref.map) expect(got.map.get(id), id).toBe(json);
+    },
+    90_000,
+  );
 });
 
 async function tmp(): Promise<string> {

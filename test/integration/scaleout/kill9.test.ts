@@ -1,6 +1,6 @@
 // Scale-out with a real crash: two shore member processes (services/scaleout/shore-main.ts) in one group;
 // one is killed with SIGKILL mid-stream, so it neither stores state nor commits nor leaves the group; after
-// the session timeout the other takes its partition over from the state directory. The records both wrote
+// the session timeout the other takes its partition over from the compacted state topic. The records both wrote
 // (de-duplicated) equal those of a single in-process member over the same topic.
 import { spawn, type ChildProcess } from 'node:child_process';
 import { existsSync } from 'node:fs';
@@ -11,6 +11,7 @@ import { createInterface } from 'node:readline';
 import { Kafka, logLevel } from 'kafkajs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { DerivedRecord } from '../../../libs/contract/index.js';
+import { createKafkaStateStore } from '../../../services/scaleout/kafka-state-store.js';
 import { partitionOfSite } from '../../../services/scaleout/partition.js';
 import { createShoreMember } from '../../../services/scaleout/shore.js';
 import { createDirectoryStateStore } from '../../../services/scaleout/state-store.js';
@@ -117,7 +118,7 @@ describe('scale-out: a member process killed with SIGKILL', () => {
     );
     const group = `reefd-it-${randomSuffix()}`;
     const common = ['--brokers', KAFKA_BROKERS.join(','), '--topic', topic, '--group', group];
-    common.push('--state-dir', path.join(dir, 'state'), '--snapshot-ms', '200', '--hold');
+    common.push('--state-topic', `${topic}.state`, '--snapshot-ms', '200', '--hold');
     common.push(...files.flatMap((f) => ['--site', f]));
     const outA = path.join(dir, 'a.ndjson');
     const outB = path.join(dir, 'b.ndjson');
@@ -144,7 +145,14 @@ describe('scale-out: a member process killed with SIGKILL', () => {
       expect(killedAt < end).toBe(true); // killed mid-stream, not after the end
       // What a stored part-way: the entry b will restore (read before the session timeout lets b in).
       const siteA = sites.find((s) => partitionOfSite(s.site, 2) === pa)?.site ?? '';
-      const entry = await createDirectoryStateStore(path.join(dir, 'state')).load(siteA);
+      const reader = await createKafkaStateStore({
+        brokers: KAFKA_BROKERS,
+        clientId: 'reefd-it-reader',
+        topic: `${topic}.state`,
+        logger: quietLogger(),
+      });
+      const entry = await reader.load(siteA);
+      await reader.close();
       storedOffset = BigInt(entry?.offset ?? '0');
       expect(storedOffset > 0n && storedOffset <= killedAt).toBe(true);
 
