@@ -352,15 +352,31 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   systemd.startWatchdog(() => Date.now() - lastBeat < 10_000);
   systemd.ready();
 
-  async function checkpoint(): Promise<void> {
-    // Flush first, so the checkpoint covers exactly the lines on disk (the cursor counts appended lines).
-    await archive.flush();
-    // Edge mode: every message received up to now is queued at the bridge; once its flush resolves they
-    // are at the broker or in its disk spool, so the checkpoint may cover them (resume re-forwards the rest).
-    const bridgedRxMs = lastRxMs;
-    await bridge?.flush();
+  async function checkpoint(settleMs = 20_000): Promise<void> {
+    // The state and the receive time it covers are taken first; then everything they cover is made durable
+    // before the checkpoint may claim it: the archive lines (the cursor counts appended lines), the bridge
+    // (edge mode: at the broker or in its disk spool) and the records the sinks still hold in memory
+    // (delivered or spooled). Without the sinks' flush a kill -9 just after a checkpoint lost the records of
+    // covered messages, since resume does not feed those again (fault case a, kill after a checkpoint).
+    // If the sinks do not settle within settleMs (a hung or very slow database), the previous checkpoint
+    // stays: resume then feeds more lines again, never fewer.
+    const covered = lastRxMs;
     const state: Checkpointed = processor.snapshot();
-    const covered = bridge ? bridgedRxMs : lastRxMs;
+    await archive.flush();
+    await bridge?.flush();
+    let timer: NodeJS.Timeout | undefined;
+    const settled = await Promise.race([
+      Promise.all(sinks.map((s) => s.flush())).then(() => true),
+      new Promise<boolean>((r) => (timer = setTimeout(() => r(false), settleMs))),
+    ]);
+    clearTimeout(timer);
+    if (!settled) {
+      logger.warn(
+        { code: 'REEFD_CHECKPOINT_DEFERRED' },
+        'sinks did not settle in time; checkpoint kept as it was',
+      );
+      return;
+    }
     if (covered !== undefined) state.lastRxMs = covered;
     await writeCheckpoint(checkpointFile, state);
   }
@@ -393,7 +409,8 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
         deadline,
       ]);
       try {
-        await checkpoint();
+        // The sinks had their flush above: a second chance of 1 s keeps the exit within 10 s.
+        await checkpoint(1000);
       } catch (err) {
         logger.error({ err: (err as Error).message }, 'final checkpoint failed');
       }
