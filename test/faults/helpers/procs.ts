@@ -197,6 +197,8 @@ export interface CountingHttpProxy {
   order: number[];
   /** When false, every request is answered 503 without reaching the target. */
   setUp(up: boolean): void;
+  /** Holds every request this long before forwarding it (a slow database). */
+  setDelayMs(ms: number): void;
   close(): Promise<void>;
 }
 
@@ -207,10 +209,13 @@ export async function startCountingProxy(target: string, orderOf = 'oxygen'): Pr
   const lines = new Map<string, number>();
   const order: number[] = [];
   let up = true;
+  let delayMs = 0;
   const server = createHttp((req, res) => {
     const chunks: Buffer[] = [];
     req.on('data', (c: Buffer) => chunks.push(c));
-    req.on('end', () => {
+    req.on('end', () => void forward());
+    const forward = async (): Promise<void> => {
+      if (delayMs > 0) await new Promise((r) => setTimeout(r, delayMs));
       if (!up) {
         res.writeHead(503).end('down');
         return;
@@ -238,7 +243,7 @@ export async function startCountingProxy(target: string, orderOf = 'oxygen'): Pr
           res.writeHead(r.status).end(text);
         })
         .catch(() => res.writeHead(502).end('bad gateway'));
-    });
+    };
   });
   await new Promise<void>((r) => server.listen(0, '127.0.0.1', r));
   const port = (server.address() as AddressInfo).port;
@@ -248,6 +253,9 @@ export async function startCountingProxy(target: string, orderOf = 'oxygen'): Pr
     order,
     setUp: (u) => {
       up = u;
+    },
+    setDelayMs: (ms) => {
+      delayMs = ms;
     },
     close: () => new Promise<void>((r) => server.close(() => r())),
   };
