@@ -328,12 +328,23 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
       }
       state.lastTickMs = next;
     }
-    for (const st of Object.values(state.stations)) {
-      for (const [k, s] of Object.entries(st)) {
-        pruneBefore(s, watermark - (k.startsWith('sample') ? sampleHorizonMs : horizonMs));
+    // Plain loops and a first-sample test before the binary search: this runs on every message, over
+    // every series of every station (the same samples are dropped as with pruneBefore on each).
+    const cut = watermark - horizonMs;
+    const sampleCut = watermark - sampleHorizonMs;
+    for (const id in state.stations) {
+      const st = state.stations[id] as Record<StationVar, Series>;
+      for (const k in st) {
+        const s = st[k as StationVar];
+        const c = k.startsWith('sample') ? sampleCut : cut;
+        if (s.t.length > 0 && (s.t[0] as number) < c) pruneBefore(s, c);
       }
     }
-    for (const s of Object.values(state.site)) pruneBefore(s, watermark - siteHorizonMs);
+    const siteCut = watermark - siteHorizonMs;
+    for (const k in state.site) {
+      const s = state.site[k as keyof typeof state.site] as Series;
+      if (s.t.length > 0 && (s.t[0] as number) < siteCut) pruneBefore(s, siteCut);
+    }
     for (const a of alerts.advance(watermark)) out.push(alertRecord(a));
   }
 
