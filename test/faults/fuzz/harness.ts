@@ -23,7 +23,7 @@ export function fuzzSeed(): number | undefined {
 
 /** Long runs need a longer per-test timeout than the suite's 240 s. */
 export function fuzzTimeoutMs(): number {
-  return Math.max(60_000, fuzzRuns() * 5);
+  return Math.max(60_000, fuzzRuns() * 20);
 }
 
 export interface Fixture<T> {
