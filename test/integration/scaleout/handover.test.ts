@@ -23,8 +23,6 @@ beforeAll(async () => {
   await requireService('Kafka', KAFKA_BROKERS[0] ?? '');
 });
 
-const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms));
-
 function member(
   sites: readonly ReefdConfig[],
   topic: string,
@@ -119,17 +117,19 @@ describe('scale-out: edge bridge and shore consumer group', () => {
       const storeB = await store();
       const pair: DerivedRecord[] = [];
       let both = false;
+      let settle: () => void = () => undefined;
+      const settled = new Promise<void>((r) => (settle = r));
       let release: (() => void) | undefined;
       let heldAt: { partition: number; offset: bigint } | undefined;
       const a: ShoreMember = member(sites, topic, group, storeA, pair, ({ partition, offset }) => {
-        if (!both) return sleep(30); // slow until the group has settled on one partition each
+        if (!both) return settled; // held (heartbeating) until the group has settled on one partition each
         const mine = a.assigned();
         const half = (hw.get(partition) ?? 0n) / 2n;
         if (mine.length !== 1 || mine[0] !== partition || BigInt(offset) < half) return undefined;
         heldAt ??= { partition, offset: BigInt(offset) };
         return new Promise<void>((r) => (release = r));
       });
-      const b = member(sites, topic, group, storeB, pair, () => (both ? undefined : sleep(30)));
+      const b = member(sites, topic, group, storeB, pair, () => (both ? undefined : settled));
       await Promise.all([a.start(), b.start()]);
       await pollUntil(
         'each member owns one partition',
@@ -137,6 +137,7 @@ describe('scale-out: edge bridge and shore consumer group', () => {
         30_000,
       );
       both = true;
+      settle();
       await pollUntil('member a held mid-stream', async () => heldAt, 30_000);
       const aStored = a.storedAt().get(heldAt?.partition ?? -1);
       const aStats = a.stats();
