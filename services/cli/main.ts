@@ -34,6 +34,10 @@ export const COMMANDS: Record<string, CommandEntry> = {
     summary: 'list or acknowledge alerts (alerts list|ack ID)',
     load: () => import('./commands/alerts.js'),
   },
+  shore: {
+    summary: 'a shore processor member of a Kafka consumer group (scale-out)',
+    load: () => import('./commands/shore.js'),
+  },
   doctor: { summary: 'check a live install and say what to fix', load: () => import('./commands/doctor.js') },
 };
 

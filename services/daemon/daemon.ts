@@ -20,14 +20,10 @@ import type { DeadLetterSink, RecordSink, Source } from '../pipeline/types.js';
 import mqtt from 'mqtt';
 import {
   createDeadLetterSink,
-  createInfluxSink,
-  createKafkaSink,
-  createNdjsonSink,
   kafkaClient,
   kafkaPublisher,
   mqttPublisher,
   tlsOptions,
-  type TlsFiles,
   type TopicPublisher,
 } from '../sinks/index.js';
 import { createKafkaSource, createMqttSource } from '../sources/index.js';
@@ -35,6 +31,7 @@ import { edgeFromConfig } from '../scaleout/edge-from-config.js';
 import { readCheckpoint, writeCheckpoint } from './checkpoint.js';
 import { createMetrics, type DaemonMetrics } from './metrics.js';
 import { createPipeline, type Pipeline } from './pipeline.js';
+import { createOutputs, resolveSasl, tlsFiles } from './outputs.js';
 import { replayArchiveTail } from './resume.js';
 import { createSystemdNotifier } from './systemd.js';
 
@@ -79,16 +76,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const metrics = o.metrics ?? createMetrics();
   const checkpointFile = path.join(dataDir, 'checkpoint.json');
 
-  /** SASL settings with the password resolved from its secret reference. */
-  async function sasl(
-    s:
-      | { mechanism: 'plain' | 'scram-sha-256' | 'scram-sha-512'; username: string; password: SecretRef }
-      | undefined,
-  ) {
-    return s
-      ? { mechanism: s.mechanism, username: s.username, password: (await secret(s.password)) ?? '' }
-      : undefined;
-  }
+  const sasl = (x: Parameters<typeof resolveSasl>[1]) => resolveSasl({ env: o.env, baseDir: o.baseDir }, x);
 
   /** A second MQTT client on the source broker (dead letters, notifications), never the intake's own. */
   async function auxMqtt(m: NonNullable<NonNullable<ReefdConfig['sources']>['mqtt']>, role: string) {
@@ -128,48 +116,15 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   });
 
   // 3. Outputs.
-  const sinks: RecordSink[] = [];
+  const sinks: RecordSink[] = await createOutputs({
+    config,
+    baseDir: o.baseDir,
+    dataDir,
+    env: o.env,
+    logger,
+    onSpoolNearLimit: (sink, bytes, max) => spoolNear(sink, bytes, max),
+  });
   const out = config.outputs;
-  if (out.ndjson)
-    sinks.push(await createNdjsonSink({ name: 'ndjson', path: path.resolve(o.baseDir, out.ndjson.path) }));
-  if (out.influx) {
-    const i = out.influx;
-    sinks.push(
-      await createInfluxSink({
-        name: `influx-${i.api}`,
-        url: i.url,
-        api: i.api,
-        org: i.org,
-        bucket: i.bucket,
-        db: i.db,
-        token: await secret(i.token),
-        username: i.username,
-        password: await secret(i.password),
-        tls: tlsFiles(o.baseDir, i.tls),
-        batchSize: i.batch_size,
-        flushMs: i.flush_ms,
-        spoolDir: path.join(dataDir, 'spool', 'influx'),
-        spoolMaxMb: i.spool_max_mb,
-        logger,
-        onNearLimit: (s) => spoolNear('influx', s.spoolBytes, s.maxBytes),
-      }),
-    );
-  }
-  if (out.kafka) {
-    const k = out.kafka;
-    sinks.push(
-      await createKafkaSink({
-        brokers: k.brokers,
-        clientId: k.client_id,
-        topic: k.topic,
-        tls: tlsFiles(o.baseDir, k.tls),
-        sasl: await sasl(k.sasl),
-        spoolDir: path.join(dataDir, 'spool', 'kafka'),
-        spoolMaxMb: k.spool_max_mb,
-        logger,
-      }),
-    );
-  }
   // Dead letters: always a file; optionally an MQTT topic (a client of its own on the source broker) and a
   // Kafka topic (a producer on the output or source cluster).
   const dl = out.dead_letter;
@@ -450,17 +405,5 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     }),
     checkpoint,
     stop,
-  };
-}
-
-/** TLS file names of the configuration, resolved against the configuration's folder. */
-function tlsFiles(baseDir: string, tls: TlsFiles | undefined): TlsFiles | undefined {
-  if (!tls) return undefined;
-  const r = (f: string | undefined) => (f ? path.resolve(baseDir, f) : undefined);
-  return {
-    ca_file: r(tls.ca_file),
-    cert_file: r(tls.cert_file),
-    key_file: r(tls.key_file),
-    verify: tls.verify,
   };
 }

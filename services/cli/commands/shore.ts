@@ -1,0 +1,130 @@
+// `reefd shore`: a processor member at the shore (scale-out over Kafka, deploy/SCALING.md). Members of one
+// consumer group share the raw topic's partitions, one processor per site, with each site's state stored so
+// that another member takes a partition over and resumes its windows. Records go to each site's own outputs.
+import os from 'node:os';
+import path from 'node:path';
+import type { DerivedRecord, ReefdConfig } from '../../../libs/contract/index.js';
+import { loadConfigOrThrow } from '../../config/load.js';
+import { createOutputs } from '../../daemon/outputs.js';
+import { createLogger, LOG_LEVELS } from '../../log/logger.js';
+import type { RecordSink } from '../../pipeline/types.js';
+import { createKafkaStateStore } from '../../scaleout/kafka-state-store.js';
+import { createShoreMember } from '../../scaleout/shore.js';
+import { createDirectoryStateStore } from '../../scaleout/state-store.js';
+import { parseCommand } from '../args.js';
+import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
+
+const HELP = `Usage: reefd shore --brokers H:P[,H:P] --topic RAW --group ID --site FILE [--site FILE ...]
+                   (--state-topic TOPIC | --state-dir DIR) [options]
+
+Runs one processor member of a shore consumer group over the raw topic that edge stations fill
+(\`bridge\` in their configuration). Each --site is an ordinary site configuration; its outputs
+(database, Kafka, NDJSON) receive that site's derived records.
+
+Options:
+  --state-topic T    compacted Kafka topic for the sites' processor state (e.g. RAW.state)
+  --state-dir DIR    or a folder shared by the members
+  --client-id ID     Kafka client id (default reefd-shore-<host>)
+  --snapshot-s N     store state and commit offsets at most this often (default 10)
+  --data DIR         folder for the outputs' spools (default ./reefd-data/shore)
+  --log-level LEVEL  ${LOG_LEVELS.join('|')} (default info)
+`;
+
+export const run: CommandRun = async (args, io) => {
+  const parsed = parseCommand(
+    'shore',
+    args,
+    {
+      brokers: { type: 'string' },
+      topic: { type: 'string' },
+      group: { type: 'string' },
+      site: { type: 'string', multiple: true },
+      'state-topic': { type: 'string' },
+      'state-dir': { type: 'string' },
+      'client-id': { type: 'string' },
+      'snapshot-s': { type: 'string', default: '10' },
+      data: { type: 'string' },
+      'log-level': { type: 'string', default: 'info' },
+    },
+    HELP,
+    io,
+  );
+  if (!parsed.ok) return parsed.exit;
+  const v = parsed.values;
+  const problems: string[] = [];
+  if (!v.brokers) problems.push('--brokers is required');
+  if (!v.topic) problems.push('--topic is required');
+  if (!v.group) problems.push('--group is required');
+  if (!v.site || v.site.length === 0) problems.push('at least one --site FILE is required');
+  if (!v['state-topic'] === !v['state-dir'])
+    problems.push('give exactly one of --state-topic and --state-dir');
+  const snapshotS = Number(v['snapshot-s']);
+  if (!(snapshotS > 0)) problems.push('--snapshot-s must be a positive number');
+  const level = v['log-level'] as (typeof LOG_LEVELS)[number];
+  if (!LOG_LEVELS.includes(level)) problems.push(`--log-level must be one of ${LOG_LEVELS.join(', ')}`);
+  if (problems.length > 0) {
+    io.stderr(`reefd shore: ${problems.join('; ')}\n\n${HELP}`);
+    return EXIT_USAGE;
+  }
+  const logger = createLogger({ level, pretty: Boolean(process.stderr.isTTY) });
+  const brokers = (v.brokers as string).split(',').map((b) => b.trim());
+  const clientId = v['client-id'] ?? `reefd-shore-${os.hostname()}`;
+  let sites: ReefdConfig[];
+  try {
+    sites = await Promise.all((v.site as string[]).map((f) => loadConfigOrThrow(f)));
+  } catch (err) {
+    io.stderr(`reefd shore: ${(err as Error).message}\n`);
+    return EXIT_USAGE;
+  }
+  const dataDir = path.resolve(v.data ?? path.join('reefd-data', 'shore'));
+  const outputs = new Map<string, RecordSink[]>();
+  for (const [i, cfg] of sites.entries()) {
+    const file = (v.site as string[])[i] as string;
+    outputs.set(
+      cfg.site,
+      await createOutputs({
+        config: cfg,
+        baseDir: path.dirname(path.resolve(file)),
+        dataDir: path.join(dataDir, cfg.site),
+        env: io.env,
+        logger,
+      }),
+    );
+  }
+  const all = [...outputs.values()].flat();
+  const store = v['state-topic']
+    ? await createKafkaStateStore({ brokers, clientId: `${clientId}-state`, topic: v['state-topic'], logger })
+    : createDirectoryStateStore(path.resolve(v['state-dir'] as string));
+  const member = createShoreMember({
+    sites,
+    brokers,
+    clientId,
+    groupId: v.group as string,
+    topic: v.topic as string,
+    store,
+    snapshotEveryMs: snapshotS * 1000,
+    onRecords: (records: readonly DerivedRecord[], at) => {
+      for (const s of outputs.get(at.site) ?? []) s.write(records);
+    },
+    flushOutputs: async () => {
+      await Promise.all(all.map((s) => s.flush()));
+    },
+    logger,
+  });
+  try {
+    await member.start();
+  } catch (err) {
+    logger.fatal({ err: (err as Error).message }, 'shore member could not join the group');
+    return EXIT_FAILURE;
+  }
+  logger.info({ group: v.group, topic: v.topic, sites: sites.map((s) => s.site) }, 'shore member running');
+  await new Promise<void>((resolve) => {
+    process.once('SIGTERM', () => resolve());
+    process.once('SIGINT', () => resolve());
+  });
+  const killer = setTimeout(() => process.exit(1), 10_000);
+  killer.unref();
+  await member.stop();
+  await Promise.allSettled(all.map((s) => s.close()));
+  return EXIT_OK;
+};
