@@ -57,9 +57,11 @@ export function faultConfig(o: {
   };
 }
 
+/** Writes the configuration into its data folder (removed with it), or into a fresh temp folder. */
 export function writeConfig(cfg: Record<string, unknown>): string {
-  const dir = mkdtempSync(join(tmpdir(), 'reefd-faults-cfg-'));
-  const file = join(dir, 'reefd.yaml');
+  const dir =
+    typeof cfg.data_dir === 'string' ? cfg.data_dir : mkdtempSync(join(tmpdir(), 'reefd-faults-cfg-'));
+  const file = join(dir, 'reefd-fault-case.yaml');
   // JSON is YAML.
   writeFileSync(file, JSON.stringify(cfg, null, 2));
   return file;
