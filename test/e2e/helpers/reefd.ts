@@ -53,13 +53,18 @@ export interface RunningReefd {
   stop(timeoutMs?: number): Promise<number | null>;
 }
 
-function nodeArgs(args: string[]): string[] {
-  return ['--import', 'tsx', CLI, ...args];
+function nodeArgs(args: string[], nodeFlags: readonly string[] = []): string[] {
+  return [...nodeFlags, '--import', 'tsx', CLI, ...args];
 }
 
 /** `reefd run --config FILE`; resolves once the HTTP front listens (the "dashboard listening" log line). */
-export async function startReefd(configFile: string, extraArgs: string[] = []): Promise<RunningReefd> {
-  const child = spawn(process.execPath, nodeArgs(['run', '--config', configFile, ...extraArgs]), {
+export async function startReefd(
+  configFile: string,
+  extraArgs: string[] = [],
+  /** Flags for node itself (e.g. --cpu-prof for a profile of the daemon). */
+  nodeFlags: readonly string[] = [],
+): Promise<RunningReefd> {
+  const child = spawn(process.execPath, nodeArgs(['run', '--config', configFile, ...extraArgs], nodeFlags), {
     cwd: REPO_ROOT,
     stdio: ['ignore', 'ignore', 'pipe'],
     env: { ...process.env, NODE_OPTIONS: '' },
