@@ -168,10 +168,13 @@ describe('reefd run over Mosquitto (real services)', () => {
       expect(l?.reason.split(':')[0], b.why).toBe(b.code.split(':')[0]);
       if (b.code.includes(':')) expect(l?.reason, b.why).toContain(b.code);
     }
-    // Records derived from messages published after the bad rows: the second half of the good messages
-    // holds the last simulated hour, and records from it are in the output.
-    const lastSampleMs = Math.max(...sc.messages.map((m) => Date.parse(String(m.payload.t))));
-    const latest = Math.max(...live.filter((r) => r.type === 'oxygen').map((r) => Date.parse(r.t)));
-    expect(lastSampleMs - latest).toBeLessThan(10 * 60_000);
+    // Records derived from messages published after the bad rows (the second half of the good messages):
+    // nearly one oxygen record per optode message of that half (the simulator's scripted faults drop a few).
+    const second = sc.messages.slice(Math.floor(sc.messages.length / 2));
+    const firstAfterMs = Math.min(...second.map((m) => Date.parse(String(m.payload.t))));
+    const optodeAfter = second.filter((m) => m.topic.split('/')[3] === 'oxygen').length;
+    const oxygenAfter = live.filter((r) => r.type === 'oxygen' && Date.parse(r.t) >= firstAfterMs).length;
+    expect(optodeAfter).toBeGreaterThan(50);
+    expect(oxygenAfter).toBeGreaterThanOrEqual(Math.floor(0.9 * optodeAfter));
   });
 });

@@ -4,7 +4,7 @@
 import { readFileSync } from 'node:fs';
 import { Kafka, logLevel } from 'kafkajs';
 import { recordTags, type DerivedRecord } from '../../../libs/contract/index.js';
-import { influxQuery, vmExport } from '../../integration/io/influx-http.js';
+import { influxQuery, type VmSeries } from '../../integration/io/influx-http.js';
 
 export function readNdjsonLines(file: string): string[] {
   return readFileSync(file, 'utf8')
@@ -14,6 +14,24 @@ export function readNdjsonLines(file: string): string[] {
 
 export function readNdjson<T = DerivedRecord>(file: string): T[] {
   return readNdjsonLines(file).map((l) => JSON.parse(l) as T);
+}
+
+/**
+ * VictoriaMetrics /api/v1/export, tolerant of the non-JSON tokens it prints for infinite and NaN values
+ * (+Inf, -Inf, NaN; read as null). VictoriaMetrics turns line-protocol string fields into numbers where
+ * the text parses as one: an alert `id` such as "5e812a3c" becomes +Inf in the series `alert_id`.
+ */
+export async function vmExport(url: string, match: string): Promise<VmSeries[]> {
+  await fetch(`${url}/internal/force_flush`);
+  const res = await fetch(`${url}/api/v1/export`, {
+    method: 'POST',
+    body: new URLSearchParams({ 'match[]': match }),
+  });
+  const text = await res.text();
+  return text
+    .split('\n')
+    .filter((l) => l.trim() !== '')
+    .map((l) => JSON.parse(l.replace(/([[,])([+-]Inf|NaN)(?=[,\]])/g, '$1null')) as VmSeries);
 }
 
 const NOT_FIELDS = new Set(['type', 'site', 'station', 'transect', 't']);
