@@ -97,6 +97,8 @@ const processingSchema = z
     window_min: z.number().positive().max(360).default(30),
     cadence_min: z.number().positive().max(360).default(10),
     lateness_min: z.number().min(0).max(1440).default(10),
+    /** Flux windows are computed this long after the watermark passes their end (>= the longest burst). */
+    window_delay_min: z.number().min(0).max(360).default(20),
     ctd_match_min: z.number().positive().max(1440).default(30),
     ctd_average_min: z.number().min(0).max(60).default(5),
     baro_max_gap_h: z.number().positive().max(48).default(3),

@@ -33,6 +33,11 @@ const HOUR = 3_600_000;
 const STD_BARO_HPA = 1013.25;
 
 export interface DeriveContext {
+  /**
+   * Derivations read only samples up to this time (the message's own `t`): what else happens to have been
+   * derived already depends on delivery order, so looking past `t` would make records order-dependent.
+   */
+  asOfMs: number;
   config: ReefdConfig;
   state: ProcessorState;
   carbonateOptions: CarbonateOptions;
@@ -41,6 +46,7 @@ export interface DeriveContext {
 
 export function makeContext(config: ReefdConfig, state: ProcessorState): DeriveContext {
   return {
+    asOfMs: Infinity,
     config,
     state,
     carbonateOptions: config.carbonate as CarbonateOptions,
@@ -62,8 +68,20 @@ export function ctdAt(
   tMs: number,
 ): { temp: Pick; sal: Pick } | undefined {
   const p = ctx.config.processing;
-  const temp = localMean(series(ctx, station, 'temp'), tMs, p.ctd_average_min * MIN, p.ctd_match_min * MIN);
-  const sal = localMean(series(ctx, station, 'sal'), tMs, p.ctd_average_min * MIN, p.ctd_match_min * MIN);
+  const temp = localMean(
+    series(ctx, station, 'temp'),
+    tMs,
+    p.ctd_average_min * MIN,
+    p.ctd_match_min * MIN,
+    ctx.asOfMs,
+  );
+  const sal = localMean(
+    series(ctx, station, 'sal'),
+    tMs,
+    p.ctd_average_min * MIN,
+    p.ctd_match_min * MIN,
+    ctx.asOfMs,
+  );
   return temp && sal ? { temp, sal } : undefined;
 }
 
@@ -72,7 +90,7 @@ export function baroAt(
   ctx: DeriveContext,
   tMs: number,
 ): { hpa: number; flag: number; source: 'met' | 'default' } {
-  const pick = interpolate(ctx.state.site.baro, tMs, ctx.config.processing.baro_max_gap_h * HOUR);
+  const pick = interpolate(ctx.state.site.baro, tMs, ctx.config.processing.baro_max_gap_h * HOUR, ctx.asOfMs);
   if (pick) return { hpa: pick.value, flag: pick.flag, source: 'met' };
   return { hpa: ctx.config.processing.default_baro_hpa, flag: 3, source: 'default' };
 }
@@ -320,8 +338,8 @@ export function deriveCurrent(
   s: AdcpSettings,
 ): { record: CurrentRecord; flag: number; eastMS: number | null; northMS: number | null } {
   // Depth from the station's pressure logger within the last hour, else the ADCP's own pressure (the lib).
-  const depth = nearest(series(ctx, m.station, 'depth'), m.tMs, HOUR);
-  const hm0 = nearest(series(ctx, m.station, 'hm0ss'), m.tMs, HOUR);
+  const depth = nearest(series(ctx, m.station, 'depthDone'), m.tMs, HOUR, ctx.asOfMs);
+  const hm0 = nearest(series(ctx, m.station, 'hm0ssDone'), m.tMs, HOUR, ctx.asOfMs);
   const ctd = ctdAt(ctx, m.station, m.tMs);
   const baro = baroAt(ctx, m.tMs);
   const r = processEnsemble(

@@ -44,7 +44,7 @@ interface Mean {
 
 /** Block mean of a series over [start, end), expecting samples at the series' observed interval. */
 function mean(s: Series, startMs: number, endMs: number): Mean | undefined {
-  const interval = medianIntervalMs(s);
+  const interval = medianIntervalMs(s, 15, endMs);
   const expected =
     interval !== undefined && interval > 0 ? Math.max(1, Math.floor((endMs - startMs) / interval)) : 1;
   const r = windowMean(s.t, s.v, s.f, startMs, endMs, expected);

@@ -145,7 +145,10 @@ describe('per-reading records', () => {
     expect(w.hm0_m as number).toBeGreaterThan(0.09); // monochromatic: Hm0 = 4 sqrt(a^2/2) = 0.141 m
     expect(w.hm0_m as number).toBeLessThan(0.16);
     expect(w.tp_s as number).toBeCloseTo(8, 0);
-    const c = records.find((r) => r.type === 'current')!;
+    // the first ensemble comes before any burst has completed: no depth yet, so no depth average
+    const first = records.find((r) => r.type === 'current')!;
+    expect(first.u_m_s).toBeNull();
+    const c = records.find((r) => r.type === 'current' && r.u_m_s !== null)!;
     expect(c.u_m_s as number).toBeGreaterThan(0.09); // westward = shoreward with reef_axis 270
     expect(c.u_m_s as number).toBeLessThanOrEqual(0.1);
     expect(c.dir_to_deg as number).toBeCloseTo(270, 6);

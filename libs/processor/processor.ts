@@ -29,6 +29,15 @@ export const MAX_CLOCK_LEAD_MS = 60_000;
 const MAX_SERIES_SAMPLES = 4096;
 const RECENT_IDS = 64;
 
+/**
+ * When a message is complete: its sample time, or for a pressure burst the time of its last sample (`t` is
+ * the first). Lateness and the watermark use it, so a 17-min burst is not late for being long; holding and
+ * release use `t`, so a burst is derived before the windows its samples fall in are computed.
+ */
+function completeMs(m: SensorMessage): number {
+  return m.kind === 'pressure' ? m.tMs + Math.round(((m.p_dbar.length - 1) / m.fs_hz) * 1000) : m.tMs;
+}
+
 /** The alert engine's records are contract `alert` records (with `id` and `severity` of our own). */
 const alertRecord = (a: AlertRecord): DerivedRecord => ({ ...a }) as DerivedRecord;
 
@@ -102,8 +111,11 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
   const W = config.processing.window_min * MIN;
   const cadence = config.processing.cadence_min * MIN;
   const lateness = config.processing.lateness_min * MIN;
+  // A window waits this long past the watermark: a pressure burst stamped at its start whose centre falls in
+  // the window completes (and arrives) up to a burst length after the window's end.
+  const windowDelay = config.processing.window_delay_min * MIN;
   // Samples are kept for two windows (storage), the lateness, and the CTD match distance, with a margin.
-  const horizonMs = 2 * W + lateness + config.processing.ctd_match_min * MIN + HOUR;
+  const horizonMs = 2 * W + lateness + windowDelay + config.processing.ctd_match_min * MIN + HOUR;
   const siteHorizonMs = Math.max(horizonMs, config.processing.baro_max_gap_h * HOUR + HOUR);
   const sampleHorizonMs = config.processing.sample_max_age_h * HOUR + horizonMs;
 
@@ -244,6 +256,10 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
           put(m.station, 'depth', tC, r.depthM, f);
         }
         if (r.hm0SsM !== null) put(m.station, 'hm0ss', tC, r.hm0SsM, f);
+        // Stamped at completion too: an ensemble may use a burst only once the burst is complete.
+        const done = completeMs(m);
+        if (r.depthM !== null) put(m.station, 'depthDone', done, r.depthM, f);
+        if (r.hm0SsM !== null) put(m.station, 'hm0ssDone', done, r.hm0SsM, f);
         r.record.flag = f;
         out.push(r.record);
         // Every observation of one message carries the message time, so the stale tracker learns the sensor's real interval.
@@ -312,14 +328,15 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
   /** Flux windows whose end the watermark has passed, then pruning and stale detection. */
   function advance(watermark: number, out: DerivedRecord[]): void {
     if (state.lastTickMs < 0) {
-      // The first window ends on the cadence grid one window after the first data.
-      state.lastTickMs = Math.floor((state.maxEventMs - lateness) / cadence) * cadence;
-      if (state.lastTickMs < 0) state.lastTickMs = 0;
+      // The cadence grid starts at the earliest message derived (not the first to arrive), so the windows
+      // do not depend on the delivery order within the lateness.
+      if (state.firstDerivedMs === undefined) return;
+      state.lastTickMs = Math.floor(state.firstDerivedMs / cadence) * cadence;
     }
     let next = state.lastTickMs + cadence;
     // After a long silence, resume on the grid instead of walking every empty tick.
     if (watermark - next > 2 * 24 * HOUR) next = Math.floor((watermark - 2 * W) / cadence) * cadence;
-    for (; next <= watermark; next += cadence) {
+    for (; next + windowDelay <= watermark; next += cadence) {
       if (Object.keys(config.transects).length > 0) {
         for (const r of fluxAt(config, state, next, params)) {
           out.push(r);
@@ -348,6 +365,65 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
     for (const a of alerts.advance(watermark)) out.push(alertRecord(a));
   }
 
+  /** Derives one message and notes its sensor's health (battery, worst flag of what it produced). */
+  function deriveOne(m: SensorMessage, rxMs: number, out: DerivedRecord[]): void {
+    const from = out.length;
+    if (state.firstDerivedMs === undefined || m.tMs < state.firstDerivedMs) state.firstDerivedMs = m.tMs;
+    ctx.asOfMs = m.tMs;
+    derive(m, rxMs, out);
+    const ss = state.sensors[`${m.station}/${m.sensor}`];
+    if (ss) {
+      if (m.battery_v !== undefined) ss.batteryV = m.battery_v;
+      let worstFlag = 1;
+      for (let i = from; i < out.length; i++) {
+        const r = out[i] as DerivedRecord;
+        const f = (r as { flag?: unknown }).flag;
+        if (r.type !== 'alert' && typeof f === 'number' && f > worstFlag) worstFlag = f;
+      }
+      ss.lastFlag = worstFlag;
+    }
+  }
+
+  // Among messages of the same time, the ones others are paired with go first (CTD, barometer, depth),
+  // then by station and sensor: the release order is a function of the messages alone.
+  const KIND_ORDER: Record<string, number> = {
+    ctd: 0,
+    met: 1,
+    pressure: 2,
+    sample: 3,
+    adcp: 4,
+    par: 5,
+    oxygen: 6,
+    pco2: 7,
+  };
+  const before = (a: { message: SensorMessage }, b: { message: SensorMessage }): boolean => {
+    const x = a.message;
+    const y = b.message;
+    if (x.tMs !== y.tMs) return x.tMs < y.tMs;
+    const kx = KIND_ORDER[x.kind] ?? 9;
+    const ky = KIND_ORDER[y.kind] ?? 9;
+    if (kx !== ky) return kx < ky;
+    if (x.station !== y.station) return x.station < y.station;
+    return x.sensor < y.sensor;
+  };
+
+  function holdInOrder(m: SensorMessage, rxMs: number): void {
+    const held = state.held;
+    const item = { message: m, rxMs };
+    let i = held.length;
+    while (i > 0 && before(item, held[i - 1] as (typeof held)[number])) i--;
+    held.splice(i, 0, item);
+  }
+
+  /** Derives the held messages the watermark has passed, in event-time order. */
+  function release(watermarkMs: number, out: DerivedRecord[]): void {
+    const held = state.held;
+    let n = 0;
+    while (n < held.length && (held[n] as (typeof held)[number]).message.tMs <= watermarkMs) n++;
+    if (n === 0) return;
+    for (const h of held.splice(0, n)) deriveOne(h.message, h.rxMs, out);
+  }
+
   const watermark = () => (state.maxEventMs > 0 ? state.maxEventMs - lateness : 0);
 
   return {
@@ -368,26 +444,26 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
         return { status: 'duplicate', records: out, late: false };
       }
       state.counters.accepted++;
-      const late = m.tMs < watermark();
-      if (late) state.counters.late++;
-      derive(m, rxMs, out);
-      const ss = state.sensors[`${m.station}/${m.sensor}`];
-      if (ss) {
-        if (m.battery_v !== undefined) ss.batteryV = m.battery_v;
-        let worstFlag = 1;
-        for (const r of out) {
-          const f = (r as { flag?: unknown }).flag;
-          if (r.type !== 'alert' && typeof f === 'number' && f > worstFlag) worstFlag = f;
-        }
-        ss.lastFlag = worstFlag;
+      const eMs = completeMs(m);
+      const late = eMs < watermark();
+      if (eMs > state.maxEventMs) state.maxEventMs = eMs;
+      if (late) {
+        // Past the watermark: its windows are closed; derived now, counted late (QC judges its order).
+        state.counters.late++;
+        deriveOne(m, rxMs, out);
+      } else {
+        // Within the lateness: held in event-time order and derived once the watermark passes it, so the
+        // records do not depend on the order the network delivered the messages in.
+        holdInOrder(m, rxMs);
       }
-      if (m.tMs > state.maxEventMs) state.maxEventMs = m.tMs;
+      release(watermark(), out);
       advance(watermark(), out);
       for (const r of out) count(r);
       return { status: 'ok', records: out, late };
     },
     drain() {
       const out: DerivedRecord[] = [];
+      release(Infinity, out);
       if (state.maxEventMs > 0) advance(state.maxEventMs, out);
       for (const r of out) count(r);
       return out;

@@ -73,13 +73,14 @@ export interface Pick {
 }
 
 /** The usable sample (flag 1-3) nearest to tMs within maxDistMs, or undefined. Ties go to the earlier one. */
-export function nearest(s: Series, tMs: number, maxDistMs: number): Pick | undefined {
+export function nearest(s: Series, tMs: number, maxDistMs: number, asOfMs = Infinity): Pick | undefined {
   const i = lowerBound(s, tMs);
   let best: Pick | undefined;
   let bestD = Infinity;
   for (let j = i - 1; j >= 0; j--) {
     const d = tMs - (s.t[j] as number);
     if (d > maxDistMs || d >= bestD) break;
+    if ((s.t[j] as number) > asOfMs) continue;
     if (usable(s.f[j] as number)) {
       best = { tMs: s.t[j] as number, value: s.v[j] as number, flag: s.f[j] as number };
       bestD = d;
@@ -88,7 +89,7 @@ export function nearest(s: Series, tMs: number, maxDistMs: number): Pick | undef
   }
   for (let j = i; j < s.t.length; j++) {
     const d = (s.t[j] as number) - tMs;
-    if (d > maxDistMs || d >= bestD) break;
+    if (d > maxDistMs || d >= bestD || (s.t[j] as number) > asOfMs) break;
     if (usable(s.f[j] as number)) {
       best = { tMs: s.t[j] as number, value: s.v[j] as number, flag: s.f[j] as number };
       break;
@@ -101,16 +102,19 @@ export function nearest(s: Series, tMs: number, maxDistMs: number): Pick | undef
  * Mean of the usable samples within +-halfWidthMs of tMs, when any; else the nearest within maxDistMs
  * (science.md 1: CTD values are averaged over a short window around the reading, default +-5 min).
  */
-export function localMean(s: Series, tMs: number, halfWidthMs: number, maxDistMs: number): Pick | undefined {
+export function localMean(
+  s: Series,
+  tMs: number,
+  halfWidthMs: number,
+  maxDistMs: number,
+  asOfMs = Infinity,
+): Pick | undefined {
+  const upTo = Math.min(tMs + halfWidthMs, asOfMs);
   if (halfWidthMs > 0) {
     let n = 0;
     let sum = 0;
     let worst = 1;
-    for (
-      let j = lowerBound(s, tMs - halfWidthMs);
-      j < s.t.length && (s.t[j] as number) <= tMs + halfWidthMs;
-      j++
-    ) {
+    for (let j = lowerBound(s, tMs - halfWidthMs); j < s.t.length && (s.t[j] as number) <= upTo; j++) {
       const f = s.f[j] as number;
       if (!usable(f)) continue;
       n++;
@@ -119,16 +123,17 @@ export function localMean(s: Series, tMs: number, halfWidthMs: number, maxDistMs
     }
     if (n > 0) return { tMs, value: sum / n, flag: worst };
   }
-  return nearest(s, tMs, maxDistMs);
+  return nearest(s, tMs, maxDistMs, asOfMs);
 }
 
 /** Linear interpolation between the usable samples around tMs, each within maxGapMs; else nearest. */
-export function interpolate(s: Series, tMs: number, maxGapMs: number): Pick | undefined {
+export function interpolate(s: Series, tMs: number, maxGapMs: number, asOfMs = Infinity): Pick | undefined {
   const i = lowerBound(s, tMs);
   let a = i - 1;
-  while (a >= 0 && !usable(s.f[a] as number)) a--;
+  while (a >= 0 && (!usable(s.f[a] as number) || (s.t[a] as number) > asOfMs)) a--;
   let b = i;
   while (b < s.t.length && !usable(s.f[b] as number)) b++;
+  if (b < s.t.length && (s.t[b] as number) > asOfMs) b = s.t.length;
   const ta = a >= 0 ? (s.t[a] as number) : -Infinity;
   const tb = b < s.t.length ? (s.t[b] as number) : Infinity;
   const okA = tMs - ta <= maxGapMs;
@@ -144,9 +149,12 @@ export function interpolate(s: Series, tMs: number, maxGapMs: number): Pick | un
   return undefined;
 }
 
-/** Median spacing of the last samples (ms), the sensor's observed interval; undefined with < 3 samples. */
-export function medianIntervalMs(s: Series, lastN = 15): number | undefined {
-  const n = s.t.length;
+/**
+ * Median spacing of the last samples before `beforeMs` (ms), the sensor's observed interval; undefined with
+ * < 3 samples. Bounded by a time so a window's expected count depends only on the samples up to its end.
+ */
+export function medianIntervalMs(s: Series, lastN = 15, beforeMs = Infinity): number | undefined {
+  const n = beforeMs === Infinity ? s.t.length : lowerBound(s, beforeMs);
   if (n < 3) return undefined;
   const d: number[] = [];
   for (let i = Math.max(1, n - lastN); i < n; i++) d.push((s.t[i] as number) - (s.t[i - 1] as number));

@@ -1,8 +1,9 @@
 // The processor's state: plain JSON data, so a checkpoint is JSON.stringify and a restart resumes the windows.
+import type { SensorMessage } from '../contract/index.js';
 import type { Series } from './series.js';
 import { createSeries } from './series.js';
 
-export const STATE_VERSION = 1;
+export const STATE_VERSION = 2;
 
 /** Per-sensor bookkeeping: duplicate detection, warm starts. */
 export interface SensorState {
@@ -32,6 +33,8 @@ export const STATION_VARS = [
   'sampleSal', // salinity of the bottle sample
   'depth', // mean water depth of a burst, m
   'hm0ss', // sea-swell Hm0 of a burst, m
+  'depthDone', // the same depth, stamped when its burst completed (what an ensemble may use)
+  'hm0ssDone',
   'east', // depth-averaged current, m/s
   'north',
 ] as const;
@@ -61,6 +64,10 @@ export interface ProcessorState {
   sensors: Record<string, SensorState>;
   stations: Record<string, Record<StationVar, Series>>;
   site: Record<SiteVar, Series>;
+  /** Sample time of the earliest message derived: the cadence grid starts there. */
+  firstDerivedMs?: number;
+  /** Messages within the lateness, held in event-time order until the watermark passes them. */
+  held: { message: SensorMessage; rxMs: number }[];
   /** Recent flux results per transect, keyed by window end (ms): the storage form of the inverse needs them. */
   transects: Record<string, Record<string, unknown>>;
   /** QC state per `station/sensor/variable` (libs/qc state objects, plain data). */
@@ -81,6 +88,7 @@ export function createState(stationIds: readonly string[]): ProcessorState {
     sensors: {},
     stations,
     site,
+    held: [],
     transects: {},
     qc: {},
     alerts: undefined,

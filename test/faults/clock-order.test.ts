@@ -77,13 +77,21 @@ interface Outcome {
 }
 let out: Outcome;
 
-/** The contract's lateness rule (watermark = highest event time so far - lateness) applied to a stream. */
+/**
+ * The lateness rule (watermark = highest event time so far - lateness) applied to a stream. A message's event
+ * time is when it is complete: its `t`, or for a pressure burst the time of its last sample.
+ */
 function expectedLate(stream: readonly Msg[], latenessMs: number, clockAhead: ReadonlySet<string>): number {
   let max = 0;
   let late = 0;
   for (const m of stream) {
     if (clockAhead.has(m.payload)) continue;
-    const t = Date.parse((JSON.parse(m.payload) as { t: string }).t);
+    const p = JSON.parse(m.payload) as { t: string; p_dbar?: unknown[]; fs_hz?: number };
+    const t =
+      Date.parse(p.t) +
+      (p.p_dbar !== undefined && p.fs_hz !== undefined
+        ? Math.round(((p.p_dbar.length - 1) / p.fs_hz) * 1000)
+        : 0);
     if (max > 0 && t < max - latenessMs) late++;
     if (t > max) max = t;
   }
@@ -246,13 +254,9 @@ describe('fault g: clock skew and out-of-order delivery', () => {
     expect(out.clockFaults).toEqual([5, 5]);
   });
 
-  // KNOWN LIMITATION (reported, libs/processor is not ours to change): oxygen and carbonate records are
-  // derived when a message arrives, from the CTD samples that have arrived by then (ctd_average_min mean),
-  // so a CTD sample delivered a few minutes after the oxygen sample it would have been averaged with changes
-  // that oxygen record, and the flux windows built from them. Shuffled within the lateness, the flux records
-  // are therefore not the same as in order. Remove `.fails` once per-message derivations wait for the
-  // watermark.
-  it.fails('gives the same flux records shuffled within the lateness as in order', () => {
+  // The processor holds messages within the lateness and derives them in event-time order once the
+  // watermark passes them, so the delivery order within the lateness does not change any record.
+  it('gives the same flux records shuffled within the lateness as in order', () => {
     expect(out.displaced).toBeGreaterThan(100);
     expect(out.fluxA.length).toBeGreaterThan(20);
     expect(out.cmp.firstDiff).toBe('');
