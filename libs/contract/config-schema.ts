@@ -97,6 +97,11 @@ const processingSchema = z
     window_min: z.number().positive().max(360).default(30),
     cadence_min: z.number().positive().max(360).default(10),
     lateness_min: z.number().min(0).max(1440).default(10),
+    /**
+     * Hold messages this long (at most lateness_min) and derive them in event-time order: records then do not
+     * depend on the delivery order within it, at the cost of that much latency. 0: derive on arrival.
+     */
+    reorder_min: z.number().min(0).max(1440).default(0),
     /** Flux windows are computed this long after the watermark passes their end (>= the longest burst). */
     window_delay_min: z.number().min(0).max(360).default(20),
     ctd_match_min: z.number().positive().max(1440).default(30),

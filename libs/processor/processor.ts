@@ -114,6 +114,8 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
   // A window waits this long past the watermark: a pressure burst stamped at its start whose centre falls in
   // the window completes (and arrives) up to a burst length after the window's end.
   const windowDelay = config.processing.window_delay_min * MIN;
+  // Messages are held this long behind the newest event time and derived in event-time order.
+  const reorderMs = Math.min(config.processing.reorder_min, config.processing.lateness_min) * MIN;
   // Samples are kept for two windows (storage), the lateness, and the CTD match distance, with a margin.
   const horizonMs = 2 * W + lateness + windowDelay + config.processing.ctd_match_min * MIN + HOUR;
   const siteHorizonMs = Math.max(horizonMs, config.processing.baro_max_gap_h * HOUR + HOUR);
@@ -452,11 +454,11 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
         state.counters.late++;
         deriveOne(m, rxMs, out);
       } else {
-        // Within the lateness: held in event-time order and derived once the watermark passes it, so the
-        // records do not depend on the order the network delivered the messages in.
+        // Held in event-time order for reorder_min, then derived (reorder_min 0: at once); with
+        // reorder_min = lateness_min the records do not depend on the delivery order at all.
         holdInOrder(m, rxMs);
       }
-      release(watermark(), out);
+      release(state.maxEventMs - reorderMs, out);
       advance(watermark(), out);
       for (const r of out) count(r);
       return { status: 'ok', records: out, late };

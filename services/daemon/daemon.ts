@@ -248,6 +248,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   });
 
   const resumed = await replayArchiveTail(archiveDir, saved?.lastRxMs, config, processor);
+  pipeline.rememberArchived(resumed.keys);
   if (resumed.lines > 0) {
     logger.info(
       { lines: resumed.lines, records: resumed.records.length },

@@ -1,6 +1,7 @@
 // The intake: source -> validate -> archive -> processor -> sinks, one message at a time, in arrival order.
 // The processor sees messages in exactly the order the archive records them, so a replay of the archive
 // reproduces the live records.
+import { createHash } from 'node:crypto';
 import {
   archiveLine,
   parseMessage,
@@ -33,14 +34,38 @@ export interface PipelineStats {
   rejectsByReason: Record<string, number>;
   recordsByType: Record<string, number>;
   archiveErrors: number;
+  /** Redeliveries of messages already archived: acknowledged, not archived or processed again. */
+  redeliveries: number;
 }
 
 export interface Pipeline {
   handle(input: RawInput): Promise<void>;
+  /** Marks messages as already archived (by redeliveryKey), e.g. the archive tail read at a restart. */
+  rememberArchived(keys: Iterable<string>): void;
   stats(): PipelineStats;
 }
 
 const MAX_DEAD_LETTER_PAYLOAD = 4096;
+/** How many recent messages are remembered to recognise redeliveries (a broker resends its in-flight window). */
+const REDELIVERY_MEMORY = 50_000;
+
+/**
+ * The identity of a received message: its topic and a digest of its payload. The payload is compared as
+ * canonical JSON when it is JSON, so a message read back from the archive (stored parsed) has the same key.
+ */
+export function redeliveryKey(topic: string, payload: Uint8Array | string, parsed?: unknown): string {
+  let canonical: string;
+  if (parsed !== undefined) canonical = typeof parsed === 'string' ? parsed : JSON.stringify(parsed);
+  else {
+    const text = typeof payload === 'string' ? payload : decoder.decode(payload);
+    try {
+      canonical = JSON.stringify(JSON.parse(text));
+    } catch {
+      canonical = text;
+    }
+  }
+  return `${topic}\u0000${createHash('sha1').update(canonical).digest('base64')}`;
+}
 /** Archive retries on a full disk before the message is left to the broker's redelivery (~10 min). */
 const ARCHIVE_RETRIES = 125;
 const decoder = new TextDecoder('utf-8', { fatal: false });
@@ -53,12 +78,34 @@ export function createPipeline(o: PipelineOptions): Pipeline {
     rejectsByReason: {},
     recordsByType: {},
     archiveErrors: 0,
+    redeliveries: 0,
   };
   const prefix = o.config.topic_prefix;
+  // Recently archived messages by content, oldest first (bounded): see handle().
+  const recent = new Map<string, Promise<void>>();
+  const remember = (key: string, p: Promise<void>) => {
+    recent.delete(key);
+    recent.set(key, p);
+    if (recent.size > REDELIVERY_MEMORY) recent.delete(recent.keys().next().value as string);
+  };
 
   return {
+    rememberArchived: (keys) => {
+      for (const k of keys) remember(k, Promise.resolve());
+    },
     stats: () => structuredClone(stats),
     async handle(input) {
+      // A redelivery of a message already archived (the broker resends what it had not seen acknowledged,
+      // e.g. after its own restart) is acknowledged once the first copy is durable, and neither archived
+      // nor processed again: the archive holds every message once.
+      const key = redeliveryKey(input.topic, input.payload);
+      const earlier = recent.get(key);
+      if (earlier !== undefined) {
+        stats.redeliveries++;
+        await earlier.catch(() => undefined);
+        input.ack();
+        return;
+      }
       const end = o.metrics?.processSeconds.startTimer();
       stats.received++;
       const parsed = parseMessage(input.topic, input.payload, prefix);
@@ -73,6 +120,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
       // Archive first: the broker's acknowledgement waits for the fsync (append resolves after it).
       const line = o.archive ? archiveLine(input.topic, rxIso, text, reason) : '';
       let archived = o.archive ? o.archive.append(line, input.rxMs) : Promise.resolve();
+      remember(key, archived);
 
       let records: DerivedRecord[] = [];
       if (reason !== undefined || !parsed.ok) {
@@ -120,6 +168,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
           if (code !== 'REEFD_DISK_FULL' || attempt >= ARCHIVE_RETRIES || !o.archive) return;
           await new Promise((r) => setTimeout(r, Math.min(5000, 250 * 2 ** attempt)));
           archived = o.archive.append(line, input.rxMs);
+          remember(key, archived);
         }
       }
       input.ack();

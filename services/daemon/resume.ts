@@ -8,8 +8,11 @@ import { basename } from 'node:path';
 import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
 import { messageFromArchiveLine, type Processor } from '../../libs/processor/index.js';
 import { listArchiveFiles, readArchive } from '../archive/index.js';
+import { redeliveryKey } from './pipeline.js';
 
 export interface ResumeResult {
+  /** Content keys of the lines read (the newest keepKeys), so redeliveries of them are recognised. */
+  keys: string[];
   lines: number;
   records: DerivedRecord[];
   lastRxMs: number | undefined;
@@ -21,8 +24,9 @@ export async function replayArchiveTail(
   config: ReefdConfig,
   processor: Processor,
   maxRecords = 200_000,
+  keepKeys = 50_000,
 ): Promise<ResumeResult> {
-  const out: ResumeResult = { lines: 0, records: [], lastRxMs: sinceRxMs };
+  const out: ResumeResult = { keys: [], lines: 0, records: [], lastRxMs: sinceRxMs };
   let files: string[];
   try {
     files = await listArchiveFiles(archiveDir);
@@ -40,11 +44,14 @@ export async function replayArchiveTail(
       if (!Number.isFinite(rx)) continue;
       out.lines++;
       out.lastRxMs = rx;
+      out.keys.push(redeliveryKey(e.line.topic, '', e.line.msg));
+      if (out.keys.length > 2 * keepKeys) out.keys.splice(0, out.keys.length - keepKeys);
       const input = messageFromArchiveLine(config, e.line);
       if (!input.ok) continue;
       const r = processor.push(input.message, input.rxMs);
       if (out.records.length < maxRecords) out.records.push(...r.records);
     }
   }
+  if (out.keys.length > keepKeys) out.keys.splice(0, out.keys.length - keepKeys);
   return out;
 }

@@ -138,7 +138,8 @@ describe('fault g: clock skew and out-of-order delivery', () => {
       const cfg = {
         ...demo,
         topic_prefix: env.prefix,
-        processing: { lateness_min: LATENESS_MIN },
+        // reorder_min = lateness: messages are derived in event-time order, whatever the delivery order
+        processing: { lateness_min: LATENESS_MIN, reorder_min: LATENESS_MIN },
         sources: { mqtt: { url: mosq.url, client_id: `reefd-${env.prefix}` } },
         outputs: { ndjson: { path: join(env.dataDir, 'records.ndjson') } },
         archive: { fsync_ms: 50 },
