@@ -54,6 +54,8 @@ export interface AlertEngine {
 }
 
 const iso = (ms: number): string => new Date(ms).toISOString();
+/** Event-time step of the stale check, ms. */
+const STALE_STEP_MS = 15_000;
 const sep = '\u001f'; // keys join ids that match [A-Za-z0-9_.-]; the unit separator cannot occur in them
 
 /** Creates an engine for one site. `config` is the `alerts:` section (raw or already parsed; parsed again). */
@@ -292,9 +294,14 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
     advance(watermarkMs) {
       const out: AlertRecord[] = [];
       if (st.watermarkMs !== null && watermarkMs <= st.watermarkMs) return out;
+      // The silences are checked when the watermark enters a new STALE_STEP_MS step of event time, not on
+      // every message: the check walks every sensor, and a raise is stamped at last message + limit anyway,
+      // so only a silence that ends within one step of passing its limit (>= 5 min) can go unreported.
+      const step = Math.floor(watermarkMs / STALE_STEP_MS);
+      const due = st.watermarkMs === null || step !== Math.floor(st.watermarkMs / STALE_STEP_MS);
       st.watermarkMs = watermarkMs;
       const f = rules.faults.stale;
-      if (!f.enabled) return out;
+      if (!f.enabled || !due) return out;
       // Sorted keys: the order of the records does not depend on the order sensors were first seen.
       for (const key of Object.keys(st.sensors).sort()) {
         const tr = st.sensors[key] as SensorTrack;

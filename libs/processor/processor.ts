@@ -347,8 +347,19 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
       }
       state.lastTickMs = next;
     }
-    // Plain loops and a first-sample test before the binary search: this runs on every message, over
-    // every series of every station (the same samples are dropped as with pruneBefore on each).
+    // Pruning walks every series of every station, so it runs when the watermark enters a new minute, not
+    // on every message: the horizons are hours longer than anything a derivation reads, so when the old
+    // samples go changes no record.
+    const pruneStep = Math.floor(watermark / MIN);
+    if (pruneStep !== lastPruneStep) {
+      lastPruneStep = pruneStep;
+      prune(watermark);
+    }
+    for (const a of alerts.advance(watermark)) out.push(alertRecord(a));
+  }
+
+  let lastPruneStep = -1;
+  function prune(watermark: number): void {
     const cut = watermark - horizonMs;
     const sampleCut = watermark - sampleHorizonMs;
     for (const id in state.stations) {
@@ -364,7 +375,6 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
       const s = state.site[k as keyof typeof state.site] as Series;
       if (s.t.length > 0 && (s.t[0] as number) < siteCut) pruneBefore(s, siteCut);
     }
-    for (const a of alerts.advance(watermark)) out.push(alertRecord(a));
   }
 
   /** Derives one message and notes its sensor's health (battery, worst flag of what it produced). */
