@@ -178,6 +178,8 @@ const influxOutputSchema = z.strictObject({
   batch_size: z.int().positive().max(100_000).default(5000),
   flush_ms: z.int().positive().max(600_000).default(1000),
   spool_max_mb: z.number().positive().default(512),
+  /** String fields (sensor, ta_source, nec_method, ids) as fields; set false for VictoriaMetrics. */
+  string_fields: z.boolean().default(true),
 });
 
 const kafkaOutputSchema = z.strictObject({

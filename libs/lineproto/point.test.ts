@@ -81,3 +81,25 @@ describe('recordToPoint', () => {
     expect(line).toBe('oxygen,site=a\\ b,station=x\\,y\\=z"\\\\ sensor="o\\"2\\\\",o2_mg_l=6.5 1');
   });
 });
+
+describe('string fields for stores that keep numbers only', () => {
+  it('leaves string fields out on request, keeps numbers and booleans', () => {
+    const r = {
+      type: 'alert',
+      site: 's',
+      t: '2026-03-01T00:00:00Z',
+      station: 'a',
+      rule: 'low_oxygen',
+      class: 'threshold',
+      state: 'raised',
+      value: 1.9,
+      limit: 2,
+      id: '5e12ab03',
+    } as unknown as Parameters<typeof recordToLine>[0];
+    const kept = recordToLine(r, 'v2');
+    const dropped = recordToLine(r, 'v2', { stringFields: false });
+    expect(kept.ok && kept.line).toContain('id="5e12ab03"');
+    expect(dropped.ok && dropped.line).not.toContain('5e12ab03');
+    expect(dropped.ok && dropped.line).toContain('value=1.9');
+  });
+});

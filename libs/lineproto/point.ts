@@ -21,7 +21,12 @@ export type PointResult = { ok: true; point: Point } | { ok: false; reason: stri
  * Maps one record to a point. Nulls and non-finite numbers are omitted (the database has no null),
  * nested objects and arrays are skipped. A record with no field left, or with an unreadable `t`, is refused.
  */
-export function recordToPoint(record: DerivedRecord): PointResult {
+/**
+ * `stringFields: false` leaves string fields out: VictoriaMetrics stores every field as a number and turns a
+ * string that looks like one (an alert id such as `5e12ab03`) into that number, or 0.
+ */
+export function recordToPoint(record: DerivedRecord, opts: { stringFields?: boolean } = {}): PointResult {
+  const strings = opts.stringFields ?? true;
   const timeMs = Date.parse(record.t);
   if (!Number.isFinite(timeMs)) return { ok: false, reason: 'bad_time' };
   const fields: Record<string, FieldValue> = {};
@@ -30,7 +35,9 @@ export function recordToPoint(record: DerivedRecord): PointResult {
     if (NOT_FIELDS.has(key)) continue;
     if (typeof value === 'number') {
       if (!Number.isFinite(value)) continue;
-    } else if (typeof value !== 'boolean' && typeof value !== 'string') continue;
+    } else if (typeof value === 'string') {
+      if (!strings) continue;
+    } else if (typeof value !== 'boolean') continue;
     fields[key] = value;
     n++;
   }
@@ -68,7 +75,8 @@ export function formatPoint(p: Point, dialect: Dialect): string {
 export function recordToLine(
   record: DerivedRecord,
   dialect: Dialect,
+  opts: { stringFields?: boolean } = {},
 ): { ok: true; line: string } | { ok: false; reason: string } {
-  const r = recordToPoint(record);
+  const r = recordToPoint(record, opts);
   return r.ok ? { ok: true, line: formatPoint(r.point, dialect) } : r;
 }

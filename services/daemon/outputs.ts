@@ -70,6 +70,7 @@ export async function createOutputs(c: OutputContext): Promise<RecordSink[]> {
         flushMs: i.flush_ms,
         spoolDir: path.join(c.dataDir, 'spool', 'influx'),
         spoolMaxMb: i.spool_max_mb,
+        stringFields: i.string_fields,
         logger: c.logger,
         onNearLimit: (s) => c.onSpoolNearLimit?.('influx', s.spoolBytes, s.maxBytes),
       }),

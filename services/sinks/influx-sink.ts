@@ -40,6 +40,8 @@ export interface InfluxSinkOptions {
   spoolDir: string;
   spoolMaxMb: number;
   logger: Logger;
+  /** Write string fields (sensor, ta_source, ...); false for VictoriaMetrics, which stores numbers only. */
+  stringFields?: boolean;
   /** Gzip request bodies over 1 kB (default true; InfluxDB 1.x and VictoriaMetrics both accept it). */
   gzip?: boolean;
   timeoutMs?: number;
@@ -92,7 +94,7 @@ export async function createInfluxSink(o: InfluxSinkOptions): Promise<InfluxSink
   return createSpooledSink({
     name,
     encode: (r) => {
-      const e = recordToLine(r, o.api);
+      const e = recordToLine(r, o.api, { stringFields: o.stringFields ?? true });
       return e.ok ? { ok: true, entry: e.line } : e;
     },
     send,
