@@ -4,12 +4,12 @@
 // processor's timing QC sees the same receive time the edge archive holds. Delivery reuses the sinks'
 // spooled, ordered pump (services/sinks/spooled-sink.ts): one batch in flight, a disk spool behind an
 // outage, replayed oldest first. The partition is chosen by site (partition.ts).
-import { CompressionTypes, type Producer } from 'kafkajs';
-import { ReefdError, type DerivedRecord, type SensorMessage } from '../../libs/contract/index.js';
+import { CompressionTypes } from 'kafkajs';
+import type { DerivedRecord, SensorMessage } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
 import type { SinkStats } from '../pipeline/types.js';
 import type { TlsFiles } from '../sinks/http.js';
-import { kafkaClient } from '../sinks/kafka-sink.js';
+import { kafkaClient, orderedKafkaSender } from '../sinks/kafka-sink.js';
 import { createSpooledSink, type SpooledSink } from '../sinks/spooled-sink.js';
 import { createSitePartitioner, type PartitionBy } from './partition.js';
 
@@ -51,38 +51,16 @@ interface Queued {
 }
 
 export async function createEdgeBridge(o: EdgeBridgeOptions): Promise<EdgeBridge> {
-  const producer: Producer = kafkaClient(o).producer({
-    idempotent: true,
-    maxInFlightRequests: 1,
-    allowAutoTopicCreation: false,
+  const { send, disconnect } = orderedKafkaSender(kafkaClient(o), {
+    topic: o.topic,
+    compression: CompressionTypes.GZIP,
     createPartitioner: createSitePartitioner(o.partitionBy ?? 'site'),
-    retry: { retries: 5, initialRetryTime: 300, maxRetryTime: 10_000 },
+    // The Kafka timestamp is the edge's receive time.
+    toMessage: (e) => {
+      const [key, value, rxMs] = JSON.parse(e) as [string, string, number];
+      return { key, value, timestamp: String(rxMs) };
+    },
   });
-  let connected = false;
-  const send = async (entries: readonly string[]): Promise<void> => {
-    try {
-      if (!connected) {
-        await producer.connect();
-        connected = true;
-      }
-      await producer.send({
-        topic: o.topic,
-        acks: -1,
-        compression: CompressionTypes.GZIP,
-        messages: entries.map((e) => {
-          const [key, value, rxMs] = JSON.parse(e) as [string, string, number];
-          return { key, value, timestamp: String(rxMs) };
-        }),
-      });
-    } catch (err) {
-      const e = err as { name?: string; retriable?: boolean; message?: string };
-      throw new ReefdError(
-        'REEFD_SINK_UNAVAILABLE',
-        `Kafka produce to ${o.topic} failed: ${e.message ?? String(err)}`,
-        { retriable: !(e.name === 'KafkaJSProtocolError' && e.retriable === false), cause: err },
-      );
-    }
-  };
   // The spooled pump is typed on derived records; the bridge hands it pre-encoded entries instead, and
   // its encode() only unwraps them (the pump never looks inside what it queues).
   const sink: SpooledSink = await createSpooledSink({
@@ -95,7 +73,7 @@ export async function createEdgeBridge(o: EdgeBridgeOptions): Promise<EdgeBridge
     closeDrainMs: o.closeDrainMs,
     spoolDir: o.spoolDir,
     spoolMaxBytes: o.spoolMaxMb * 1024 * 1024,
-    onClose: () => producer.disconnect(),
+    onClose: () => disconnect(),
   });
   return {
     forward(m, rxMs) {

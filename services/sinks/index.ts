@@ -1,6 +1,12 @@
 // Outputs for derived records and dead letters. Every RecordSink passes test/integration/sink-contract.ts.
 export { createInfluxSink, type InfluxSink, type InfluxSinkOptions } from './influx-sink.js';
-export { createKafkaSink, recordKey, kafkaClient, type KafkaSinkOptions } from './kafka-sink.js';
+export {
+  createKafkaSink,
+  recordKey,
+  kafkaClient,
+  orderedKafkaSender,
+  type KafkaSinkOptions,
+} from './kafka-sink.js';
 export { createNdjsonSink, type NdjsonSinkOptions } from './ndjson-sink.js';
 export {
   createDeadLetterSink,

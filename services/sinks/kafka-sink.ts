@@ -4,7 +4,15 @@
 // retries go to the disk spool (spooled-sink.ts) and are replayed in order.
 // A replay duplicates messages on the topic (Kafka is a log); a consumer that keeps the last value per
 // key and record time `t` sees the same state, the same rule as the database's overwrite.
-import { Kafka, logLevel, type Producer, type SASLOptions } from 'kafkajs';
+import {
+  Kafka,
+  logLevel,
+  type CompressionTypes,
+  type ICustomPartitioner,
+  type Message,
+  type Producer,
+  type SASLOptions,
+} from 'kafkajs';
 import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
 import { tlsOptions, type TlsFiles } from './http.js';
@@ -80,33 +88,57 @@ function toSinkError(err: unknown, topic: string): Error {
   );
 }
 
-export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink> {
-  const producer: Producer = kafkaClient(o).producer({
+/**
+ * An ordered, idempotent Kafka sender for the spooled pump: one producer, one request in flight, acks from
+ * every replica, bounded retries (past them the batch goes to the disk spool). `toMessage` turns one queued
+ * entry into a Kafka message. Shared by the derived-record sink and the edge bridge.
+ */
+export function orderedKafkaSender(
+  client: Kafka,
+  o: {
+    topic: string;
+    toMessage: (entry: string) => Message;
+    compression?: CompressionTypes;
+    createPartitioner?: ICustomPartitioner;
+  },
+): { send: (entries: readonly string[]) => Promise<void>; disconnect: () => Promise<void> } {
+  const producer: Producer = client.producer({
     idempotent: true,
     maxInFlightRequests: 1,
     allowAutoTopicCreation: false,
-    // Bounded: past these the batch goes to the disk spool instead of retrying here without end.
+    ...(o.createPartitioner ? { createPartitioner: o.createPartitioner } : {}),
     retry: { retries: 5, initialRetryTime: 300, maxRetryTime: 10_000 },
   });
   let connected = false;
-  const send = async (entries: readonly string[]): Promise<void> => {
-    try {
-      if (!connected) {
-        await producer.connect();
-        connected = true;
+  return {
+    send: async (entries) => {
+      try {
+        if (!connected) {
+          await producer.connect();
+          connected = true;
+        }
+        await producer.send({
+          topic: o.topic,
+          acks: -1,
+          ...(o.compression !== undefined ? { compression: o.compression } : {}),
+          messages: entries.map(o.toMessage),
+        });
+      } catch (err) {
+        throw toSinkError(err, o.topic);
       }
-      await producer.send({
-        topic: o.topic,
-        acks: -1,
-        messages: entries.map((e) => {
-          const [key, value] = JSON.parse(e) as [string, string];
-          return { key, value };
-        }),
-      });
-    } catch (err) {
-      throw toSinkError(err, o.topic);
-    }
+    },
+    disconnect: () => producer.disconnect(),
   };
+}
+
+export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink> {
+  const { send, disconnect } = orderedKafkaSender(kafkaClient(o), {
+    topic: o.topic,
+    toMessage: (e) => {
+      const [key, value] = JSON.parse(e) as [string, string];
+      return { key, value };
+    },
+  });
   return createSpooledSink({
     name: o.name ?? 'kafka',
     // One spool entry: [key, value JSON]; JSON.stringify never emits a raw newline.
@@ -120,6 +152,6 @@ export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink>
     closeDrainMs: o.closeDrainMs,
     spoolDir: o.spoolDir,
     spoolMaxBytes: o.spoolMaxMb * 1024 * 1024,
-    onClose: () => producer.disconnect(),
+    onClose: () => disconnect(),
   });
 }
