@@ -33,7 +33,7 @@ describe('reefd carbonate', () => {
     expect(o.flag).toBe(1);
   });
 
-  it('ta_source is "salinity" with --ta-s35 and "calculated" when TA follows from two other inputs', async () => {
+  it('ta_source is "salinity" with --ta-s35, and "measured" with ta_calculated when TA follows from two other inputs', async () => {
     const io = captureIo();
     expect(
       await run(['--sal', '34', '--temp', '27', '--ta-s35', '2300', '--pco2', '420', '--json'], io),
@@ -49,7 +49,9 @@ describe('reefd carbonate', () => {
       ),
     ).toBe(0);
     const b = JSON.parse(io2.text().stdout) as Record<string, unknown>;
-    expect(b.ta_source).toBe('calculated');
+    // the contract's list is salinity | sample | measured (contract section 4)
+    expect(b.ta_source).toBe('measured');
+    expect(b.ta_calculated).toBe(true);
     expect(b.ph_total_sigma).toBeUndefined();
   });
 

@@ -2,10 +2,9 @@
 // solves the carbonate system once with libs/carbonate and prints the contract `carbonate` fields, with
 // first-order uncertainties (science spec 9.1) beside them.
 //
-// ta_source: "measured" when --ta is given, "salinity" with --ta-s35 (TA = ta_s35 S/35, the contract's
-// alkalinity.source salinity), and "calculated" when TA follows from two other measured parameters. The
-// last value is an extension of the contract's list (salinity | sample | measured): none of those three
-// would be true, and a consumer that only knows them can treat it like "sample" (not a direct titration).
+// ta_source keeps the contract's list (salinity | sample | measured): "salinity" with --ta-s35 (TA =
+// ta_s35 S/35, the contract's alkalinity.source salinity), else "measured": given with --ta, or following
+// from the two measured parameters given; the extension field ta_calculated (true) tells the latter apart.
 
 import { parseArgs } from 'node:util';
 import type {
@@ -195,7 +194,8 @@ export const run: CommandRun = async (args, io) => {
   if (num.baro !== undefined) input.baroHpa = num.baro;
   if (num.po4 !== undefined) input.po4UmolKg = num.po4;
   if (num.si !== undefined) input.sio4UmolKg = num.si;
-  let taSource: 'measured' | 'salinity' | 'calculated' = 'calculated';
+  let taSource: 'measured' | 'salinity' = 'measured';
+  const taCalculated = num.ta === undefined && num['ta-s35'] === undefined;
   if (num.ta !== undefined) {
     input.taUmolKg = num.ta;
     taSource = 'measured';
@@ -239,6 +239,7 @@ export const run: CommandRun = async (args, io) => {
       omega_ar: value.omegaAr,
       omega_ca: value.omegaCa,
       ta_source: taSource,
+      ...(taCalculated ? { ta_calculated: true } : {}),
       fco2_uatm: value.fco2Uatm,
       hco3_umol_kg: value.hco3UmolKg,
       co2_umol_kg: value.co2UmolKg,
