@@ -16,7 +16,8 @@ Options:
   --speed X          simulated seconds per wall second (default 1; 60 = an hour a minute;
                      "max" = as fast as the broker acknowledges)
   --seed N           random seed; the same seed gives the same data (default 1)
-  --start ISO        simulated start time (default: now, to the minute)
+  --start ISO        simulated start time (default: now at --speed 1; otherwise a day back, or
+                     --duration back with "max", so the fast part ends at the wall clock)
   --duration H       simulated hours (default: 48 with --speed max, else 8760)
   --truth FILE       write the model's truth as NDJSON beside the messages
   --log-level LEVEL  ${LOG_LEVELS.join('|')} (default info)
@@ -55,10 +56,17 @@ export const run: CommandRun = async (args, io) => {
     problems.push('--speed must be a positive number or "max"');
   const seed = values.seed === undefined ? 1 : Number(values.seed);
   if (!Number.isInteger(seed)) problems.push('--seed must be an integer');
-  const startMs =
-    values.start === undefined ? Math.floor(Date.now() / 60_000) * 60_000 : Date.parse(values.start);
-  if (!Number.isFinite(startMs)) problems.push('--start must be an ISO 8601 time, e.g. 2026-03-01T00:00:00Z');
   const hours = values.duration === undefined ? (speed === 'max' ? 48 : 8760) : Number(values.duration);
+  // A sample is never sent before its time (a daemon's timing test would reject it as a clock fault), so a
+  // fast run starts in the past and plays fast until it reaches the wall clock, then in real time.
+  const nowMin = Math.floor(Date.now() / 60_000) * 60_000;
+  const startMs =
+    values.start !== undefined
+      ? Date.parse(values.start)
+      : speed === 1
+        ? nowMin
+        : nowMin - (speed === 'max' ? hours : 24) * 3.6e6;
+  if (!Number.isFinite(startMs)) problems.push('--start must be an ISO 8601 time, e.g. 2026-03-01T00:00:00Z');
   if (!(Number.isFinite(hours) && hours > 0)) problems.push('--duration must be a positive number of hours');
   const level = values['log-level'] ?? 'info';
   if (!(LOG_LEVELS as readonly string[]).includes(level))
@@ -87,6 +95,7 @@ export const run: CommandRun = async (args, io) => {
       seed,
       startMs,
       durationMs: hours * 3.6e6,
+      notAheadOfWallClock: true,
       ...(values.truth ? { truthPath: values.truth } : {}),
       logger,
       signal: abort.signal,
