@@ -134,11 +134,11 @@ describe('scale-out: edge bridge and shore consumer group', () => {
       await pollUntil(
         'each member owns one partition',
         async () => (a.assigned().length === 1 && b.assigned().length === 1 ? true : undefined),
-        30_000,
+        90_000,
       );
       both = true;
       settle();
-      await pollUntil('member a held mid-stream', async () => heldAt, 30_000);
+      await pollUntil('member a held mid-stream', async () => heldAt, 90_000);
       const aStored = a.storedAt().get(heldAt?.partition ?? -1);
       const aStats = a.stats();
       const killing = a.kill();
@@ -149,7 +149,7 @@ describe('scale-out: edge bridge and shore consumer group', () => {
       await pollUntil(
         'b owns both partitions',
         async () => (b.assigned().length === 2 ? true : undefined),
-        30_000,
+        90_000,
       );
       await drained(b, hw, 'survivor drained the topic');
       const bStats = b.stats();
@@ -180,7 +180,7 @@ describe('scale-out: edge bridge and shore consumer group', () => {
       expect([...got.map.keys()].sort()).toEqual([...ref.map.keys()].sort());
       for (const [id, json] of ref.map) expect(got.map.get(id), id).toBe(json);
     },
-    90_000,
+    240_000,
   );
 });
 
