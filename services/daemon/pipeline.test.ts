@@ -27,12 +27,13 @@ function heldArchive() {
   return { archive, lines, sync: () => waiting.splice(0).forEach((r) => r()) };
 }
 
-function input(topic: string, body: object, acks: string[], tag: string): RawInput {
+function input(topic: string, body: object, acks: string[], tag: string, redelivered = false): RawInput {
   return {
     topic,
     payload: new TextEncoder().encode(JSON.stringify(body)),
     rxMs: Date.UTC(2026, 2, 1, 0, 1),
     ack: () => acks.push(tag),
+    ...(redelivered ? { redelivered: true } : {}),
   };
 }
 
@@ -58,7 +59,7 @@ describe('intake pipeline', () => {
     const acks: string[] = [];
     const p = createPipeline({ config, processor: createProcessor(config), archive: a.archive, sinks: [] });
     const one = p.handle(input(topic, ctd, acks, 'first'));
-    const two = p.handle(input(topic, ctd, acks, 'again'));
+    const two = p.handle(input(topic, ctd, acks, 'again', true));
     a.sync();
     await Promise.all([one, two]);
     expect(a.lines).toHaveLength(1);
@@ -82,10 +83,22 @@ describe('intake pipeline', () => {
       payload: new TextEncoder().encode(JSON.stringify(ctd, null, 2)),
       rxMs: 1,
       ack: () => acks.push('r'),
+      redelivered: true,
     };
     await p.handle(raw);
     expect(a.lines).toHaveLength(0);
     expect(acks).toEqual(['r']);
+  });
+
+  it('archives the same bytes twice when the source does not mark a redelivery (two messages)', async () => {
+    const a = heldArchive();
+    const p = createPipeline({ config, processor: createProcessor(config), archive: a.archive, sinks: [] });
+    const bad = { v: 1, t: 'x' };
+    const one = p.handle(input(topic, bad, [], '1'));
+    const two = p.handle(input(topic, bad, [], '2'));
+    a.sync();
+    await Promise.all([one, two]);
+    expect(a.lines).toHaveLength(2);
   });
 
   it('sends rejects to the dead letters with their reason, archived with it', async () => {

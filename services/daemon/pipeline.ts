@@ -98,8 +98,10 @@ export function createPipeline(o: PipelineOptions): Pipeline {
       // A redelivery of a message already archived (the broker resends what it had not seen acknowledged,
       // e.g. after its own restart) is acknowledged once the first copy is durable, and neither archived
       // nor processed again: the archive holds every message once.
+      // Only a delivery the source marks as repeated is compared: a sensor (or a flood) sending the same
+      // bytes twice sent two messages, and the archive keeps both.
       const key = redeliveryKey(input.topic, input.payload);
-      const earlier = recent.get(key);
+      const earlier = input.redelivered ? recent.get(key) : undefined;
       if (earlier !== undefined) {
         stats.redeliveries++;
         await earlier.catch(() => undefined);

@@ -14,6 +14,8 @@ export interface RawInput {
    * handed to the sinks): an MQTT source sends PUBACK then; a Kafka source marks the offset committable.
    */
   ack(): void;
+  /** The source says this is a redelivery (MQTT DUP flag): it may already be in the archive. */
+  redelivered?: boolean;
 }
 
 /** A source pushes raw inputs into the intake and stops on request. */

@@ -134,7 +134,14 @@ class MqttIntake implements MqttSource {
           if (held.send !== undefined) this.#release(id, held);
         };
       }
-      push({ topic, payload, rxMs: (o.clock ?? Date.now)(), ack });
+      // DUP: the broker sends this again (it did not see our PUBACK); the intake archives it once.
+      push({
+        topic,
+        payload,
+        rxMs: (o.clock ?? Date.now)(),
+        ack,
+        ...(packet.dup ? { redelivered: true } : {}),
+      });
     });
     client.on('close', () => {
       // Message ids are per connection: held PUBACKs are void now, the broker redelivers.
