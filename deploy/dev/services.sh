@@ -384,7 +384,8 @@ cmd_up() {
   # Daemons that drop privileges (mosquitto) must be able to enter the state folder.
   chmod 755 "$STATE"
   ensure_packages
-  pid_alive kafka || ensure_kafka_jars
+  # Always: the fault suite starts private brokers from these jars even when the shared one runs already.
+  ensure_kafka_jars
   local name
   for name in "${SERVICES[@]}"; do
     if pid_alive "$name"; then
