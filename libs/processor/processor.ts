@@ -9,6 +9,7 @@ import {
 } from '../alerts/index.js';
 import { createQcState, qcUpdate, type QcResult, type QcState } from '../qc/index.js';
 import {
+  ctdAt,
   deriveCarbonate,
   deriveCurrent,
   deriveOxygen,
@@ -305,26 +306,12 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
         check(m, 'sample.received', undefined, 1, rxMs, out);
         if (m.ta_umol_kg !== undefined) put(m.station, 'sampleTa', m.tMs, m.ta_umol_kg, 1);
         if (m.dic_umol_kg !== undefined) put(m.station, 'sampleDic', m.tMs, m.dic_umol_kg, 1);
-        const sal = m.sal ?? ctxSalinity(m.station, m.tMs);
+        // A bottle without its own salinity takes the station CTD's at its time (science.md 3.6).
+        const sal = m.sal ?? ctdAt(ctx, m.station, m.tMs)?.sal.value;
         if (sal !== undefined) put(m.station, 'sampleSal', m.tMs, sal, 1);
         return;
       }
     }
-  }
-
-  function ctxSalinity(station: string, tMs: number): number | undefined {
-    const s = state.stations[station]?.sal;
-    if (!s || s.t.length === 0) return undefined;
-    let best: number | undefined;
-    let d = Infinity;
-    for (let i = 0; i < s.t.length; i++) {
-      const dd = Math.abs((s.t[i] as number) - tMs);
-      if (dd < d) {
-        d = dd;
-        best = s.v[i];
-      }
-    }
-    return best;
   }
 
   /** Flux windows whose end the watermark has passed, then pruning and stale detection. */

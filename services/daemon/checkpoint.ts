@@ -5,12 +5,16 @@ import path from 'node:path';
 import { ReefdError } from '../../libs/contract/index.js';
 import type { ProcessorState } from '../../libs/processor/index.js';
 
-export async function writeCheckpoint(file: string, state: ProcessorState): Promise<void> {
+/**
+ * Replaces `file` with `text` so that a crash leaves the old or the new content, never a mix: a temp file
+ * (mode 0600), fsync, rename, fsync of the folder. Shared by the checkpoint and the dashboard history.
+ */
+export async function writeFileAtomic(file: string, text: string): Promise<void> {
   await mkdir(path.dirname(file), { recursive: true });
   const tmp = `${file}.tmp-${process.pid}`;
   const fh = await open(tmp, 'w', 0o600);
   try {
-    await fh.writeFile(JSON.stringify({ savedAt: new Date().toISOString(), state }));
+    await fh.writeFile(text);
     await fh.sync();
   } finally {
     await fh.close();
@@ -22,6 +26,10 @@ export async function writeCheckpoint(file: string, state: ProcessorState): Prom
   } finally {
     await dir.close();
   }
+}
+
+export async function writeCheckpoint(file: string, state: ProcessorState): Promise<void> {
+  await writeFileAtomic(file, JSON.stringify({ savedAt: new Date().toISOString(), state }));
 }
 
 /**

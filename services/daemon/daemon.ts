@@ -2,10 +2,9 @@
 // and shuts down in order on SIGTERM (stop intake, flush, checkpoint) within 10 s.
 import { mkdir } from 'node:fs/promises';
 import path from 'node:path';
-import type { DerivedRecord, ReefdConfig, SecretRef } from '../../libs/contract/index.js';
+import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
 import type { Processor } from '../../libs/processor/index.js';
 import { createArchiveWriter, type RawArchiveWriter } from '../archive/index.js';
-import { resolveSecret } from '../config/load.js';
 import type { Logger } from '../log/logger.js';
 import { notifyConfigSchema } from '../../libs/alerts/index.js';
 import {
@@ -31,7 +30,7 @@ import { edgeFromConfig } from '../scaleout/edge-from-config.js';
 import { readCheckpoint, writeCheckpoint } from './checkpoint.js';
 import { createMetrics, type DaemonMetrics } from './metrics.js';
 import { createPipeline, type Pipeline } from './pipeline.js';
-import { createOutputs, resolveSasl, tlsFiles } from './outputs.js';
+import { createOutputs, resolveSasl, secretResolver, tlsFiles } from './outputs.js';
 import { replayArchiveTail } from './resume.js';
 import { createSystemdNotifier } from './systemd.js';
 
@@ -71,8 +70,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const { config, logger } = o;
   const dataDir = path.resolve(o.baseDir, config.data_dir);
   await mkdir(dataDir, { recursive: true });
-  const secret = async (ref: SecretRef | undefined) =>
-    ref ? resolveSecret(ref, o.env, o.baseDir) : undefined;
+  const secret = secretResolver({ env: o.env, baseDir: o.baseDir });
   const metrics = o.metrics ?? createMetrics();
   const checkpointFile = path.join(dataDir, 'checkpoint.json');
 

@@ -1,11 +1,12 @@
 // The HTTP front of the daemon: dashboard, /healthz, /readyz, /metrics (services/dashboard), with the
 // dashboard's 48-h history persisted in the data folder so it survives a restart.
-import { open, readFile, rename } from 'node:fs/promises';
+import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
 import { resolveSecret } from '../config/load.js';
 import { createDashboardServer, type DashboardServer } from '../dashboard/index.js';
 import type { Logger } from '../log/logger.js';
+import { writeFileAtomic } from './checkpoint.js';
 import type { Daemon } from './daemon.js';
 
 export interface HttpFront {
@@ -45,15 +46,7 @@ async function readHistory(file: string): Promise<DerivedRecord[]> {
 }
 
 async function writeHistory(file: string, records: readonly DerivedRecord[]): Promise<void> {
-  const tmp = `${file}.tmp`;
-  const fh = await open(tmp, 'w', 0o600);
-  try {
-    await fh.writeFile(records.map((r) => JSON.stringify(r)).join('\n') + '\n');
-    await fh.sync();
-  } finally {
-    await fh.close();
-  }
-  await rename(tmp, file);
+  await writeFileAtomic(file, records.map((r) => JSON.stringify(r)).join('\n') + '\n');
 }
 
 export async function startHttp(o: HttpOptions): Promise<HttpFront> {
