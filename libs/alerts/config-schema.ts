@@ -1,6 +1,6 @@
 // zod 4 schemas of the `alerts:` and `notify:` sections of the reefd YAML configuration (documented key by key in
 // libs/alerts/README.md). Strict objects: an unknown key is an error with its path. Defaults live here and only
-// here; the built-in rules' defaults are the contract's (contract.md section 4) and science.md section 8.
+// here; the built-in rules' defaults are the contract's (contract.md section 4) and docs/methods/alerts.md.
 
 import { z } from 'zod';
 
@@ -93,7 +93,7 @@ export const BUILTIN_RULE_IDS = [
 
 export const alertsConfigSchema = z
   .strictObject({
-    // Contract: oxygen.o2_mg_l below 2.0 for 10 min, cleared above 2.5 (science.md 8: Diaz & Rosenberg 2008).
+    // Contract: oxygen.o2_mg_l below 2.0 for 10 min, cleared above 2.5 (docs/methods/alerts.md: Diaz & Rosenberg 2008).
     low_oxygen: builtinThreshold({ below: 2.0, clear: 2.5, raiseAfterMin: 10, severity: 'critical' }),
     // Contract: carbonate.omega_ar below 3.0 for 30 min; clear at 3.2 (our default; Guinotte et al. 2003).
     low_omega_ar: builtinThreshold({ below: 3.0, clear: 3.2, raiseAfterMin: 30, severity: 'warning' }),

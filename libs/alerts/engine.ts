@@ -1,4 +1,4 @@
-// The alert engine: a deterministic state machine on event time (science.md 1 "Time base", 8; contract.md 4).
+// The alert engine: a deterministic state machine on event time (docs/methods/conventions.md "Time base", 8; contract.md 4).
 // observe() feeds one metric value with its QC, advance() moves the watermark for stale detection; both return
 // the alert records of the transitions they cause. All state is plain JSON (snapshot/restore), so a restart
 // resumes mid-episode with no second raise and no lost clear.

@@ -1,4 +1,4 @@
-// Raw archive lines (../shared/contract.md, section 2): one received message per NDJSON line.
+// Raw archive lines (docs/contract-v1.md, section 2): one received message per NDJSON line.
 import { z } from 'zod';
 
 export const archiveLineSchema = z.object({

@@ -1,4 +1,4 @@
-// Site configuration of contract v1 (../shared/contract.md, section 3) plus the project's own sections
+// Site configuration of contract v1 (docs/contract-v1.md, section 3) plus the project's own sections
 // (processing, sources, outputs, archive, http). Unknown keys are rejected everywhere; defaults live here only.
 import { z } from 'zod';
 import { alertsConfigSchema, notifyConfigSchema } from '../alerts/index.js';

@@ -1,4 +1,4 @@
-// The error catalogue, DEVELOPERS.md and the retry rule stay in sync (../shared/style.md, "Errors and config").
+// The error catalogue, DEVELOPERS.md and the retry rule stay in sync (DEVELOPERS.md, conventions).
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { ERROR_CATALOGUE, isRetriable, ReefdError } from './index.js';

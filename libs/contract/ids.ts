@@ -1,4 +1,4 @@
-// Identifiers and MQTT topics of the v1 contract (../shared/contract.md, section 1).
+// Identifiers and MQTT topics of the v1 contract (docs/contract-v1.md, section 1).
 
 /** Site, station and sensor ids: a letter or digit, then up to 63 of [A-Za-z0-9_.-]. */
 export const ID_PATTERN = /^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$/;

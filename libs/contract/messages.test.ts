@@ -1,4 +1,4 @@
-// Contract v1 (../shared/contract.md, section 1): every example is accepted, every bad input rejected with
+// Contract v1 (docs/contract-v1.md, section 1): every example is accepted, every bad input rejected with
 // the right reason and path, and the parser never throws whatever the bytes.
 import { readFileSync } from 'node:fs';
 import fc from 'fast-check';

@@ -1,4 +1,4 @@
-// Sensor messages of contract v1 (../shared/contract.md, section 1): schemas, limits and the parser.
+// Sensor messages of contract v1 (docs/contract-v1.md, section 1): schemas, limits and the parser.
 // The parser never throws: every failure becomes a short machine-readable reason plus the field path,
 // which the daemon writes to the dead-letter output and the raw archive.
 import { z } from 'zod';

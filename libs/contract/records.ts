@@ -1,4 +1,4 @@
-// Derived records of contract v1 (../shared/contract.md, section 4). The same records go to every output.
+// Derived records of contract v1 (docs/contract-v1.md, section 4). The same records go to every output.
 // Contract fields are listed exactly; extension fields of our own (flags, sigmas, provenance) are allowed.
 import { z } from 'zod';
 

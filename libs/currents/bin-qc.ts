@@ -1,5 +1,5 @@
-// Per-bin QC and transformation of one ADCP ensemble (reefd science.md 5.1, 5.3, 5.4), with QARTOD
-// flags (1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing; science.md 7.1, 7.4: a bin takes the
+// Per-bin QC and transformation of one ADCP ensemble (reefd docs/methods/currents.md 5.1, 5.3, 5.4), with QARTOD
+// flags (1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing; docs/methods/qc.md 7.1, 7.4: a bin takes the
 // worst evaluated test). Engineering defaults in the style of the QARTOD currents manual:
 //   side lobe    far edge r_n + dz/2 beyond D_eff cos theta            -> 4
 //   boundary     at or beyond the surface (bed) peak of the four-beam median echo   -> 4

@@ -14,7 +14,7 @@ function powerProfile(h: number, z1: number, dz: number, zTop: number, uStar: nu
   return { z, u };
 }
 
-describe('depth average (science.md 5.5)', () => {
+describe('depth average (docs/methods/currents.md 5.5)', () => {
   // The analytic mean of u* (z/h)^(1/6) over 0..h is u* 6/7 (integral of x^(1/6) on [0, 1]).
   const cases: [number, number, number, number][] = [
     [2.0, 0.5, 0.1, 1.8], // reef crest: 14 bins of 0.1 m

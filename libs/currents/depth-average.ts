@@ -1,4 +1,4 @@
-// Depth average of an ADCP profile (reefd science.md 5.5): near-bed power law after Chen (1991),
+// Depth average of an ADCP profile (reefd docs/methods/currents.md 5.5): near-bed power law after Chen (1991),
 // J. Hydraul. Eng. (m = 6; as used for ADCP discharge by Simpson & Oltmann 1993, USGS Water-Supply
 // Paper 2395), trapezoids between valid bins, and a constant or power-law top extrapolation.
 //

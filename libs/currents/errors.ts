@@ -1,5 +1,5 @@
 // Error catalogue of the currents library: stable codes, the short reason carried in results, the
-// QARTOD flag of the missing value (science.md 7.4: 9 when a required input is missing, 4 when the
+// QARTOD flag of the missing value (docs/methods/qc.md 7.4: 9 when a required input is missing, 4 when the
 // data fail) and a message template saying what is wrong and how to fix it.
 import type { CurrentFail } from './types.js';
 

@@ -7,7 +7,7 @@ import {
   sideLobeMaxRangeM,
 } from './geometry.js';
 
-describe('bin geometry (science.md 5.3)', () => {
+describe('bin geometry (docs/methods/currents.md 5.3)', () => {
   it('r_n = blank + dz/2 + (n - 1) dz: blank 0.1, dz 0.2, third bin at 0.6 m (worked by hand)', () => {
     expect(binRangeM(2, 0.1, 0.2)).toBeCloseTo(0.6, 15);
     expect(binRangeM(0, 0.1, 0.2, 0.25)).toBe(0.25);
@@ -16,13 +16,13 @@ describe('bin geometry (science.md 5.3)', () => {
   it('z_n = z_head + r cos p cos r up-looking, minus down-looking (worked by hand)', () => {
     expect(binHeightM(1, 0.35, 'up')).toBeCloseTo(1.35, 15);
     expect(binHeightM(1, 1.5, 'down')).toBeCloseTo(0.5, 15);
-    // pitch 5 deg: cos 5 = 0.9961947; the 0.4 % bound of science.md 5.3
+    // pitch 5 deg: cos 5 = 0.9961947; the 0.4 % bound of docs/methods/currents.md 5.3
     const z = binHeightM(1, 0, 'up', 5, 0);
     expect(z).toBeCloseTo(0.9961947, 7);
     expect(1 - z).toBeLessThan(0.004);
   });
 
-  it('side lobes at theta = 25 deg lose D (1 - cos theta) = 9.4 % of D (science.md 5.3)', () => {
+  it('side lobes at theta = 25 deg lose D (1 - cos theta) = 9.4 % of D (docs/methods/currents.md 5.3)', () => {
     const d = 10;
     const lost = d - sideLobeMaxRangeM(d, 25);
     expect(lost / d).toBeCloseTo(0.0937, 4);

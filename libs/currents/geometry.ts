@@ -1,5 +1,5 @@
-// ADCP bin geometry and the side-lobe limit (reefd science.md 5.3), and water depth from the head's
-// pressure (hydrostatic, science.md 1 and 4.1). Ranges are along the head's axis ("vertical range"
+// ADCP bin geometry and the side-lobe limit (reefd docs/methods/currents.md 5.3), and water depth from the head's
+// pressure (hydrostatic, docs/methods/conventions.md and 4.1). Ranges are along the head's axis ("vertical range"
 // for a level head); heights z are above the bed, m, positive up.
 
 const DEG = Math.PI / 180;
@@ -17,7 +17,7 @@ export function binRangeM(n: number, blankM: number, binM: number, firstBinRange
 
 /**
  * Height above the bed of a bin centre, m: z = z_head +- r cos p cos r (+ up-looking, - down-looking).
- * The cos p cos r projection errs < 0.4 % below 5 deg tilt (science.md 5.3).
+ * The cos p cos r projection errs < 0.4 % below 5 deg tilt (docs/methods/currents.md 5.3).
  */
 export function binHeightM(
   rangeM: number,
@@ -47,11 +47,11 @@ export function boundaryDistanceM(
 }
 
 /**
- * Largest clean range along the head's axis, m: D cos theta (science.md 5.3). A bin is kept only if
+ * Largest clean range along the head's axis, m: D cos theta (docs/methods/currents.md 5.3). A bin is kept only if
  * its far edge r_n + dz/2 is within it. The side lobe's first boundary echo comes from the
  * perpendicular distance D whatever the tilt, and a bin at axial range r lies at slant range
  * r/cos theta on every beam, so the limit in axial range does not depend on tilt.
- * Check: theta = 25 deg loses the top 1 - cos 25 = 9.37 % of D (science.md 5.3).
+ * Check: theta = 25 deg loses the top 1 - cos 25 = 9.37 % of D (docs/methods/currents.md 5.3).
  */
 export function sideLobeMaxRangeM(boundaryDistM: number, beamAngleDeg: number): number {
   return boundaryDistM * Math.cos(beamAngleDeg * DEG);

@@ -1,5 +1,5 @@
 // Public API of the currents library: depth-averaged currents from a 4-beam Janus ADCP ensemble
-// (reefd science.md 5). Conventions: transforms.ts (beams, attitude), sensor-attitude.ts
+// (reefd docs/methods/currents.md). Conventions: transforms.ts (beams, attitude), sensor-attitude.ts
 // (declination, down-looking heads), reef-frame.ts (u, v, direction), README.md (all of them).
 export { processEnsemble } from './process.js';
 export {

@@ -30,7 +30,7 @@ function setCell(a: readonly (readonly number[])[], n: number, i: number, v: num
   return a.map((row, k) => row.map((x, j) => (k === n && j === i ? v : x)));
 }
 
-describe('side lobes in an ensemble (science.md 5.3)', () => {
+describe('side lobes in an ensemble (docs/methods/currents.md 5.3)', () => {
   it('theta 25, D = 10 m: bins whose far edge passes D cos 25 = 9.063 m fail (worked by hand)', () => {
     // r_n = 0.75 + 0.5 n, far edge 1.0 + 0.5 n <= 9.063 -> n <= 16
     const ens = synthesizeBeamEnsemble(spec({ nBins: 22, blankM: 0.5, binM: 0.5, pitchDeg: 0, rollDeg: 0 }));
@@ -43,7 +43,7 @@ describe('side lobes in an ensemble (science.md 5.3)', () => {
   });
 });
 
-describe('bin QC thresholds (science.md 5.4, engineering defaults)', () => {
+describe('bin QC thresholds (docs/methods/currents.md 5.4, engineering defaults)', () => {
   it('correlation below 50 % on one beam gives a three-beam bin (3), on two beams a failed bin (4)', () => {
     const one = ok(processEnsemble({ ...ENS, corrPct: setCell(ENS.corrPct ?? [], 3, 2, 49) }, SENSOR, CTX));
     expect(one.binFlags[3]).toBe(3);
@@ -162,7 +162,7 @@ describe('instrument and earth coordinates', () => {
 });
 
 describe('depth source and failures', () => {
-  it('without a station depth, h comes from the ADCP pressure; p_atm defaulted flags 3 (science.md 1, 7.4)', () => {
+  it('without a station depth, h comes from the ADCP pressure; p_atm defaulted flags 3 (docs/methods/conventions.md, 7.4)', () => {
     // 2.05 m of water above the head at rho 1025, g 9.80665: p - p_atm = 2.05 * 1025 * 9.80665 / 1e4 dbar
     const dp = (2.05 * 1025 * 9.80665) / 1e4;
     const r = ok(processEnsemble({ ...ENS, presDbar: 10.1325 + dp }, SENSOR, { reefAxisDeg: 270 }));
@@ -176,7 +176,7 @@ describe('depth source and failures', () => {
     expect(withBaro.flag).toBe(1);
   });
 
-  it('the station depth wins; a disagreement over 0.05 m with the ADCP is suspect (science.md 7.2)', () => {
+  it('the station depth wins; a disagreement over 0.05 m with the ADCP is suspect (docs/methods/qc.md 7.2)', () => {
     const dp = (2.0 * 1025 * 9.80665) / 1e4; // the ADCP says 2.35 m
     const agree = ok(processEnsemble({ ...ENS, presDbar: 10.1325 + dp }, SENSOR, { ...CTX, depthM: 2.38 }));
     expect(agree.depthSource).toBe('pressure');
@@ -227,13 +227,13 @@ describe('depth source and failures', () => {
     });
   });
 
-  it('an ensemble shorter than 5 min is suspect (science.md 5.5)', () => {
+  it('an ensemble shorter than 5 min is suspect (docs/methods/currents.md 5.5)', () => {
     expect(ok(processEnsemble({ ...ENS, durationS: 120 }, SENSOR, CTX)).flag).toBe(3);
     expect(ok(processEnsemble({ ...ENS, durationS: 600 }, SENSOR, CTX)).flag).toBe(1);
   });
 });
 
-describe('bed stress and uncertainty (science.md 5.6, 9.2)', () => {
+describe('bed stress and uncertainty (docs/methods/currents.md 5.6, 9.2)', () => {
   it('tau_b = rho Cd U^2 with Cd 0.03 by default, or the log-law Cd for a given z0', () => {
     const r = ok(processEnsemble(ENS, SENSOR, CTX));
     expect(r.tauBedPa).toBeCloseTo(1025 * 0.03 * r.speedMS * r.speedMS, 14);
@@ -241,7 +241,7 @@ describe('bed stress and uncertainty (science.md 5.6, 9.2)', () => {
     expect(z0.tauBedPa).toBeCloseTo(1022 * (0.41 / 4) ** 2 * z0.speedMS * z0.speedMS, 14);
   });
 
-  it('sigma^2 = sigma_ping^2/N + (0.01 U)^2 + (U sigma_heading)^2 + sigma_ext^2 (science.md 9.2)', () => {
+  it('sigma^2 = sigma_ping^2/N + (0.01 U)^2 + (U sigma_heading)^2 + sigma_ext^2 (docs/methods/uncertainty.md 9.2)', () => {
     const uniform = ok(processEnsemble(ENS, { ...SENSOR, pingSigmaMS: 0.1, pingsPerEnsemble: 400 }, CTX));
     const power = ok(processEnsemble(ENS, { ...SENSOR, topExtrapolation: 'power' }, CTX));
     const ext2 = ((power.eastMS - uniform.eastMS) / 2) ** 2 + ((power.northMS - uniform.northMS) / 2) ** 2;
@@ -252,7 +252,7 @@ describe('bed stress and uncertainty (science.md 5.6, 9.2)', () => {
   });
 });
 
-describe('instrument beam numbering and sign (science.md 5.1)', () => {
+describe('instrument beam numbering and sign (docs/methods/currents.md 5.1)', () => {
   it('a head numbering the beams 3, 4, 1, 2 and positive towards itself reads the same flow (algebra)', () => {
     // the message carries [-b3, -b4, -b1, -b2] of this project's beams
     const velMS = ENS.velMS.map((r) => [-(r[2] ?? 0), -(r[3] ?? 0), -(r[0] ?? 0), -(r[1] ?? 0)]);

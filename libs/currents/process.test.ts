@@ -26,13 +26,13 @@ function beamEnsemble(beams: readonly number[], n: number, att: [number, number,
   };
 }
 
-/** Uniform flow u in the bins averages to u (1 - z1/(7 h)) (science.md 5.5; worked by hand). */
+/** Uniform flow u in the bins averages to u (1 - z1/(7 h)) (docs/methods/currents.md 5.5; worked by hand). */
 const uniformMean = (u: number, z1: number, h: number) => u * (1 - z1 / (7 * h));
 
 const UP: AdcpSensorConfig = { heightM: 0.35, beamAngleDeg: 20, orientation: 'up' };
 const CTX: CurrentContext = { depthM: 2.35, reefAxisDeg: 270 };
 
-describe('known flows by hand through the whole chain (science.md 5.1-5.5)', () => {
+describe('known flows by hand through the whole chain (docs/methods/currents.md 5.1-5.5)', () => {
   it('up-looking, level, heading 0: beams [u s, -u s, 0, 0] are a current towards east (worked by hand)', () => {
     const u = 0.2;
     const r = ok(processEnsemble(beamEnsemble([u * sin(20), -u * sin(20), 0, 0], 30, [0, 0, 0]), UP, CTX));
@@ -121,7 +121,7 @@ describe('down-looking heads (bins below the head, z_n = z_head - r_n cos p cos 
   });
 });
 
-describe('synthesized ensembles at any attitude (inverse transforms, science.md 5.1-5.2)', () => {
+describe('synthesized ensembles at any attitude (inverse transforms, docs/methods/currents.md 5.1-5.2)', () => {
   it('uniform flow returns u (1 - z1/(7h)) for any heading and tilt below 10 deg, up and down (property test)', () => {
     fc.assert(
       fc.property(
@@ -184,7 +184,7 @@ describe('synthesized ensembles at any attitude (inverse transforms, science.md 
   });
 });
 
-describe('three-beam solutions inside an ensemble (science.md 5.1)', () => {
+describe('three-beam solutions inside an ensemble (docs/methods/currents.md 5.1)', () => {
   const sensor: AdcpSensorConfig = { ...UP, beamAngleDeg: 25 };
   const base = synthesizeBeamEnsemble({
     sensor,
@@ -208,7 +208,7 @@ describe('three-beam solutions inside an ensemble (science.md 5.1)', () => {
     expect(r.notes.some((s) => s.startsWith('three_beam'))).toBe(true);
   });
 
-  it('two bad beams fail the bin (4) and four nulls mark it missing (9) (science.md 5.1, 7.4)', () => {
+  it('two bad beams fail the bin (4) and four nulls mark it missing (9) (docs/methods/currents.md 5.1, 7.4)', () => {
     const velMS = base.velMS.map((row, n) =>
       n === 4 ? [null, null, row[2] ?? 0, row[3] ?? 0] : n === 5 ? [null, null, null, null] : row,
     );

@@ -1,9 +1,9 @@
-// Depth-averaged current from one ADCP ensemble (reefd science.md 5, uncertainty 9.2), in order:
+// Depth-averaged current from one ADCP ensemble (reefd docs/methods/currents.md, uncertainty 9.2), in order:
 // validate; attitude and tilt (5.2, 5.4); water depth (station pressure, else the head's own);
 // side-lobe limit (5.3); bin QC and transforms (5.1, 5.4; bin-qc.ts); depth average (5.5);
 // reef frame, speed, direction and bed stress (5.6); uncertainty (9.2).
 //
-// Flags (QARTOD; science.md 7.4): the result takes the worst flag of the bins it uses (1 or 3),
+// Flags (QARTOD; docs/methods/qc.md 7.4): the result takes the worst flag of the bins it uses (1 or 3),
 // raised to 3 by its own checks (p_atm defaulted, station and ADCP depths differ by > 0.05 m, an
 // ensemble shorter than 5 min). Failures return { ok: false } with a stable code (errors.ts).
 import { qcBins, type BinPlan } from './bin-qc.js';
@@ -23,13 +23,13 @@ import {
 } from './types.js';
 
 const DEG = Math.PI / 180;
-const PATM_DEFAULT_DBAR = 10.1325; // 1 atm (science.md 1)
+const PATM_DEFAULT_DBAR = 10.1325; // 1 atm (docs/methods/conventions.md)
 const RHO_DEFAULT = 1025; // kg m-3, engineering default for reef seawater
 const G_STANDARD = 9.80665; // m s-2, standard gravity
-const CD_DEFAULT = 0.03; // science.md 5.6
-const DEPTH_MISMATCH_M = 0.05; // science.md 7.2 (9): logger and ADCP depths
-const MIN_ENSEMBLE_S = 300; // science.md 5.5: orbital velocities cancel over >= 5 min
-const REL_ERR = 0.01; // science.md 9.2: 1 % of reading
+const CD_DEFAULT = 0.03; // docs/methods/currents.md 5.6
+const DEPTH_MISMATCH_M = 0.05; // docs/methods/qc.md 7.2 (9): logger and ADCP depths
+const MIN_ENSEMBLE_S = 300; // docs/methods/currents.md 5.5: orbital velocities cancel over >= 5 min
+const REL_ERR = 0.01; // docs/methods/uncertainty.md 9.2: 1 % of reading
 const BEAM_IDENTITY = [0, 1, 2, 3] as const;
 
 function shapeOk(a: readonly (readonly unknown[])[] | undefined, n: number): boolean {
@@ -159,7 +159,7 @@ export function processEnsemble(
     north.subarray(0, m).reverse();
   }
   // Coverage: the part of the column the profile pins down. Up-looking: from the bed (the power law from
-  // the no-slip bottom through the first bin is a constrained extrapolation, science.md 5.5) to the top of
+  // the no-slip bottom through the first bin is a constrained extrapolation, docs/methods/currents.md 5.5) to the top of
   // the highest valid cell; down-looking: from the bottom of the lowest valid cell to the surface. Counting
   // only the cells themselves would fail every shallow reef-flat ADCP: head height and blanking alone are
   // ~25 % of a 1.5 m flat, and the wave troughs take the top (5.3).
@@ -188,7 +188,7 @@ export function processEnsemble(
   const speedMS = Math.sqrt(eastMS * eastMS + northMS * northMS);
   const { uMS, vMS } = toReefFrame(eastMS, northMS, ctx.reefAxisDeg);
 
-  // Uncertainty (science.md 9.2). Random term: sigma_ping^2/N_pings when configured; else the mean
+  // Uncertainty (docs/methods/uncertainty.md 9.2). Random term: sigma_ping^2/N_pings when configured; else the mean
   // square error velocity, which by construction of d has the noise variance of a horizontal component
   // (conservative: it also holds any inhomogeneity of the flow).
   const dE = 0.5 * ((mean[1] as number) - (mean[0] as number));

@@ -4,7 +4,7 @@ import { bedStressPa, directionTowardsDeg, logLawCd, toReefFrame } from './reef-
 
 const num = (min: number, max: number) => fc.double({ min, max, noNaN: true });
 
-describe('reef frame (contract.md reef_axis_deg; science.md 5.6)', () => {
+describe('reef frame (contract.md reef_axis_deg; docs/methods/currents.md 5.6)', () => {
   it('reef_axis 270: a current towards west gives u > 0, v = 0 (worked by hand)', () => {
     const r = toReefFrame(-0.2, 0, 270);
     expect(r.uMS).toBeCloseTo(0.2, 15);
@@ -57,7 +57,7 @@ describe('reef frame (contract.md reef_axis_deg; science.md 5.6)', () => {
   });
 });
 
-describe('direction towards (science.md 5.6)', () => {
+describe('direction towards (docs/methods/currents.md 5.6)', () => {
   it('east 90, south 180, west 270, north and calm 0 (worked by hand)', () => {
     expect(directionTowardsDeg(1, 0)).toBe(90);
     expect(directionTowardsDeg(0, -1)).toBe(180);
@@ -80,7 +80,7 @@ describe('direction towards (science.md 5.6)', () => {
   });
 });
 
-describe('bed stress (science.md 5.6)', () => {
+describe('bed stress (docs/methods/currents.md 5.6)', () => {
   it('rho Cd U^2: 1025 x 0.03 x 0.2^2 = 1.23 Pa (worked by hand)', () => {
     expect(bedStressPa(0.2, 1025, 0.03)).toBeCloseTo(1.23, 12);
   });

@@ -1,4 +1,4 @@
-// Reef frame, direction and bed stress (reefd science.md 5.6; contract.md section 3, reef_axis_deg).
+// Reef frame, direction and bed stress (reefd docs/methods/currents.md 5.6; contract.md section 3, reef_axis_deg).
 //   u = E sin beta + N cos beta    along beta = reef_axis_deg (shoreward cross-reef bearing)
 //   v = -E cos beta + N sin beta   along-reef, 90 deg counter-clockwise from u (bearing beta - 90)
 //   dir_to = atan2(E, N) mod 360   "towards", clockwise from true north
@@ -7,7 +7,7 @@
 //                                  al. 2017, J. Phys. Oceanogr.; from memory, verify)
 
 const DEG = Math.PI / 180;
-/** von Karman constant (science.md 5.6) */
+/** von Karman constant (docs/methods/currents.md 5.6) */
 const KAPPA = 0.41;
 
 /** Cross-reef u and along-reef v, m/s. */
@@ -39,7 +39,7 @@ export function directionTowardsDeg(eastMS: number, northMS: number): number {
 }
 
 /**
- * Drag coefficient of the depth-averaged log law, Cd = [kappa/(ln(h/z0) - 1)]^2 (science.md 5.6),
+ * Drag coefficient of the depth-averaged log law, Cd = [kappa/(ln(h/z0) - 1)]^2 (docs/methods/currents.md 5.6),
  * for depth h and roughness length z0 in m, h > e z0. Check (worked by hand): h/z0 = e^5 gives
  * (0.41/4)^2 = 0.01050625.
  */

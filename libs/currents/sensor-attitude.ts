@@ -1,11 +1,11 @@
-// A sensor's attitude in the conventions of transforms.ts (reefd science.md 5.2): heading corrected
+// A sensor's attitude in the conventions of transforms.ts (reefd docs/methods/currents.md 5.2): heading corrected
 // for declination and alignment, optional gimbal pitch, and the down-looking flip.
 //
 // Down-looking heads: the head is taken as an up-looking one rolled over by 180 deg about its +y
 // axis, so z (out of the face) points down, +x reverses, and +y and the heading keep their meaning.
 // A level down-looking head reports pitch = roll = 0; the rotation uses roll + 180 deg. Instruments
 // whose tilt sensors refer to another frame are mapped onto this one in their configuration and
-// proved with a known-flow test (science.md, open points).
+// proved with a known-flow test (docs/methods/currents.md, instrument conventions).
 import { gimbalPitchDeg, rotationMatrix, totalTiltDeg } from './transforms.js';
 import type { AdcpSensorConfig } from './types.js';
 
@@ -32,7 +32,7 @@ export function sensorRotationMatrix(
   return rotationMatrix(h, p, r, out);
 }
 
-/** Total tilt of the sensor from its level attitude, deg (science.md 5.4). */
+/** Total tilt of the sensor from its level attitude, deg (docs/methods/currents.md 5.4). */
 export function sensorTiltDeg(sensor: AdcpSensorConfig, pitchDeg: number, rollDeg: number): number {
   return totalTiltDeg(sensorPitchDeg(sensor, pitchDeg, rollDeg), rollDeg);
 }

@@ -22,7 +22,7 @@ function close(actual: ArrayLike<number>, expected: readonly number[], tol: numb
   }
 }
 
-describe('beam -> instrument (science.md 5.1)', () => {
+describe('beam -> instrument (docs/methods/currents.md 5.1)', () => {
   it('theta = 30 deg factors: a = 1, b = 1/(2 sqrt 3), d = 1/sqrt 2 (worked by hand)', () => {
     const h = janusHead(30);
     expect(h.a).toBeCloseTo(1, 14);
@@ -61,7 +61,7 @@ describe('beam -> instrument (science.md 5.1)', () => {
   });
 });
 
-describe('three-beam solutions (science.md 5.1)', () => {
+describe('three-beam solutions (docs/methods/currents.md 5.1)', () => {
   it('equal the four-beam solution when e = 0, each beam dropped in turn (algebra, property test)', () => {
     fc.assert(
       fc.property(
@@ -97,7 +97,7 @@ describe('three-beam solutions (science.md 5.1)', () => {
   });
 });
 
-describe('instrument <-> earth (science.md 5.2)', () => {
+describe('instrument <-> earth (docs/methods/currents.md 5.2)', () => {
   it('heading 90: instrument +y maps to east and +x to south (worked by hand)', () => {
     close(instrumentToEarth([0, 1, 0, 0], { headingDeg: 90, pitchDeg: 0, rollDeg: 0 }), [1, 0, 0, 0], 1e-15);
     close(instrumentToEarth([1, 0, 0, 0], { headingDeg: 90, pitchDeg: 0, rollDeg: 0 }), [0, -1, 0, 0], 1e-15);

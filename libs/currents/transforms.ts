@@ -1,5 +1,5 @@
-// 4-beam Janus ADCP coordinate transforms: beam <-> instrument (reefd science.md 5.1) and
-// instrument <-> earth by heading, pitch and roll (science.md 5.2). The conventions are this
+// 4-beam Janus ADCP coordinate transforms: beam <-> instrument (reefd docs/methods/currents.md 5.1) and
+// instrument <-> earth by heading, pitch and roll (docs/methods/currents.md 5.2). The conventions are this
 // project's own; each instrument's beam numbering, signs and tilt axes are mapped onto them in the
 // sensor configuration and proved by a known-flow or rotation test.
 //
@@ -17,7 +17,7 @@
 //   R = [[cr, 0, sr], [0, 1, 0], [-sr, 0, cr]]     positive roll lowers +x (right-hand about +y)
 // Check (worked by hand): heading 90, pitch = roll = 0 maps instrument +y to east and +x to south.
 
-/** Precomputed factors of a 4-beam Janus head (science.md 5.1). */
+/** Precomputed factors of a 4-beam Janus head (docs/methods/currents.md 5.1). */
 export interface JanusHead {
   readonly beamAngleDeg: number;
   readonly convex: boolean;
@@ -81,7 +81,7 @@ export function beamToInstrument(
 }
 
 /**
- * Three-beam solution (science.md 5.1): beam `bad` (0-3) is rebuilt from the other three by setting
+ * Three-beam solution (docs/methods/currents.md 5.1): beam `bad` (0-3) is rebuilt from the other three by setting
  * e = 0 (b1 + b2 = b3 + b4), then transformed. out[3] (error velocity) is NaN: it is not measured.
  * In flow with e = 0 it equals the four-beam solution exactly.
  */
@@ -140,7 +140,7 @@ export interface AttitudeDeg {
 }
 
 /**
- * Rotation matrix M = H P R, row-major 3 x 3, instrument -> earth (science.md 5.2). Angles in deg,
+ * Rotation matrix M = H P R, row-major 3 x 3, instrument -> earth (docs/methods/currents.md 5.2). Angles in deg,
  * heading already corrected for declination and alignment. Orthonormal: earth -> instrument is M^T.
  */
 export function rotationMatrix(
@@ -213,14 +213,14 @@ export function earthToInstrument(
 }
 
 /**
- * Gimbal pitch from independent axis tilts (science.md 5.2): p = atan(tan p_meas cos r_meas), deg.
+ * Gimbal pitch from independent axis tilts (docs/methods/currents.md 5.2): p = atan(tan p_meas cos r_meas), deg.
  * Only for tilt sensors that report independent axis tilts (instrument-dependent).
  */
 export function gimbalPitchDeg(pitchMeasDeg: number, rollMeasDeg: number): number {
   return Math.atan(Math.tan(pitchMeasDeg * DEG) * Math.cos(rollMeasDeg * DEG)) / DEG;
 }
 
-/** Total tilt acos(cos p cos r) in deg, for pitch and roll in deg (science.md 5.4). */
+/** Total tilt acos(cos p cos r) in deg, for pitch and roll in deg (docs/methods/currents.md 5.4). */
 export function totalTiltDeg(pitchDeg: number, rollDeg: number): number {
   const c = Math.cos(pitchDeg * DEG) * Math.cos(rollDeg * DEG);
   return Math.acos(Math.min(1, Math.max(-1, c))) / DEG;

@@ -29,7 +29,7 @@ export interface AdcpEnsemble {
   readonly durationS?: number;
 }
 
-/** Bin QC thresholds (science.md 5.4; engineering defaults, tune per instrument). */
+/** Bin QC thresholds (docs/methods/currents.md 5.4; engineering defaults, tune per instrument). */
 export interface AdcpQcThresholds {
   /** fail a beam below this correlation, % */
   readonly corrMinPct: number;
@@ -87,7 +87,7 @@ export interface AdcpSensorConfig {
   /**
    * Beam coordinates only: beamMap[k] is the index (0-3) in the message of this project's beam k + 1
    * (default [0, 1, 2, 3]), and beamSign is -1 for instruments whose beam velocities are positive
-   * towards the head (default +1). Prove the mapping with a known-flow test (science.md 5.1).
+   * towards the head (default +1). Prove the mapping with a known-flow test (docs/methods/currents.md 5.1).
    */
   readonly beamMap?: readonly [number, number, number, number];
   readonly beamSign?: 1 | -1;
@@ -146,7 +146,7 @@ export interface CurrentOk {
   readonly depthSource: 'pressure' | 'adcp';
   /** bed shear stress magnitude rho Cd |U|^2, Pa (direction that of U) */
   readonly tauBedPa: number;
-  /** standard uncertainty of the depth-averaged speed, m/s (science.md 9.2) */
+  /** standard uncertainty of the depth-averaged speed, m/s (docs/methods/uncertainty.md 9.2) */
   readonly sigmaMS: number;
   /** QARTOD flag per bin, in range order */
   readonly binFlags: number[];

@@ -1,8 +1,8 @@
-// Air-sea terms of a transect window (science.md 6.2): Wanninkhof (2014) transfer velocities from the 10 m wind,
+// Air-sea terms of a transect window (docs/methods/metabolism.md 6.2): Wanninkhof (2014) transfer velocities from the 10 m wind,
 // O2 from the saturation anomaly (Garcia & Gordon 1992 solubility at the barometric pressure, libs/seawater) and
 // CO2 from K0 (fCO2_w - fCO2_a) (Weiss 1974, libs/carbonate), all from transect means.
 //
-// The transect mean O2 for the exchange term: science.md 6.2 takes the mean of the two stations (trapezoid).
+// The transect mean O2 for the exchange term: docs/methods/metabolism.md 6.2 takes the mean of the two stations (trapezoid).
 // Gas exchange makes the steady O2 profile exponential, C - C_eq ~ exp(-x k/(h U)), and the trapezoid then
 // misestimates the path-mean anomaly by about a^2/12 of the distance to equilibrium, a = k tau/h (tau = L/U).
 // With the light-driven NCP of a reef flat that distance is hundreds of umol/kg, so at a = 0.3 (6 m/s wind,

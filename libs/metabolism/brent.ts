@@ -132,7 +132,7 @@ export type BracketedRootResult =
 
 /**
  * Root of f in the symmetric bracket [centre - halfWidth, centre + halfWidth], doubling the half width up to
- * maxDoublings times while f has the same sign at both ends (science.md 6.5 step 4).
+ * maxDoublings times while f has the same sign at both ends (docs/methods/metabolism.md 6.5 step 4).
  */
 export function brentExpanding(
   f: (x: number) => number,

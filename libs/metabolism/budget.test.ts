@@ -9,7 +9,7 @@ import {
   storageRate,
 } from './budget.js';
 
-describe('budget algebra (science.md 6.1, 6.3)', () => {
+describe('budget algebra (docs/methods/metabolism.md 6.1, 6.3)', () => {
   it('advection and storage terms', () => {
     expect(advectionRate(0.05, 200, 207, 350)).toBeCloseTo(1e-3, 15);
     expect(storageRate(202, 208, 200, 206, 600)).toBeCloseTo(2 / 600, 15);
@@ -48,13 +48,13 @@ describe('budget algebra (science.md 6.1, 6.3)', () => {
       }
       return cBprev;
     };
-    // Two starts 20 umol/kg apart: the difference decays by tau/(tau + 2W) per step (science.md 6.4),
+    // Two starts 20 umol/kg apart: the difference decays by tau/(tau + 2W) per step (docs/methods/metabolism.md 6.4),
     // tau = L/U = 7000 s, 2W = 1200 s.
     const ratio = (run(230) - run(210)) / 20;
     expect(ratio).toBeCloseTo(Math.pow(7000 / 8200, 40), 12);
   });
 
-  it('flux sigma reduces to the gradient term alone (science.md 9.2)', () => {
+  it('flux sigma reduces to the gradient term alone (docs/methods/uncertainty.md 9.2)', () => {
     const s = fluxSigmaUmolM2S({
       rhoKgM3: 1000,
       depthM: 1,

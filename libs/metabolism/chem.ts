@@ -38,7 +38,7 @@ export function fco2FromPco2Uatm(c: Constants, pco2Uatm: number, baroHpa: number
   return fco2FromPco2(c, pco2Uatm, baroHpa);
 }
 
-/** Wet-air pCO2 [uatm] from dry xCO2 [ppm]: xCO2 (P - pw) (science.md 3.4). */
+/** Wet-air pCO2 [uatm] from dry xCO2 [ppm]: xCO2 (P - pw) (docs/methods/carbonate.md 3.4). */
 export function pco2AirUatm(xco2Ppm: number, baroHpa: number, salinity: number, tempC: number): number {
   return pco2FromXco2(xco2Ppm, baroHpa, salinity, tempC);
 }

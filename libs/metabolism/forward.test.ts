@@ -16,7 +16,7 @@ function swing(u: number, depthM = 1, lengthM = 350): number {
   return night.pco2Uatm - day.pco2Uatm;
 }
 
-describe('forward model (science.md 6.4)', () => {
+describe('forward model (docs/methods/metabolism.md 6.4)', () => {
   it('O2 rise is NCP L/(rho h U) with no exchange (algebra)', () => {
     const f = forwardDownstream({
       up,
@@ -64,7 +64,7 @@ describe('forward model (science.md 6.4)', () => {
     expect(s8 / s4).toBeLessThan(0.6);
   });
 
-  it('storage form relaxes to the steady state when the forcing is constant (science.md 6.4)', () => {
+  it('storage form relaxes to the steady state when the forcing is constant (docs/methods/metabolism.md 6.4)', () => {
     const base = { up, ncpMmolM2H: 20, necMmolM2H: 6, pq: 1, uMS: 0.05, depthM: 1, lengthM: 350 };
     const steady = forwardDownstream(base);
     expect(steady.ok).toBe(true);

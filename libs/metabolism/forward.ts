@@ -1,4 +1,4 @@
-// Forward model of the transect (science.md 6.4): the downstream O2, TA, DIC and pCO2 for given NCP, NEC, PQ,
+// Forward model of the transect (docs/methods/metabolism.md 6.4): the downstream O2, TA, DIC and pCO2 for given NCP, NEC, PQ,
 // velocity, depth and length, steady or with storage. It is the exact inverse of the discrete budget of
 // transect-flux.ts (same salinity normalisation, same transect-mean air-sea terms), used by the simulator and
 // in tests. Carbonate speciation from libs/carbonate (pCO2 from TA and DIC).
@@ -65,7 +65,7 @@ export type ForwardResult =
 
 /**
  * Downstream chemistry of a transect. All rates are the contract's: NCP mmol O2 m-2 h-1, NEC mmol CaCO3 m-2 h-1.
- * Check: with no air-sea term, O2_B - O2_A = NCP L/(3.6 rho h U) exactly (science.md 6.4).
+ * Check: with no air-sea term, O2_B - O2_A = NCP L/(3.6 rho h U) exactly (docs/methods/metabolism.md 6.4).
  */
 export function forwardDownstream(x: ForwardInput): ForwardResult {
   const tB = x.downTempC ?? x.up.tempC;
@@ -114,7 +114,7 @@ export function forwardDownstream(x: ForwardInput): ForwardResult {
       xco2AirPpm: wind?.xco2AirPpm ?? 0,
     });
 
-  // O2 is not salinity-normalised (science.md 6.1). Its exchange term is linear in O2_B, so the budget is solved
+  // O2 is not salinity-normalised (docs/methods/metabolism.md 6.1). Its exchange term is linear in O2_B, so the budget is solved
   // for O2_B exactly: o2B = m0 + m1 q with q = (NCP - F_as(o2B))/(rho h). (A fixed point would diverge once
   // w k tau/h > 1, i.e. for strong wind over a shallow, slow flat.)
   const o2March = (q: number) => march(x.up.o2UmolKg, p?.up.o2UmolKg, p?.down.o2UmolKg, q);

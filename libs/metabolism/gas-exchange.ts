@@ -1,8 +1,8 @@
 // Air-sea gas transfer:
 // - Wanninkhof (2014), Limnol. Oceanogr. Methods 12, 351-362: k660 = 0.251 U10^2 [cm/h] and the Schmidt-number
-//   polynomials for seawater (S 35, -2 to 40 degC) (coefficients from memory, as listed in science.md 6.2).
+//   polynomials for seawater (S 35, -2 to 40 degC) (coefficients from memory, as listed in docs/methods/metabolism.md 6.2).
 // - Hsu, Meindl & Gilhousen (1994), J. Appl. Meteorol. 33, 757-765: neutral power law U10 = Uz (10/z)^0.11 at sea.
-// - Borges et al. (2004), Estuaries 27, 593-603: option for current-swept shallow water (science.md 6.2).
+// - Borges et al. (2004), Estuaries 27, 593-603: option for current-swept shallow water (docs/methods/metabolism.md 6.2).
 
 export type Gas = 'CO2' | 'O2';
 
@@ -52,7 +52,7 @@ export const CM_H_TO_M_S = 1 / 3.6e5;
 
 /**
  * Gas transfer velocity [m/s] of a gas at tempC from the 10 m wind [m/s]:
- * k = k660 (Sc/660)^(-1/2) / 3.6e5 (science.md 6.2). Check: CO2 at 20 degC and U10 = 10 m/s gives
+ * k = k660 (Sc/660)^(-1/2) / 3.6e5 (docs/methods/metabolism.md 6.2). Check: CO2 at 20 degC and U10 = 10 m/s gives
  * 25.1 (668.3/660)^-0.5 = 24.943 cm/h = 6.929e-5 m/s (algebra on Wanninkhof 2014).
  */
 export function gasTransferVelocity(gas: Gas, tempC: number, u10MS: number): number {
@@ -79,7 +79,7 @@ export function gasTransferVelocityCurrent(
 
 /**
  * O2 flux from water to air [umol m-2 s-1]: F = k rho (O2 - O2*) with k in m/s, rho in kg m-3, O2 in umol/kg
- * (science.md 6.2). Positive = outgassing. Check: k = 1e-5, rho = 1025, O2 - O2* = 20 gives 0.205 (algebra).
+ * (docs/methods/metabolism.md 6.2). Positive = outgassing. Check: k = 1e-5, rho = 1025, O2 - O2* = 20 gives 0.205 (algebra).
  */
 export function airSeaO2FluxUmolM2S(
   kMS: number,
@@ -92,7 +92,7 @@ export function airSeaO2FluxUmolM2S(
 
 /**
  * CO2 flux from water to air [umol m-2 s-1]: F = k rho K0 (fCO2_w - fCO2_a), with K0 in mol kg-1 atm-1 and
- * fCO2 in uatm (K0 x uatm = umol/kg) (science.md 6.2). Check: k = 1e-5, rho = 1025, K0 = 0.0284, dfCO2 = 100
+ * fCO2 in uatm (K0 x uatm = umol/kg) (docs/methods/metabolism.md 6.2). Check: k = 1e-5, rho = 1025, K0 = 0.0284, dfCO2 = 100
  * gives 0.02911 (algebra).
  */
 export function airSeaCo2FluxUmolM2S(

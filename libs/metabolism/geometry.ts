@@ -1,4 +1,4 @@
-// Transect geometry: the depth-averaged current projected on the transect bearing (science.md 5.6, 6.1).
+// Transect geometry: the depth-averaged current projected on the transect bearing (docs/methods/currents.md 5.6, 6.1).
 // Bearings in degrees true, clockwise from north, "towards" convention.
 
 const DEG = Math.PI / 180;
@@ -27,7 +27,7 @@ export function angleOffBearingDeg(eastMS: number, northMS: number, bearingDeg: 
 }
 
 /**
- * Default sigma of the depth-averaged along-transect velocity [m/s] (science.md 9.2-9.3): 1 % of reading,
+ * Default sigma of the depth-averaged along-transect velocity [m/s] (docs/methods/uncertainty.md 9.2-9.3): 1 % of reading,
  * 0.5 cm/s, and a 2 deg heading error, in quadrature (engineering default built from the typical ADCP accuracy).
  */
 export function defaultCurrentSigmaMS(speedMS: number): number {

@@ -1,8 +1,8 @@
-// Inverse NEC from pCO2 and O2 (science.md 6.5, `nec_method: inverse`): along the transect DIC and TA change by
+// Inverse NEC from pCO2 and O2 (docs/methods/metabolism.md 6.5, `nec_method: inverse`): along the transect DIC and TA change by
 // the benthic fluxes -(NCP/PQ + NEC) and -2 NEC; NCP comes from the O2 budget; NEC is the root that makes the
 // predicted downstream pCO2 equal the observed one. g(N) increases with N, because removing 2 TA per DIC raises
 // pCO2 (Frankignoulle, Canon & Gattuso 1994, Limnol. Oceanogr. 39, 458-462). Root by Brent (1973).
-// Uncertainty by the implicit-function theorem, dN/dx = -(dg/dx)/(dg/dN) (science.md 9.2).
+// Uncertainty by the implicit-function theorem, dN/dx = -(dg/dx)/(dg/dN) (docs/methods/uncertainty.md 9.2).
 
 import { brentExpanding } from './brent.js';
 import { forwardSteady, forwardWithStorage, UMOL_M2_S_TO_MMOL_M2_H } from './budget.js';
@@ -34,7 +34,7 @@ export interface InverseInput {
   baroHpa: number;
   /**
    * Shifts of the carbonate constants shared by both stations (pK = -log10 K; BT relative), for the
-   * uncertainty step only (science.md 9.1: station differences share constants). Default 0.
+   * uncertainty step only (docs/methods/uncertainty.md 9.1: station differences share constants). Default 0.
    */
   dpK0?: number;
   dpK1?: number;
@@ -42,7 +42,7 @@ export interface InverseInput {
   dpKB?: number;
   dpKW?: number;
   dBtRel?: number;
-  /** Previous window (storage form of science.md 6.4), else the steady form. */
+  /** Previous window (storage form of docs/methods/metabolism.md 6.4), else the steady form. */
   previous?: {
     dtS: number;
     upTaUmolKg: number;
@@ -103,7 +103,7 @@ function prepare(x: InverseInput): Prepared {
   return { x, cDown, upDic, state, ph };
 }
 
-/** Downstream TA and DIC [umol/kg] for a trial NEC nUmolM2S [umol m-2 s-1] (science.md 6.5 step 2). */
+/** Downstream TA and DIC [umol/kg] for a trial NEC nUmolM2S [umol m-2 s-1] (docs/methods/metabolism.md 6.5 step 2). */
 function downstreamTaDic(x: InverseInput, upDic: number, nUmolM2S: number): [number, number] {
   const s0 = 0.5 * (x.upSalinity + x.downSalinity);
   const rh = x.rhoKgM3 * x.depthM;
@@ -155,7 +155,7 @@ function residual(pr: Prepared, nUmolM2S: number): number {
   return nUmolM2S > 0 ? Number.POSITIVE_INFINITY : Number.NEGATIVE_INFINITY;
 }
 
-/** g(N) of science.md 6.5 step 3 for one input set [uatm]; NEC in umol m-2 s-1. */
+/** g(N) of docs/methods/metabolism.md 6.5 step 3 for one input set [uatm]; NEC in umol m-2 s-1. */
 export function inverseResidual(x: InverseInput, nUmolM2S: number): number {
   return residual(prepare(x), nUmolM2S);
 }
@@ -174,7 +174,7 @@ export type InverseResult =
     }
   | { ok: false; code: MetabolismErrorCode; reason: string };
 
-/** Solves g(N) = 0 by Brent in [-B, B] mmol m-2 h-1, doubled up to maxDoublings times (science.md 6.5 step 4). */
+/** Solves g(N) = 0 by Brent in [-B, B] mmol m-2 h-1, doubled up to maxDoublings times (docs/methods/metabolism.md 6.5 step 4). */
 export function solveInverseNec(x: InverseInput, o: InverseOptions): InverseResult {
   const pr = prepare(x);
   if (!Number.isFinite(pr.upDic)) {
@@ -239,7 +239,7 @@ export type InverseSigmaKey =
   | 'dBtRel';
 
 /**
- * First-order sigma of the inverse NEC [umol m-2 s-1] (science.md 9.1-9.2): dN/dx_i = -(dg/dx_i)/(dg/dN) with
+ * First-order sigma of the inverse NEC [umol m-2 s-1] (docs/methods/uncertainty.md 9.1-9.2): dN/dx_i = -(dg/dx_i)/(dg/dN) with
  * central differences d_i = 0.01 sigma_i, summed in quadrature over the independent inputs. Returns the total
  * and each input's contribution.
  */

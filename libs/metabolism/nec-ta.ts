@@ -1,4 +1,4 @@
-// NEC from the alkalinity budget (`nec_method: ta`) and NCP_C from the DIC budget (science.md 6.3): the
+// NEC from the alkalinity budget (`nec_method: ta`) and NCP_C from the DIC budget (docs/methods/metabolism.md 6.3): the
 // alkalinity-anomaly method (Smith & Key 1975; Kinsey 1978; Chisholm & Gattuso 1991) on salinity-normalised
 // TA and DIC, nX = X S0/S (Friis et al. 2003), in the same control volume as the O2 budget.
 
@@ -26,7 +26,7 @@ export function hasGradientTa(s: StationWindowMean): boolean {
   return Number.isFinite(s.taUmolKg) && s.taSource !== undefined && s.taSource !== 'salinity';
 }
 
-/** Default sigma of a station's TA [umol/kg] (science.md 9.3): salinity regression residual, else 3. */
+/** Default sigma of a station's TA [umol/kg] (docs/methods/uncertainty.md 9.3): salinity regression residual, else 3. */
 export function taSigma(s: StationWindowMean, fromSalinity: number): number {
   return s.sigmaTaUmolKg ?? (s.taSource === 'salinity' || s.taSource === undefined ? fromSalinity : 3);
 }
@@ -64,7 +64,7 @@ export function taBudget(
   const ad = advectionRate(ctx.uMS, nTaA, nTaB, ctx.lengthM);
   const semNow = 0.5 * Math.hypot(up.semTaUmolKg ?? 0, down.semTaUmolKg ?? 0);
   const semPrev = pU && pD && hasStorage ? 0.5 * Math.hypot(pU.semTaUmolKg ?? 0, pD.semTaUmolKg ?? 0) : 0;
-  // NEC from TA has no air-sea term and a factor 0.5 (science.md 9.2).
+  // NEC from TA has no air-sea term and a factor 0.5 (docs/methods/uncertainty.md 9.2).
   const sigma =
     0.5 *
     fluxSigmaUmolM2S({
@@ -92,7 +92,7 @@ export function taBudget(
 }
 
 /**
- * NCP_C [umol m-2 s-1] from DIC with measured TA (science.md 6.3):
+ * NCP_C [umol m-2 s-1] from DIC with measured TA (docs/methods/metabolism.md 6.3):
  * NCP_C = -rho h (St + Ad)_(nDIC - nTA/2) - F_as,CO2. Needs DIC at both stations.
  */
 export function ncpCFromDic(

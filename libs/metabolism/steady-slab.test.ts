@@ -156,7 +156,7 @@ describe('steady slab: forward model -> budget and inverse (exact inverse of eac
       expect(inv.ncpMmolM2H).toBeCloseTo(cs.ncp, 6);
       expect(inv.necMmolM2H).toBeCloseTo(cs.nec, 3); // Brent tolerance 1e-4 mmol m-2 h-1
       expect(inv.notes).toContain('steady_form');
-      expect(inv.flag).toBe(3); // no previous inverse solution: steady form, flag 3 (science.md 6.5)
+      expect(inv.flag).toBe(3); // no previous inverse solution: steady form, flag 3 (docs/methods/metabolism.md 6.5)
     });
   }
 });

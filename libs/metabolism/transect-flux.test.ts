@@ -1,4 +1,4 @@
-// Validity, flags, reverse flow and first-order uncertainty of computeTransectFlux (science.md 6.6, 9.2).
+// Validity, flags, reverse flow and first-order uncertainty of computeTransectFlux (docs/methods/metabolism.md 6.6, 9.2).
 import { describe, it, expect } from 'vitest';
 import { solveCarbonate } from '../carbonate/index.js';
 import {
@@ -33,7 +33,7 @@ function win(over: Partial<TransectWindow> = {}): TransectWindow {
   return { tCentreMs: T0, up: st(200), down: st(210, { pco2Uatm: 380 }), eastMS: -0.05, northMS: 0, ...over };
 }
 
-describe('validity (science.md 6.6)', () => {
+describe('validity (docs/methods/metabolism.md 6.6)', () => {
   it('a clean window is valid, flag 1 for the O2 budget', () => {
     const prev = win({ tCentreMs: T0 - 600_000 });
     const r = computeTransectFlux(win(), prev, params);
@@ -154,7 +154,7 @@ describe('validity (science.md 6.6)', () => {
   });
 });
 
-describe('uncertainty (science.md 9.2)', () => {
+describe('uncertainty (docs/methods/uncertainty.md 9.2)', () => {
   it('NCP sigma from the O2 difference alone: rho h (U/L) sigma_dC', () => {
     const w = win({
       sigmaUMS: 0,
@@ -231,7 +231,7 @@ describe('uncertainty (science.md 9.2)', () => {
       expect(Math.abs(sig.sigmaUmolM2S - brute)).toBeLessThan(0.02 * brute + 1e-6);
       expect(sig.sigmaUmolM2S).toBeGreaterThan(0);
     }
-    // Shared constants largely cancel in the station difference (science.md 9.1): pK1 +-0.0075 moves NEC far
+    // Shared constants largely cancel in the station difference (docs/methods/uncertainty.md 9.1): pK1 +-0.0075 moves NEC far
     // less than a 2 uatm pCO2 inter-calibration error does.
     const k1 = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { dpK1: 0.0075 }).sigmaUmolM2S;
     const pB = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { downPco2Uatm: 2 }).sigmaUmolM2S;

@@ -1,4 +1,4 @@
-// Transect fluxes per window (science.md 6.1-6.6, 9.2; contract.md `flux`): NCP from the O2 budget, NEC from the
+// Transect fluxes per window (docs/methods/metabolism.md 6.1-6.6, 9.2; contract.md `flux`): NCP from the O2 budget, NEC from the
 // alkalinity budget (`ta`) or the pCO2 + O2 inverse (`inverse`), validity and first-order uncertainties.
 // Method: Eulerian control volume of Falter et al. (2008, J. Geophys. Res.), alkalinity anomaly of Smith (1973)
 // and Kinsey (1978); salinity normalisation of Friis et al. (2003, Geophys. Res. Lett.).
@@ -39,7 +39,7 @@ const worst = (...flags: (QcFlag | undefined)[]): QcFlag => {
   return w;
 };
 
-// Typical accuracies (science.md 9.3) used when a station mean carries no sigma.
+// Typical accuracies (docs/methods/uncertainty.md 9.3) used when a station mean carries no sigma.
 const sigO2 = (s: StationWindowMean) => s.sigmaO2UmolKg ?? 0.02 * s.o2UmolKg;
 const sigPco2 = (s: StationWindowMean, p: number) => s.sigmaPco2Uatm ?? Math.max(2, 0.01 * p);
 const sigDepth = (s: StationWindowMean) => s.sigmaDepthM ?? 0.01; // ~1 hPa barometer + 0.05 % FS logger
@@ -139,7 +139,7 @@ export function computeTransectFlux(
     xco2AirPpm: xco2,
   });
   if (current.metFlag !== undefined) flag = worst(flag, current.metFlag >= 4 ? 3 : current.metFlag);
-  // science.md 1: a defaulted barometer makes the dependent values (here the exchange terms) suspect.
+  // docs/methods/conventions.md: a defaulted barometer makes the dependent values (here the exchange terms) suspect.
   if (current.windMS !== undefined && current.baroHpa === undefined) flag = worst(flag, 3);
 
   // O2 budget -> NCP.
@@ -267,7 +267,7 @@ export function computeTransectFlux(
         flag = worst(flag, 3);
       }
       flag = worst(flag, pco2Flag, up.taFlag);
-      // science.md 6.2: a configured site xCO2 instead of the met sensor's is flagged 2.
+      // docs/methods/metabolism.md 6.2: a configured site xCO2 instead of the met sensor's is flagged 2.
       if (current.xco2AirPpm === undefined && current.windMS !== undefined) flag = worst(flag, 2);
       const r = solveInverseNec(x, {
         bracketMmolM2H: params.necBracketMmolM2H,

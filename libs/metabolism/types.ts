@@ -8,9 +8,9 @@ export type QcFlag = 1 | 2 | 3 | 4 | 9;
 export type TaSource = 'measured' | 'sample' | 'salinity';
 
 /**
- * Block means of one station over a window (science.md 1, "Time base"). sigma* are the uncertainties that matter
- * for station differences (inter-calibration; default: the typical accuracy of science.md 9.3); sem* are the
- * random standard errors of the window means (they drive the storage sigma, science.md 9.2; default 0).
+ * Block means of one station over a window (docs/methods/conventions.md, "Time base"). sigma* are the uncertainties that matter
+ * for station differences (inter-calibration; default: the typical accuracy of docs/methods/uncertainty.md 9.3); sem* are the
+ * random standard errors of the window means (they drive the storage sigma, docs/methods/uncertainty.md 9.2; default 0).
  */
 export interface StationWindowMean {
   tempC: number;
@@ -51,7 +51,7 @@ export interface TransectWindow {
   /** Depth-averaged current at the transect's `current` station, earth frame [m/s]. */
   eastMS: number;
   northMS: number;
-  /** sigma of the along-transect velocity [m/s]; default from science.md 9.3 (see defaultCurrentSigmaMS). */
+  /** sigma of the along-transect velocity [m/s]; default from docs/methods/uncertainty.md 9.3 (see defaultCurrentSigmaMS). */
   sigmaUMS?: number;
   currentFlag?: QcFlag;
   /** Wind speed [m/s] at windHeightM (default TransectParams.windHeightM). */
@@ -88,9 +88,9 @@ export interface TransectParams {
   /** Fallback upstream TA for the inverse: TA = taS35UmolKg S/35 (contract `alkalinity.ta_s35_umol_kg`). */
   taS35UmolKg: number;
   sigmaLengthM: number;
-  /** sigma of the TA from salinity [umol/kg] (science.md 9.3: site regression residual). */
+  /** sigma of the TA from salinity [umol/kg] (docs/methods/uncertainty.md 9.3: site regression residual). */
   sigmaTaFromSalinityUmolKg: number;
-  /** Relative sigma of the transfer velocity (science.md 9.2). */
+  /** Relative sigma of the transfer velocity (docs/methods/uncertainty.md 9.2). */
   sigmaKRel: number;
   sigmaPq: number;
   /** Transect-mean O2 for the exchange term: exact steady path mean (default) or station mean (air-sea.ts). */
@@ -100,7 +100,7 @@ export interface TransectParams {
   necTolMmolM2H: number;
 }
 
-/** Engineering defaults (science.md 6.5-6.6, 9.2); one place. */
+/** Engineering defaults (docs/methods/metabolism.md 6.5-6.6, 9.2); one place. */
 export const DEFAULT_TRANSECT_PARAMS: Readonly<Omit<TransectParams, 'lengthM' | 'bearingDeg'>> =
   Object.freeze({
     pq: 1.0,
@@ -197,7 +197,7 @@ export interface FluxResult {
   necMmolM2H: number | null;
   sigmaNecMmolM2H: number | null;
   necMethod: 'ta' | 'inverse' | null;
-  /** Organic carbon production from DIC when DIC and TA are measured at both stations (science.md 6.3). */
+  /** Organic carbon production from DIC when DIC and TA are measured at both stations (docs/methods/metabolism.md 6.3). */
   ncpCMmolM2H: number | null;
   uMS: number;
   sigmaUMS: number;

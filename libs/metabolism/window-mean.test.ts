@@ -2,7 +2,7 @@ import { describe, it, expect } from 'vitest';
 import { angleOffBearingDeg, alongBearingMS, defaultCurrentSigmaMS } from './geometry.js';
 import { windowEndingAt, windowMean, windowSchedule } from './window-mean.js';
 
-describe('window means (science.md 1, time base)', () => {
+describe('window means (docs/methods/conventions.md, time base)', () => {
   const t0 = Date.UTC(2026, 0, 1, 12, 0, 0);
   const times = Array.from({ length: 10 }, (_, i) => t0 + i * 180_000); // 3 min interval, 30 min window
   it('uses flags 1-3 and inherits the worst included flag', () => {
@@ -34,7 +34,7 @@ describe('window means (science.md 1, time base)', () => {
   });
 });
 
-describe('transect geometry (science.md 5.6)', () => {
+describe('transect geometry (docs/methods/currents.md 5.6)', () => {
   it('projects the current on the bearing', () => {
     expect(alongBearingMS(-0.1, 0, 270)).toBeCloseTo(0.1, 12);
     expect(alongBearingMS(0, 0.1, 270)).toBeCloseTo(0, 12);
@@ -42,7 +42,7 @@ describe('transect geometry (science.md 5.6)', () => {
     expect(angleOffBearingDeg(0.1 * Math.sin(d), 0.1 * Math.cos(d), 270)).toBeCloseTo(30, 10);
     expect(angleOffBearingDeg(0.1, 0, 270)).toBeCloseTo(180, 10);
   });
-  it('default current sigma is at least 0.5 cm/s (science.md 9.3)', () => {
+  it('default current sigma is at least 0.5 cm/s (docs/methods/uncertainty.md 9.3)', () => {
     expect(defaultCurrentSigmaMS(0)).toBeCloseTo(0.005, 12);
     expect(defaultCurrentSigmaMS(0.1)).toBeGreaterThan(0.005);
   });

@@ -100,7 +100,7 @@ const worst = (...f: number[]): number => f.reduce((a, b) => (b > a ? b : a), 1)
 // ---------------------------------------------------------------------------------------------- oxygen
 
 /**
- * O2 in umol/kg, % saturation and mg/L (science.md 2.3-2.4). A concentration from an optode set to another
+ * O2 in umol/kg, % saturation and mg/L (docs/methods/seawater.md 2.3-2.4). A concentration from an optode set to another
  * salinity (`sal_setting`, message or sensor config) is re-compensated to the CTD salinity first.
  */
 export function deriveOxygen(
@@ -122,7 +122,7 @@ export function deriveOxygen(
     o2 = o2UmolKgFromUmolL(recomp, S, t);
     source = m.o2_umol_l !== undefined ? 'umol_l' : 'mg_l';
   } else {
-    // An instrument's % saturation refers to 1 atm unless its set-up says otherwise (science.md 2.3).
+    // An instrument's % saturation refers to 1 atm unless its set-up says otherwise (docs/methods/seawater.md 2.3).
     o2 = o2UmolKgFromSatPct(m.o2_sat_pct as number, S, t, 1);
     source = 'sat_pct';
   }
@@ -171,7 +171,7 @@ export function taFor(
   return { ta: (a.ta_s35_umol_kg * salinity) / 35, source: 'salinity' };
 }
 
-/** The carbonate system at a pCO2 reading, reported at the CTD temperature (science.md 3.6, 3.8). */
+/** The carbonate system at a pCO2 reading, reported at the CTD temperature (docs/methods/carbonate.md 3.6, 3.8). */
 export function deriveCarbonate(
   ctx: DeriveContext,
   m: Pco2Message,

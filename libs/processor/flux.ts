@@ -1,4 +1,4 @@
-// Transect fluxes on the event-time cadence (science.md 1 "Time base", 6): station block means over the
+// Transect fluxes on the event-time cadence (docs/methods/conventions.md "Time base", 6): station block means over the
 // window of length W ending at each cadence tick, the previous window W earlier for storage, and the
 // metabolism library's budget. A window is computed once, when the watermark passes its end.
 import type { FluxRecord, ReefdConfig, TransectConfig } from '../contract/index.js';
@@ -86,7 +86,7 @@ function stationMean(
     m.semPco2Uatm = pco2.sem;
   }
   // TA with a biological gradient comes only from bottles (or a TA sensor) in the window; TA from salinity
-  // never enters the TA budget (science.md 6.3).
+  // never enters the TA budget (docs/methods/metabolism.md 6.3).
   const ta = get('sampleTa');
   if (ta) {
     m.taUmolKg = ta.mean;

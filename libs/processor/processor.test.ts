@@ -44,7 +44,7 @@ const T0 = Date.UTC(2026, 2, 1, 0, 0, 0);
 const MIN = 60_000;
 
 // The truth of the steady slab: NCP and NEC, an upstream state, and the downstream state they produce
-// over L at the ADCP velocity (the budget C_B - C_A = F L / (rho h U), science.md 6.4, no air-sea term
+// over L at the ADCP velocity (the budget C_B - C_A = F L / (rho h U), docs/methods/metabolism.md 6.4, no air-sea term
 // since the wind is calm).
 const NCP = 40; // mmol O2 m-2 h-1
 const NEC = 8; // mmol CaCO3 m-2 h-1
@@ -111,7 +111,7 @@ describe('per-reading records', () => {
   const ox = records.filter((r) => r.type === 'oxygen');
   const co2 = records.filter((r) => r.type === 'carbonate');
 
-  it('converts umol/L to umol/kg and re-compensates an optode set to S 0 (science.md 2.3-2.4)', () => {
+  it('converts umol/L to umol/kg and re-compensates an optode set to S 0 (docs/methods/seawater.md 2.3-2.4)', () => {
     const crest = ox.find((r) => r.station === 'crest')!;
     const back = ox.find((r) => r.station === 'back')!;
     expect(crest.o2_umol_kg).toBeCloseTo(O2_UP, 9);
@@ -182,7 +182,7 @@ describe('flux windows', () => {
     for (const f of flux) expect(new Date(f.t).getUTCMinutes() % 10).toBe(5);
   });
 
-  it('recovers NCP from the O2 budget within 1 % (steady slab, science.md 6.4)', () => {
+  it('recovers NCP from the O2 budget within 1 % (steady slab, docs/methods/metabolism.md 6.4)', () => {
     for (const f of flux.slice(3))
       expect(Math.abs((f.ncp_mmol_m2_h as number) - NCP) / NCP).toBeLessThan(0.01);
   });

@@ -235,7 +235,7 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
       case 'pco2': {
         const key = `${m.station}/${m.sensor}`;
         const f0 = check(m, 'pco2.pco2_uatm', 'pco2_uatm', m.pco2_uatm, rxMs, out);
-        if (f0 === 4) return; // a failed reading never feeds a derivation (science.md 7.4)
+        if (f0 === 4) return; // a failed reading never feeds a derivation (docs/methods/qc.md 7.4)
         const r = deriveCarbonate(ctx, m, state.sensors[key]?.lastPh);
         if ('skip' in r) return;
         const f = Math.max(f0, r.flag);
@@ -306,7 +306,7 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
         check(m, 'sample.received', undefined, 1, rxMs, out);
         if (m.ta_umol_kg !== undefined) put(m.station, 'sampleTa', m.tMs, m.ta_umol_kg, 1);
         if (m.dic_umol_kg !== undefined) put(m.station, 'sampleDic', m.tMs, m.dic_umol_kg, 1);
-        // A bottle without its own salinity takes the station CTD's at its time (science.md 3.6).
+        // A bottle without its own salinity takes the station CTD's at its time (docs/methods/carbonate.md 3.6).
         const sal = m.sal ?? ctdAt(ctx, m.station, m.tMs)?.sal.value;
         if (sal !== undefined) put(m.station, 'sampleSal', m.tMs, sal, 1);
         return;

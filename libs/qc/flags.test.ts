@@ -1,7 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import { aggregateFlags, derivedFlag, worseFlag } from './index.js';
 
-describe('aggregateFlags (science.md 7.4)', () => {
+describe('aggregateFlags (docs/methods/qc.md 7.4)', () => {
   it('takes the worst evaluated test, ignoring not-evaluated', () => {
     expect(aggregateFlags([1, 2, 3])).toBe(3);
     expect(aggregateFlags([1, 4, 3, 2])).toBe(4);
@@ -14,7 +14,7 @@ describe('aggregateFlags (science.md 7.4)', () => {
   });
 });
 
-describe('derivedFlag (science.md 7.4)', () => {
+describe('derivedFlag (docs/methods/qc.md 7.4)', () => {
   it('is 9 when a required input is 4 or 9, else the worst of 1 < 2 < 3', () => {
     expect(derivedFlag([1, 4])).toBe(9);
     expect(derivedFlag([1, 9])).toBe(9);

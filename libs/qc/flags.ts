@@ -1,6 +1,6 @@
 // U.S. IOOS QARTOD, "Manual for the Use of Real-Time Oceanographic Data Quality Control Flags" (2014-2020 eds.;
 // from memory: verify current version): primary flags 1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing.
-// Aggregation rules are science.md 7.4.
+// Aggregation rules are docs/methods/qc.md 7.4.
 
 /** A QARTOD primary flag. */
 export type QcFlag = 1 | 2 | 3 | 4 | 9;
@@ -12,7 +12,7 @@ export const FLAG_FAIL = 4 as const;
 export const FLAG_MISSING = 9 as const;
 
 /**
- * Sample flag from its test flags (science.md 7.4): 9 if any test says missing; else the worst evaluated test
+ * Sample flag from its test flags (docs/methods/qc.md 7.4): 9 if any test says missing; else the worst evaluated test
  * (1 < 3 < 4); 2 when no test was evaluated (empty list or only 2s).
  */
 export function aggregateFlags(flags: readonly QcFlag[]): QcFlag {
@@ -26,7 +26,7 @@ export function aggregateFlags(flags: readonly QcFlag[]): QcFlag {
 }
 
 /**
- * Flag of a derived value from the flags of its required inputs (science.md 7.4): 9 (not computed) if any input
+ * Flag of a derived value from the flags of its required inputs (docs/methods/qc.md 7.4): 9 (not computed) if any input
  * is 4 or 9; otherwise the worst input flag on the order 1 < 2 < 3. Empty input gives 2.
  */
 export function derivedFlag(inputFlags: readonly QcFlag[]): QcFlag {

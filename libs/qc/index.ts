@@ -1,4 +1,4 @@
-// Public API of libs/qc: QARTOD-style real-time QC (science.md 7), pure and incremental.
+// Public API of libs/qc: QARTOD-style real-time QC (docs/methods/qc.md), pure and incremental.
 export {
   aggregateFlags,
   derivedFlag,

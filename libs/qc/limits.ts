@@ -1,4 +1,4 @@
-// Starting QC thresholds for a reef flat: science.md 7.3 (engineering defaults, not published values), in the
+// Starting QC thresholds for a reef flat: docs/methods/qc.md 7.3 (engineering defaults, not published values), in the
 // style of the U.S. IOOS QARTOD manuals (7.1). Tune per site and instrument; every value here can be overridden
 // through createQcState().
 
@@ -18,9 +18,9 @@ export interface SpikeLimits {
 }
 
 export interface RateOfChangeLimits {
-  /** |V_n - V_{n-1}| above nSd x sd gives 3. QARTOD default 3 (science.md 7.2). */
+  /** |V_n - V_{n-1}| above nSd x sd gives 3. QARTOD default 3 (docs/methods/qc.md 7.2). */
   readonly nSd: number;
-  /** Span of the sd, ms (science.md: the previous 25 h). */
+  /** Span of the sd, ms (docs/methods/qc.md 7.2: the previous 25 h). */
   readonly windowMs: number;
   /** Fewest samples in the window before the test is evaluated. */
   readonly minSamples: number;
@@ -50,11 +50,11 @@ export interface AttenuatedLimits {
   readonly minSamples: number;
 }
 
-/** Per-station monthly envelope (science.md 7.2 test 4). */
+/** Per-station monthly envelope (docs/methods/qc.md 7.2 test 4). */
 export interface ClimatologyTable {
   /** 12 entries, January first (UTC month); null = no envelope for that month (test not evaluated). */
   readonly monthly: ReadonlyArray<Bounds | null>;
-  /** Years of data behind the table; below 1 the test is not evaluated (science.md 7.2). */
+  /** Years of data behind the table; below 1 the test is not evaluated (docs/methods/qc.md 7.2). */
   readonly years: number;
 }
 
@@ -86,7 +86,7 @@ const flat = (eps: number, sH: number, fH: number): FlatLineLimits => ({
 const GAP = 30 * 60_000;
 
 /**
- * Defaults keyed by the contract's field names (science.md 7.3). The table leaves spike limits for PAR and wind
+ * Defaults keyed by the contract's field names (docs/methods/qc.md 7.3). The table leaves spike limits for PAR and wind
  * open ("--"), so those tests are off; PAR is exempt from the flat-line test because night gives a legitimate
  * flat zero. Rows not in 7.3 are marked: o2_umol_l and o2_mg_l are the 7.3 umol/kg row converted with
  * rho ~ 1.025 kg/L and 31.9988 g/mol (rounded), battery_v is a plausibility range only.
@@ -161,7 +161,7 @@ export const DEFAULT_QC_LIMITS: Readonly<Record<string, QcLimits>> = Object.free
     flatLine: flat(0.01, 6, 12),
     maxGapMs: 3 * HOUR_MS,
   },
-  // ADCP total tilt acos(cos p cos r), degrees (science.md 5.4: 3 above 10 deg, 4 above 20 deg). Feeding it through
+  // ADCP total tilt acos(cos p cos r), degrees (docs/methods/currents.md 5.4: 3 above 10 deg, 4 above 20 deg). Feeding it through
   // gross range turns a frame that fell over into a `range` fault alert. Compute it with adcpTilt().
   tilt_deg: { sensor: { min: 0, max: 20 }, user: { max: 10 }, maxGapMs: 3 * HOUR_MS },
   // Not in 7.3: supply voltage plausibility only; low-voltage alerts are the alert engine's `battery` rule.

@@ -11,7 +11,7 @@ import {
 } from './index.js';
 
 describe('multi-variate checks', () => {
-  it('ADCP tilt: acos(cos p cos r), 3 above 10 deg, 4 above 20 deg (science.md 5.4)', () => {
+  it('ADCP tilt: acos(cos p cos r), 3 above 10 deg, 4 above 20 deg (docs/methods/currents.md 5.4)', () => {
     const t = adcpTilt(3, 4);
     expect(t.value).toBeCloseTo(4.998537, 5); // algebra: acos(cos 3 deg cos 4 deg)
     expect(t.flag).toBe(1);
@@ -32,7 +32,7 @@ describe('multi-variate checks', () => {
     expect(pco2LowFault(85).flag).toBe(4);
     expect(pco2LowFault(160).flag).toBe(1);
   });
-  it('agreement between co-located and neighbouring sensors (science.md 7.2 test 9)', () => {
+  it('agreement between co-located and neighbouring sensors (docs/methods/qc.md 7.2 test 9)', () => {
     expect(temperatureAgreement([27.1, 27.3, 27.7])).toEqual({ flag: 3, value: expect.closeTo(0.6, 10) });
     expect(temperatureAgreement([27.1, Number.NaN, 27.4]).flag).toBe(1);
     expect(temperatureAgreement([27.1]).flag).toBe(2);

@@ -1,4 +1,4 @@
-// Multi-variate and cross-sensor checks (science.md 7.2 test 9 and 5.4; QARTOD "multi-variate" and "neighbor"
+// Multi-variate and cross-sensor checks (docs/methods/qc.md 7.2 test 9 and 5.4; QARTOD "multi-variate" and "neighbor"
 // tests). Each takes plain numbers and returns a flag plus the number it judged, so a caller can explain it.
 // Engineering defaults, not published values, unless a source is named.
 
@@ -13,7 +13,7 @@ export interface CheckResult {
 const missing = (...xs: number[]): boolean => xs.some((x) => !Number.isFinite(x));
 
 /**
- * ADCP total tilt acos(cos(pitch) cos(roll)) in degrees (science.md 5.4): above suspectDeg (10) gives 3, above
+ * ADCP total tilt acos(cos(pitch) cos(roll)) in degrees (docs/methods/currents.md 5.4): above suspectDeg (10) gives 3, above
  * failDeg (20) gives 4 - the frame has fallen over or is sinking into the sand. Check: pitch 3, roll 4 deg gives
  * 4.9981 deg (algebra: acos(cos 3 deg x cos 4 deg)).
  */
@@ -47,7 +47,7 @@ export function o2SaturationFault(o2SatPct: number, maxPct = 200): CheckResult {
 
 /**
  * pCO2 below minUatm (default 100 uatm) in reef water is taken as a sensor fault (zero drift, a dry membrane): 4.
- * Stricter than the suspect user range of science.md 7.3 (< 100 gives 3) on purpose: the user range judges the
+ * Stricter than the suspect user range of docs/methods/qc.md 7.3 (< 100 gives 3) on purpose: the user range judges the
  * value, this check judges the sensor, and the alert engine raises a fault on it. Engineering default.
  */
 export function pco2LowFault(pco2Uatm: number, minUatm = 100): CheckResult {
@@ -57,7 +57,7 @@ export function pco2LowFault(pco2Uatm: number, minUatm = 100): CheckResult {
 
 /**
  * Temperatures of co-located sensors (CTD, optode, pCO2; degC) differing by more than maxDiffC (0.5 degC,
- * science.md 7.2) give 3. `value` is the largest pairwise difference. Fewer than two finite values give 2.
+ * docs/methods/qc.md 7.2) give 3. `value` is the largest pairwise difference. Fewer than two finite values give 2.
  */
 export function temperatureAgreement(tempsC: readonly number[], maxDiffC = 0.5): CheckResult {
   const xs = tempsC.filter((x) => Number.isFinite(x));
@@ -66,7 +66,7 @@ export function temperatureAgreement(tempsC: readonly number[], maxDiffC = 0.5):
   return { flag: spread > maxDiffC ? 3 : 1, value: spread };
 }
 
-/** Logger and ADCP depths (m, after offsets) differing by more than maxDiffM (0.05 m, science.md 7.2) give 3. */
+/** Logger and ADCP depths (m, after offsets) differing by more than maxDiffM (0.05 m, docs/methods/qc.md 7.2) give 3. */
 export function depthAgreement(depthAM: number, depthBM: number, maxDiffM = 0.05): CheckResult {
   if (missing(depthAM, depthBM)) return { flag: 2, value: Number.NaN };
   const d = Math.abs(depthAM - depthBM);
@@ -74,7 +74,7 @@ export function depthAgreement(depthAM: number, depthBM: number, maxDiffM = 0.05
 }
 
 /**
- * Neighbour test: a difference between two stations' values larger than nSd (5, science.md 7.2) times the 25-h
+ * Neighbour test: a difference between two stations' values larger than nSd (5, docs/methods/qc.md 7.2) times the 25-h
  * sd of that difference gives 3. `value` is |difference| / sd. Unknown or zero sd gives 2.
  */
 export function neighbourDifference(difference: number, sd25h: number, nSd = 5): CheckResult {

@@ -138,7 +138,7 @@ describe('qcUpdate: rate of change, flat line, attenuated signal, timing', () =>
     expect(qcUpdate(s, T0 + 6 * MIN, 50, T0 + 6 * MIN + 2000).flag).toBe(1);
   });
 
-  it('ADCP tilt through gross range: 3 above 10 deg, 4 above 20 deg (science.md 5.4)', () => {
+  it('ADCP tilt through gross range: 3 above 10 deg, 4 above 20 deg (docs/methods/currents.md 5.4)', () => {
     const s = createQcState('tilt_deg');
     expect(qcUpdate(s, T0, 4.2).flag).toBe(1);
     expect(qcUpdate(s, T0 + MIN, 12).flag).toBe(3);

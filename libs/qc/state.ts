@@ -1,4 +1,4 @@
-// Incremental QC of one variable of one sensor, QARTOD-style tests in the order of science.md 7.2. Bounded
+// Incremental QC of one variable of one sensor, QARTOD-style tests in the order of docs/methods/qc.md 7.2. Bounded
 // memory: the last two samples plus three fixed-size binned windows (binned-stats.ts). Pure: the caller feeds
 // event time and keeps the state.
 

@@ -12,7 +12,7 @@ import {
 
 const TEMP = DEFAULT_QC_LIMITS.temp_c!;
 
-describe('grossRange with the science.md 7.3 temperature row', () => {
+describe('grossRange with the docs/methods/qc.md 7.3 temperature row', () => {
   it('fails outside the sensor range, is suspect outside the user range', () => {
     expect(grossRange(41, TEMP.sensor, TEMP.user)).toBe(4);
     expect(grossRange(-2.5, TEMP.sensor, TEMP.user)).toBe(4);
@@ -71,7 +71,7 @@ describe('rateOfChange, attenuatedSignal, timing', () => {
     expect(rateOfChange(25.0, 25.25, 0.0, 3, 0.1)).toBe(1); // the sd floor applies
     expect(rateOfChange(25.0, 25.25, Number.NaN, 3)).toBe(2);
   });
-  it('attenuated signal on a burst: sd below 0.002 m (science.md 7.3) is suspect', () => {
+  it('attenuated signal on a burst: sd below 0.002 m (docs/methods/qc.md 7.3) is suspect', () => {
     const lim = { windowMs: 1, measure: 'sd' as const, suspectBelow: 0.002, minSamples: 16 };
     const flat = Float64Array.from({ length: 64 }, (_, i) => 2.5 + (i % 2 === 0 ? 0.001 : -0.001)); // sd ~0.001
     const live = Float64Array.from({ length: 64 }, (_, i) => 2.5 + 0.3 * Math.sin(i / 3));
@@ -80,7 +80,7 @@ describe('rateOfChange, attenuatedSignal, timing', () => {
     expect(attenuatedSignal(flat.subarray(0, 8), lim)).toBe(2);
     expect(attenuatedSignal(flat, { ...lim, failBelow: 0.0015 })).toBe(4);
   });
-  it('timing fails a sample stamped over 1 min after its receive time (science.md 7.2)', () => {
+  it('timing fails a sample stamped over 1 min after its receive time (docs/methods/qc.md 7.2)', () => {
     expect(timing(1_000_000 + 61_000, 1_000_000)).toBe(4);
     expect(timing(1_000_000 + 59_000, 1_000_000)).toBe(1);
     expect(timing(1_000_000 - 3_600_000, 1_000_000)).toBe(1); // late delivery is not a clock fault

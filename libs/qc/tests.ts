@@ -1,4 +1,4 @@
-// Single QARTOD-style tests as pure functions (U.S. IOOS QARTOD manuals, science.md 7.1-7.2; from memory: verify
+// Single QARTOD-style tests as pure functions (U.S. IOOS QARTOD manuals, docs/methods/qc.md 7.1-7.2; from memory: verify
 // current versions). Each returns a flag; the incremental state in state.ts strings them together.
 
 import type { QcFlag } from './flags.js';
@@ -53,7 +53,7 @@ export function rateOfChange(prev: number, cur: number, sd: number, nSd: number,
 }
 
 /**
- * Attenuated signal (test 8) on a block of values, e.g. one pressure burst (science.md 7.3: burst sd < 0.002 m).
+ * Attenuated signal (test 8) on a block of values, e.g. one pressure burst (docs/methods/qc.md 7.3: burst sd < 0.002 m).
  * Non-finite values are skipped. 2 when fewer than minSamples finite values.
  */
 export function attenuatedSignal(values: ArrayLike<number>, limits: AttenuatedLimits): QcFlag {
@@ -85,7 +85,7 @@ export function attenuatedFlag(variation: number, limits: AttenuatedLimits): QcF
 }
 
 /**
- * Timing (test 1): a sample stamped more than `maxAheadMs` (default 1 min, science.md 7.2) after its receive time
+ * Timing (test 1): a sample stamped more than `maxAheadMs` (default 1 min, docs/methods/qc.md 7.2) after its receive time
  * means a clock fault: 4; otherwise 1. Without a receive time: 2.
  */
 export function timing(sampleMs: number, receiveMs: number | undefined, maxAheadMs = 60_000): QcFlag {

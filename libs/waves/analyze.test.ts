@@ -18,7 +18,7 @@ function mulberry32(seed: number): () => number {
 }
 
 const RHO = 1023.3; // kg m-3, warm reef water (fictional station)
-const PATM = 10.1325; // dbar, 1 atm (science.md 1)
+const PATM = 10.1325; // dbar, 1 atm (docs/methods/conventions.md)
 const DBAR_PER_M = (RHO * G_STANDARD) / 1e4;
 
 function ok(r: WavesResult): WavesOk {
@@ -157,7 +157,7 @@ describe('analyzeBurst: f^-4 tail above the cutoff (Jones & Monismith 2007)', ()
   });
 });
 
-describe('analyzeBurst: QC outcomes (science.md 4.1, QARTOD flags)', () => {
+describe('analyzeBurst: QC outcomes (docs/methods/waves.md 4.1, QARTOD flags)', () => {
   const good = (): Float64Array => mono(2048, 2, 3, 0.5, 0.4, 8);
 
   it('sensor out of the water: flag 4 REEFD_WAVES_DRY, depth still reported', () => {

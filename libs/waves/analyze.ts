@@ -1,4 +1,4 @@
-// Waves from one bottom-pressure burst (science.md 4.1-4.5): gap filling, head (2.2), detrending, Hampel
+// Waves from one bottom-pressure burst (docs/methods/waves.md 4.1-4.5): gap filling, head (2.2), detrending, Hampel
 // despiking, Welch spectrum, linear pressure-response correction up to a cutoff, spectral bulk statistics and
 // zero-crossing statistics of the reconstructed surface, each with its QARTOD flag.
 import { cutoffFrequency, fitF4Tail, spectralStats } from './bulk.js';
@@ -9,7 +9,7 @@ import type { BurstInput, QartodFlag, WaveOptions, WavesErrorCode, WavesFail, Wa
 import { chooseSegmentLength, welchDof, welchInto } from './welch.js';
 import { makeReconWork, reconstructSurface, zeroCrossingStats, type ReconWork } from './zerocross.js';
 
-/** dbar, one standard atmosphere (1 atm = 10.1325 dbar, science.md 1): the default p_atm. */
+/** dbar, one standard atmosphere (1 atm = 10.1325 dbar, docs/methods/conventions.md): the default p_atm. */
 export const PATM_STANDARD_DBAR = 10.1325;
 
 const DEFAULTS = {

@@ -1,4 +1,4 @@
-// Pressure-response cutoff and spectral bulk statistics (science.md 4.3-4.4). Names after IAHR (1989),
+// Pressure-response cutoff and spectral bulk statistics (docs/methods/waves.md 4.3-4.4). Names after IAHR (1989),
 // J. Waterw. Port Coastal Ocean Eng. 115: Hm0 = 4 sqrt(m0), Tm01 = m0/m1, Tm02 = sqrt(m0/m2),
 // Hrms = sqrt(8 m0) (Rayleigh), Tp with parabolic peak refinement; sampling error after
 // Satterthwaite (1946), Biometrics Bull. 2, 110-114.

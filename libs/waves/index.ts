@@ -1,4 +1,4 @@
-// Public API of the waves library: bottom-pressure wave statistics (science.md 4) and PUV direction (4.7).
+// Public API of the waves library: bottom-pressure wave statistics (docs/methods/waves.md) and PUV direction (4.7).
 export { analyzeBurst, PATM_STANDARD_DBAR } from './analyze.js';
 export { solveDispersion, pressureResponse, guoGuess, G_STANDARD } from './dispersion.js';
 export {

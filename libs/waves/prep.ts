@@ -1,4 +1,4 @@
-// Burst preparation (science.md 4.1): gap filling, pressure to head (2.2), least-squares polynomial
+// Burst preparation (docs/methods/waves.md 4.1): gap filling, pressure to head (2.2), least-squares polynomial
 // detrending, and despiking with the Hampel (1974, J. Am. Stat. Assoc.) identifier, sigma_r = 1.4826 MAD.
 
 /**

@@ -1,5 +1,5 @@
 // PUV wave direction and directional spread from a bottom pressure burst and synchronous near-bed horizontal
-// velocities (science.md 4.7): first-order Fourier coefficients of the directional distribution
+// velocities (docs/methods/waves.md 4.7): first-order Fourier coefficients of the directional distribution
 // (Longuet-Higgins, Cartwright & Smith 1963), mean direction and spread sigma1 after Kuik, van Vledder &
 // Holthuijsen (1988), J. Phys. Oceanogr. 18, 1020-1034, with the linear-theory energy ratio r as QC.
 import { cutoffFrequency } from './bulk.js';

@@ -1,4 +1,4 @@
-// Public types of the waves library (science.md 4; contract.md section 4, record `waves`).
+// Public types of the waves library (docs/methods/waves.md; contract.md section 4, record `waves`).
 
 /** QARTOD flags: 1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing. */
 export type QartodFlag = 1 | 2 | 3 | 4 | 9;
@@ -21,7 +21,7 @@ export interface BurstInput {
   readonly gMS2?: number;
 }
 
-/** Tunables; every default is an engineering default of science.md 4. */
+/** Tunables; every default is an engineering default of docs/methods/waves.md. */
 export interface WaveOptions {
   /** Welch segment length (power of two); default from the burst length (4.2) */
   readonly nperseg?: number;

@@ -1,4 +1,4 @@
-// Uncertainty of the mean water depth from a bottom pressure sensor (science.md 9.2), by first-order
+// Uncertainty of the mean water depth from a bottom pressure sensor (docs/methods/uncertainty.md 9.2), by first-order
 // propagation of h = z_s + 1e4 (p - p_atm)/(rho g): sigma_h^2 = (1e4/(rho g))^2 (sigma_p^2 + sigma_patm^2)
 // + sigma_zs^2. The sampling error of Hm0 is returned by analyzeBurst itself (hm0SigmaM, 4.4).
 import { G_STANDARD } from './dispersion.js';
@@ -17,7 +17,7 @@ export interface DepthSigmaInput {
 /**
  * Standard uncertainty of depth_m [m]. The density error is neglected (< 5e-4 relative for 0.5 kg m-3).
  * Check value: sigma_p = sigma_patm = 0.01 dbar, sigma_zs = 0.01 m, rho = 1025, g = 9.80665 gives
- * 0.017261 m (algebra; "a 1 hPa barometer error is about 1 cm of depth", science.md 2.2).
+ * 0.017261 m (algebra; "a 1 hPa barometer error is about 1 cm of depth", docs/methods/seawater.md 2.2).
  */
 export function depthSigmaM(i: DepthSigmaInput): number {
   const c = 1e4 / (i.rhoKgM3 * (i.gMS2 ?? G_STANDARD));

@@ -14,7 +14,7 @@ function lcgNoise(n: number, seed: number): Float64Array {
   return x;
 }
 
-describe('segment length rule (science.md 4.2)', () => {
+describe('segment length rule (docs/methods/waves.md 4.2)', () => {
   it('Ns = 2^round(log2(256 fs)), halved until K >= 3, min 8', () => {
     expect(chooseSegmentLength(2048, 2)).toBe(512); // K = 7
     expect(chooseSegmentLength(2048, 4)).toBe(1024); // K = 3

@@ -1,5 +1,5 @@
 // Welch (1967), IEEE Trans. Audio Electroacoust. 15, 70-73: averaged modified periodograms, periodic Hann
-// window, 50 % overlap, segment mean removed, one-sided density scaling (science.md 4.2). Same definition as
+// window, 50 % overlap, segment mean removed, one-sided density scaling (docs/methods/waves.md 4.2). Same definition as
 // scipy.signal.welch(window='hann', noverlap=nperseg/2, detrend='constant', scaling='density'), which the
 // reference vectors check to 1e-9 relative. DOF nu = 36 K^2/(19 K - 1) (Welch 1967 with the 50 % Hann
 // overlap correlation 1/6, Harris 1978, Proc. IEEE 66, 51-83).
@@ -43,7 +43,7 @@ export function hannWindow(ns: number): { w: Float64Array; sumSq: number } {
 }
 
 /**
- * Segment length for a burst of n samples at fsHz (science.md 4.2): Ns = 2^round(log2(256 s x fs)), halved
+ * Segment length for a burst of n samples at fsHz (docs/methods/waves.md 4.2): Ns = 2^round(log2(256 s x fs)), halved
  * until K = floor((N - Ns)/(Ns/2)) + 1 >= 3, never below 8. 256 s gives df ~ 0.004 Hz, fine enough to keep
  * the 0.005-0.04 Hz infragravity band; K >= 3 keeps nu >= 5.8.
  */

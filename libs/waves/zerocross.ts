@@ -1,4 +1,4 @@
-// Linear surface reconstruction from bottom pressure and zero-upcrossing wave statistics (science.md 4.5):
+// Linear surface reconstruction from bottom pressure and zero-upcrossing wave statistics (docs/methods/waves.md 4.5):
 // eta = IDFT[ DFT(head)/Kp(f) ] inside the analysis band, 0 outside (linear transfer function, e.g.
 // Bishop & Donelan 1987, Coastal Eng. 11; Jones & Monismith 2007, Limnol. Oceanogr. Methods 5). Zero-upcrossing
 // heights and periods after IAHR (1989): H1/3, H1/10, Hmax, Tz.

@@ -2,7 +2,7 @@
 // InfluxDB 2.x/3.x and VictoriaMetrics) or the v1 API (/write?db= of InfluxDB 1.x).
 //
 // Why our own HTTP writer and not @influxdata/influxdb-client's WriteApi: the client's close()/flush()
-// resolve before batches it already sent are acknowledged (../shared/measured.md), it buffers and retries on
+// resolve before batches it already sent are acknowledged (measured on this class of machine, docs/performance.md), it buffers and retries on
 // its own, which would fight the disk spool, and it only speaks v2. One small writer gives both APIs, an
 // exact "this batch is in the database" moment, and order (one batch in flight, spooled-sink.ts).
 //

@@ -82,7 +82,7 @@ describe('Bluestein N-point DFT vs numpy.fft.fft', () => {
   });
 });
 
-describe('analyzeBurst vs an independent numpy/scipy implementation of science.md 4.1-4.5', () => {
+describe('analyzeBurst vs an independent numpy/scipy implementation of docs/methods/waves.md 4.1-4.5', () => {
   for (const c of v.pipeline) {
     it(`${c.name}: every statistic to 1e-9 relative (IG height to 1e-9 of Hm0)`, () => {
       const r = analyzeBurst({

@@ -63,7 +63,7 @@ describe('waves against the truth (issue 4)', () => {
     console.log(`demo vs truth: Hm0 median error ${(100 * median(e)).toFixed(1)} % over ${e.length} bursts`);
     expect(median(e)).toBeLessThan(0.03);
   });
-  it('Hm0 within 10 % in the lagoon, whose short wind sea loses its tail above the cutoff (science.md 4.3)', () => {
+  it('Hm0 within 10 % in the lagoon, whose short wind sea loses its tail above the cutoff (docs/methods/waves.md 4.3)', () => {
     expect(median(err('hm0_m', (s) => s === 'lagoon'))).toBeLessThan(0.1);
   });
   it('Tp within 5 % and the mean depth within 1 % (median)', () => {

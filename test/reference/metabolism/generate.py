@@ -3,7 +3,7 @@
 Usage: python generate.py OUT.json
 
 For known NCP and NEC (mmol m-2 h-1), PQ, upstream state (t, S, TA, pCO2, O2), U, h and L, the downstream
-state follows the steady control-volume budget (science.md 6.4, no air-sea exchange):
+state follows the steady control-volume budget (docs/methods/metabolism.md 6.4, no air-sea exchange):
   X_B = X_A + F_X tau / (rho h),  tau = L/U,
   F_O2 = NCP, F_TA = -2 NEC, F_DIC = -(NCP/PQ + NEC)   (umol m-2 s-1 = mmol m-2 h-1 / 3.6),
 with rho from TEOS-10 (gsw 3.6, rho(SA, CT, 0); the library itself uses EOS-80, which differs by < 1e-4

@@ -1,4 +1,4 @@
-"""Reference vectors for libs/waves (science.md 4), from scipy/numpy as outside references.
+"""Reference vectors for libs/waves (docs/methods/waves.md), from scipy/numpy as outside references.
 
 Usage: python generate.py OUT.json
 
@@ -10,7 +10,7 @@ Writes:
 - dispersion: kh solving omega^2 h/g = kh tanh(kh) by scipy.optimize.brentq (xtol 1e-15);
 - dft: numpy.fft.fft of a burst of non-power-of-two length (for the Bluestein transform);
 - pipeline: two synthetic pressure bursts and their wave statistics from an independent numpy/scipy
-  implementation of science.md 4.1-4.5 (scipy.signal.detrend and welch, brentq roots, numpy.fft.rfft/irfft).
+  implementation of docs/methods/waves.md 4.1-4.5 (scipy.signal.detrend and welch, brentq roots, numpy.fft.rfft/irfft).
 Outputs are rounded to 13 significant digits so that last-ulp differences between library builds do not
 show up as drift; the tests compare at 1e-9 relative or looser. Tested with scipy 1.17.1 and numpy 2.4.6.
 """
@@ -71,7 +71,7 @@ def wavenumber(omega, h):
 
 
 def pipeline_case(name, seed, n, fs, depth, zs, rho, patm, hm0, tp):
-    """An independent numpy/scipy implementation of science.md 4.1-4.5 on one synthetic burst."""
+    """An independent numpy/scipy implementation of docs/methods/waves.md 4.1-4.5 on one synthetic burst."""
     rng = Lcg(seed)
     df_n = fs / n
     fp = 1.0 / tp
