@@ -143,6 +143,11 @@ export const alertsConfigSchema = z
       })
       .prefault({}),
     rules: z.record(id, userRule).default({}),
+    /**
+     * Wall-clock minutes without any accepted message from the site before the live daemon raises
+     * `site_silent` (never in replay: it is the only rule on the wall clock).
+     */
+    silence_min: z.number().finite().positive().max(10_080).default(15),
   })
   .superRefine((c, ctx) => {
     for (const k of Object.keys(c.rules)) {

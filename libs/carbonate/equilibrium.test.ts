@@ -39,7 +39,9 @@ describe('equilibrium constants at S 35, t 25 degC (handbook check values)', () 
     expect(equilibriumConstants(35, 36, 0).rangeMask).not.toBe(0);
   });
   it('rejects an unknown option name with the valid list', () => {
-    expect(() => equilibriumConstants(35, 25, 0, { k1k2: 'nonsense' as 'lueker2000' })).toThrow(/lueker2000/);
+    expect(() => equilibriumConstants(35, 25, 0, { carbonicConstants: 'nonsense' as 'lueker2000' })).toThrow(
+      /lueker2000/,
+    );
   });
   it('pressure raises K1 (dV < 0): at 1000 dbar, 25 degC, ln(K1_P/K1_0) = 0.0899 on the SWS scale (evaluated from science spec 3.2)', () => {
     const p = equilibriumConstants(35, 25, 1000);

@@ -90,15 +90,15 @@ export interface EquilibriumConstants extends FitTerms {
 
 /** Fills in defaults and rejects unknown names with a message listing the valid ones. */
 export function resolveCarbonateOptions(options?: CarbonateOptions): ResolvedCarbonateOptions {
-  const k1k2 = options?.k1k2 ?? DEFAULT_CARBONATE_OPTIONS.k1k2;
+  const carbonicConstants = options?.carbonicConstants ?? DEFAULT_CARBONATE_OPTIONS.carbonicConstants;
   const boron = options?.boron ?? DEFAULT_CARBONATE_OPTIONS.boron;
   const kw = options?.kw ?? DEFAULT_CARBONATE_OPTIONS.kw;
   const fugacity = options?.fugacity ?? DEFAULT_CARBONATE_OPTIONS.fugacity;
-  check('k1k2', k1k2, CARBONATE_OPTION_NAMES.k1k2);
+  check('carbonicConstants', carbonicConstants, CARBONATE_OPTION_NAMES.carbonicConstants);
   check('boron', boron, CARBONATE_OPTION_NAMES.boron);
   check('kw', kw, CARBONATE_OPTION_NAMES.kw);
   check('fugacity', fugacity, CARBONATE_OPTION_NAMES.fugacity);
-  return { k1k2, boron, kw, fugacity };
+  return { carbonicConstants, boron, kw, fugacity };
 }
 
 function check(key: string, value: string, valid: readonly string[]): void {
@@ -206,7 +206,7 @@ export function equilibriumConstantsInto(
   // Seawater-scale values at 1 atm.
   let k1Sws: number;
   let k2Sws: number;
-  if (options.k1k2 === 'dickson-millero1987') {
+  if (options.carbonicConstants === 'dickson-millero1987') {
     k1Sws = k1DicksonMillero1987Sws(out);
     k2Sws = k2DicksonMillero1987Sws(out);
   } else {
@@ -248,7 +248,7 @@ export function equilibriumConstantsInto(
   // Published ranges (FIT_RANGES), inlined: string-keyed lookups cost more than the fits on this path.
   let mask = 0;
   if (tempC < -1 || tempC > 40 || s > 40) mask |= RANGE_BITS.k0;
-  if (options.k1k2 === 'lueker2000') {
+  if (options.carbonicConstants === 'lueker2000') {
     if (tempC < 2 || tempC > 35 || s < 19 || s > 43) mask |= RANGE_BITS.k1k2;
   } else if (tempC < 2 || tempC > 35 || s < 20 || s > 40) mask |= RANGE_BITS.k1k2;
   if (tempC < 0 || tempC > 45 || s < 5 || s > 45) mask |= RANGE_BITS.kb | RANGE_BITS.ks;
@@ -276,7 +276,7 @@ export function rangeNotes(
     }
   };
   add(RANGE_BITS.k0, 'k0');
-  add(RANGE_BITS.k1k2, options.k1k2);
+  add(RANGE_BITS.k1k2, options.carbonicConstants);
   add(RANGE_BITS.kb, 'kb');
   add(RANGE_BITS.kw, 'kw');
   add(RANGE_BITS.ks, 'ks');

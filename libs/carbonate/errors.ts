@@ -13,5 +13,5 @@ export const CARBONATE_ERRORS: Readonly<Record<CarbonateErrorCode | 'REEFD_CARBO
   REEFD_CARBONATE_NO_CONVERGENCE:
     'Reserved: the root finder did not converge in 100 steps. The bracketed Newton cannot fail this way on a sign change, so seeing it is a bug; report the inputs.',
   REEFD_CARBONATE_BAD_OPTION:
-    'An option name (k1k2, boron, kw, fugacity) is not one of CARBONATE_OPTION_NAMES. Thrown as a RangeError by equilibriumConstants; solveCarbonate returns it as REEFD_CARBONATE_BAD_INPUT.',
+    'An option name (carbonicConstants, boron, kw, fugacity) is not one of CARBONATE_OPTION_NAMES. Thrown as a RangeError by equilibriumConstants; solveCarbonate returns it as REEFD_CARBONATE_BAD_INPUT.',
 };

@@ -12,7 +12,7 @@ export type {
   CarbonateUncertaintyResult,
   FugacityOption,
   ConstantSigmas,
-  K1K2Option,
+  CarbonicConstantsOption,
   KwOption,
   ResolvedCarbonateOptions,
   UncertainOutput,

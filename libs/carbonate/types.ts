@@ -5,7 +5,7 @@
 /** Valid option values, one list per choice; the first entry of each list is the default. */
 export const CARBONATE_OPTION_NAMES = {
   /** K1, K2 of carbonic acid: Lueker et al. (2000) total scale; Dickson & Millero (1987) refit of Mehrbach. */
-  k1k2: ['lueker2000', 'dickson-millero1987'],
+  carbonicConstants: ['lueker2000', 'dickson-millero1987'],
   /** Total boron to salinity ratio: Lee et al. (2010); Uppstrom (1974). */
   boron: ['lee2010', 'uppstrom1974'],
   /**
@@ -21,13 +21,13 @@ export const CARBONATE_OPTION_NAMES = {
   fugacity: ['weiss1974', 'weiss1974-dilute'],
 } as const;
 
-export type K1K2Option = (typeof CARBONATE_OPTION_NAMES.k1k2)[number];
+export type CarbonicConstantsOption = (typeof CARBONATE_OPTION_NAMES.carbonicConstants)[number];
 export type BoronOption = (typeof CARBONATE_OPTION_NAMES.boron)[number];
 export type KwOption = (typeof CARBONATE_OPTION_NAMES.kw)[number];
 export type FugacityOption = (typeof CARBONATE_OPTION_NAMES.fugacity)[number];
 
 export interface CarbonateOptions {
-  k1k2?: K1K2Option;
+  carbonicConstants?: CarbonicConstantsOption;
   boron?: BoronOption;
   kw?: KwOption;
   fugacity?: FugacityOption;
@@ -35,14 +35,14 @@ export interface CarbonateOptions {
 
 /** Options with every choice made (defaults filled in). */
 export interface ResolvedCarbonateOptions {
-  readonly k1k2: K1K2Option;
+  readonly carbonicConstants: CarbonicConstantsOption;
   readonly boron: BoronOption;
   readonly kw: KwOption;
   readonly fugacity: FugacityOption;
 }
 
 export const DEFAULT_CARBONATE_OPTIONS: ResolvedCarbonateOptions = Object.freeze({
-  k1k2: 'lueker2000',
+  carbonicConstants: 'lueker2000',
   boron: 'lee2010',
   kw: 'millero1995',
   fugacity: 'weiss1974',

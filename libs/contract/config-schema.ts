@@ -117,12 +117,33 @@ const processingSchema = z
   })
   .prefault({});
 
+/**
+ * Names of the published constant sets a site may choose (the carbonate library's option values; a test in
+ * libs/carbonate keeps the two lists equal). First entry = default.
+ */
+export const CARBONIC_CONSTANT_SETS = ['lueker2000', 'dickson-millero1987'] as const;
+export const BORON_RATIOS = ['lee2010', 'uppstrom1974'] as const;
+
 const carbonateOptionsSchema = z
   .strictObject({
-    k1k2: z.string().default('lueker2000'),
-    boron: z.string().default('lee2010'),
+    /** K1 and K2 of carbonic acid: Lueker et al. (2000) or Dickson & Millero (1987). */
+    carbonic_constants: z.enum(CARBONIC_CONSTANT_SETS).default('lueker2000'),
+    /** Total boron to salinity ratio: Lee et al. (2010) or Uppstrom (1974). */
+    boron: z.enum(BORON_RATIOS).default('lee2010'),
+    /** The key's old name: refused with a message naming the new one. */
+    k1k2: z.never({ error: 'is renamed carbonate.carbonic_constants (same values)' }).optional(),
   })
   .prefault({});
+
+/** True for a time zone name the runtime knows (IANA, e.g. Pacific/Tahiti), checked without any clock. */
+export function isTimeZone(name: string): boolean {
+  try {
+    new Intl.DateTimeFormat('en-US', { timeZone: name });
+    return true;
+  } catch {
+    return false;
+  }
+}
 
 const tlsSchema = z.strictObject({
   ca_file: z.string().optional(),
@@ -220,6 +241,15 @@ export const configSchema = z
       .default('reef'),
     reef_axis_deg: bearing,
     latitude_deg: z.number().min(-90).max(90).optional(),
+    /** IANA time zone of the site: local days of the daily records, the dashboard's clock. */
+    timezone: z
+      .string()
+      .refine(isTimeZone, { error: 'is not an IANA time zone name (for example Pacific/Tahiti or UTC)' })
+      .default('UTC'),
+    /** YAML list of sensor corrections, relative to the configuration file (docs/contract-v1.md). */
+    calibration_file: z.string().min(1).optional(),
+    /** YAML list of field events (cleaning, swaps, exclusions), relative to the configuration file. */
+    logbook_file: z.string().min(1).optional(),
     stations: z.record(id, stationSchema),
     alkalinity: z
       .strictObject({

@@ -3,6 +3,7 @@ export * from './ids.js';
 export * from './messages.js';
 export * from './archive.js';
 export * from './records.js';
+export * from './record-types.js';
 export * from './config-schema.js';
 export * from './config-parse.js';
 export * from './errors.js';

@@ -118,6 +118,8 @@ export const sampleSchema = z.object({
   ta_umol_kg: num(0, 5000).optional(),
   dic_umol_kg: num(0, 5000).optional(),
   ph_total: num(5, 10).optional(),
+  /** Reference dissolved oxygen of the bottle (Winkler or another lab method), umol/kg. */
+  o2_umol_kg: num(0, 1000).optional(),
   sal: salinity.optional(),
   temp_c: tempC.optional(),
 });
@@ -227,7 +229,8 @@ function crossCheck(kind: Kind, m: Record<string, unknown>): { code: string; pat
     kind === 'sample' &&
     m.ta_umol_kg === undefined &&
     m.dic_umol_kg === undefined &&
-    m.ph_total === undefined
+    m.ph_total === undefined &&
+    m.o2_umol_kg === undefined
   ) {
     return { code: 'missing_field', path: 'ta_umol_kg' };
   }

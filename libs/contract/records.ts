@@ -3,10 +3,27 @@
 import { z } from 'zod';
 
 const iso = z.string().max(40);
+
+/**
+ * Faults an `alert` record may name: the contract's five, `silent` (the live daemon's wall-clock dead-man,
+ * rule `site_silent`), and the project's own additions.
+ */
+export const ALERT_FAULTS = ['stale', 'flatline', 'range', 'spike', 'battery', 'silent'] as const;
+export type AlertFault = (typeof ALERT_FAULTS)[number];
 const n = z.number();
 const nn = z.number().nullable(); // a value that may be missing (not evaluated, failed QC)
 
-const base = { site: z.string(), t: iso };
+/**
+ * Every record may say it was built from calibrated values (`calibrated`, docs/contract-v1.md) and which
+ * revision it is (`revision`: 0 or absent for the first; a later revision replaces the record with the same
+ * identity, see record-types.ts `recordKey`, in every output).
+ */
+const base = {
+  site: z.string(),
+  t: iso,
+  calibrated: z.boolean().optional(),
+  revision: z.int().min(0).optional(),
+};
 const atStation = { ...base, station: z.string() };
 
 export const wavesRecordSchema = z.looseObject({
@@ -68,6 +85,54 @@ export const fluxRecordSchema = z.looseObject({
   depth_m: nn,
   residence_min: nn,
   valid: z.boolean(),
+  /** |NCP| and |NEC| above twice their sigma (false when a value or its sigma is missing). */
+  ncp_significant: z.boolean(),
+  nec_significant: z.boolean(),
+  /** Comma-separated causes when `valid` is false, e.g. `input_fault:back/co2/flatline`. */
+  invalid_reasons: z.string().optional(),
+});
+
+export const lightRecordSchema = z.looseObject({
+  type: z.literal('light'),
+  ...atStation,
+  par_umol_m2_s: nn,
+  sensor: z.string(),
+});
+
+export const dailyRecordSchema = z.looseObject({
+  type: z.literal('daily'),
+  ...base,
+  transect: z.string(),
+  /** Local date of the site's time zone, YYYY-MM-DD. */
+  day: z.string().regex(/^\d{4}-\d{2}-\d{2}$/),
+  ncp_mmol_m2_d: nn,
+  ncp_mmol_m2_d_sigma: nn,
+  r_mmol_m2_d: nn,
+  r_mmol_m2_d_sigma: nn,
+  gpp_mmol_m2_d: nn,
+  gpp_mmol_m2_d_sigma: nn,
+  nec_mmol_m2_d: nn,
+  nec_mmol_m2_d_sigma: nn,
+  nec_day_mmol_m2_d: nn,
+  nec_day_mmol_m2_d_sigma: nn,
+  nec_night_mmol_m2_d: nn,
+  nec_night_mmol_m2_d_sigma: nn,
+  coverage: n,
+  gap_filled: n,
+  pmax_mmol_m2_h: nn,
+  ik_umol_m2_s: nn,
+  valid: z.boolean(),
+});
+
+export const forecastRecordSchema = z.looseObject({
+  type: z.literal('forecast'),
+  ...atStation,
+  o2_min_mg_l: nn,
+  o2_min_lo_mg_l: nn,
+  o2_min_hi_mg_l: nn,
+  /** ISO time of the expected minimum. */
+  t_min: iso.nullable(),
+  horizon_h: n,
 });
 
 export const alertRecordSchema = z.looseObject({
@@ -80,7 +145,7 @@ export const alertRecordSchema = z.looseObject({
   value: nn,
   limit: nn,
   metric: z.string().optional(),
-  fault: z.enum(['stale', 'flatline', 'range', 'spike', 'battery']).optional(),
+  fault: z.enum(ALERT_FAULTS).optional(),
   sensor: z.string().optional(),
 });
 
@@ -91,6 +156,9 @@ export const derivedRecordSchema = z.discriminatedUnion('type', [
   oxygenRecordSchema,
   fluxRecordSchema,
   alertRecordSchema,
+  lightRecordSchema,
+  dailyRecordSchema,
+  forecastRecordSchema,
 ]);
 
 export type WavesRecord = z.infer<typeof wavesRecordSchema>;
@@ -99,19 +167,8 @@ export type CarbonateRecord = z.infer<typeof carbonateRecordSchema>;
 export type OxygenRecord = z.infer<typeof oxygenRecordSchema>;
 export type FluxRecord = z.infer<typeof fluxRecordSchema>;
 export type AlertRecord = z.infer<typeof alertRecordSchema>;
+export type LightRecord = z.infer<typeof lightRecordSchema>;
+export type DailyRecord = z.infer<typeof dailyRecordSchema>;
+export type ForecastRecord = z.infer<typeof forecastRecordSchema>;
 export type DerivedRecord = z.infer<typeof derivedRecordSchema>;
 export type RecordType = DerivedRecord['type'];
-
-export const RECORD_TYPES = ['waves', 'current', 'carbonate', 'oxygen', 'flux', 'alert'] as const;
-
-/**
- * The fields that go to a time-series database: finite numbers and booleans (as 0/1 would lose meaning,
- * booleans stay booleans). Tags are `site` and `station` or `transect` (contract section 4); string fields
- * such as `sensor`, `ta_source`, `nec_method` are kept as string fields.
- */
-export function recordTags(r: DerivedRecord): Record<string, string> {
-  const tags: Record<string, string> = { site: r.site };
-  if (r.type === 'flux') tags.transect = r.transect;
-  else if (r.station !== undefined) tags.station = r.station;
-  return tags;
-}

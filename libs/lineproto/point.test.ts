@@ -20,12 +20,12 @@ const waves = {
 } as unknown as DerivedRecord;
 
 describe('recordToPoint', () => {
-  it('maps a waves record: measurement = type, tags site+station, nulls and nested objects left out', () => {
+  it('maps a waves record: measurement = type, tags site+station+sensor, nulls and nested objects left out', () => {
     const r = recordToPoint(waves);
     expect(r.ok).toBe(true);
     if (!r.ok) return;
     expect(r.point.measurement).toBe('waves');
-    expect(r.point.tags).toEqual({ site: 'demo-reef', station: 'crest' });
+    expect(r.point.tags).toEqual({ site: 'demo-reef', station: 'crest', sensor: 'p1' });
     expect(r.point.fields).toEqual({
       hm0_m: 0.42,
       tp_s: 11.5,
@@ -34,7 +34,6 @@ describe('recordToPoint', () => {
       hm0_ss_m: 0.4,
       hm0_ig_m: 0.05,
       depth_m: 2.1,
-      sensor: 'p1',
     });
     expect(r.point.timeMs).toBe(Date.UTC(2026, 11, 2));
   });

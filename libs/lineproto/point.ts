@@ -1,5 +1,6 @@
-// Derived records (contract section 4) as line-protocol points: measurement = record type, tags = site and
-// station (or transect for fluxes), fields = the numeric, boolean and string fields, time = `t` in ms.
+// Derived records (docs/contract-v1.md, records) as line-protocol points: measurement = record type, tags from
+// the record-type table (site; station and sensor, or transect; alerts also rule), fields = the other numeric,
+// boolean and string fields, time = `t` in ms.
 import { recordTags, type DerivedRecord } from '../contract/index.js';
 import { escapeKey, escapeMeasurement, quoteFieldString, type Dialect } from './escape.js';
 
@@ -29,10 +30,12 @@ export function recordToPoint(record: DerivedRecord, opts: { stringFields?: bool
   const strings = opts.stringFields ?? true;
   const timeMs = Date.parse(record.t);
   if (!Number.isFinite(timeMs)) return { ok: false, reason: 'bad_time' };
+  const tags = recordTags(record);
   const fields: Record<string, FieldValue> = {};
   let n = 0;
   for (const [key, value] of Object.entries(record)) {
-    if (NOT_FIELDS.has(key)) continue;
+    // A tag is never also a field: a key that is both makes every query of it ambiguous.
+    if (NOT_FIELDS.has(key) || key in tags) continue;
     if (typeof value === 'number') {
       if (!Number.isFinite(value)) continue;
     } else if (typeof value === 'string') {
@@ -44,7 +47,7 @@ export function recordToPoint(record: DerivedRecord, opts: { stringFields?: bool
   if (n === 0) return { ok: false, reason: 'no_fields' };
   return {
     ok: true,
-    point: { measurement: record.type, tags: recordTags(record), fields, timeMs: Math.round(timeMs) },
+    point: { measurement: record.type, tags, fields, timeMs: Math.round(timeMs) },
   };
 }
 

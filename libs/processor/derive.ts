@@ -49,7 +49,10 @@ export function makeContext(config: ReefdConfig, state: ProcessorState): DeriveC
     asOfMs: Infinity,
     config,
     state,
-    carbonateOptions: config.carbonate as CarbonateOptions,
+    carbonateOptions: {
+      carbonicConstants: config.carbonate.carbonic_constants,
+      boron: config.carbonate.boron,
+    } satisfies CarbonateOptions,
     gMS2: gravity(config.latitude_deg),
   };
 }
@@ -232,7 +235,7 @@ export function deriveCarbonate(
     sal: S,
     sensor: m.sensor,
     flag,
-    constants: `${ctx.config.carbonate.k1k2}/${ctx.config.carbonate.boron}`,
+    constants: `${ctx.config.carbonate.carbonic_constants}/${ctx.config.carbonate.boron}`,
   };
   for (const [k, name] of [
     ['phTotal', 'ph_total_sigma'],

@@ -155,6 +155,16 @@ function hasData(state: ProcessorState, tr: TransectConfig, startMs: number, end
 const fin = (x: number | null | undefined): number | null =>
   x === null || x === undefined || !Number.isFinite(x) ? null : x;
 
+/**
+ * |value| > 2 sigma (docs/contract-v1.md, flux): a window's NCP or NEC distinguishable from zero at about 95 %.
+ * False when the value or its sigma is missing.
+ */
+export function significant(value: number | null | undefined, sigma: number | null | undefined): boolean {
+  const v = fin(value);
+  const s = fin(sigma);
+  return v !== null && s !== null && Math.abs(v) > 2 * s;
+}
+
 /** The flux records of every transect for the window ending at endMs. */
 export function fluxAt(
   config: ReefdConfig,
@@ -184,6 +194,8 @@ export function fluxAt(
         depth_m: null,
         residence_min: null,
         valid: false,
+        ncp_significant: false,
+        nec_significant: false,
         flag: 9,
         invalid_reasons: 'input_missing',
         missing: cur.missing.join(','),
@@ -207,6 +219,8 @@ export function fluxAt(
       depth_m: fin(r.depthM),
       residence_min: fin(r.residenceMin),
       valid: r.valid,
+      ncp_significant: significant(r.ncpMmolM2H, r.sigmaNcpMmolM2H),
+      nec_significant: significant(r.necMmolM2H, r.sigmaNecMmolM2H),
       flag: r.flag,
       ncp_sigma_mmol_m2_h: fin(r.sigmaNcpMmolM2H),
       nec_sigma_mmol_m2_h: fin(r.sigmaNecMmolM2H),

@@ -177,7 +177,7 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
     flag: number,
     out: DerivedRecord[],
   ): void {
-    const station = r.type === 'flux' ? r.transect : (r.station ?? '');
+    const station = r.type === 'flux' || r.type === 'daily' ? r.transect : String(r.station ?? '');
     for (const [k, v] of Object.entries(r)) {
       if (typeof v !== 'number' || k === 'flag') continue;
       for (const a of alerts.observe(`${r.type}.${k}`, station, sensor, tMs, v, flag))

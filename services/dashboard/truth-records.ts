@@ -133,6 +133,9 @@ export function recordsFromTruth(config: ReefdConfig, truth: readonly TruthRow[]
         depth_m: r.depth_m,
         residence_min: r.residence_min,
         valid,
+        // The truth has no noise: any non-zero value is a real signal.
+        ncp_significant: r.ncp_mmol_m2_h !== 0,
+        nec_significant: r.nec_mmol_m2_h !== 0,
         ncp_sigma_mmol_m2_h: 3 + 0.1 * Math.abs(r.ncp_mmol_m2_h),
         nec_sigma_mmol_m2_h: 2 + 0.15 * Math.abs(r.nec_mmol_m2_h),
       });

@@ -84,9 +84,20 @@ describe('reefd carbonate', () => {
     expect(io2.text().stderr).toMatch(/tee/);
     const io3 = captureIo();
     expect(
-      await run(['--sal', '35', '--temp', '25', '--ta', '2300', '--dic', '2000', '--k1k2', '10'], io3),
+      await run(
+        ['--sal', '35', '--temp', '25', '--ta', '2300', '--dic', '2000', '--carbonic-constants', '10'],
+        io3,
+      ),
     ).toBe(2);
     expect(io3.text().stderr).toMatch(/lueker2000, dickson-millero1987/);
+    const io4 = captureIo();
+    expect(
+      await run(
+        ['--sal', '35', '--temp', '25', '--ta', '2300', '--dic', '2000', '--k1k2', 'lueker2000'],
+        io4,
+      ),
+    ).toBe(2);
+    expect(io4.text().stderr).toMatch(/--k1k2 is now --carbonic-constants/);
   });
 
   it('exit 1 with the error code when the inputs have no physical solution (DIC below CO2*)', async () => {

@@ -33,7 +33,7 @@ Inputs (exactly two kinds; concentrations in umol/kg, pCO2/fCO2 in uatm, wet, at
   --ta X | --ta-s35 X (TA = X S/35)   --dic X   --ph X (total scale)   --pco2 X | --fco2 X
   --po4 X, --si X    phosphate and silicate, umol/kg (default 0)
 Constants (defaults first)
-  --k1k2 ${CARBONATE_OPTION_NAMES.k1k2.join('|')}
+  --carbonic-constants ${CARBONATE_OPTION_NAMES.carbonicConstants.join('|')}   (K1, K2 of carbonic acid)
   --boron ${CARBONATE_OPTION_NAMES.boron.join('|')}
   --kw ${CARBONATE_OPTION_NAMES.kw.join('|')}
   --fugacity ${CARBONATE_OPTION_NAMES.fugacity.join('|')}
@@ -131,6 +131,7 @@ export const run: CommandRun = async (args, io) => {
       allowPositionals: false,
       options: {
         ...Object.fromEntries(NUMERIC.map((k) => [k, { type: 'string' as const }])),
+        'carbonic-constants': { type: 'string' },
         k1k2: { type: 'string' },
         boron: { type: 'string' },
         kw: { type: 'string' },
@@ -157,11 +158,16 @@ export const run: CommandRun = async (args, io) => {
       if (typeof raw === 'string') num[k] = parseNumber(k, raw);
     }
     options = {};
-    const k1k2 = pick('k1k2', values.k1k2 as string | undefined, CARBONATE_OPTION_NAMES.k1k2);
+    if (values.k1k2 !== undefined) throw new UsageError('--k1k2 is now --carbonic-constants (same values)');
+    const carbonicConstants = pick(
+      'carbonic-constants',
+      values['carbonic-constants'] as string | undefined,
+      CARBONATE_OPTION_NAMES.carbonicConstants,
+    );
     const boron = pick('boron', values.boron as string | undefined, CARBONATE_OPTION_NAMES.boron);
     const kw = pick('kw', values.kw as string | undefined, CARBONATE_OPTION_NAMES.kw);
     const fugacity = pick('fugacity', values.fugacity as string | undefined, CARBONATE_OPTION_NAMES.fugacity);
-    if (k1k2) options.k1k2 = k1k2;
+    if (carbonicConstants) options.carbonicConstants = carbonicConstants;
     if (boron) options.boron = boron;
     if (kw) options.kw = kw;
     if (fugacity) options.fugacity = fugacity;

@@ -90,7 +90,7 @@ describe('line protocol against InfluxDB 1.x', () => {
     expect(r[0]).toMatchObject({
       site: 'a b,c=d"e/f',
       station: 'st x=1 y',
-      sensor: 'adcp "1", \\o/ =,',
+      sensor: 'adcp "1", /o/ =,', // a tag now: escaped like the other tags
       east_m_s: 0.1,
       bins_used: 12,
       time: Date.UTC(2026, 10, 20),

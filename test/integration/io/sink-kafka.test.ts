@@ -121,6 +121,8 @@ describe('Kafka sink keys and values', () => {
       depth_m: 1.2,
       residence_min: 58,
       valid: true,
+      ncp_significant: true,
+      nec_significant: false,
     } as const;
     sink.write([...contractRecords('it_keys', 0, 1), flux]);
     await sink.close();

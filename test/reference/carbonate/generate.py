@@ -3,7 +3,7 @@
 Usage: python generate.py OUT.json
 
 PyCO2SYS's numeric option codes are mapped to our descriptive option names here and only here:
-  k1k2   lueker2000 -> opt_k_carbonic 10, dickson-millero1987 -> opt_k_carbonic 4
+  carbonicConstants   lueker2000 -> opt_k_carbonic 10, dickson-millero1987 -> opt_k_carbonic 4
   boron  lee2010 -> opt_total_borate 2, uppstrom1974 -> opt_total_borate 1
   always total pH scale (opt_pH_scale 1), KSO4 Dickson 1990 (opt_k_bisulfate 1), KF Perez & Fraga 1987
   (opt_k_fluoride 2), CODATA 2018 gas constant (opt_gas_constant 3), no K0 pressure correction
@@ -164,7 +164,7 @@ def block(name, k1k2, boron, kw_option, grid, pairs, out_conditions):
     return {
         "name": name,
         # PyCO2SYS's fugacity factor is the dilute limit of Weiss (1974): our option fugacity 'weiss1974-dilute'.
-        "options": {"k1k2": k1k2, "boron": boron, "kw": kw_option, "fugacity": "weiss1974-dilute"},
+        "options": {"carbonicConstants": k1k2, "boron": boron, "kw": kw_option, "fugacity": "weiss1974-dilute"},
         "cases": cases,
         "constants": constants,
     }
@@ -221,7 +221,7 @@ def uncertainty_block(g):
                 }
             )
     return {
-        "options": {"k1k2": "lueker2000", "boron": "lee2010", "kw": "millero1995-sws", "fugacity": "weiss1974-dilute"},
+        "options": {"carbonicConstants": "lueker2000", "boron": "lee2010", "kw": "millero1995-sws", "fugacity": "weiss1974-dilute"},
         "sigma_temp": 0.05,
         "sigma_sal": 0.05,
         "omega_calcium_factor": 40.087 / 40.078,
