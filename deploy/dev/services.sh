@@ -20,7 +20,10 @@ REPO="$(cd "$HERE/../.." && pwd)"
 STATE="${REEFD_SERVICES_DIR:-/tmp/reefd-services}"
 CACHE="${REEFD_CACHE_DIR:-$REPO/.cache}"
 TIMEOUT_S="${REEFD_SERVICES_TIMEOUT_S:-90}"
-KAFKA_VERSION=3.9.2 # keep in step with kafka.version in deploy/dev/pom.xml
+# The shared broker runs the current Kafka line (4.x); the fault suite's private brokers run the previous
+# line (test/faults/helpers/kafka.ts), so both stay tested. kafkajs speaks to both.
+KAFKA_VERSION="${REEFD_KAFKA_VERSION:-4.4.0}"
+KAFKA_FAULTS_VERSION=3.9.2 # keep in step with test/faults/helpers/kafka.ts
 KAFKA_HOME="$CACHE/kafka/$KAFKA_VERSION"
 SERVICES=(mosquitto influxdb victoriametrics kafka)
 STARTED_NOW=""
@@ -96,7 +99,7 @@ ensure_packages() {
   command -v victoria-metrics >/dev/null || missing+=(victoria-metrics)
   command -v curl >/dev/null || missing+=(curl)
   command -v java >/dev/null || missing+=(openjdk-17-jre-headless)
-  command -v mvn >/dev/null || [[ -f "$KAFKA_HOME/.complete" ]] || missing+=(maven)
+  command -v mvn >/dev/null || { [[ -f "$KAFKA_HOME/.complete" ]] && [[ -f "$CACHE/kafka/$KAFKA_FAULTS_VERSION/.complete" ]]; } || missing+=(maven)
   # Debian's Chromium for the dashboard's browser test (playwright-core drives /usr/bin/chromium).
   [[ -x /usr/bin/chromium ]] || missing+=(chromium)
   # mount/losetup for the disk-full fault case (present on Debian; listed for minimal images).
@@ -121,23 +124,25 @@ ensure_packages() {
   fi
 }
 
+# ensure_kafka_jars VERSION: the broker's jars in $CACHE/kafka/VERSION/libs (Maven, once).
 ensure_kafka_jars() {
-  [[ -f "$KAFKA_HOME/.complete" ]] && return 0
+  local version="$1" home="$CACHE/kafka/$1"
+  [[ -f "$home/.complete" ]] && return 0
   command -v mvn >/dev/null || die "mvn not found: install Maven (apt-get install maven) to fetch the Kafka broker"
-  log "fetching Kafka $KAFKA_VERSION broker jars with Maven into $KAFKA_HOME/libs"
-  local tmp="$KAFKA_HOME.tmp.$$"
+  log "fetching Kafka $version broker jars with Maven into $home/libs"
+  local tmp="$home.tmp.$$"
   rm -rf "$tmp"
   mkdir -p "$tmp"
-  if ! mvn -B -q -f "$HERE/pom.xml" -Dkafka.version="$KAFKA_VERSION" -Dkafka.libs.dir="$tmp/libs" package \
+  if ! mvn -B -q -f "$HERE/pom.xml" -Dkafka.version="$version" -Dkafka.libs.dir="$tmp/libs" package \
     >"$STATE/mvn.log" 2>&1; then
     tail -n 30 "$STATE/mvn.log" >&2
     rm -rf "$tmp"
-    die "Maven could not fetch org.apache.kafka:kafka_2.13:$KAFKA_VERSION (full log: $STATE/mvn.log)"
+    die "Maven could not fetch org.apache.kafka:kafka_2.13:$version (full log: $STATE/mvn.log)"
   fi
   ls "$tmp/libs"/kafka_2.13-*.jar >/dev/null 2>&1 || die "Maven ran but no kafka_2.13 jar was copied"
   touch "$tmp/.complete"
-  rm -rf "$KAFKA_HOME"
-  mv "$tmp" "$KAFKA_HOME"
+  rm -rf "$home"
+  mv "$tmp" "$home"
 }
 
 # --- configuration ----------------------------------------------------------------------------
@@ -297,7 +302,8 @@ start_kafka() {
   write_kafka_conf
   local d="$STATE/kafka" cp="$KAFKA_HOME/libs/*"
   local jvm=(-Xms256m -Xmx512m -XX:+UseG1GC -XX:MaxGCPauseMillis=20 -Djava.awt.headless=true
-    "-Dkafka.logs.dir=$d/logs" "-Dlog4j.configuration=file:$HERE/kafka-log4j.properties")
+    "-Dkafka.logs.dir=$d/logs" "-Dlog4j.configuration=file:$HERE/kafka-log4j.properties"
+    "-Dlog4j2.configurationFile=$HERE/kafka-log4j2.properties")
   if [[ ! -f "$d/data/meta.properties" ]]; then
     local cluster_id
     cluster_id="$(java -cp "$cp" "${jvm[@]}" kafka.tools.StorageTool random-uuid 2>>"$d/logs/storage.log")"
@@ -385,7 +391,8 @@ cmd_up() {
   chmod 755 "$STATE"
   ensure_packages
   # Always: the fault suite starts private brokers from these jars even when the shared one runs already.
-  ensure_kafka_jars
+  ensure_kafka_jars "$KAFKA_VERSION"
+  ensure_kafka_jars "$KAFKA_FAULTS_VERSION"
   local name
   for name in "${SERVICES[@]}"; do
     if pid_alive "$name"; then
