@@ -22,7 +22,7 @@ export default tseslint.config(
     },
   },
   {
-    // libs/ are pure: no I/O, no clock, no process globals (../shared/style.md, "Pure core, thin shell").
+    // libs/ are pure: no I/O, no clock, no process globals (DEVELOPERS.md, "The architecture in one picture").
     files: ['libs/**/*.ts'],
     ignores: ['libs/**/*.test.ts'],
     rules: {

@@ -5,7 +5,7 @@ const issuePaths = (r: { success: boolean; error?: { issues: { path: PropertyKey
   (r.error?.issues ?? []).map((i) => i.path.join('.'));
 
 describe('alertsConfigSchema', () => {
-  it('gives the contract defaults with no alerts section (contract.md section 4)', () => {
+  it('gives the contract defaults with no alerts section (docs/contract-v1.md section 4)', () => {
     const c = alertsConfigSchema.parse({});
     expect(c.low_oxygen).toMatchObject({ enabled: true, below: 2.0, clear: 2.5, raise_after_min: 10 });
     expect(c.low_omega_ar).toMatchObject({ enabled: true, below: 3.0, clear: 3.2, raise_after_min: 30 });

@@ -1,10 +1,10 @@
 // zod 4 schemas of the `alerts:` and `notify:` sections of the reefd YAML configuration (documented key by key in
 // libs/alerts/README.md). Strict objects: an unknown key is an error with its path. Defaults live here and only
-// here; the built-in rules' defaults are the contract's (contract.md section 4) and docs/methods/alerts.md.
+// here; the built-in rules' defaults are the contract's (docs/contract-v1.md section 4) and docs/methods/alerts.md.
 
 import { z } from 'zod';
 
-const ID = /^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$/; // contract.md section 1
+const ID = /^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$/; // docs/contract-v1.md section 1
 const id = z.string().regex(ID, 'ids match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');
 const metric = z
   .string()

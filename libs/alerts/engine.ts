@@ -1,7 +1,8 @@
-// The alert engine: a deterministic state machine on event time (docs/methods/conventions.md "Time base", 8; contract.md 4).
-// observe() feeds one metric value with its QC, advance() moves the watermark for stale detection; both return
-// the alert records of the transitions they cause. All state is plain JSON (snapshot/restore), so a restart
-// resumes mid-episode with no second raise and no lost clear.
+// The alert engine: a deterministic state machine on event time (docs/methods/conventions.md 1.5;
+// docs/methods/alerts.md 8; docs/contract-v1.md section 4). observe() feeds one metric value with its QC,
+// advance() moves the watermark for stale detection; both return the alert records of the transitions they
+// cause. All state is plain JSON (snapshot/restore), so a restart resumes mid-episode with no second raise
+// and no lost clear.
 
 import { DEFAULT_QC_LIMITS } from '../qc/index.js';
 import { alertsConfigSchema, type AlertsConfigInput } from './config-schema.js';

@@ -186,7 +186,7 @@ export function resolveRules(cfg: AlertsConfig): ResolvedRules {
   });
 }
 
-/** The rules that apply with no `alerts:` section (contract.md section 4). */
+/** The rules that apply with no `alerts:` section (docs/contract-v1.md section 4). */
 export const DEFAULT_RULES: ResolvedRules = resolveRules(alertsConfigSchema.parse({}));
 
 /** True when a rule's scope covers this station and sensor. */

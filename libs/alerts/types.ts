@@ -1,4 +1,4 @@
-// Alert records (contract.md section 4, type `alert`) and the engine's internal rule shapes.
+// Alert records (docs/contract-v1.md section 4, type `alert`) and the engine's internal rule shapes.
 
 import type { Severity } from './config-schema.js';
 

@@ -1,4 +1,4 @@
-// Hot path of the carbonate solver (science spec 3.5-3.7): alkalinity of Dickson (1981) on the total scale,
+// Hot path of the carbonate solver (docs/methods/carbonate.md 3.5-3.7): alkalinity of Dickson (1981) on the total scale,
 // bracketed Newton on pH, closed forms for the other pairs, and the derived quantities. Everything here is in
 // mol/kg and allocation-free: results go into a caller-owned Float64Array laid out by STATE.
 
@@ -6,7 +6,7 @@ import type { EquilibriumConstants } from './equilibrium.js';
 import { fco2FromPco2, pco2FromFco2 } from './fugacity.js';
 
 const LN10 = Math.LN10;
-/** pH bracket of the root finder (science spec 3.7). */
+/** pH bracket of the root finder (docs/methods/carbonate.md 3.7). */
 export const PH_LO = 3;
 export const PH_HI = 12;
 const PH_TOL = 1e-10;
@@ -76,7 +76,7 @@ function dNonCarbonateDh(c: EquilibriumConstants, h: number, tp: number, tsi: nu
 }
 
 /**
- * Bracketed Newton on x = pH (science spec 3.7) for TA_calc(x) = TA, where the carbon term is either
+ * Bracketed Newton on x = pH (docs/methods/carbonate.md 3.7) for TA_calc(x) = TA, where the carbon term is either
  * DIC K1 (H + 2 K2)/D (co2Mode false, `carbon` = DIC) or K1 CO2 (H + 2 K2)/H^2 (co2Mode true, `carbon` =
  * CO2*). Both are strictly increasing in pH, so f > 0 moves the upper end and f <= 0 the lower end.
  * NaN when the root is not inside [3, 12] or 100 steps do not converge. f and f' share one pass.
@@ -237,7 +237,7 @@ export function taFromDicPh(
   return (dic * c.k1 * (h + 2 * c.k2)) / d + nonCarbonateAlkalinity(c, h, tp, tsi);
 }
 
-/** pH from DIC and CO2* (mol/kg); NaN unless DIC > CO2* > 0 (science spec 3.6). */
+/** pH from DIC and CO2* (mol/kg); NaN unless DIC > CO2* > 0 (docs/methods/carbonate.md 3.6). */
 export function phFromDicCo2(c: EquilibriumConstants, dic: number, co2: number): number {
   const excess = dic - co2;
   if (!(excess > 0) || !(co2 > 0)) return NaN;
@@ -253,10 +253,10 @@ export function dicFromPhCo2(c: EquilibriumConstants, ph: number, co2: number): 
 }
 
 /**
- * Fills every STATE entry from DIC (mol/kg), pH and TA (mol/kg); concentrations out in umol/kg.
- * knownPco2Uatm (when the input was that pCO2 at these conditions) skips the fCO2 -> pCO2 inversion.
- * The Revelle factor is the analytic derivative d ln [CO2*] / d ln DIC at constant TA (implicit function
- * theorem), which the +-1 umol/kg central difference of science spec 3.9 approximates to its truncation error (1e-5).
+ * Fills every STATE entry from DIC (mol/kg), pH and TA (mol/kg); concentrations out in umol/kg. knownPco2Uatm
+ * (when the input was that pCO2 at these conditions) skips the fCO2 -> pCO2 inversion. The Revelle factor is
+ * the analytic derivative d ln [CO2*] / d ln DIC at constant TA (implicit function theorem), which the +-1
+ * umol/kg central difference of docs/methods/carbonate.md 3.9 approximates to its truncation error (1e-5).
  */
 export function fillState(
   c: EquilibriumConstants,

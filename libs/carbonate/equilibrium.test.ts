@@ -27,7 +27,7 @@ describe('equilibrium constants at S 35, t 25 degC (handbook check values)', () 
     expect(Math.log10(c.kspCa)).toBeCloseTo(-6.3693, 4);
     expect(Math.log10(c.kspAr)).toBeCloseTo(-6.1883, 4);
   });
-  it('totals: BT 432.6 (Lee 2010), 415.7 (Uppstrom 1974), ST 0.02824, FT 6.83e-5, Ca 0.01028 mol/kg (science spec 3.1)', () => {
+  it('totals: BT 432.6 (Lee 2010), 415.7 (Uppstrom 1974), ST 0.02824, FT 6.83e-5, Ca 0.01028 mol/kg (docs/methods/carbonate.md 3.1)', () => {
     expect(c.bt * 1e6).toBeCloseTo(432.6, 10);
     expect(equilibriumConstants(35, 25, 0, { boron: 'uppstrom1974' }).bt * 1e6).toBeCloseTo(415.7, 10);
     expect(c.st).toBeCloseTo(0.02824, 5);
@@ -43,7 +43,7 @@ describe('equilibrium constants at S 35, t 25 degC (handbook check values)', () 
       /lueker2000/,
     );
   });
-  it('pressure raises K1 (dV < 0): at 1000 dbar, 25 degC, ln(K1_P/K1_0) = 0.0899 on the SWS scale (evaluated from science spec 3.2)', () => {
+  it('pressure raises K1 (dV < 0): at 1000 dbar, 25 degC, ln(K1_P/K1_0) = 0.0899 on the SWS scale (evaluated from docs/methods/carbonate.md 3.2)', () => {
     const p = equilibriumConstants(35, 25, 1000);
     // 100 bar: -dV P/RT + 0.5 dK P^2/RT with dV = -25.5 + 0.1271*25, dK = (-3.08 + 0.0877*25)e-3.
     const dV = -25.5 + 0.1271 * 25;

@@ -1,7 +1,7 @@
-// Assembly of the stoichiometric constants at (S, t, P), on the total scale (science spec 3.1-3.3):
+// Assembly of the stoichiometric constants at (S, t, P), on the total scale (docs/methods/carbonate.md 3.1-3.3):
 // evaluate each fit at 1 atm, move K1, K2, KB, KW (and KP, KSi) to the seawater scale with KS, KF at 1 atm,
 // correct for pressure (Millero 1995), return to the total scale with the pressure-corrected KS, KF.
-// This order is the one of the science spec and of CO2SYS/PyCO2SYS, so the two agree at depth too.
+// This order is the one of docs/methods/carbonate.md 3.2 and of CO2SYS/PyCO2SYS, so the two agree at depth too.
 
 import { k1DicksonMillero1987Sws, k2DicksonMillero1987Sws } from './constants/dickson-millero1987.js';
 import { kbDickson1990, ksDickson1990 } from './constants/dickson1990.js';

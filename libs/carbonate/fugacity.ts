@@ -1,5 +1,5 @@
 // Weiss R.F. (1974), Mar. Chem. 2, 203-215: fugacity of CO2 in moist air from the virial equation of state,
-// fCO2 = pCO2 exp[(B + 2 (1 - x)^2 delta) P / (R T)], x = mole fraction of CO2 = pCO2/P (science spec 3.4).
+// fCO2 = pCO2 exp[(B + 2 (1 - x)^2 delta) P / (R T)], x = mole fraction of CO2 = pCO2/P (docs/methods/carbonate.md 3.4).
 // CO2SYS and PyCO2SYS 1.8.3.4 drop the (1 - x)^2 factor (x < 0.002 here); option fugacity 'weiss1974-dilute'
 // does the same, for comparison. Keeping it lowers fCO2 by about 4e-6 relative per 1000 uatm.
 
@@ -66,7 +66,7 @@ export function xco2FromPco2(pco2Uatm: number, baroHpa: number, salinity: number
 }
 
 /**
- * pCO2 at t2 from pCO2 at t1 without any TA (science spec 3.8 fallback): pCO2(t2) = pCO2(t1) exp[0.0423
+ * pCO2 at t2 from pCO2 at t1 without any TA (docs/methods/carbonate.md 3.8 fallback): pCO2(t2) = pCO2(t1) exp[0.0423
  * (t2 - t1)] (Takahashi et al. 1993, Global Biogeochem. Cycles 7, 843-878). Flag results 3: with TA from
  * salinity, solveCarbonate with outTempC is better. Check value: +4.32 % per degC, 400 -> 417.28 uatm for
  * +1 degC (evaluated from the formula).

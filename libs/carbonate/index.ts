@@ -1,4 +1,5 @@
-// Public API of the carbonate library (science spec 3, 9.1). Other code imports only this file.
+// Public API of the carbonate library (docs/methods/carbonate.md 3; docs/methods/uncertainty.md 9.1). Other
+// code imports only this file.
 
 export type {
   BoronOption,

@@ -1,4 +1,4 @@
-// Property tests (fast-check) of the solver: round trips through every input pair (science spec 3.9),
+// Property tests (fast-check) of the solver: round trips through every input pair (docs/methods/carbonate.md 3.9),
 // monotonicity, and that no input, however wild, lets a NaN out.
 
 import fc from 'fast-check';
@@ -37,7 +37,7 @@ describe('carbonate solver properties', () => {
     );
   });
 
-  it('every pair reproduces the others: 1e-6 umol/kg, 1e-9 pH, 1e-6 uatm (science spec 3.9)', () => {
+  it('every pair reproduces the others: 1e-6 umol/kg, 1e-9 pH, 1e-6 uatm (docs/methods/carbonate.md 3.9)', () => {
     fc.assert(
       fc.property(conditions, taPco2, (c, x) => {
         const a = solved({ ...c, ...x });
@@ -62,7 +62,7 @@ describe('carbonate solver properties', () => {
     );
   });
 
-  it('output conditions: solving at t_in then reporting at t_out equals solving TA + DIC at t_out (science spec 3.8)', () => {
+  it('output conditions: solving at t_in then reporting at t_out equals solving TA + DIC at t_out (docs/methods/carbonate.md 3.8)', () => {
     fc.assert(
       fc.property(conditions, taPco2, fc.double({ min: 0, max: 40, noNaN: true }), (c, x, tOut) => {
         const a = solved({ ...c, ...x, outTempC: tOut });
@@ -96,7 +96,7 @@ describe('carbonate solver properties', () => {
     );
   });
 
-  it('Revelle factor equals the +-1 umol/kg central difference of ln fCO2 over ln DIC to 5e-5, its truncation error (science spec 3.9)', () => {
+  it('Revelle factor equals the +-1 umol/kg central difference of ln fCO2 over ln DIC to 5e-5, its truncation error (docs/methods/carbonate.md 3.9)', () => {
     fc.assert(
       fc.property(conditions, taPco2, (c, x) => {
         const a = solved({ ...c, ...x });

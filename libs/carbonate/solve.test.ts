@@ -37,7 +37,7 @@ describe('helpers', () => {
     expect(pco2FromXco2(400, 1013.25, 35, 25)).toBeCloseTo(387.74, 2);
     expect(xco2FromPco2(pco2FromXco2(415, 1005, 35, 28), 1005, 35, 28)).toBeCloseTo(415, 10);
   });
-  it('pH scales: free > total > seawater, by log10(1 + ST/KS) and log10 of the fluoride term (science spec 3.3)', async () => {
+  it('pH scales: free > total > seawater, by log10(1 + ST/KS) and log10 of the fluoride term (docs/methods/carbonate.md 3.3)', async () => {
     const { equilibriumConstants, phTotalToFree, phFreeToTotal, phTotalToSws, phSwsToTotal } =
       await import('./index.js');
     const c = equilibriumConstants(35, 25, 0);

@@ -1,5 +1,5 @@
-// solveCarbonate: one carbonate system from any two of TA, DIC, pH, pCO2/fCO2 (science spec 3.6), at the
-// input conditions, then re-solved from TA + DIC at the output conditions (science spec 3.8).
+// solveCarbonate: one carbonate system from any two of TA, DIC, pH, pCO2/fCO2 (docs/methods/carbonate.md 3.6), at the
+// input conditions, then re-solved from TA + DIC at the output conditions (docs/methods/carbonate.md 3.8).
 
 import {
   dicFromPhCo2,
@@ -76,7 +76,7 @@ function checkConditions(input: CarbonateInput): CarbonateFailure | undefined {
  * Returns every output at the output conditions, or { ok: false, flag: 4 } with a stable code:
  * REEFD_CARBONATE_BAD_PAIR (not exactly two inputs), REEFD_CARBONATE_BAD_INPUT (non-finite or out of domain),
  * REEFD_CARBONATE_NO_ROOT (no physical solution, e.g. DIC <= CO2* or TA below the non-carbonate alkalinity).
- * Check value: TA 2300, pCO2 400 uatm, S 35, t 25 degC gives pH 8.0426, DIC 1998.6 umol/kg, Omega_ar 3.37
+ * Check value: TA 2300, pCO2 400 uatm, S 35, t 25 degC gives pH 8.0426, DIC 1998.6 umol/kg, Omega_ar 3.36
  * with the default constants (PyCO2SYS 1.8.3.4, test/reference/carbonate.test.ts).
  */
 export function solveCarbonate(input: CarbonateInput, options?: CarbonateOptions): CarbonateResult {
@@ -259,7 +259,7 @@ export function solveWithConstants(
   return undefined;
 }
 
-/** pH scale conversions at one set of constants (science spec 3.3). */
+/** pH scale conversions at one set of constants (docs/methods/carbonate.md 3.3). */
 export function phTotalToFree(c: EquilibriumConstants, phTotal: number): number {
   return phTotal + Math.log10(c.totalPerFree);
 }

@@ -9,14 +9,15 @@ export const CARBONATE_OPTION_NAMES = {
   /** Total boron to salinity ratio: Lee et al. (2010); Uppstrom (1974). */
   boron: ['lee2010', 'uppstrom1974'],
   /**
-   * KW of Millero (1995): 'millero1995' is the form of Dickson et al. (2007) treated as total scale (science
-   * spec 3.1, default); 'millero1995-sws' is Millero's seawater-scale form converted to total, as in PyCO2SYS.
+   * KW of Millero (1995): 'millero1995' is the form of Dickson et al. (2007) treated as total scale
+   * (docs/methods/carbonate.md 3.1, default); 'millero1995-sws' is Millero's seawater-scale form converted to
+   * total, as in PyCO2SYS.
    */
   kw: ['millero1995', 'millero1995-sws'],
   /**
-   * pCO2 <-> fCO2 of Weiss (1974): 'weiss1974' keeps the (1 - xCO2)^2 factor of the cross virial term (science
-   * spec 3.4, Dickson et al. 2007 SOP 24; default); 'weiss1974-dilute' sets xCO2 -> 0 there, as CO2SYS and
-   * PyCO2SYS do (fCO2 higher by about 4e-6 relative per 1000 uatm).
+   * pCO2 <-> fCO2 of Weiss (1974): 'weiss1974' keeps the (1 - xCO2)^2 factor of the cross virial term
+   * (docs/methods/carbonate.md 3.4, Dickson et al. 2007 SOP 24; default); 'weiss1974-dilute' sets xCO2 -> 0
+   * there, as CO2SYS and PyCO2SYS do (fCO2 higher by about 4e-6 relative per 1000 uatm).
    */
   fugacity: ['weiss1974', 'weiss1974-dilute'],
 } as const;
@@ -65,10 +66,10 @@ export interface CarbonateInput {
   phTotal?: number;
   pco2Uatm?: number;
   fco2Uatm?: number;
-  /** Total phosphate and silicate, umol/kg; default 0 (science spec 3.1 omits them). */
+  /** Total phosphate and silicate, umol/kg; default 0 (docs/methods/carbonate.md 3.1 omits them). */
   po4UmolKg?: number;
   sio4UmolKg?: number;
-  /** Output (reporting) conditions; default the input conditions (science spec 3.8). */
+  /** Output (reporting) conditions; default the input conditions (docs/methods/carbonate.md 3.8). */
   outTempC?: number;
   outSeaPressureDbar?: number;
   /** Barometric pressure for the pCO2 <-> fCO2 virial correction, hPa; default 1013.25. */
@@ -115,7 +116,7 @@ export type CarbonateErrorCode =
   | 'REEFD_CARBONATE_NO_ROOT'
   | 'REEFD_CARBONATE_NO_CONVERGENCE';
 
-/** Published uncertainties of the constants (standard uncertainty, science spec 9.1 after Orr et al. 2018). */
+/** Published uncertainties of the constants (standard uncertainty, docs/methods/uncertainty.md 9.1 after Orr et al. 2018). */
 export interface ConstantSigmas {
   pK0: number;
   pK1: number;
@@ -185,7 +186,7 @@ export type CarbonateUncertaintyResult =
       /**
        * Signed sensitivities dy/dx_i per source (per unit of the source: umol/kg, uatm, degC, pK unit, or
        * relative BT). For station differences, which share constants, propagate the Jacobian of the
-       * difference with these (science spec 9.1), not the difference of the sigmas.
+       * difference with these (docs/methods/uncertainty.md 9.1), not the difference of the sigmas.
        */
       jacobian: Record<string, Record<UncertainOutput, number>>;
     }

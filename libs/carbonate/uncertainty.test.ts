@@ -3,7 +3,7 @@ import { carbonateUncertainty, solveCarbonate, UNCERTAIN_OUTPUTS } from './index
 
 const base = { salinity: 35, tempC: 25, taUmolKg: 2300, pco2Uatm: 400 };
 
-describe('carbonateUncertainty (science spec 9.1)', () => {
+describe('carbonateUncertainty (docs/methods/uncertainty.md 9.1)', () => {
   it('an input passes its own sigma through unchanged (TA +- 5 -> sigma TA 5)', () => {
     const r = carbonateUncertainty(base, { taUmolKg: 5, constants: 'none' });
     expect(r.ok).toBe(true);

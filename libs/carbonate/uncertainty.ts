@@ -1,4 +1,4 @@
-// First-order uncertainty propagation for the carbonate system (science spec 9.1): sigma_y^2 = sum_i
+// First-order uncertainty propagation for the carbonate system (docs/methods/uncertainty.md 9.1): sigma_y^2 = sum_i
 // (dy/dx_i sigma_i)^2 over independent inputs and constants, with dy/dx_i from central differences of
 // half-width d_i = 0.01 sigma_i (the solver's 1e-10 pH tolerance keeps these differences clean). Constant
 // uncertainties after Orr et al. (2018), Mar. Chem. 207, 84-107, applied alike at the input and output

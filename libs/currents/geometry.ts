@@ -1,6 +1,6 @@
-// ADCP bin geometry and the side-lobe limit (reefd docs/methods/currents.md 5.3), and water depth from the head's
-// pressure (hydrostatic, docs/methods/conventions.md and 4.1). Ranges are along the head's axis ("vertical range"
-// for a level head); heights z are above the bed, m, positive up.
+// ADCP bin geometry and the side-lobe limit (reefd docs/methods/currents.md 5.3), and water depth from the
+// head's pressure (hydrostatic, docs/methods/seawater.md 2.2; docs/methods/waves.md 4.1). Ranges are along
+// the head's axis ("vertical range" for a level head); heights z are above the bed, m, positive up.
 
 const DEG = Math.PI / 180;
 /** 1 dbar = 1e4 Pa */

@@ -162,7 +162,7 @@ describe('instrument and earth coordinates', () => {
 });
 
 describe('depth source and failures', () => {
-  it('without a station depth, h comes from the ADCP pressure; p_atm defaulted flags 3 (docs/methods/conventions.md, 7.4)', () => {
+  it('without a station depth, h comes from the ADCP pressure; p_atm defaulted flags 3 (docs/methods/conventions.md 1.5; docs/methods/qc.md 7.4)', () => {
     // 2.05 m of water above the head at rho 1025, g 9.80665: p - p_atm = 2.05 * 1025 * 9.80665 / 1e4 dbar
     const dp = (2.05 * 1025 * 9.80665) / 1e4;
     const r = ok(processEnsemble({ ...ENS, presDbar: 10.1325 + dp }, SENSOR, { reefAxisDeg: 270 }));
@@ -233,7 +233,7 @@ describe('depth source and failures', () => {
   });
 });
 
-describe('bed stress and uncertainty (docs/methods/currents.md 5.6, 9.2)', () => {
+describe('bed stress and uncertainty (docs/methods/currents.md 5.6; docs/methods/uncertainty.md 9.2)', () => {
   it('tau_b = rho Cd U^2 with Cd 0.03 by default, or the log-law Cd for a given z0', () => {
     const r = ok(processEnsemble(ENS, SENSOR, CTX));
     expect(r.tauBedPa).toBeCloseTo(1025 * 0.03 * r.speedMS * r.speedMS, 14);

@@ -208,7 +208,7 @@ describe('three-beam solutions inside an ensemble (docs/methods/currents.md 5.1)
     expect(r.notes.some((s) => s.startsWith('three_beam'))).toBe(true);
   });
 
-  it('two bad beams fail the bin (4) and four nulls mark it missing (9) (docs/methods/currents.md 5.1, 7.4)', () => {
+  it('two bad beams fail the bin (4) and four nulls mark it missing (9) (docs/methods/currents.md 5.1; docs/methods/qc.md 7.4)', () => {
     const velMS = base.velMS.map((row, n) =>
       n === 4 ? [null, null, row[2] ?? 0, row[3] ?? 0] : n === 5 ? [null, null, null, null] : row,
     );

@@ -1,7 +1,7 @@
-// Depth-averaged current from one ADCP ensemble (reefd docs/methods/currents.md, uncertainty 9.2), in order:
-// validate; attitude and tilt (5.2, 5.4); water depth (station pressure, else the head's own);
-// side-lobe limit (5.3); bin QC and transforms (5.1, 5.4; bin-qc.ts); depth average (5.5);
-// reef frame, speed, direction and bed stress (5.6); uncertainty (9.2).
+// Depth-averaged current from one ADCP ensemble (reefd docs/methods/currents.md;
+// docs/methods/uncertainty.md 9.2), in order: validate; attitude and tilt (5.2, 5.4); water depth (station
+// pressure, else the head's own); side-lobe limit (5.3); bin QC and transforms (5.1, 5.4; bin-qc.ts); depth
+// average (5.5); reef frame, speed, direction and bed stress (5.6); uncertainty (9.2).
 //
 // Flags (QARTOD; docs/methods/qc.md 7.4): the result takes the worst flag of the bins it uses (1 or 3),
 // raised to 3 by its own checks (p_atm defaulted, station and ADCP depths differ by > 0.05 m, an
@@ -23,7 +23,7 @@ import {
 } from './types.js';
 
 const DEG = Math.PI / 180;
-const PATM_DEFAULT_DBAR = 10.1325; // 1 atm (docs/methods/conventions.md)
+const PATM_DEFAULT_DBAR = 10.1325; // 1 atm (docs/methods/conventions.md 1.3)
 const RHO_DEFAULT = 1025; // kg m-3, engineering default for reef seawater
 const G_STANDARD = 9.80665; // m s-2, standard gravity
 const CD_DEFAULT = 0.03; // docs/methods/currents.md 5.6

@@ -4,14 +4,14 @@ import { bedStressPa, directionTowardsDeg, logLawCd, toReefFrame } from './reef-
 
 const num = (min: number, max: number) => fc.double({ min, max, noNaN: true });
 
-describe('reef frame (contract.md reef_axis_deg; docs/methods/currents.md 5.6)', () => {
+describe('reef frame (docs/contract-v1.md reef_axis_deg; docs/methods/currents.md 5.6)', () => {
   it('reef_axis 270: a current towards west gives u > 0, v = 0 (worked by hand)', () => {
     const r = toReefFrame(-0.2, 0, 270);
     expect(r.uMS).toBeCloseTo(0.2, 15);
     expect(Math.abs(r.vMS)).toBeLessThan(1e-15);
   });
 
-  it('reef_axis 270: a current towards 180 gives v > 0 (v points to bearing 270 - 90 = 180) (contract.md)', () => {
+  it('reef_axis 270: a current towards 180 gives v > 0 (v points to bearing 270 - 90 = 180) (docs/contract-v1.md section 3)', () => {
     const r = toReefFrame(0, -0.2, 270);
     expect(r.vMS).toBeCloseTo(0.2, 15);
     expect(Math.abs(r.uMS)).toBeLessThan(1e-15);

@@ -1,4 +1,4 @@
-// Reef frame, direction and bed stress (reefd docs/methods/currents.md 5.6; contract.md section 3, reef_axis_deg).
+// Reef frame, direction and bed stress (reefd docs/methods/currents.md 5.6; docs/contract-v1.md section 3, reef_axis_deg).
 //   u = E sin beta + N cos beta    along beta = reef_axis_deg (shoreward cross-reef bearing)
 //   v = -E cos beta + N sin beta   along-reef, 90 deg counter-clockwise from u (bearing beta - 90)
 //   dir_to = atan2(E, N) mod 360   "towards", clockwise from true north

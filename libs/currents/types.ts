@@ -1,6 +1,6 @@
 // Input and output shapes of the currents library. AdcpEnsemble mirrors the contract's `adcp`
-// message (contract.md section 1) in camelCase; CurrentResult carries the `current` record's values
-// (contract.md section 4) plus the diagnostics the processor needs.
+// message (docs/contract-v1.md section 1) in camelCase; CurrentResult carries the `current` record's values
+// (docs/contract-v1.md section 4) plus the diagnostics the processor needs.
 
 /** One ADCP ensemble, as the `adcp` message carries it. Bins are ordered away from the head. */
 export interface AdcpEnsemble {

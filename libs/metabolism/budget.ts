@@ -1,7 +1,7 @@
 // Eulerian control-volume budget of a reef flat (Falter et al. 2008, J. Geophys. Res. 113, C07035), on the
 // alkalinity-anomaly basis (Smith 1973; Smith & Key 1975; Kinsey 1978): per unit bed area between the upstream
 // station A and the downstream station B,
-//   rho h (dC/dt + U dC/dx) = F_b - F_as                       (docs/methods/metabolism.md 6.1, contract.md "flux")
+//   rho h (dC/dt + U dC/dx) = F_b - F_as                       (docs/methods/metabolism.md 6.1, docs/contract-v1.md "flux")
 // with St = (Cm_k - Cm_{k-1})/W, Cm = (C_A + C_B)/2 (backward, so live equals replay) and Ad = U (C_B - C_A)/L.
 // Concentrations in umol/kg, rates in umol kg-1 s-1, fluxes in umol m-2 s-1 (reported x 3.6 as mmol m-2 h-1).
 

@@ -1,5 +1,6 @@
-// Transect geometry: the depth-averaged current projected on the transect bearing (docs/methods/currents.md 5.6, 6.1).
-// Bearings in degrees true, clockwise from north, "towards" convention.
+// Transect geometry: the depth-averaged current projected on the transect bearing
+// (docs/methods/currents.md 5.6; docs/methods/metabolism.md 6.1). Bearings in degrees true, clockwise from
+// north, "towards" convention.
 
 const DEG = Math.PI / 180;
 

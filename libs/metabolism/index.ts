@@ -1,5 +1,6 @@
 // Public API of the metabolism library: community metabolism of a reef flat by the Eulerian control-volume
-// method (docs/methods/metabolism.md, 9.2; contract.md `flux`). Other code imports only this file.
+// method (docs/methods/metabolism.md; docs/methods/uncertainty.md 9.2; docs/contract-v1.md `flux`). Other
+// code imports only this file.
 
 export type {
   AirSeaTerms,

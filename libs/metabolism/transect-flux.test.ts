@@ -1,4 +1,5 @@
-// Validity, flags, reverse flow and first-order uncertainty of computeTransectFlux (docs/methods/metabolism.md 6.6, 9.2).
+// Validity, flags, reverse flow and first-order uncertainty of computeTransectFlux
+// (docs/methods/metabolism.md 6.6; docs/methods/uncertainty.md 9.2).
 import { describe, it, expect } from 'vitest';
 import { solveCarbonate } from '../carbonate/index.js';
 import {

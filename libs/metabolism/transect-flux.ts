@@ -1,7 +1,8 @@
-// Transect fluxes per window (docs/methods/metabolism.md 6.1-6.6, 9.2; contract.md `flux`): NCP from the O2 budget, NEC from the
-// alkalinity budget (`ta`) or the pCO2 + O2 inverse (`inverse`), validity and first-order uncertainties.
-// Method: Eulerian control volume of Falter et al. (2008, J. Geophys. Res.), alkalinity anomaly of Smith (1973)
-// and Kinsey (1978); salinity normalisation of Friis et al. (2003, Geophys. Res. Lett.).
+// Transect fluxes per window (docs/methods/metabolism.md 6.1-6.6; docs/methods/uncertainty.md 9.2;
+// docs/contract-v1.md `flux`): NCP from the O2 budget, NEC from the alkalinity budget (`ta`) or the pCO2 + O2
+// inverse (`inverse`), validity and first-order uncertainties. Method: Eulerian control volume of Falter et
+// al. (2008, J. Geophys. Res.), alkalinity anomaly of Smith (1973) and Kinsey (1978); salinity normalisation
+// of Friis et al. (2003, Geophys. Res. Lett.).
 
 import { airSeaFluxes } from './air-sea.js';
 import {
@@ -139,7 +140,7 @@ export function computeTransectFlux(
     xco2AirPpm: xco2,
   });
   if (current.metFlag !== undefined) flag = worst(flag, current.metFlag >= 4 ? 3 : current.metFlag);
-  // docs/methods/conventions.md: a defaulted barometer makes the dependent values (here the exchange terms) suspect.
+  // docs/methods/conventions.md 1.5: a defaulted barometer makes the dependent values (here the exchange terms) suspect.
   if (current.windMS !== undefined && current.baroHpa === undefined) flag = worst(flag, 3);
 
   // O2 budget -> NCP.

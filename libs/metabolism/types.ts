@@ -1,4 +1,4 @@
-// Data shapes of the transect flux computation (contract.md `flux` record and `transects` config).
+// Data shapes of the transect flux computation (docs/contract-v1.md `flux` record and `transects` config).
 
 import { MetabolismError } from './errors.js';
 
@@ -8,7 +8,7 @@ export type QcFlag = 1 | 2 | 3 | 4 | 9;
 export type TaSource = 'measured' | 'sample' | 'salinity';
 
 /**
- * Block means of one station over a window (docs/methods/conventions.md, "Time base"). sigma* are the uncertainties that matter
+ * Block means of one station over a window (docs/methods/conventions.md 1.5, time base). sigma* are the uncertainties that matter
  * for station differences (inter-calibration; default: the typical accuracy of docs/methods/uncertainty.md 9.3); sem* are the
  * random standard errors of the window means (they drive the storage sigma, docs/methods/uncertainty.md 9.2; default 0).
  */
@@ -100,7 +100,7 @@ export interface TransectParams {
   necTolMmolM2H: number;
 }
 
-/** Engineering defaults (docs/methods/metabolism.md 6.5-6.6, 9.2); one place. */
+/** Engineering defaults (docs/methods/metabolism.md 6.5-6.6; docs/methods/uncertainty.md 9.2); one place. */
 export const DEFAULT_TRANSECT_PARAMS: Readonly<Omit<TransectParams, 'lengthM' | 'bearingDeg'>> =
   Object.freeze({
     pq: 1.0,

@@ -2,7 +2,7 @@ import { describe, it, expect } from 'vitest';
 import { angleOffBearingDeg, alongBearingMS, defaultCurrentSigmaMS } from './geometry.js';
 import { windowEndingAt, windowMean, windowSchedule } from './window-mean.js';
 
-describe('window means (docs/methods/conventions.md, time base)', () => {
+describe('window means (docs/methods/conventions.md 1.5, time base)', () => {
   const t0 = Date.UTC(2026, 0, 1, 12, 0, 0);
   const times = Array.from({ length: 10 }, (_, i) => t0 + i * 180_000); // 3 min interval, 30 min window
   it('uses flags 1-3 and inherits the worst included flag', () => {

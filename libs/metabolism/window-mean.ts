@@ -1,4 +1,4 @@
-// Station block means over windows W aligned to UTC multiples of W (docs/methods/conventions.md, "Time base"): a mean uses the
+// Station block means over windows W aligned to UTC multiples of W (docs/methods/conventions.md 1.5, time base): a mean uses the
 // samples flagged 1-3, needs >= 50 % of the expected samples (else flag 9), and inherits the worst included flag.
 // QARTOD flags: 1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing.
 

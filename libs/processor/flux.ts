@@ -1,6 +1,7 @@
-// Transect fluxes on the event-time cadence (docs/methods/conventions.md "Time base", 6): station block means over the
-// window of length W ending at each cadence tick, the previous window W earlier for storage, and the
-// metabolism library's budget. A window is computed once, when the watermark passes its end.
+// Transect fluxes on the event-time cadence (docs/methods/conventions.md 1.5; docs/methods/metabolism.md 6):
+// station block means over the window of length W ending at each cadence tick, the previous window W earlier
+// for storage, and the metabolism library's budget. A window is computed once, when the watermark passes its
+// end.
 import type { FluxRecord, ReefdConfig, TransectConfig } from '../contract/index.js';
 import {
   computeTransectFlux,

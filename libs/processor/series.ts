@@ -100,7 +100,7 @@ export function nearest(s: Series, tMs: number, maxDistMs: number, asOfMs = Infi
 
 /**
  * Mean of the usable samples within +-halfWidthMs of tMs, when any; else the nearest within maxDistMs
- * (docs/methods/conventions.md: CTD values are averaged over a short window around the reading, default +-5 min).
+ * (docs/methods/conventions.md 1.5: CTD values are averaged over a short window around the reading, default +-5 min).
  */
 export function localMean(
   s: Series,

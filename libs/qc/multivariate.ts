@@ -1,6 +1,6 @@
-// Multi-variate and cross-sensor checks (docs/methods/qc.md 7.2 test 9 and 5.4; QARTOD "multi-variate" and "neighbor"
-// tests). Each takes plain numbers and returns a flag plus the number it judged, so a caller can explain it.
-// Engineering defaults, not published values, unless a source is named.
+// Multi-variate and cross-sensor checks (docs/methods/qc.md 7.2 test 9; docs/methods/currents.md 5.4; QARTOD
+// "multi-variate" and "neighbor" tests). Each takes plain numbers and returns a flag plus the number it
+// judged, so a caller can explain it. Engineering defaults, not published values, unless a source is named.
 
 import type { QcFlag } from './flags.js';
 

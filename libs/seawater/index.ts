@@ -1,4 +1,4 @@
-// Public API of the seawater library (science spec 2). Other code imports only this file.
+// Public API of the seawater library (docs/methods/seawater.md 2). Other code imports only this file.
 
 export { densityEos80 } from './density.js';
 export { depthFromPressure, gravity, STANDARD_GRAVITY, unescoDepth } from './depth.js';

@@ -1,4 +1,4 @@
-// Oxygen solubility, units and optode salinity re-compensation (science spec 2.3, 2.4).
+// Oxygen solubility, units and optode salinity re-compensation (docs/methods/seawater.md 2.3, 2.4).
 // Garcia H.E. & Gordon L.I. (1992), Limnol. Oceanogr. 37, 1307-1312: O2 solubility fits to the data of
 // Benson & Krause (1984), Limnol. Oceanogr. 29, 620-632 (pressure correction); optode practice after
 // Bittig et al. (2018), Front. Mar. Sci. 5, 429.
@@ -102,7 +102,7 @@ export function o2MgLFromUmolL(umolL: number): number {
 export function o2UmolLFromMlL(mlL: number): number {
   return mlL * UMOL_PER_ML_O2;
 }
-/** umol/kg from umol/L with the density at the measurement temperature (science spec 2.3). */
+/** umol/kg from umol/L with the density at the measurement temperature (docs/methods/seawater.md 2.3). */
 export function o2UmolKgFromUmolL(umolL: number, salinity: number, tempC: number): number {
   return (umolL * 1000) / densityEos80(salinity, tempC);
 }
@@ -129,7 +129,7 @@ export function o2UmolKgFromSatPct(satPct: number, salinity: number, tempC: numb
 
 /**
  * Optode salinity re-compensation from the instrument's salinity setting S_set to the measured S
- * (science spec 2.4): O2(S) = O2(S_set) exp[(S - S_set)(B0 + B1 Ts + B2 Ts^2 + B3 Ts^3) + C0 (S^2 - S_set^2)],
+ * (docs/methods/seawater.md 2.4): O2(S) = O2(S_set) exp[(S - S_set)(B0 + B1 Ts + B2 Ts^2 + B3 Ts^3) + C0 (S^2 - S_set^2)],
  * Ts from the optode temperature, B and C of the fit the instrument applied (default the combined fit).
  * Works in any concentration unit (it is a ratio). Check value: S_set 0 to S 35 at 10 degC multiplies by
  * O2*(35)/O2*(0) of the same fit, 0.80000 for the combined fit (evaluated; oxygen.test.ts).

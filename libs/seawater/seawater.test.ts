@@ -39,11 +39,11 @@ describe('gravity and depth', () => {
   it('UNESCO depth 9712.653 m at 10000 dbar, latitude 30 (Fofonoff & Millard 1983 check value)', () => {
     expect(unescoDepth(10000, 30)).toBeCloseTo(9712.653, 3);
   });
-  it('h = z_s + 1e4 (p - p_atm)/(rho g): 10 dbar of sea pressure in rho 1023.343 at standard g is 9.9646 m above a 0.2 m sensor (science spec 2.2)', () => {
+  it('h = z_s + 1e4 (p - p_atm)/(rho g): 10 dbar of sea pressure in rho 1023.343 at standard g is 9.9646 m above a 0.2 m sensor (docs/methods/seawater.md 2.2)', () => {
     const h = depthFromPressure(10 + 10.1325, 1013.25, 1023.343, 0.2);
     expect(h).toBeCloseTo(0.2 + 1e5 / (1023.343 * 9.80665), 12);
     expect(h - 0.2).toBeCloseTo(9.9646, 4);
-    // 1 hPa of barometer error is about 1 cm (science spec 2.2).
+    // 1 hPa of barometer error is about 1 cm (docs/methods/seawater.md 2.2).
     expect(h - depthFromPressure(10 + 10.1325, 1014.25, 1023.343, 0.2)).toBeCloseTo(0.00996, 5);
   });
 });
@@ -64,12 +64,12 @@ describe('oxygen', () => {
     const ratio = o2SolubilityAtPressureUmolKg(35, 25, 0.98) / o2SolubilityUmolKg(35, 25);
     expect(ratio).toBeCloseTo((0.98 - pw) / (1 - pw), 4);
   });
-  it('unit factors: 1 mg/L = 31.2512 umol/L; 1 mL/L = 44.6596 umol/L (science spec 2.3)', () => {
+  it('unit factors: 1 mg/L = 31.2512 umol/L; 1 mL/L = 44.6596 umol/L (docs/methods/seawater.md 2.3)', () => {
     expect(o2UmolLFromMgL(1)).toBeCloseTo(31.2512, 4);
     expect(o2MgLFromUmolL(31.2512)).toBeCloseTo(1, 5);
     expect(o2UmolLFromMlL(1)).toBe(44.6596);
   });
-  it('umol/kg <-> umol/L <-> mg/L round-trip with rho(S, t) (science spec 2.3)', () => {
+  it('umol/kg <-> umol/L <-> mg/L round-trip with rho(S, t) (docs/methods/seawater.md 2.3)', () => {
     const rho = densityEos80(35, 28);
     expect(o2UmolKgFromUmolL(200, 35, 28)).toBeCloseTo((200 * 1000) / rho, 12);
     expect(o2UmolLFromUmolKg(o2UmolKgFromUmolL(200, 35, 28), 35, 28)).toBeCloseTo(200, 10);
@@ -77,7 +77,7 @@ describe('oxygen', () => {
     // 2.0 mg/L (the low-oxygen alert) is 61.13 umol/kg in S 35, 28 degC water (62.5 umol/L over rho 1.0223).
     expect(o2UmolKgFromMgL(2, 35, 28)).toBeCloseTo(61.13, 2);
   });
-  it('% saturation: 100 % is O2*; back-conversion is exact (science spec 2.3)', () => {
+  it('% saturation: 100 % is O2*; back-conversion is exact (docs/methods/seawater.md 2.3)', () => {
     expect(o2SatPct(o2SolubilityUmolKg(35, 27), 35, 27)).toBeCloseTo(100, 10);
     expect(o2UmolKgFromSatPct(o2SatPct(150, 35, 27, 0.995), 35, 27, 0.995)).toBeCloseTo(150, 10);
   });

@@ -185,7 +185,7 @@ describe('simulateMessages', () => {
   });
 
   it('the optode set to S = 0 reads high, and re-compensation gives the truth back', () => {
-    // An optode set to 0 reads ~20 % high in S 35 water (science spec 2.4).
+    // An optode set to 0 reads ~20 % high in S 35 water (docs/methods/seawater.md 2.4).
     const msgs = run.messages.filter((m) => m.topic.endsWith('/o2-flat')).slice(0, 50);
     for (const m of msgs) {
       const truth = truthAt('flat', m.tMs);
@@ -224,7 +224,7 @@ describe('simulateMessages', () => {
     const lagoon = stationRows.filter((r) => r.station === 'lagoon');
     const lowMinutes = lagoon.filter((r) => r.o2_mg_l < 2).length * 10;
     expect(lowMinutes).toBeGreaterThan(60);
-    // ... and the optode messages show it too (umol/L / 31.2512 = mg/L, science spec 2.3).
+    // ... and the optode messages show it too (umol/L / 31.2512 = mg/L, docs/methods/seawater.md 2.3).
     const low = run.messages.filter(
       (m) => m.topic.endsWith('/o2-lagoon') && (m.payload.o2_umol_l as number) / 31.2512 < 2,
     );

@@ -8,7 +8,7 @@ describe('optode salinity setting', () => {
     expect(optodeSalinityFactor(35.2, 35.2, 27)).toBe(1);
   });
   it('an optode set to 0 reads about 20 % high in reef water', () => {
-    // ~20 % high at S 35 (science spec 2.4).
+    // ~20 % high at S 35 (docs/methods/seawater.md 2.4).
     const f = optodeSalinityFactor(35, 0, 28);
     expect(1 / f).toBeGreaterThan(1.18);
     expect(1 / f).toBeLessThan(1.26);

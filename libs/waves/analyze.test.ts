@@ -18,7 +18,7 @@ function mulberry32(seed: number): () => number {
 }
 
 const RHO = 1023.3; // kg m-3, warm reef water (fictional station)
-const PATM = 10.1325; // dbar, 1 atm (docs/methods/conventions.md)
+const PATM = 10.1325; // dbar, 1 atm (docs/methods/conventions.md 1.3)
 const DBAR_PER_M = (RHO * G_STANDARD) / 1e4;
 
 function ok(r: WavesResult): WavesOk {

@@ -1,6 +1,7 @@
-// Waves from one bottom-pressure burst (docs/methods/waves.md 4.1-4.5): gap filling, head (2.2), detrending, Hampel
-// despiking, Welch spectrum, linear pressure-response correction up to a cutoff, spectral bulk statistics and
-// zero-crossing statistics of the reconstructed surface, each with its QARTOD flag.
+// Waves from one bottom-pressure burst (docs/methods/waves.md 4.1-4.5): gap filling, head
+// (docs/methods/seawater.md 2.2), detrending, Hampel despiking, Welch spectrum, linear pressure-response
+// correction up to a cutoff, spectral bulk statistics and zero-crossing statistics of the reconstructed
+// surface, each with its QARTOD flag.
 import { cutoffFrequency, fitF4Tail, spectralStats } from './bulk.js';
 import { chi2Quantile } from './chi2.js';
 import { G_STANDARD, responseOnGrid } from './dispersion.js';
@@ -9,7 +10,7 @@ import type { BurstInput, QartodFlag, WaveOptions, WavesErrorCode, WavesFail, Wa
 import { chooseSegmentLength, welchDof, welchInto } from './welch.js';
 import { makeReconWork, reconstructSurface, zeroCrossingStats, type ReconWork } from './zerocross.js';
 
-/** dbar, one standard atmosphere (1 atm = 10.1325 dbar, docs/methods/conventions.md): the default p_atm. */
+/** dbar, one standard atmosphere (1 atm = 10.1325 dbar, docs/methods/conventions.md 1.3): the default p_atm. */
 export const PATM_STANDARD_DBAR = 10.1325;
 
 const DEFAULTS = {

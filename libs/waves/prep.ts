@@ -1,5 +1,6 @@
-// Burst preparation (docs/methods/waves.md 4.1): gap filling, pressure to head (2.2), least-squares polynomial
-// detrending, and despiking with the Hampel (1974, J. Am. Stat. Assoc.) identifier, sigma_r = 1.4826 MAD.
+// Burst preparation (docs/methods/waves.md 4.1): gap filling, pressure to head
+// (docs/methods/seawater.md 2.2), least-squares polynomial detrending, and despiking with the Hampel (1974,
+// J. Am. Stat. Assoc.) identifier, sigma_r = 1.4826 MAD.
 
 /**
  * Copies x into out, replacing null and non-finite samples by linear interpolation between the nearest finite

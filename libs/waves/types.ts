@@ -1,4 +1,4 @@
-// Public types of the waves library (docs/methods/waves.md; contract.md section 4, record `waves`).
+// Public types of the waves library (docs/methods/waves.md; docs/contract-v1.md section 4, record `waves`).
 
 /** QARTOD flags: 1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing. */
 export type QartodFlag = 1 | 2 | 3 | 4 | 9;

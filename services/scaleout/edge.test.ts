@@ -34,7 +34,7 @@ describe('edge mode', () => {
   });
 
   it('forwards the contract record: key site/station/sensor, value payload plus the four ids', () => {
-    // contract.md section 1: key `<site>/<station>/<sensor>`, value = payload + site, station, kind, sensor.
+    // docs/contract-v1.md section 1: key `<site>/<station>/<sensor>`, value = payload + site, station, kind, sensor.
     const { key, value } = rawRecordOf(ctd(1));
     expect(key).toBe('ornen-reef/crest/ctd-crest');
     expect(JSON.parse(value)).toEqual({

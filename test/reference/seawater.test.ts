@@ -22,7 +22,7 @@ describe(`seawater vs ${doc.source}`, () => {
     expect(doc.rows.length).toBe(170);
   });
 
-  it('EOS-80 density is within 0.01 % of TEOS-10 (gsw.rho at SA = SR), the documented difference (science spec 2.1)', () => {
+  it('EOS-80 density is within 0.01 % of TEOS-10 (gsw.rho at SA = SR), the documented difference (docs/methods/seawater.md 2.1)', () => {
     let worst = 0;
     let worstReef = 0;
     for (const r of doc.rows) {
@@ -37,7 +37,7 @@ describe(`seawater vs ${doc.source}`, () => {
   });
 
   it('Garcia & Gordon 1992 O2* equals gsw.O2sol_SP_pt to 1e-12 once gsw`s IPTS-68 step is applied', () => {
-    // gsw evaluates the fit at t68 = 1.00024 t; science spec 1 takes t directly (the published check value
+    // gsw evaluates the fit at t68 = 1.00024 t; docs/methods/conventions.md 1.1 takes t directly (the published check value
     // 274.610 umol/kg at 10 degC is reproduced that way). The scale choice moves O2* by < 0.03 umol/kg.
     let worst = 0;
     let worstDiff = 0;

@@ -1,5 +1,5 @@
 // Millero F.J. (1995), Geochim. Cosmochim. Acta 59, 661-677, with the KW row of Millero (1983, Chemical
-// Oceanography 8): pressure corrections ln(K_P/K_0) = -(dV/RT) P + 0.5 (dK/RT) P^2 (science spec 3.2).
+// Oceanography 8): pressure corrections ln(K_P/K_0) = -(dV/RT) P + 0.5 (dK/RT) P^2 (docs/methods/carbonate.md 3.2).
 // KB uses a1 = +0.1622 (the printed sign is a typo, as CO2SYS notes); Ksp rows after Ingle (1975)/Millero (1979).
 
 /** Gas constant in cm3 bar mol-1 K-1 (CODATA 2018, 8.314462618 J mol-1 K-1). */

@@ -1,4 +1,4 @@
-// Conservative totals from practical salinity, mol kg-SW-1 (science spec 3.1).
+// Conservative totals from practical salinity, mol kg-SW-1 (docs/methods/carbonate.md 3.1).
 // Lee K. et al. (2010), Geochim. Cosmochim. Acta 74, 1801-1811: total boron (default).
 // Uppstrom L.R. (1974), Deep-Sea Res. 21, 161-162: total boron (option).
 // Morris A.W. & Riley J.P. (1966), Deep-Sea Res. 13, 699-705: sulfate. Riley J.P. (1965), Deep-Sea Res. 12,

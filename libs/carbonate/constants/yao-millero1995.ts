@@ -1,6 +1,6 @@
 // Yao W. & Millero F.J. (1995), Environ. Sci. 2, 101-135, as compiled by Millero (1995), Geochim. Cosmochim.
 // Acta 59, 661-677: phosphoric acid and silicic acid constants on the seawater scale. Used only when
-// phosphate or silicate are given (science spec 3.1 omits them by default).
+// phosphate or silicate are given (docs/methods/carbonate.md 3.1 omits them by default).
 
 import type { FitTerms } from './terms.js';
 import { ionicStrength } from './dickson1990.js';

@@ -1,6 +1,6 @@
 // `reefd carbonate --sal S --temp T [--pres P] <two of --ta --dic --ph --pco2> [--json]` (contract section 5):
 // solves the carbonate system once with libs/carbonate and prints the contract `carbonate` fields, with
-// first-order uncertainties (science spec 9.1) beside them.
+// first-order uncertainties (docs/methods/uncertainty.md 9.1) beside them.
 //
 // ta_source keeps the contract's list (salinity | sample | measured): "salinity" with --ta-s35 (TA =
 // ta_s35 S/35, the contract's alkalinity.source salinity), else "measured": given with --ta, or following

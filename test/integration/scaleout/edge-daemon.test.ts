@@ -96,7 +96,7 @@ describe('edge mode (bridge) in the daemon', () => {
       const s = sim[i];
       if (s === undefined) throw new Error('more records than messages');
       const [, site, station, kind, sensor] = s.topic.split('/');
-      // contract.md section 1: key `<site>/<station>/<sensor>`, value = payload + the four ids.
+      // docs/contract-v1.md section 1: key `<site>/<station>/<sensor>`, value = payload + the four ids.
       expect(m.key?.toString()).toBe(`${site}/${station}/${sensor}`);
       const value = JSON.parse(m.value?.toString() ?? '') as Record<string, unknown>;
       expect(value).toMatchObject({ site, station, kind, sensor, t: s.payload.t, v: 1 });

@@ -171,7 +171,7 @@ def block(name, k1k2, boron, kw_option, grid, pairs, out_conditions):
 
 
 # First-order uncertainties (PyCO2SYS uncertainty_from/uncertainty_into, forward finite differences).
-# Our names -> PyCO2SYS keys; pK sigmas after Orr et al. (2018) as in science spec 9.1.
+# Our names -> PyCO2SYS keys; pK sigmas after Orr et al. (2018) as in docs/methods/uncertainty.md 9.1.
 U_CONSTANTS = {
     "pK0": ("pk_CO2", 0.002),
     "pK1": ("pk_carbonic_1", 0.0075),
