@@ -1,105 +1,117 @@
-// Bounded sliding-window statistics over event time: the window is cut into fixed time bins, each holding count,
-// mean, M2 (Welford), min, max and its first sample time. Bins merge with the parallel update of
-// Chan, Golub & LeVeque (1979, "Updating formulae and a pairwise algorithm for computing sample variances";
-// from memory: verify). Memory is fixed (nBins + 1 slots) whatever the sample rate; the price is that the window
-// edge is resolved to one bin (windowMs / nBins), which is documented at each test that uses it.
-// Plain number arrays, not typed arrays, and null for "empty": the state must survive a JSON round trip (the
-// processor snapshots it), and typed arrays or NaN do not.
+// Bounded sliding-window statistics over event time: the window is cut into fixed time bins and only the bins
+// that hold a sample are stored, oldest first, in one flat number array (stride 5: bin index, first sample time,
+// count, and two summary numbers). Two flavours, each holding only what its tests read (issue 17: QC state sized to
+// its use):
+// - 'moments': count, mean and M2 (Welford), merged across bins with the parallel update of Chan, Golub & LeVeque
+//   (1979, "Updating formulae and a pairwise algorithm for computing sample variances"; from memory: verify);
+// - 'extremes': count, min and max.
+// Memory is at most (nBins + 1) x 5 numbers whatever the sample rate, and fewer when samples are sparser than the
+// bins; the price is that the window edge is resolved to one bin (windowMs / nBins), which is documented at each
+// test that uses it. Plain number arrays (no typed arrays, no NaN): the state survives a JSON round trip.
 
 export interface WindowSummary {
   n: number;
+  /** Mean ('moments' only; NaN otherwise or when empty). */
   mean: number;
-  /** Sample standard deviation (n - 1); NaN when n < 2. */
+  /** Sample standard deviation (n - 1; 'moments' only); NaN when n < 2. */
   sd: number;
+  /** Extremes ('extremes' only; +-Infinity otherwise or when empty). */
   min: number;
   max: number;
   /** Earliest sample time (ms) in the bins included. Infinity when empty. */
   firstMs: number;
 }
 
+export type BinnedMode = 'moments' | 'extremes';
+
 export interface BinnedStats {
+  readonly mode: BinnedMode;
   readonly binMs: number;
-  readonly slots: number;
-  /** Bin index held by each slot (null when empty). */
-  readonly key: (number | null)[];
-  readonly n: number[];
-  readonly mean: number[];
-  readonly m2: number[];
-  readonly min: number[];
-  readonly max: number[];
-  readonly first: number[];
+  readonly nBins: number;
+  /** Live bins, oldest first: [k, firstMs, n, a, b] per bin (moments: a = mean, b = M2; extremes: min, max). */
+  readonly b: number[];
 }
 
-/** A window of `windowMs` resolved into `nBins` bins (default 64). */
-export function createBinnedStats(windowMs: number, nBins = 64): BinnedStats {
+const STRIDE = 5;
+
+/** A window of `windowMs` resolved into `nBins` bins. */
+export function createBinnedStats(windowMs: number, nBins: number, mode: BinnedMode): BinnedStats {
   if (!(windowMs > 0) || !Number.isInteger(nBins) || nBins < 1) {
     throw new RangeError(
       `REEFD_QC_BAD_WINDOW: window ${windowMs} ms / ${nBins} bins; give a window > 0 and bins >= 1`,
     );
   }
-  const slots = nBins + 1;
-  return {
-    binMs: windowMs / nBins,
-    slots,
-    key: new Array<number | null>(slots).fill(null),
-    n: new Array<number>(slots).fill(0),
-    mean: new Array<number>(slots).fill(0),
-    m2: new Array<number>(slots).fill(0),
-    min: new Array<number>(slots).fill(0),
-    max: new Array<number>(slots).fill(0),
-    first: new Array<number>(slots).fill(0),
-  };
+  return { mode, binMs: windowMs / nBins, nBins, b: [] };
 }
 
 /** Adds one sample; times must not decrease (the QC state drops out-of-order samples before this). */
 export function binnedAdd(s: BinnedStats, tMs: number, v: number): void {
   const k = Math.floor(tMs / s.binMs);
-  const i = ((k % s.slots) + s.slots) % s.slots;
-  if (s.key[i] !== k) {
-    s.key[i] = k;
-    s.n[i] = 1;
-    s.mean[i] = v;
-    s.m2[i] = 0;
-    s.min[i] = v;
-    s.max[i] = v;
-    s.first[i] = tMs;
+  const b = s.b;
+  const last = b.length - STRIDE;
+  if (last >= 0 && b[last] === k) {
+    const n = (b[last + 2] as number) + 1;
+    b[last + 2] = n;
+    if (s.mode === 'moments') {
+      const mean = b[last + 3] as number;
+      const d = v - mean;
+      const newMean = mean + d / n;
+      b[last + 3] = newMean;
+      b[last + 4] = (b[last + 4] as number) + d * (v - newMean);
+    } else {
+      if (v < (b[last + 3] as number)) b[last + 3] = v;
+      if (v > (b[last + 4] as number)) b[last + 4] = v;
+    }
     return;
   }
-  const n = (s.n[i] ?? 0) + 1;
-  const mean = s.mean[i] ?? 0;
-  const d = v - mean;
-  const newMean = mean + d / n;
-  s.n[i] = n;
-  s.mean[i] = newMean;
-  s.m2[i] = (s.m2[i] ?? 0) + d * (v - newMean);
-  if (v < (s.min[i] ?? v)) s.min[i] = v;
-  if (v > (s.max[i] ?? v)) s.max[i] = v;
+  if (s.mode === 'moments') b.push(k, tMs, 1, v, 0);
+  else b.push(k, tMs, 1, v, v);
+  // Drop the bins that fell out of the longest span a summary can ask for (nBins + 1 bins).
+  let drop = 0;
+  while (drop < b.length && (b[drop] as number) < k - s.nBins) drop += STRIDE;
+  if (drop > 0) b.splice(0, drop);
 }
 
-/** Summary of every bin that overlaps [fromMs, toMs]. */
+/** Summary of every stored bin that overlaps [fromMs, toMs]. */
 export function binnedSummary(s: BinnedStats, fromMs: number, toMs: number): WindowSummary {
   const k0 = Math.floor(fromMs / s.binMs);
   const k1 = Math.floor(toMs / s.binMs);
+  const b = s.b;
   let n = 0;
   let mean = 0;
   let m2 = 0;
   let min = Infinity;
   let max = -Infinity;
   let firstMs = Infinity;
-  for (let i = 0; i < s.slots; i++) {
-    const k = s.key[i];
-    if (k === null || k === undefined || k < k0 || k > k1) continue;
-    const nb = s.n[i] ?? 0;
-    if (nb === 0) continue;
-    const mb = s.mean[i] ?? 0;
-    const nt = n + nb;
-    const d = mb - mean;
-    mean += (d * nb) / nt;
-    m2 += (s.m2[i] ?? 0) + (d * d * n * nb) / nt;
-    n = nt;
-    min = Math.min(min, s.min[i] ?? Infinity);
-    max = Math.max(max, s.max[i] ?? -Infinity);
-    firstMs = Math.min(firstMs, s.first[i] ?? Infinity);
+  for (let i = 0; i < b.length; i += STRIDE) {
+    const k = b[i] as number;
+    if (k < k0 || k > k1) continue;
+    const nb = b[i + 2] as number;
+    const first = b[i + 1] as number;
+    if (first < firstMs) firstMs = first;
+    if (s.mode === 'moments') {
+      const mb = b[i + 3] as number;
+      const nt = n + nb;
+      const d = mb - mean;
+      mean += (d * nb) / nt;
+      m2 += (b[i + 4] as number) + (d * d * n * nb) / nt;
+      n = nt;
+    } else {
+      n += nb;
+      if ((b[i + 3] as number) < min) min = b[i + 3] as number;
+      if ((b[i + 4] as number) > max) max = b[i + 4] as number;
+    }
   }
-  return { n, mean, sd: n >= 2 ? Math.sqrt(Math.max(0, m2 / (n - 1))) : Number.NaN, min, max, firstMs };
+  const moments = s.mode === 'moments';
+  return {
+    n,
+    mean: moments && n > 0 ? mean : Number.NaN,
+    sd: moments && n >= 2 ? Math.sqrt(Math.max(0, m2 / (n - 1))) : Number.NaN,
+    min,
+    max,
+    firstMs,
+  };
 }
+
+/** Number of bins held (for memory tests and benchmarks). */
+export const binnedSize = (s: BinnedStats): number => s.b.length / STRIDE;

@@ -17,6 +17,8 @@ export {
   type SpikeLimits,
   type RateOfChangeLimits,
   type FlatLineLimits,
+  type RepeatLimits,
+  type StuckLimits,
   type AttenuatedLimits,
   type ClimatologyTable,
 } from './limits.js';
@@ -28,11 +30,24 @@ export {
   attenuatedSignal,
   attenuatedFlag,
   timing,
+  spikeLimitsWithFloor,
+  rateOfChangeFloor,
+  repeatRunNeeded,
+  repeatFlag,
+  stuckFlag,
 } from './tests.js';
+export {
+  DEFAULT_NOISE_LIMITS,
+  noiseScales,
+  type NoiseLimits,
+  type NoiseProfile,
+  type NoiseScales,
+} from './noise.js';
 export {
   createQcState,
   qcUpdate,
   qcFlush,
+  QC_STATE_VERSION,
   type QcState,
   type QcConfig,
   type QcResult,
@@ -51,4 +66,57 @@ export {
   salinityBubble,
   type CheckResult,
 } from './multivariate.js';
+export {
+  coLocatedDrift,
+  DEFAULT_DRIFT_LIMITS,
+  type DriftLimits,
+  type DriftResult,
+  type TimeSeries,
+} from './drift.js';
+export {
+  newBatteryTrend,
+  batteryTrendAdd,
+  batteryTrend,
+  DEFAULT_BATTERY_TREND,
+  type BatteryTrendState,
+  type BatteryTrendLimits,
+  type BatteryTrend,
+} from './battery-trend.js';
+export {
+  IRREGULAR_KINDS,
+  isIrregularKind,
+  usualIntervalMs,
+  staleLimitMs,
+  INTERVALS_KEPT,
+  type Cadence,
+} from './cadence.js';
+export {
+  newDeadlineHeap,
+  heapPush,
+  heapPeek,
+  heapPop,
+  heapSize,
+  type DeadlineHeap,
+} from './deadline-heap.js';
+export {
+  createFaultState,
+  faultsOnMessage,
+  faultsOnQc,
+  faultsOnBattery,
+  faultsExternal,
+  faultsAdvance,
+  faultsRestore,
+  activeFaults,
+  faultsDuring,
+  invalidReasons,
+  INVALIDATING_FAULTS,
+  DEFAULT_FAULT_OPTIONS,
+  type FaultState,
+  type FaultOptions,
+  type FaultEpisode,
+  type FaultChange,
+  type SensorFault,
+  type QcOutcome,
+} from './sensor-faults.js';
+export { median, madSd, theilSen, type Line } from './robust.js';
 export { QC_ERRORS, type QcErrorCode } from './errors.js';

@@ -1,7 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import fc from 'fast-check';
 import { createQcState, qcFlush, qcUpdate, type QcConfig } from './index.js';
-import { binnedAdd, binnedSummary, createBinnedStats } from './binned-stats.js';
+import { binnedAdd, binnedSize, binnedSummary, createBinnedStats } from './binned-stats.js';
 
 const MIN = 60_000;
 const T0 = Date.UTC(2026, 6, 1);
@@ -84,8 +84,9 @@ describe('qcUpdate: spike is provisional until the next value', () => {
 
 describe('qcUpdate: rate of change, flat line, attenuated signal, timing', () => {
   it('rate of change flags a step beyond 3 sd of the previous window (hand-computed)', () => {
+    // noiseK 0: the QARTOD rule alone (the noise floor has its own test in noise.test.ts).
     const s = createQcState(
-      only({ rateOfChange: { nSd: 3, windowMs: 25 * 60 * MIN, minSamples: 24, minSd: 0 } }),
+      only({ rateOfChange: { nSd: 3, windowMs: 25 * 60 * MIN, minSamples: 24, minSd: 0, noiseK: 0 } }),
     );
     let t = T0;
     for (let i = 0; i < 30; i++) {
@@ -181,11 +182,30 @@ describe('restart', () => {
 });
 
 describe('bounded memory', () => {
-  it('keeps fixed-size windows whatever the sample rate (1 Hz for 2 days)', () => {
+  it('keeps bounded windows whatever the sample rate (1 Hz for 2 days)', () => {
     const s = createQcState({ variable: 'temp_c' });
     for (let i = 0; i < 172_800; i++) qcUpdate(s, T0 + i * 1000, 26 + 0.01 * Math.sin(i / 600));
-    expect(s.roc?.key.length).toBe(101);
-    expect(s.flat?.key.length).toBe(65);
+    // 25 one-hour bins of the 25-h window plus the one being filled; 32 bins of T_f = 4 h plus one.
+    expect(binnedSize(s.roc!)).toBe(26);
+    expect(binnedSize(s.flat!)).toBe(33);
+  });
+
+  it('holds only the bins that hold samples (issue 17: state sized to its use)', () => {
+    // A pCO2 sensor at 10 min: T_f = 6 h in 32 bins of 11.25 min, so at most one sample per bin.
+    const s = createQcState('pco2_uatm');
+    for (let i = 0; i < 300; i++) qcUpdate(s, T0 + i * 10 * MIN, 400 + 10 * Math.sin(i / 7) + (i % 3) * 0.7);
+    expect(binnedSize(s.flat!)).toBeLessThanOrEqual(33);
+    expect(binnedSize(s.flat!)).toBeGreaterThanOrEqual(30);
+    // A battery voltage has only gross range and stuck-at: no windows and no noise profile at all.
+    const b = createQcState('battery_v');
+    for (let i = 0; i < 50; i++) qcUpdate(b, T0 + i * 10 * MIN, 12.5);
+    expect([b.roc, b.flat, b.att, b.noise]).toEqual([null, null, null, null]);
+    // Stored window numbers of a station's temp, sal, O2 and pCO2 states at 5 min after two days: 1,180 (the
+    // earlier layout preallocated 4,648 for the same four: 101 x 7 + 65 x 7 per variable, issue 17).
+    const vars = ['temp_c', 'sal', 'o2_umol_kg', 'pco2_uatm'].map((v) => createQcState(v));
+    for (let i = 0; i < 576; i++) for (const q of vars) qcUpdate(q, T0 + i * 5 * MIN, 30 + Math.sin(i / 20));
+    const stored = vars.reduce((a, q) => a + q.roc!.b.length + q.flat!.b.length, 0);
+    expect(stored).toBeLessThanOrEqual(1180);
   });
 
   it('binned window statistics equal direct two-pass statistics (property)', () => {
@@ -193,16 +213,22 @@ describe('bounded memory', () => {
       fc.property(
         fc.array(fc.double({ min: -1e3, max: 1e3, noNaN: true }), { minLength: 2, maxLength: 300 }),
         (xs) => {
-          const b = createBinnedStats(1e6, 16);
-          xs.forEach((x, i) => binnedAdd(b, i * 1000, x));
+          const b = createBinnedStats(1e6, 16, 'moments');
+          const x = createBinnedStats(1e6, 16, 'extremes');
+          xs.forEach((v, i) => {
+            binnedAdd(b, i * 1000, v);
+            binnedAdd(x, i * 1000, v);
+          });
           const w = binnedSummary(b, 0, xs.length * 1000);
+          const e = binnedSummary(x, 0, xs.length * 1000);
           const mean = xs.reduce((a, x) => a + x, 0) / xs.length;
           const sd = Math.sqrt(xs.reduce((a, x) => a + (x - mean) ** 2, 0) / (xs.length - 1));
           expect(w.n).toBe(xs.length);
           expect(w.mean).toBeCloseTo(mean, 8);
           expect(Math.abs(w.sd - sd)).toBeLessThan(1e-7 * (1 + sd));
-          expect(w.min).toBe(Math.min(...xs));
-          expect(w.max).toBe(Math.max(...xs));
+          expect(e.n).toBe(xs.length);
+          expect(e.min).toBe(Math.min(...xs));
+          expect(e.max).toBe(Math.max(...xs));
         },
       ),
     );

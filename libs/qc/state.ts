@@ -1,15 +1,36 @@
-// Incremental QC of one variable of one sensor, QARTOD-style tests in the order of docs/methods/qc.md 7.2. Bounded
-// memory: the last two samples plus three fixed-size binned windows (binned-stats.ts). Pure: the caller feeds
-// event time and keeps the state.
+// Incremental QC of one variable of one sensor, QARTOD-style tests in the order of docs/methods/qc.md 7.2, with the
+// noise-aware floors, repeat and stuck-at tests of docs/methods/faults.md 12.1-12.3. Bounded memory sized to the
+// tests in use: the last two samples, a binned window per windowed test (binned-stats.ts, only the bins that hold
+// samples), a noise profile when a test reads it. Pure: the caller feeds event time and keeps the state.
 
 import { createBinnedStats, binnedAdd, binnedSummary, type BinnedStats } from './binned-stats.js';
+import { epsFlatLine, repeatStep, worseFlat, type FlatVerdict, type RepeatRun } from './flatline.js';
 import { aggregateFlags, type QcFlag } from './flags.js';
 import { DEFAULT_QC_LIMITS, type QcLimits } from './limits.js';
-import { attenuatedFlag, climatology, grossRange, rateOfChange, spike, timing } from './tests.js';
+import { DEFAULT_NOISE_LIMITS, newNoiseProfile, noiseAdd, noiseScales, type NoiseProfile } from './noise.js';
+import {
+  attenuatedFlag,
+  climatology,
+  grossRange,
+  isStuckValue,
+  rateOfChange,
+  rateOfChangeFloor,
+  spike,
+  spikeLimitsWithFloor,
+  stuckFlag,
+  timing,
+} from './tests.js';
 
 /** Names of the per-sample tests, as reported in `tests`. */
 export type QcTestName =
-  'timing' | 'gross_range' | 'climatology' | 'spike' | 'rate_of_change' | 'flat_line' | 'attenuated_signal';
+  | 'timing'
+  | 'gross_range'
+  | 'stuck'
+  | 'climatology'
+  | 'spike'
+  | 'rate_of_change'
+  | 'flat_line'
+  | 'attenuated_signal';
 
 export type QcTests = Partial<Record<QcTestName, QcFlag>>;
 
@@ -27,8 +48,12 @@ interface Sample {
   tests: QcTests;
 }
 
+/** Layout version of QcState; a state of another layout is reset on its next update (windows re-learn). */
+export const QC_STATE_VERSION = 2;
+
 /** Plain JSON-safe data: JSON.parse(JSON.stringify(state)) resumes exactly (the processor snapshots it). */
 export interface QcState {
+  readonly v: typeof QC_STATE_VERSION;
   readonly variable: string;
   readonly limits: QcLimits;
   /** Time of the last sample, ms; null before the first. */
@@ -37,9 +62,17 @@ export interface QcState {
   prev: Sample | null;
   /** V_{n-2}, kept for V_{n-1}'s spike test. */
   prev2: Sample | null;
-  readonly roc: BinnedStats | null;
-  readonly flat: BinnedStats | null;
-  readonly att: BinnedStats | null;
+  /** 25-h moments for the rate-of-change sd (null without that test). */
+  roc: BinnedStats | null;
+  /** Extremes over T_f for the eps/T flat line (null without that test). */
+  flat: BinnedStats | null;
+  att: BinnedStats | null;
+  /** Noise and resolution (null unless a spike, rate-of-change or repeat test reads it). */
+  noise: NoiseProfile | null;
+  /** Current run of identical readings (repeat test). */
+  run: RepeatRun | null;
+  /** Consecutive readings on a stuck-at value (stuck test). */
+  stuckCount: number;
 }
 
 export interface QcFinalized {
@@ -56,7 +89,14 @@ export interface QcResult {
   readonly finalizedPrevious?: QcFinalized;
   /** Set when the sample was dropped: a repeated time (duplicate) or a time before the last one. */
   readonly dropped?: 'duplicate' | 'out_of_order';
+  /** When flat_line is 3 or 4: the start of the flat stretch (a frozen sensor's first frozen reading), ms. */
+  readonly flatSinceMs?: number;
 }
+
+/** Window bins per test: the window edge is resolved to window / bins (docs/methods/faults.md 12.6). */
+const ROC_BINS = 25; // 25 h in 1-h bins
+const FLAT_BINS = 32; // T_f in 32 bins: 7.5 min for a 4-h T_f
+const ATT_BINS = 32;
 
 /**
  * A QC state for one variable. Limits default to DEFAULT_QC_LIMITS[variable]; each key given in `config`
@@ -80,15 +120,26 @@ export function createQcState(config: QcConfig | string): QcState {
     ...base,
     ...stripUndefined(overrides),
   };
+  return { v: QC_STATE_VERSION, variable, limits, ...freshWindows(limits) };
+}
+
+function freshWindows(limits: QcLimits) {
   return {
-    variable,
-    limits,
     lastMs: null,
     prev: null,
     prev2: null,
-    roc: limits.rateOfChange ? createBinnedStats(limits.rateOfChange.windowMs, 100) : null,
-    flat: limits.flatLine ? createBinnedStats(limits.flatLine.failMs, 64) : null,
-    att: limits.attenuated ? createBinnedStats(limits.attenuated.windowMs, 64) : null,
+    roc: limits.rateOfChange ? createBinnedStats(limits.rateOfChange.windowMs, ROC_BINS, 'moments') : null,
+    flat: limits.flatLine ? createBinnedStats(limits.flatLine.failMs, FLAT_BINS, 'extremes') : null,
+    att: limits.attenuated
+      ? createBinnedStats(
+          limits.attenuated.windowMs,
+          ATT_BINS,
+          limits.attenuated.measure === 'sd' ? 'moments' : 'extremes',
+        )
+      : null,
+    noise: limits.spike || limits.rateOfChange || limits.repeat ? newNoiseProfile() : null,
+    run: null,
+    stuckCount: 0,
   };
 }
 
@@ -101,6 +152,7 @@ function stripUndefined<T extends object>(o: T): Partial<T> {
  * A non-finite value is missing (flag 9) and only closes the previous sample's spike test.
  */
 export function qcUpdate(state: QcState, tMs: number, value: number, receiveMs?: number): QcResult {
+  if (state.v !== QC_STATE_VERSION) Object.assign(state, { v: QC_STATE_VERSION }, freshWindows(state.limits));
   if (state.lastMs !== null && tMs === state.lastMs)
     return { flag: 4, tests: { timing: 4 }, dropped: 'duplicate' };
   if (state.lastMs !== null && tMs < state.lastMs)
@@ -120,28 +172,47 @@ export function qcUpdate(state: QcState, tMs: number, value: number, receiveMs?:
   if (!Number.isFinite(value)) {
     state.prev2 = null;
     state.prev = { tMs, v: null, good: false, tests: {} };
+    state.run = null;
     return finalizedPrevious ? { flag: 9, tests: {}, finalizedPrevious } : { flag: 9, tests: {} };
   }
 
   const tests: QcTests = {};
   if (tim !== undefined) tests.timing = tim;
   tests.gross_range = gross;
+  if (lim.stuck) {
+    state.stuckCount = isStuckValue(value, lim.stuck) ? state.stuckCount + 1 : 0;
+    tests.stuck = stuckFlag(state.stuckCount, lim.stuck);
+  }
   tests.climatology = climatology(value, tMs, lim.climatology);
   if (lim.spike) tests.spike = 2; // provisional until V_{n+1}
+  const prevV = gapOk && prev !== null && prev.good ? prev.v : null;
+  const contiguous = prevV !== null;
+  const noiseLim = lim.noise ?? DEFAULT_NOISE_LIMITS;
+  const scales = state.noise ? noiseScales(state.noise, noiseLim) : null;
   if (lim.rateOfChange && state.roc) {
     const r = lim.rateOfChange;
     const w = binnedSummary(state.roc, tMs - r.windowMs, tMs);
     const sd = w.n >= r.minSamples ? w.sd : Number.NaN;
-    tests.rate_of_change =
-      gapOk && prev !== null && prev.good && prev.v !== null
-        ? rateOfChange(prev.v, value, sd, r.nSd, r.minSd)
-        : 2;
+    const floor = rateOfChangeFloor(r, scales?.stepSd ?? null, scales?.resolution ?? 0);
+    tests.rate_of_change = prevV !== null ? rateOfChange(prevV, value, sd, r.nSd, floor) : 2;
     if (usable) binnedAdd(state.roc, tMs, value);
   }
+
+  let flat: FlatVerdict | undefined;
   if (lim.flatLine && state.flat) {
     if (usable) binnedAdd(state.flat, tMs, value);
-    tests.flat_line = flatLineFlag(state.flat, tMs, value, lim.flatLine);
+    flat = epsFlatLine(state.flat, tMs, value, lim.flatLine);
   }
+  if (usable && state.noise) {
+    if (lim.repeat) {
+      const step = repeatStep(state.run, state.noise, lim.repeat, noiseLim, tMs, value, contiguous);
+      state.run = step.run;
+      flat = flat === undefined ? step.verdict : worseFlat(flat, step.verdict);
+    }
+    noiseAdd(state.noise, value, contiguous, noiseLim);
+  } else if (!usable) state.run = null;
+  if (flat !== undefined) tests.flat_line = flat.flag;
+
   if (lim.attenuated && state.att) {
     const a = lim.attenuated;
     if (usable) binnedAdd(state.att, tMs, value);
@@ -153,7 +224,12 @@ export function qcUpdate(state: QcState, tMs: number, value: number, receiveMs?:
   state.prev2 = gapOk ? prev : null;
   state.prev = { tMs, v: value, good: usable, tests };
   const flag = aggregateFlags(Object.values(tests));
-  return finalizedPrevious ? { flag, tests, finalizedPrevious } : { flag, tests };
+  const out: QcResult = { flag, tests };
+  return {
+    ...out,
+    ...(finalizedPrevious ? { finalizedPrevious } : {}),
+    ...(flat?.sinceMs !== undefined ? { flatSinceMs: flat.sinceMs } : {}),
+  };
 }
 
 /**
@@ -175,29 +251,9 @@ function finalize(state: QcState, s: Sample, next: number): QcFinalized {
   const lim = state.limits.spike;
   if (lim) {
     const p2 = state.prev2;
-    tests.spike = s.good && p2 !== null && p2.good && p2.v !== null ? spike(p2.v, s.v, next, lim) : 2;
+    const scales = state.noise ? noiseScales(state.noise, state.limits.noise ?? DEFAULT_NOISE_LIMITS) : null;
+    const floored = spikeLimitsWithFloor(lim, scales?.spikeSd ?? null, scales?.resolution ?? 0);
+    tests.spike = s.good && p2 !== null && p2.good && p2.v !== null ? spike(p2.v, s.v, next, floored) : 2;
   }
   return { tMs: s.tMs, flag: aggregateFlags(Object.values(tests)), tests };
-}
-
-/**
- * Flat line (test 7): all values over the last T_s (T_f) within eps of V_n gives 3 (4). Resolved to the bins of
- * the window (T_f / 64): bins overlapping the span count whole, and the span counts as covered when the first
- * sample in it is no later than one bin after its start. 2 until the span is covered.
- */
-function flatLineFlag(
-  s: BinnedStats,
-  tMs: number,
-  v: number,
-  f: { eps: number; suspectMs: number; failMs: number },
-): QcFlag {
-  const within = (spanMs: number): boolean | undefined => {
-    const w = binnedSummary(s, tMs - spanMs, tMs);
-    if (!(w.firstMs <= tMs - spanMs + s.binMs) || w.n < 2) return undefined;
-    return w.min >= v - f.eps && w.max <= v + f.eps;
-  };
-  const sus = within(f.suspectMs);
-  if (sus === undefined) return 2;
-  if (!sus) return 1;
-  return within(f.failMs) === true ? 4 : 3;
 }

@@ -2,7 +2,15 @@
 // current versions). Each returns a flag; the incremental state in state.ts strings them together.
 
 import type { QcFlag } from './flags.js';
-import type { AttenuatedLimits, Bounds, ClimatologyTable, SpikeLimits } from './limits.js';
+import type {
+  AttenuatedLimits,
+  Bounds,
+  ClimatologyTable,
+  RateOfChangeLimits,
+  RepeatLimits,
+  SpikeLimits,
+  StuckLimits,
+} from './limits.js';
 
 const isMissing = (v: number): boolean => !Number.isFinite(v);
 
@@ -91,4 +99,67 @@ export function attenuatedFlag(variation: number, limits: AttenuatedLimits): QcF
 export function timing(sampleMs: number, receiveMs: number | undefined, maxAheadMs = 60_000): QcFlag {
   if (receiveMs === undefined || !Number.isFinite(receiveMs)) return 2;
   return sampleMs - receiveMs > maxAheadMs ? 4 : 1;
+}
+
+/**
+ * Spike limits raised to the sensor's noise floor (docs/methods/faults.md 12.2): each limit is at least
+ * k x spikeSd + resolution, k = noiseSuspect (5) / noiseFail (8). With Gaussian noise 5 sd is exceeded on
+ * 6e-7 of samples (common practice: normal tail), so the floor keeps clean data far below 1 % false flags.
+ */
+export function spikeLimitsWithFloor(
+  limits: SpikeLimits,
+  spikeSd: number | null,
+  resolution: number,
+): SpikeLimits {
+  if (spikeSd === null) return limits;
+  return {
+    suspect: Math.max(limits.suspect, (limits.noiseSuspect ?? 5) * spikeSd + resolution),
+    fail: Math.max(limits.fail, (limits.noiseFail ?? 8) * spikeSd + resolution),
+  };
+}
+
+/**
+ * The sd floor of the rate-of-change test with the noise floor of docs/methods/faults.md 12.2: the limit
+ * nSd x max(sd, floor) is never below noiseK x stepSd + resolution. On constant water the 25-h sd is the noise sd
+ * s while a step has sd s sqrt(2), so 3 sd alone flags 3.4 % of clean steps (P(|Z| > 2.12), normal tail); the floor
+ * (5 step sd) flags under 1e-6.
+ */
+export function rateOfChangeFloor(
+  limits: RateOfChangeLimits,
+  stepSd: number | null,
+  resolution: number,
+): number {
+  if (stepSd === null) return limits.minSd;
+  return Math.max(limits.minSd, ((limits.noiseK ?? 5) * stepSd + resolution) / limits.nSd);
+}
+
+/**
+ * Identical readings needed to call a sensor frozen (docs/methods/faults.md 12.3): the shortest run N >= minRun
+ * with p^(N-1) <= alpha, where p is the sensor's healthy chance of repeating a reading. Null (test not
+ * evaluated) when p is unknown, above maxRepeatP, or N would exceed maxRun. Check: p = 0.02, alpha 1e-5 gives
+ * N = 4 (0.02^3 = 8e-6; hand-computed), i.e. 30 min at a 10-min cadence.
+ */
+export function repeatRunNeeded(p: number | null, limits: RepeatLimits): number | null {
+  if (p === null || !(p <= limits.maxRepeatP)) return null;
+  if (p <= 0) return limits.minRun;
+  const n = 1 + Math.ceil(Math.log(limits.alpha) / Math.log(p) - 1e-12);
+  const run = Math.max(limits.minRun, n);
+  return run > limits.maxRun ? null : run;
+}
+
+/** Repeat flag of a run of `length` identical readings: 4 at `needed`, 3 one short (when that is >= 3), else 1. */
+export function repeatFlag(length: number, needed: number | null): QcFlag {
+  if (needed === null) return 2;
+  if (length >= needed) return 4;
+  if (length >= needed - 1 && needed - 1 >= 3) return 3;
+  return 1;
+}
+
+/** True when a reading sits exactly on one of the stuck-at values (zero, a rail). */
+export const isStuckValue = (v: number, limits: StuckLimits): boolean => limits.values.includes(v);
+
+/** Stuck-at flag for `count` consecutive readings on a stuck-at value: 0 gives 1, then 3, and 4 at limits.count. */
+export function stuckFlag(count: number, limits: StuckLimits): QcFlag {
+  if (count <= 0) return 1;
+  return count >= limits.count ? 4 : 3;
 }

@@ -184,11 +184,46 @@ describe('simulateMessages', () => {
     expect(v(i) - (v(i - 1) + v(i + 1)) / 2).toBeGreaterThan(60);
   });
 
+  it('stages a silent uplink: nothing is sent for 40 min, then the backlog in sample order, no event-time gap', () => {
+    const f = run.truth.find((r): r is FaultTruth => r.kind === 'fault' && r.fault === 'silent')!;
+    expect([f.station, f.sensor]).toEqual(['*', '*']);
+    expect(f.endMs - f.startMs).toBe(40 * 60_000);
+    expect(run.messages.filter((m) => m.tMs >= f.startMs && m.tMs < f.endMs)).toEqual([]);
+    const backlog = run.messages.filter((m) => m.tMs === f.endMs);
+    // Every sensor's samples of those 40 min: 8 per 5-min sensor (12 of them), 4 per 10-min one (8), 1-2 bursts
+    // per pressure gauge (6): about 135 at the demo site.
+    expect(backlog.length).toBeGreaterThanOrEqual(96 + 32 + 6);
+    expect(backlog.length).toBeLessThanOrEqual(96 + 32 + 12);
+    // In the order the loggers would have sent them: sample time, except a burst, sent when it ends.
+    const sampleMs = backlog
+      .filter((m) => !m.topic.includes('/pressure/'))
+      .map((m) => Date.parse(m.payload.t as string));
+    expect(sampleMs).toEqual([...sampleMs].sort((a, b) => a - b));
+    expect(Math.min(...sampleMs)).toBeGreaterThanOrEqual(f.startMs);
+    // A CTD's event times keep their 5-min cadence through the outage.
+    const ctd = run.messages
+      .filter((m) => m.topic.endsWith('/ctd-crest'))
+      .map((m) => Date.parse(m.payload.t as string))
+      .sort((a, b) => a - b);
+    const gaps = ctd.slice(1).map((t, i) => t - ctd[i]!);
+    expect(Math.max(...gaps)).toBe(5 * 60_000);
+  });
+
+  it('the failing battery starts from the healthy night level and falls 2 V over its window', () => {
+    const f = run.truth.find((r): r is FaultTruth => r.kind === 'fault' && r.fault === 'battery')!;
+    const v = run.messages
+      .filter((m) => m.topic.endsWith(`/${f.sensor}`) && m.tMs >= f.startMs)
+      .map((m) => m.payload.battery_v as number);
+    expect(v[0]!).toBeGreaterThan(12.5);
+    expect(v[0]!).toBeLessThan(12.7);
+    expect(v.at(-1)!).toBeLessThan(10.75);
+  });
+
   it('the optode set to S = 0 reads high, and re-compensation gives the truth back', () => {
     // An optode set to 0 reads ~20 % high in S 35 water (docs/methods/seawater.md 2.4).
     const msgs = run.messages.filter((m) => m.topic.endsWith('/o2-flat')).slice(0, 50);
     for (const m of msgs) {
-      const truth = truthAt('flat', m.tMs);
+      const truth = truthAt('flat', Date.parse(m.payload.t as string)); // sample time: a backlog is sent later;
       const raw = m.payload.o2_umol_l as number;
       expect(raw / (truth.o2_umol_kg * 1.022)).toBeGreaterThan(1.15);
       const fixed = raw * optodeSalinityFactor(truth.sal, 0, m.payload.temp_c as number);

@@ -8,6 +8,7 @@ import {
   failingBatteryV,
   healthyBatteryV,
   planFaults,
+  WHOLE_SITE,
   type ScriptedFault,
   type SensorRef,
 } from './faults.js';
@@ -126,8 +127,8 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
   const faultOf = (s: SensorRef, kind: ScriptedFault['fault'], tMs: number) =>
     faults.find(
       (f) =>
-        f.sensor === s.sensor &&
-        f.station === s.station &&
+        (f.sensor === s.sensor || f.sensor === WHOLE_SITE) &&
+        (f.station === s.station || f.station === WHOLE_SITE) &&
         f.fault === kind &&
         tMs >= f.startMs &&
         tMs < f.endMs + (kind === 'spike' ? CADENCE_S[s.kind as SensorConfig['kind']] * 1000 : 0),
@@ -152,6 +153,7 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
   let nextTruth = opts.startMs;
   const endMs = opts.startMs + opts.durationMs;
   const spiked = new Set<ScriptedFault>();
+  const backlog = new Map<SimMessage, number>();
   for (let tMs = opts.startMs; tMs < endMs; tMs += STEP_S * 1000) {
     if (withFaults && tMs >= nextCycleMs) {
       yield* startCycle(nextCycleMs);
@@ -197,12 +199,21 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
             : healthyBatteryV(snap.parUmolM2S, s.rng.normal()),
           2,
         );
+        // Silent uplink: the sample is kept by its logger and sent with the backlog when the link returns.
+        const outage = faultOf(s, 'silent', msg.tMs);
+        if (outage) {
+          backlog.set(msg, msg.tMs);
+          msg.tMs = outage.endMs;
+        }
         pending.push(msg);
       }
     }
-    pending.sort((a, b) => a.tMs - b.tMs);
+    // The backlog of an outage goes out in the order it was taken.
+    pending.sort((a, b) => a.tMs - b.tMs || (backlog.get(a) ?? a.tMs) - (backlog.get(b) ?? b.tMs));
     while (pending.length > 0 && (pending[0] as SimMessage).tMs < stepEnd) {
-      yield { type: 'message', message: pending.shift() as SimMessage };
+      const m = pending.shift() as SimMessage;
+      backlog.delete(m);
+      yield { type: 'message', message: m };
     }
   }
   for (const m of pending) if (m.tMs <= endMs) yield { type: 'message', message: m };

@@ -139,7 +139,7 @@ export function recordsFromTruth(config: ReefdConfig, truth: readonly TruthRow[]
         ncp_sigma_mmol_m2_h: 3 + 0.1 * Math.abs(r.ncp_mmol_m2_h),
         nec_sigma_mmol_m2_h: 2 + 0.15 * Math.abs(r.nec_mmol_m2_h),
       });
-    } else if (row.kind === 'fault') {
+    } else if (row.kind === 'fault' && row.fault !== 'silent') {
       // The fault rules raise a while after the fault starts (stale: 3 intervals; flat line: its window).
       const delayMs =
         row.fault === 'flatline'
