@@ -89,6 +89,8 @@ export const BUILTIN_RULE_IDS = [
   'range',
   'spike',
   'battery',
+  'battery_trend',
+  'site_silent',
 ];
 
 export const alertsConfigSchema = z
@@ -137,6 +139,8 @@ export const alertsConfigSchema = z
             below_v: z.partialRecord(z.enum(SENSOR_KINDS), z.number().finite().positive()).default({}),
             clear_margin_v: z.number().finite().min(0).default(0.3),
             raise_after_min: minutes.default(10),
+            // Trend warning (rule battery_trend): hours to the cut-off under this; 0 turns it off.
+            warn_hours: z.number().finite().min(0).default(6),
             severity: severitySchema.default('warning'),
           })
           .prefault({}),

@@ -5,16 +5,13 @@
 // and no lost clear.
 
 import { DEFAULT_QC_LIMITS } from '../qc/index.js';
+import { newBatteryWarnSeries, stepBatteryWarning, type BatteryWarnSeries } from './battery-warning.js';
 import { alertsConfigSchema, type AlertsConfigInput } from './config-schema.js';
-import {
-  newMetricFaults,
-  staleLimitMs,
-  trackMessage,
-  type MetricFaults,
-  type SensorTrack,
-} from './faults.js';
-import { alertId } from './id.js';
+import { newMetricFaults, type MetricFaults, type SensorTrack } from './faults.js';
+import { activeAlerts } from './active.js';
+import { makeAlert, SEP as sep, type AlertMaker } from './record.js';
 import { inScope, resolveRules, type ResolvedRules } from './rules.js';
+import { kindOfMetric, rebuildStale, staleDue, staleExempt, staleMessage } from './stale.js';
 import { newThresholdSeries, stepThreshold, type ThresholdSeries } from './threshold.js';
 import type { AlertRecord, FaultName, QcInfo, ThresholdRule } from './types.js';
 
@@ -25,6 +22,8 @@ export interface EngineSnapshot {
   thresholds: Record<string, ThresholdSeries>;
   metrics: Record<string, MetricFaults>;
   sensors: Record<string, SensorTrack>;
+  /** Battery trend warnings per station and sensor (absent in snapshots of earlier versions). */
+  battery?: Record<string, BatteryWarnSeries>;
 }
 
 export interface AlertEngine {
@@ -54,11 +53,6 @@ export interface AlertEngine {
   active(): AlertRecord[];
 }
 
-const iso = (ms: number): string => new Date(ms).toISOString();
-/** Event-time step of the stale check, ms. */
-const STALE_STEP_MS = 15_000;
-const sep = '\u001f'; // keys join ids that match [A-Za-z0-9_.-]; the unit separator cannot occur in them
-
 /** Creates an engine for one site. `config` is the `alerts:` section (raw or already parsed; parsed again). */
 export function createAlertEngine(config: AlertsConfigInput | undefined, site: string): AlertEngine {
   const parsed = alertsConfigSchema.safeParse(config ?? {});
@@ -70,40 +64,19 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
     );
   }
   const rules = resolveRules(parsed.data);
-  let st: EngineSnapshot = { v: 1, site, watermarkMs: null, thresholds: {}, metrics: {}, sensors: {} };
-
-  const base = (
-    rule: string,
-    cls: AlertRecord['class'],
-    state: AlertRecord['state'],
-    station: string,
-    tMs: number,
-    key: string,
-    raisedAtMs: number,
-    value: number | null,
-    limit: number | null,
-    severity: AlertRecord['severity'],
-    extra: { metric?: string | undefined; fault?: FaultName | undefined; sensor?: string | undefined },
-  ): AlertRecord => {
-    const rec: AlertRecord = {
-      type: 'alert',
-      site,
-      t: iso(tMs),
-      station,
-      rule,
-      class: cls,
-      state,
-      value: value !== null && Number.isFinite(value) ? value : null,
-      limit: limit !== null && Number.isFinite(limit) ? limit : null,
-      id: alertId(`${site}${sep}${key}`, raisedAtMs),
-      severity,
-    };
-    if (extra.metric !== undefined) rec.metric = extra.metric;
-    if (extra.fault !== undefined) rec.fault = extra.fault;
-    if (extra.sensor !== undefined) rec.sensor = extra.sensor;
-    if (state === 'cleared') rec.raised_t = iso(raisedAtMs);
-    return rec;
+  let st: EngineSnapshot = {
+    v: 1,
+    site,
+    watermarkMs: null,
+    thresholds: {},
+    metrics: {},
+    sensors: {},
+    battery: {},
   };
+  const staleCfg = rules.faults.stale;
+  let schedule = rebuildStale(st.sensors, staleCfg);
+
+  const base: AlertMaker = (...args) => makeAlert(site, ...args);
 
   const thresholdKey = (r: ThresholdRule, station: string, sensor: string | undefined): string =>
     [r.id, r.metric, station, sensor ?? ''].join(sep);
@@ -181,12 +154,20 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
     const tests = qc.tests ?? {};
 
     if (f.range.enabled && inScope(f.range, station, sensor) && tests.gross_range !== undefined) {
-      if (tests.gross_range === 4) {
+      // A reading stuck at zero or at a rail of its range (libs/qc stuck test) is a range fault too; its limit
+      // is the value it is stuck at.
+      const stuck = tests.stuck === 4;
+      if (tests.gross_range === 4 || stuck) {
         m.rangeOkSinceMs = null;
         if (m.range === null) {
           const lim = qc.limits ?? DEFAULT_QC_LIMITS[metric.slice(metric.indexOf('.') + 1)]?.sensor;
-          const limit =
-            lim === undefined ? null : lim.min !== undefined && value < lim.min ? lim.min : (lim.max ?? null);
+          const limit = stuck
+            ? value
+            : lim === undefined
+              ? null
+              : lim.min !== undefined && value < lim.min
+                ? lim.min
+                : (lim.max ?? null);
           m.range = { raisedAtMs: tMs, limit };
           emit('range', 'raised', tMs, tMs, value, limit, f.range.severity);
         }
@@ -243,31 +224,63 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
     const f = rules.faults.stale;
     const key = [station, sensor].join(sep);
     const tr = (st.sensors[key] ??= { lastMs: -Infinity, intervals: [], stale: null, staleLimitMs: null });
-    if (tMs <= tr.lastMs) return;
-    if (tr.stale !== null) {
-      const gapS = (tMs - tr.lastMs) / 1000;
-      out.push(
-        base(
-          'stale',
-          'fault',
-          'cleared',
-          station,
-          tMs,
-          `stale${sep}${key}`,
-          tr.stale.raisedAtMs,
-          gapS,
-          (tr.staleLimitMs ?? 0) / 1000,
-          f.severity,
-          {
-            fault: 'stale',
-            sensor,
-          },
-        ),
-      );
-    }
-    trackMessage(tr, tMs);
-    tr.stale = null;
-    tr.staleLimitMs = null;
+    const ended = staleMessage(schedule, tr, key, tMs, staleCfg);
+    if (ended === null) return;
+    out.push(
+      base(
+        'stale',
+        'fault',
+        'cleared',
+        station,
+        tMs,
+        `stale${sep}${key}`,
+        ended.raisedAtMs,
+        ended.gapMs / 1000,
+        ended.limitMs / 1000,
+        f.severity,
+        { fault: 'stale', sensor },
+      ),
+    );
+  }
+
+  function observeBattery(
+    metric: string,
+    station: string,
+    sensor: string | undefined,
+    tMs: number,
+    volts: number,
+    out: AlertRecord[],
+  ): void {
+    const b = rules.batteryTrend;
+    const cutoff = b.cutoffV[kindOfMetric(metric)];
+    if (!b.enabled || cutoff === undefined || !inScope(b, station, sensor)) return;
+    const key = ['battery_trend', station, sensor ?? ''].join(sep);
+    const s = ((st.battery ??= {})[key] ??= newBatteryWarnSeries());
+    const raisedBefore = s.raisedAtMs;
+    const step = stepBatteryWarning(s, b, cutoff, tMs, volts);
+    if (step.transition === null) return;
+    const hours =
+      step.hours === null || !Number.isFinite(step.hours) ? null : Math.round(step.hours * 10) / 10;
+    const raisedAt = step.transition === 'raised' ? tMs : (raisedBefore ?? tMs);
+    out.push(
+      base(
+        'battery_trend',
+        'fault',
+        step.transition,
+        station,
+        tMs,
+        key,
+        raisedAt,
+        hours,
+        b.warnHours,
+        b.severity,
+        {
+          metric,
+          fault: 'battery',
+          sensor,
+        },
+      ),
+    );
   }
 
   return {
@@ -278,15 +291,20 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
       const qc: QcInfo = typeof flag === 'number' ? { flag } : flag;
       // A sample failing the timing test (stamped ahead of its receipt: a clock fault) or dropped as a duplicate
       // says nothing trustworthy about when the sensor last spoke.
+      // Irregular kinds (bottle samples) are never stale (docs/methods/faults.md 12.5).
       if (
         qc.tests?.timing !== 4 &&
         sensor !== undefined &&
         rules.faults.stale.enabled &&
-        inScope(rules.faults.stale, station, sensor)
+        inScope(rules.faults.stale, station, sensor) &&
+        !staleExempt(metric)
       ) {
         observeStale(station, sensor, tMs, out);
       }
       if (typeof flag !== 'number') observeFaults(metric, station, sensor, tMs, value, qc, out);
+      if (metric.endsWith('.battery_v') && qc.flag !== 4 && qc.flag !== 9) {
+        observeBattery(metric, station, sensor, tMs, value, out);
+      }
       if (Number.isFinite(value) && qc.flag !== 4 && qc.flag !== 9) {
         observeThresholds(metric, station, sensor, tMs, value, qc.flag, out);
       }
@@ -295,40 +313,26 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
     advance(watermarkMs) {
       const out: AlertRecord[] = [];
       if (st.watermarkMs !== null && watermarkMs <= st.watermarkMs) return out;
-      // The silences are checked when the watermark enters a new STALE_STEP_MS step of event time, not on
-      // every message: the check walks every sensor, and a raise is stamped at last message + limit anyway,
-      // so only a silence that ends within one step of passing its limit (>= 5 min) can go unreported.
-      const step = Math.floor(watermarkMs / STALE_STEP_MS);
-      const due = st.watermarkMs === null || step !== Math.floor(st.watermarkMs / STALE_STEP_MS);
       st.watermarkMs = watermarkMs;
       const f = rules.faults.stale;
-      if (!f.enabled || !due) return out;
-      // Sorted keys: the order of the records does not depend on the order sensors were first seen.
-      for (const key of Object.keys(st.sensors).sort()) {
-        const tr = st.sensors[key] as SensorTrack;
-        if (tr.stale !== null) continue;
-        const lim = staleLimitMs(tr, f.factor, f.minMs);
-        if (lim === null || !(watermarkMs - tr.lastMs > lim)) continue;
-        const [station = '', sensor = ''] = key.split(sep);
-        const atMs = tr.lastMs + lim; // event time at which the silence passed the limit, not the watermark's
-        tr.stale = { raisedAtMs: atMs };
-        tr.staleLimitMs = lim;
+      if (!f.enabled) return out;
+      // Only the sensors whose deadline the watermark passed come out of the heap (issue 17), earliest first.
+      for (const due of staleDue(schedule, st.sensors, watermarkMs, staleCfg)) {
+        const [station = '', sensor = ''] = due.key.split(sep);
+        const limS = due.limitMs / 1000;
         out.push(
           base(
             'stale',
             'fault',
             'raised',
             station,
-            atMs,
-            `stale${sep}${key}`,
-            atMs,
-            lim / 1000,
-            lim / 1000,
+            due.atMs,
+            `stale${sep}${due.key}`,
+            due.atMs,
+            limS,
+            limS,
             f.severity,
-            {
-              fault: 'stale',
-              sensor,
-            },
+            { fault: 'stale', sensor },
           ),
         );
       }
@@ -345,67 +349,13 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
         );
       }
       st = structuredClone(snapshot);
+      st.battery ??= {};
       // JSON turns -Infinity into null: a sensor restored before its first message keeps "never seen".
       for (const tr of Object.values(st.sensors)) if (typeof tr.lastMs !== 'number') tr.lastMs = -Infinity;
+      schedule = rebuildStale(st.sensors, staleCfg);
     },
     active() {
-      const out: AlertRecord[] = [];
-      for (const [key, s] of Object.entries(st.thresholds)) {
-        if (s.raisedAtMs === null || (s.phase !== 'raised' && s.phase !== 'pending_clear')) continue;
-        const [rid, metric, station = '', sensor] = key.split(sep);
-        const r = rules.thresholds.find((x) => x.id === rid && x.metric === metric);
-        if (r === undefined) continue;
-        out.push(
-          base(r.id, r.class, 'raised', station, s.raisedAtMs, key, s.raisedAtMs, null, r.limit, r.severity, {
-            metric,
-            fault: r.fault,
-            sensor: sensor || undefined,
-          }),
-        );
-      }
-      for (const [key, tr] of Object.entries(st.sensors)) {
-        if (tr.stale === null) continue;
-        const [station = '', sensor] = key.split(sep);
-        const lim = (tr.staleLimitMs ?? 0) / 1000;
-        out.push(
-          base(
-            'stale',
-            'fault',
-            'raised',
-            station,
-            tr.stale.raisedAtMs,
-            `stale${sep}${key}`,
-            tr.stale.raisedAtMs,
-            lim,
-            lim,
-            rules.faults.stale.severity,
-            { fault: 'stale', sensor },
-          ),
-        );
-      }
-      for (const [key, m] of Object.entries(st.metrics)) {
-        const [metric, station = '', sensor] = key.split(sep);
-        for (const fault of ['range', 'flatline', 'spike'] as const) {
-          const a = m[fault];
-          if (a === null) continue;
-          out.push(
-            base(
-              fault,
-              'fault',
-              'raised',
-              station,
-              a.raisedAtMs,
-              `${fault}${sep}${key}`,
-              a.raisedAtMs,
-              null,
-              null,
-              rules.faults[fault].severity,
-              { metric, fault, sensor: sensor || undefined },
-            ),
-          );
-        }
-      }
-      return out.sort((a, b) => (a.t < b.t ? -1 : a.t > b.t ? 1 : a.id < b.id ? -1 : 1));
+      return activeAlerts(st, rules, base);
     },
   };
 }

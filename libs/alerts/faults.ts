@@ -1,5 +1,8 @@
 // Sensor-fault state of one series: stale (per sensor, from its observed message interval), and range, flat line
 // and spike (per sensor and metric, from the QC tests of libs/qc passed with each observation). Plain JSON data.
+// The usual interval and the stale limit are libs/qc's (cadence.ts), shared with the sensor-fault state.
+
+import { INTERVALS_KEPT, staleLimitMs, usualIntervalMs } from '../qc/index.js';
 
 /** Episode of an active fault. */
 export interface ActiveFault {
@@ -17,21 +20,7 @@ export interface SensorTrack {
   staleLimitMs: number | null;
 }
 
-export const INTERVALS_KEPT = 15;
-
-/** Median of the kept intervals: the sensor's usual interval, robust to the odd gap or burst. */
-export function usualIntervalMs(track: SensorTrack): number | null {
-  const xs = [...track.intervals].sort((a, b) => a - b);
-  if (xs.length === 0) return null;
-  const m = xs.length >> 1;
-  return xs.length % 2 === 1 ? (xs[m] as number) : ((xs[m - 1] as number) + (xs[m] as number)) / 2;
-}
-
-/** Stale limit: factor x the usual interval, at least minMs (contract: 3 x, at least 5 min). */
-export function staleLimitMs(track: SensorTrack, factor: number, minMs: number): number | null {
-  const u = usualIntervalMs(track);
-  return u === null ? null : Math.max(factor * u, minMs);
-}
+export { INTERVALS_KEPT, usualIntervalMs, staleLimitMs };
 
 /** Records a message time; intervals across a stale episode are not kept (they are outages, not cadence). */
 export function trackMessage(track: SensorTrack, tMs: number): void {

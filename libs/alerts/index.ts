@@ -2,11 +2,22 @@
 // `notify:`.
 export { createAlertEngine, type AlertEngine, type EngineSnapshot } from './engine.js';
 export {
+  createSiteSilence,
+  silenceOnMessage,
+  silenceCheck,
+  silenceNextCheckMs,
+  silenceActive,
+  SITE_SILENT_RULE,
+  type SiteSilenceState,
+  type SiteSilenceSettings,
+} from './silence.js';
+export {
   DEFAULT_RULES,
   DEFAULT_BATTERY_V,
   resolveRules,
   type ResolvedRules,
   type FaultSettings,
+  type BatteryTrendSettings,
 } from './rules.js';
 export {
   alertsConfigSchema,

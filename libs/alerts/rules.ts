@@ -55,9 +55,21 @@ export interface FaultSettings {
   };
 }
 
+/** The battery trend warning (battery-warning.ts): per-kind cut-offs are the `battery` rule's. */
+export interface BatteryTrendSettings {
+  readonly enabled: boolean;
+  readonly warnHours: number;
+  readonly persistMs: number;
+  readonly severity: ThresholdRule['severity'];
+  readonly cutoffV: Readonly<Record<string, number>>;
+  readonly stations?: readonly string[];
+  readonly sensors?: readonly string[];
+}
+
 export interface ResolvedRules {
   readonly thresholds: readonly ThresholdRule[];
   readonly faults: FaultSettings;
+  readonly batteryTrend: BatteryTrendSettings;
 }
 
 function scoped<T extends object>(
@@ -150,6 +162,16 @@ export function resolveRules(cfg: AlertsConfig): ResolvedRules {
   const f = cfg.faults;
   return Object.freeze({
     thresholds: Object.freeze(out),
+    batteryTrend: scoped(
+      {
+        enabled: bat.enabled && bat.warn_hours > 0,
+        warnHours: bat.warn_hours,
+        persistMs: bat.raise_after_min * MIN_MS,
+        severity: bat.severity,
+        cutoffV: Object.freeze({ ...DEFAULT_BATTERY_V, ...bat.below_v }),
+      },
+      bat,
+    ),
     faults: Object.freeze({
       stale: scoped(
         {

@@ -2,7 +2,7 @@
 
 import type { Severity } from './config-schema.js';
 
-export type FaultName = 'stale' | 'flatline' | 'range' | 'spike' | 'battery';
+export type FaultName = 'stale' | 'flatline' | 'range' | 'spike' | 'battery' | 'silent';
 export type AlertClass = 'threshold' | 'fault';
 export type AlertState = 'raised' | 'cleared';
 
@@ -16,7 +16,8 @@ export interface AlertRecord {
   site: string;
   /** ISO 8601 UTC event time of the transition. */
   t: string;
-  station: string;
+  /** Absent on a site-wide alert (`site_silent`). */
+  station?: string;
   rule: string;
   class: AlertClass;
   state: AlertState;
