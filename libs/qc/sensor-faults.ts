@@ -204,8 +204,11 @@ function pass(
   }
 }
 
+/** Stale and not heard from since (a recovering stale sensor that falls silent again is judged afresh). */
+const silentNow = (e: SensorFaultEntry): boolean => openOf(e, 'stale')?.endMs === null;
+
 function schedule(st: FaultState, e: SensorFaultEntry, key: string, opts: FaultOptions): void {
-  if (isIrregularKind(e.kind) || e.cadence.lastMs === null || openOf(e, 'stale') !== undefined) return;
+  if (isIrregularKind(e.kind) || e.cadence.lastMs === null || silentNow(e)) return;
   const lim = staleLimitMs(e.cadence, opts.staleFactor, opts.staleMinMs);
   if (lim === null) return;
   const due = e.cadence.lastMs + lim;
@@ -269,14 +272,7 @@ export function faultsOnQc(
   else delete e.spikeTimes[variable];
   if (times.length >= opts.spikeCount) open(e, key, 'spike', variable, times[0] as number, tMs, out);
   else if (times.length === 0 && fin !== undefined) {
-    endAndPass(
-      openOf(e, 'spike', variable),
-      fin.tests.spike === 1 && fin.flag !== 4,
-      key,
-      fin.tMs,
-      opts,
-      out,
-    );
+    endAndPass(openOf(e, 'spike', variable), fin.tests.spike === 1 && fin.flag !== 4, key, tMs, opts, out);
   }
 
   // Whole-sensor faults re-enter on samples that are not failed, one count per message.
@@ -368,7 +364,7 @@ export function faultsAdvance(st: FaultState, opts: FaultOptions, watermarkMs: n
     e.scheduledMs = null;
     const last = e.cadence.lastMs;
     const lim = staleLimitMs(e.cadence, opts.staleFactor, opts.staleMinMs);
-    if (last === null || lim === null || openOf(e, 'stale') !== undefined) continue;
+    if (last === null || lim === null || silentNow(e)) continue;
     if (last + lim < watermarkMs) {
       // Silent since the first missed message; detected when the silence passed the limit.
       const since = last + (usualIntervalMs(e.cadence) ?? lim);
@@ -428,8 +424,8 @@ export function faultsRestore(st: FaultState, opts: FaultOptions): FaultState {
   st.heap = newDeadlineHeap();
   for (const key of Object.keys(st.sensors).sort()) {
     const e = st.sensors[key] as SensorFaultEntry;
-    e.scheduledMs = null;
-    schedule(st, e, key, opts);
+    if (e.scheduledMs !== null) heapPush(st.heap, e.scheduledMs, key);
+    else schedule(st, e, key, opts);
   }
   return st;
 }
