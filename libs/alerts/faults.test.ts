@@ -227,3 +227,30 @@ describe('snapshot / restore', () => {
     expect(() => createAlertEngine(undefined, 'b').restore(s)).toThrow(/REEFD_ALERTS_BAD_SNAPSHOT/);
   });
 });
+
+describe('bottle samples are never stale (docs/methods/faults.md 12.5)', () => {
+  it('a sampling campaign then weeks of nothing raises nothing, while a CTD on the same station does', () => {
+    const e = createAlertEngine(undefined, 'demo-reef');
+    for (let i = 0; i < 6; i++) {
+      e.observe('sample.received', 'back', 'bottle', T0 + i * 10 * MIN, 1, 1);
+      e.observe('ctd.temp_c', 'back', 'ctd', T0 + i * 10 * MIN, 27, 1);
+    }
+    const r = e.advance(T0 + 30 * 24 * 60 * MIN);
+    expect(r.map((a) => [a.rule, a.sensor])).toEqual([['stale', 'ctd']]);
+  });
+});
+
+describe('stale from the deadline heap', () => {
+  it('raises in deadline order (then by station and sensor), whatever order the sensors were first seen', () => {
+    const e = createAlertEngine(undefined, 'demo-reef');
+    // z at 5 min, a at 5 min, m at 10 min: deadlines last + 15 min, last + 15 min, last + 30 min.
+    for (let i = 0; i < 10; i++) {
+      e.observe('ctd.temp_c', 'st', 'z', T0 + i * 5 * MIN, 27, 1);
+      e.observe('ctd.temp_c', 'st', 'a', T0 + i * 5 * MIN + 1000, 27, 1);
+      if (i % 2 === 0) e.observe('pco2.pco2_uatm', 'st', 'm', T0 + i * 5 * MIN, 400, 1);
+    }
+    const r = e.advance(T0 + 10 * 60 * MIN);
+    expect(r.map((a) => a.sensor)).toEqual(['z', 'a', 'm']);
+    expect(r.map((a) => a.t)).toEqual([at(T0 + 60 * MIN), at(T0 + 60 * MIN + 1000), at(T0 + 70 * MIN)]);
+  });
+});
