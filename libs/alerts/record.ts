@@ -1,4 +1,4 @@
-// One alert record from an episode's parts (contract.md 4 `alert`, plus our id, severity and raised_t).
+// One alert record from an episode's parts (docs/contract-v1.md section 4 `alert`, plus our id, severity and raised_t).
 
 import { alertId } from './id.js';
 import type { AlertRecord, FaultName } from './types.js';

@@ -13,7 +13,7 @@ const W0 = Date.UTC(2026, 11, 1, 8, 0, 0);
 const CFG = { silenceMs: 15 * MIN, severity: 'critical' as const };
 const iso = (ms: number) => new Date(ms).toISOString();
 
-describe('site_silent: the wall-clock dead-man of the live daemon (contract-ext E2/E3)', () => {
+describe('site_silent: the wall-clock dead-man of the live daemon (docs/contract-v1.md, E2/E3)', () => {
   it('raises once when no message came for silence_min, stamped when the silence passed it; the next message clears', () => {
     const st = createSiteSilence('ornen-reef', W0);
     expect(silenceOnMessage(st, CFG, W0 + MIN)).toEqual([]);

@@ -1,4 +1,4 @@
-// The site dead-man (contract-ext E2/E3): `site_silent` (class `fault`, fault `silent`) when no accepted message has
+// The site dead-man (docs/contract-v1.md sections 3 and 4, E2/E3): `site_silent` (class `fault`, fault `silent`) when no accepted message has
 // come from the site for `silenceMs` of wall-clock time, cleared on the next message. Unlike every other rule this
 // one runs on the wall clock, so only the live daemon calls it (never a replay, whose records must depend on the
 // messages alone). Pure: the daemon passes the wall time in, schedules its timer at nextCheckMs(), and keeps the
@@ -9,7 +9,7 @@ import { alertId } from './id.js';
 import type { AlertRecord } from './types.js';
 
 export interface SiteSilenceSettings {
-  /** Wall-clock silence that raises, ms (alerts.silence_min; contract-ext default 15 min). */
+  /** Wall-clock silence that raises, ms (alerts.silence_min, default 15 min). */
   readonly silenceMs: number;
   readonly severity: Severity;
 }

@@ -1,4 +1,4 @@
-// The `stale` fault on event time (contract.md 4: no message for 3 x the sensor's usual interval, at least 5 min),
+// The `stale` fault on event time (docs/contract-v1.md section 4: no message for 3 x the sensor's usual interval, at least 5 min),
 // driven by a deadline heap (issue 17): each sensor has at most one live entry at the time its silence would pass
 // the limit; advance() pops only the entries the watermark has passed, instead of walking and sorting every
 // sensor. The per-sensor tracks are the snapshot; the heap is rebuilt from them on restore.

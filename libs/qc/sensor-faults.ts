@@ -23,7 +23,7 @@ import { heapPeek, heapPop, heapPush, newDeadlineHeap, type DeadlineHeap } from 
 
 export type SensorFault = 'stale' | 'flatline' | 'range' | 'spike' | 'battery' | 'logbook_exclusion';
 
-/** Faults that make a record flag 4 and a flux window invalid (contract-ext E3); `battery` only warns. */
+/** Faults that make a record flag 4 and a flux window invalid (docs/contract-v1.md section 4, E3); `battery` only warns. */
 export const INVALIDATING_FAULTS: readonly SensorFault[] = Object.freeze([
   'stale',
   'flatline',
@@ -398,7 +398,7 @@ export function faultsDuring(st: FaultState, key: string, fromMs: number, toMs: 
 }
 
 /**
- * The `invalid_reasons` of a record or window built from `keys` over [fromMs, toMs] (contract-ext E3):
+ * The `invalid_reasons` of a record or window built from `keys` over [fromMs, toMs] (docs/contract-v1.md section 4, E3):
  * `input_fault:<station>/<sensor>/<fault>` for each invalidating fault, sorted, without repeats.
  */
 export function invalidReasons(
