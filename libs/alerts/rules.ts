@@ -1,6 +1,7 @@
 // Built-in and user rules resolved from the parsed `alerts:` section (config-schema.ts) into plain rule objects.
 
 import { alertsConfigSchema, type AlertsConfig } from './config-schema.js';
+import type { SiteSilenceSettings } from './silence.js';
 import type { ThresholdRule } from './types.js';
 
 const MIN_MS = 60_000;
@@ -70,6 +71,8 @@ export interface ResolvedRules {
   readonly thresholds: readonly ThresholdRule[];
   readonly faults: FaultSettings;
   readonly batteryTrend: BatteryTrendSettings;
+  /** The live daemon's wall-clock dead-man (silence.ts): alerts.silence_min, severity critical. */
+  readonly silence: SiteSilenceSettings;
 }
 
 function scoped<T extends object>(
@@ -162,6 +165,8 @@ export function resolveRules(cfg: AlertsConfig): ResolvedRules {
   const f = cfg.faults;
   return Object.freeze({
     thresholds: Object.freeze(out),
+    // Critical: when the whole site is silent nothing else will tell anyone.
+    silence: Object.freeze({ silenceMs: cfg.silence_min * MIN_MS, severity: 'critical' as const }),
     batteryTrend: scoped(
       {
         enabled: bat.enabled && bat.warn_hours > 0,

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
+  createAlertEngine,
   createSiteSilence,
   silenceActive,
   silenceCheck,
@@ -74,5 +75,15 @@ describe('site_silent: the wall-clock dead-man of the live daemon (docs/contract
     silenceOnMessage(st, CFG, W0 + 10 * MIN);
     silenceOnMessage(st, CFG, W0 + 5 * MIN); // NTP step back
     expect(st.lastMs).toBe(W0 + 10 * MIN);
+  });
+});
+
+describe('site_silent settings from the alerts section', () => {
+  it('takes alerts.silence_min (default 15) and is critical', () => {
+    expect(createAlertEngine(undefined, 'x').rules.silence).toEqual({
+      silenceMs: 15 * MIN,
+      severity: 'critical',
+    });
+    expect(createAlertEngine({ silence_min: 40 }, 'x').rules.silence.silenceMs).toBe(40 * MIN);
   });
 });
