@@ -19,7 +19,7 @@ export interface DriftLimits {
   readonly suspect: number;
   /** ... above this gives 4. */
   readonly fail: number;
-  /** Shortest span judged, ms (default 24 h: a day's cycle is in it). */
+  /** Shortest span judged, ms (default 23 h: a day's cycle is in it, and a day of 5-min samples spans 23 h 55). */
   readonly minSpanMs: number;
   /** Samples of A and B further apart than this are not paired, ms. */
   readonly maxPairGapMs: number;
@@ -33,7 +33,7 @@ const HOUR_MS = 3_600_000;
 const lim = (suspect: number, fail: number): DriftLimits => ({
   suspect,
   fail,
-  minSpanMs: 24 * HOUR_MS,
+  minSpanMs: 23 * HOUR_MS,
   maxPairGapMs: 10 * 60_000,
   binMs: HOUR_MS,
   minBins: 12,

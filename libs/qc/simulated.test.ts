@@ -15,8 +15,10 @@ import {
 import { parseConfigText, type ReefdConfig } from '../contract/index.js';
 import { createRng, simulateMessages, type FaultTruth, type SimMessage } from '../simulator/index.js';
 import {
+  coLocatedDrift,
   createFaultState,
   createQcState,
+  DEFAULT_DRIFT_LIMITS,
   DEFAULT_FAULT_OPTIONS,
   faultsAdvance,
   faultsOnBattery,
@@ -42,7 +44,10 @@ function demoConfig(keep: (kind: string) => boolean): ReefdConfig {
   return c;
 }
 // ADCP ensembles feed no QC test here; pressure bursts are slow to synthesise and run in their own, shorter set.
+// A second CTD on the mid-flat frame gives the drift test two sensors of one kind in the same water.
 const NO_BURSTS = demoConfig((k) => k !== 'adcp' && k !== 'pressure');
+const flatSensors = NO_BURSTS.stations.flat!.sensors;
+flatSensors['ctd-flat-b'] = structuredClone(flatSensors['ctd-flat']!);
 const BURSTS = demoConfig((k) => k === 'pressure' || k === 'met');
 
 /** The QC'd fields of each kind, as the messages carry them. */
@@ -63,6 +68,8 @@ interface ChainOut {
   tally: Map<string, [number, number]>;
   /** Final flags per sample: `${station}/${sensor}/${variable}` -> [tMs, spike flag][] (spikes only). */
   spikes: Map<string, [number, number][]>;
+  /** The two mid-flat CTDs' series: `${sensor}/${variable}` -> times and values. */
+  ctd: Map<string, { tMs: number[]; v: number[] }>;
 }
 
 /** Runs one stream through QC, the sensor-fault state, the alert engine and the wall-clock silence watch. */
@@ -72,7 +79,15 @@ function chain(messages: readonly SimMessage[], silenceMin = 15): ChainOut {
   const qc = new Map<string, QcState>();
   const silence = createSiteSilence('ornen-reef', messages[0]?.tMs ?? 0);
   const sCfg = { silenceMs: silenceMin * MIN, severity: 'critical' as const };
-  const out: ChainOut = { alerts: [], silent: [], changes: [], ledger, tally: new Map(), spikes: new Map() };
+  const out: ChainOut = {
+    alerts: [],
+    silent: [],
+    changes: [],
+    ledger,
+    tally: new Map(),
+    spikes: new Map(),
+    ctd: new Map(),
+  };
   const count = (k: string, f: number | undefined) => {
     if (f !== 1 && f !== 3 && f !== 4) return;
     const x = out.tally.get(k) ?? [0, 0];
@@ -104,6 +119,12 @@ function chain(messages: readonly SimMessage[], silenceMin = 15): ChainOut {
     if (typeof p.battery_v === 'number') values.push(['battery_v', p.battery_v]);
     for (const [variable, v] of values) {
       const qk = `${key}/${variable}`;
+      if (station === 'flat' && kind === 'ctd') {
+        const series = out.ctd.get(`${sensor}/${variable}`) ?? { tMs: [], v: [] };
+        series.tMs.push(tMs);
+        series.v.push(v);
+        out.ctd.set(`${sensor}/${variable}`, series);
+      }
       let s = qc.get(qk);
       if (s === undefined) qc.set(qk, (s = createQcState(variable)));
       const r = qcUpdate(s, tMs, v);
@@ -135,7 +156,28 @@ describe('false alarms on clean simulated data (faults off; docs/methods/faults.
   const tally = new Map<string, [number, number]>();
   const alerts: AlertRecord[] = [];
   const changes: FaultChange[] = [];
+  const drift: { variable: string; flag: number; change: number }[] = [];
   const add = (o: ChainOut) => {
+    // Drift between the two mid-flat CTDs over the whole 48 h and over each day.
+    for (const variable of ['temp_c', 'sal']) {
+      const a = o.ctd.get(`ctd-flat/${variable}`);
+      const b = o.ctd.get(`ctd-flat-b/${variable}`);
+      if (a === undefined || b === undefined) continue;
+      const t0 = a.tMs[0]!;
+      for (const [from, to] of [
+        [0, 48],
+        [0, 24],
+        [24, 48],
+      ] as const) {
+        const cut = (x: { tMs: number[]; v: number[] }) => {
+          const i = x.tMs.findIndex((t) => t >= t0 + from * H);
+          const j = x.tMs.findIndex((t) => t >= t0 + to * H);
+          return { tMs: x.tMs.slice(i, j < 0 ? undefined : j), v: x.v.slice(i, j < 0 ? undefined : j) };
+        };
+        const r = coLocatedDrift(cut(a), cut(b), DEFAULT_DRIFT_LIMITS[variable]!);
+        drift.push({ variable, flag: r.flag, change: r.change });
+      }
+    }
     for (const [k, [a, n]] of o.tally) {
       const x = tally.get(k) ?? [0, 0];
       tally.set(k, [x[0] + a, x[1] + n]);
@@ -173,6 +215,15 @@ describe('false alarms on clean simulated data (faults off; docs/methods/faults.
       }
     }
     for (const [k, [a, n]] of rows) expect(a / n, k).toBeLessThan(0.01);
+  });
+
+  it('finds no drift between two healthy CTDs in the same water (36 evaluations of 1-2 days)', () => {
+    expect(drift.length).toBe(SEEDS.length * 2 * 3);
+    expect(drift.filter((d) => d.flag !== 1)).toEqual([]);
+    console.log(
+      `co-located CTDs, largest change of B - A judged: temp ${Math.max(...drift.filter((d) => d.variable === 'temp_c').map((d) => Math.abs(d.change))).toFixed(4)} degC, ` +
+        `sal ${Math.max(...drift.filter((d) => d.variable === 'sal').map((d) => Math.abs(d.change))).toFixed(4)}`,
+    );
   });
 
   it('raises no fault alert, no site silence and no sensor fault on clean data', () => {
@@ -296,6 +347,18 @@ describe('detection of the scripted faults (docs/methods/faults.md 12.8)', () =>
       expect(c!.id).toBe(a!.id);
       // Store and forward: event time has no gap, so no sensor goes stale in the outage.
       expect(r.out.alerts.filter((x) => x.rule === 'stale' && Date.parse(x.t) < f.endMs + H)).toEqual([]);
+    }
+  });
+
+  it('a drift of 0.02 degC/day added to the second CTD is flagged within two days', () => {
+    for (const r of runs) {
+      const a = r.out.ctd.get('ctd-flat/temp_c')!;
+      const b = r.out.ctd.get('ctd-flat-b/temp_c')!;
+      const drifting = { tMs: b.tMs, v: b.v.map((v, i) => v + (0.02 * (b.tMs[i]! - b.tMs[0]!)) / (24 * H)) };
+      const d = coLocatedDrift(a, drifting, DEFAULT_DRIFT_LIMITS.temp_c!);
+      expect(d.flag).toBe(3); // 0.04 degC over 2 days: over 0.02, under 0.05
+      expect(d.slopePerDay).toBeCloseTo(0.02, 2);
+      expect(coLocatedDrift(a, b, DEFAULT_DRIFT_LIMITS.temp_c!).flag).toBe(1);
     }
   });
 
