@@ -75,6 +75,16 @@ describe('noise profile (docs/methods/faults.md 12.1)', () => {
     expect(ratio).toBeGreaterThan(1.04);
   });
 
+  it('learns a sensor that sat still at first (no clip against a zero mean)', () => {
+    const p = newNoiseProfile();
+    const rng = createRng(1);
+    for (let i = 0; i < 20; i++) noiseAdd(p, 400, i > 0, DEFAULT_NOISE_LIMITS);
+    for (let i = 0; i < 400; i++) noiseAdd(p, 400 + 1.5 * rng.normal(), true, DEFAULT_NOISE_LIMITS);
+    const sd = noiseScales(p, DEFAULT_NOISE_LIMITS).stepSd!;
+    expect(sd / (1.5 * Math.SQRT2)).toBeGreaterThan(0.85);
+    expect(sd / (1.5 * Math.SQRT2)).toBeLessThan(1.15);
+  });
+
   it('stays silent until minSamples differences were seen', () => {
     const p = newNoiseProfile();
     for (let i = 0; i < 10; i++) noiseAdd(p, 400 + i, i > 0, DEFAULT_NOISE_LIMITS);

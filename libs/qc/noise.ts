@@ -51,7 +51,8 @@ const SQRT_HALF_PI = Math.sqrt(Math.PI / 2);
 const CLIP = 5;
 
 function runningMean(mean: number, n: number, x: number, cap: number): [number, number] {
-  const clipped = n >= 8 ? Math.min(x, CLIP * mean) : x;
+  // No clip while the mean is 0 (a sensor that has not moved yet): it could never learn otherwise.
+  const clipped = n >= 8 && mean > 0 ? Math.min(x, CLIP * mean) : x;
   const m = Math.min(n + 1, cap);
   return [mean + (clipped - mean) / m, m];
 }
