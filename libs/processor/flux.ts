@@ -166,15 +166,18 @@ export function significant(value: number | null | undefined, sigma: number | nu
   return v !== null && s !== null && Math.abs(v) > 2 * s;
 }
 
+/** A flux record always carries its QARTOD flag (9 when the window could not be computed). */
+export type FlaggedFluxRecord = FluxRecord & { flag: number };
+
 /** The flux records of every transect for the window ending at endMs. */
 export function fluxAt(
   config: ReefdConfig,
   state: ProcessorState,
   endMs: number,
   params: Map<string, TransectParams>,
-): FluxRecord[] {
+): FlaggedFluxRecord[] {
   const W = config.processing.window_min * MIN;
-  const out: FluxRecord[] = [];
+  const out: FlaggedFluxRecord[] = [];
   for (const [id, tr] of Object.entries(config.transects)) {
     const startMs = endMs - W;
     if (!hasData(state, tr, startMs, endMs)) continue;
@@ -208,7 +211,7 @@ export function fluxAt(
     const r = computeTransectFlux(cur.window, prev, p, prevResult ? { previousResult: prevResult } : {});
     results[String(endMs)] = r;
     for (const k of Object.keys(results)) if (Number(k) < endMs - 2 * W) delete results[k];
-    const rec: FluxRecord = {
+    const rec: FlaggedFluxRecord = {
       type: 'flux',
       site: config.site,
       t,

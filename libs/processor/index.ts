@@ -1,7 +1,6 @@
 // Public API of the processor: the pure, event-time state machine shared by `reefd run`, `reefd replay` and tests.
 export {
   createProcessor,
-  checkAgainstConfig,
   MAX_CLOCK_LEAD_MS,
   type Processor,
   type PushResult,
@@ -9,4 +8,4 @@ export {
   type SensorHealthRow,
 } from './processor.js';
 export { STATE_VERSION, type ProcessorState, type ProcessorCounters } from './state.js';
-export { messageFromArchiveLine, type ArchiveInput } from './intake.js';
+export { checkAgainstConfig, messageFromArchiveLine, type ArchiveInput } from './intake.js';

@@ -7,7 +7,20 @@ import {
   type ReefdConfig,
   type SensorMessage,
 } from '../contract/index.js';
-import { checkAgainstConfig } from './processor.js';
+
+/**
+ * Checks a schema-valid message against the configuration: a station, sensor and kind it knows. Returns the
+ * reject reason, or undefined. Called before archiving so the archive marks such messages as rejected.
+ */
+export function checkAgainstConfig(config: ReefdConfig, m: SensorMessage): string | undefined {
+  if (m.site !== config.site) return 'unknown_site';
+  const st = config.stations[m.station];
+  if (st === undefined) return 'unknown_station';
+  const s = st.sensors[m.sensor];
+  if (s === undefined) return 'unknown_sensor';
+  if (s.kind !== m.kind) return 'kind_mismatch';
+  return undefined;
+}
 
 export type ArchiveInput = { ok: true; message: SensorMessage; rxMs: number } | { ok: false; reason: string };
 

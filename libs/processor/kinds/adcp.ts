@@ -1,0 +1,125 @@
+// ADCP: the depth-averaged current of each ensemble (docs/methods/currents.md), with the depth of the
+// station's pressure logger once its burst is complete, a `current` record per ensemble, and the east and north
+// series of the flux windows.
+import type { AdcpMessage, CurrentRecord } from '../../contract/index.js';
+import { processEnsemble } from '../../currents/index.js';
+import { densityEos80 } from '../../seawater/index.js';
+import { baroAt, ctdAt, series, worst, type DeriveContext } from '../derive.js';
+import { nearest } from '../series.js';
+import { atSampleTime, defineKind } from './types.js';
+
+const HOUR = 3_600_000;
+
+export const adcp = defineKind({
+  kind: 'adcp',
+  order: 4,
+  qcVariables: [],
+  writes: { station: ['east', 'north'], site: [] },
+  reads: { station: ['depthDone', 'hm0ssDone', 'temp', 'sal'], site: ['baro'] },
+  completeMs: atSampleTime,
+  derive(m, io) {
+    if (io.sensorConfig === undefined) return;
+    const r = deriveCurrent(io.ctx, m, io.sensorConfig);
+    io.emit(r.record);
+    const tilt = r.record.reason === 'tilt' ? 4 : 1;
+    const speed = r.record.speed_m_s;
+    io.alert('current.speed_m_s', speed ?? Number.NaN, Math.max(r.flag, tilt));
+    if (r.eastMS !== null && r.northMS !== null) {
+      io.put('east', m.tMs, r.eastMS, r.flag);
+      io.put('north', m.tMs, r.northMS, r.flag);
+    }
+  },
+});
+
+export interface AdcpSettings {
+  height_m: number;
+  beam_angle_deg: number;
+  orientation: 'up' | 'down';
+  declination_deg: number;
+  heading_offset_deg: number;
+  head: 'convex' | 'concave';
+  first_bin_range_m?: number | undefined;
+}
+
+export function deriveCurrent(
+  ctx: DeriveContext,
+  m: AdcpMessage,
+  s: AdcpSettings,
+): { record: CurrentRecord; flag: number; eastMS: number | null; northMS: number | null } {
+  // Depth from the station's pressure logger within the last hour, else the ADCP's own pressure (the lib).
+  const depth = nearest(series(ctx, m.station, 'depthDone'), m.tMs, HOUR, ctx.asOfMs);
+  const hm0 = nearest(series(ctx, m.station, 'hm0ssDone'), m.tMs, HOUR, ctx.asOfMs);
+  const ctd = ctdAt(ctx, m.station, m.tMs);
+  const baro = baroAt(ctx, m.tMs);
+  const r = processEnsemble(
+    {
+      coord: m.coord,
+      blankM: m.blank_m,
+      binM: m.bin_m,
+      velMS: m.vel_m_s,
+      ...(m.heading_deg !== undefined ? { headingDeg: m.heading_deg } : {}),
+      ...(m.pitch_deg !== undefined ? { pitchDeg: m.pitch_deg } : {}),
+      ...(m.roll_deg !== undefined ? { rollDeg: m.roll_deg } : {}),
+      ...(m.corr_pct !== undefined ? { corrPct: m.corr_pct } : {}),
+      ...(m.echo !== undefined ? { echo: m.echo } : {}),
+      ...(m.pres_dbar !== undefined ? { presDbar: m.pres_dbar } : {}),
+      ...(m.temp_c !== undefined ? { tempC: m.temp_c } : {}),
+    },
+    {
+      heightM: s.height_m,
+      beamAngleDeg: s.beam_angle_deg,
+      orientation: s.orientation,
+      declinationDeg: s.declination_deg,
+      headingOffsetDeg: s.heading_offset_deg,
+      convex: s.head === 'convex',
+      ...(s.first_bin_range_m !== undefined ? { firstBinRangeM: s.first_bin_range_m } : {}),
+    },
+    {
+      reefAxisDeg: ctx.config.reef_axis_deg,
+      patmDbar: baro.hpa * 0.01,
+      gMS2: ctx.gMS2,
+      ...(depth ? { depthM: depth.value } : {}),
+      ...(hm0 ? { hm0SsM: hm0.value } : {}),
+      ...(ctd ? { rhoKgM3: densityEos80(ctd.sal.value, ctd.temp.value) } : {}),
+    },
+  );
+  const base = {
+    type: 'current' as const,
+    site: ctx.config.site,
+    t: m.t,
+    station: m.station,
+    sensor: m.sensor,
+  };
+  if (!r.ok) {
+    const record: CurrentRecord = {
+      ...base,
+      east_m_s: null,
+      north_m_s: null,
+      u_m_s: null,
+      v_m_s: null,
+      speed_m_s: null,
+      dir_to_deg: null,
+      bins_used: 0,
+      flag: r.flag,
+      reason: r.reason,
+    };
+    return { record, flag: r.flag, eastMS: null, northMS: null };
+  }
+  const flag = worst(r.flag, depth ? depth.flag : 1);
+  const record: CurrentRecord = {
+    ...base,
+    east_m_s: r.eastMS,
+    north_m_s: r.northMS,
+    u_m_s: r.uMS,
+    v_m_s: r.vMS,
+    speed_m_s: r.speedMS,
+    dir_to_deg: r.dirToDeg,
+    bins_used: r.binsUsed,
+    depth_m: r.depthM,
+    depth_source: r.depthSource,
+    tau_bed_pa: r.tauBedPa,
+    speed_sigma_m_s: r.sigmaMS,
+    flag,
+  };
+  return { record, flag, eastMS: r.eastMS, northMS: r.northMS };
+}

@@ -1,0 +1,104 @@
+// pCO2 sensor: the carbonate system at each reading (docs/methods/carbonate.md 3.6, 3.8), reported at the
+// station CTD's temperature with TA from salinity or bottle samples, a `carbonate` record per reading, and the
+// pCO2, TA and DIC series of the flux windows. The last pH is the warm start of the next solve.
+import type { CarbonateRecord, Pco2Message } from '../../contract/index.js';
+import { carbonateUncertainty, solveCarbonate } from '../../carbonate/index.js';
+import { baroAt, ctdAt, taFor, worst, type DeriveContext } from '../derive.js';
+import { atSampleTime, defineKind } from './types.js';
+
+export const pco2 = defineKind({
+  kind: 'pco2',
+  order: 7,
+  qcVariables: ['pco2_uatm'],
+  writes: { station: ['pco2', 'ta', 'dic'], site: [] },
+  reads: { station: ['temp', 'sal', 'sampleTa', 'sampleSal'], site: ['baro'] },
+  completeMs: atSampleTime,
+  derive(m, io) {
+    const f0 = io.qc('pco2.pco2_uatm', 'pco2_uatm', m.pco2_uatm);
+    if (f0 === 4) return; // a failed reading never feeds a derivation (docs/methods/qc.md 7.4)
+    const r = deriveCarbonate(io.ctx, m, io.sensorState.lastPh);
+    if ('skip' in r) return;
+    const f = Math.max(f0, r.flag);
+    r.record.flag = f;
+    io.sensorState.lastPh = r.ph;
+    io.emit(r.record);
+    io.observe(r.record, f);
+    io.put('pco2', m.tMs, r.pco2Out, f);
+    io.put('ta', m.tMs, r.ta, f);
+    io.put('dic', m.tMs, r.dic, f);
+  },
+});
+
+/** The carbonate system at a pCO2 reading, reported at the CTD temperature (docs/methods/carbonate.md 3.6, 3.8). */
+export function deriveCarbonate(
+  ctx: DeriveContext,
+  m: Pco2Message,
+  warmPh: number | undefined,
+):
+  | { record: CarbonateRecord; flag: number; ph: number; ta: number; dic: number; pco2Out: number }
+  | { skip: string } {
+  const ctd = ctdAt(ctx, m.station, m.tMs);
+  if (!ctd) return { skip: 'no_ctd' };
+  const S = ctd.sal.value;
+  const tOut = ctd.temp.value;
+  const tIn = m.temp_c ?? tOut;
+  const { ta, source } = taFor(ctx, m.station, m.tMs, S);
+  const baro = baroAt(ctx, m.tMs);
+  const input = {
+    salinity: S,
+    tempC: tIn,
+    pco2Uatm: m.pco2_uatm,
+    taUmolKg: ta,
+    outTempC: tOut,
+    baroHpa: baro.hpa,
+    ...(warmPh !== undefined ? { initialPh: warmPh } : {}),
+  };
+  const r = solveCarbonate(input, ctx.carbonateOptions);
+  if (!r.ok) return { skip: `carbonate:${r.code}` };
+  const sig = carbonateUncertainty(
+    input,
+    {
+      pco2Uatm: Math.max(2, 0.01 * m.pco2_uatm),
+      taUmolKg: source === 'salinity' ? 10 : 3,
+      tempC: 0.05,
+      salinity: 0.05,
+    },
+    ctx.carbonateOptions,
+  );
+  const sg = (k: string): number | undefined => {
+    const v = (sig as unknown as Record<string, unknown>)[k];
+    return typeof v === 'number' && Number.isFinite(v) ? v : undefined;
+  };
+  const flag = worst(r.flag, ctd.sal.flag, ctd.temp.flag, baro.source === 'default' ? 2 : 1);
+  const record: CarbonateRecord = {
+    type: 'carbonate',
+    site: ctx.config.site,
+    t: m.t,
+    station: m.station,
+    ta_umol_kg: r.taUmolKg,
+    dic_umol_kg: r.dicUmolKg,
+    ph_total: r.phTotal,
+    pco2_uatm: r.pco2Uatm,
+    co3_umol_kg: r.co3UmolKg,
+    omega_ar: r.omegaAr,
+    omega_ca: r.omegaCa,
+    ta_source: source,
+    hco3_umol_kg: r.hco3UmolKg,
+    co2_umol_kg: r.co2UmolKg,
+    revelle: r.revelle,
+    temp_c: tOut,
+    sal: S,
+    sensor: m.sensor,
+    flag,
+    constants: `${ctx.config.carbonate.carbonic_constants}/${ctx.config.carbonate.boron}`,
+  };
+  for (const [k, name] of [
+    ['phTotal', 'ph_total_sigma'],
+    ['omegaAr', 'omega_ar_sigma'],
+    ['dicUmolKg', 'dic_umol_kg_sigma'],
+  ] as const) {
+    const v = sg(k);
+    if (v !== undefined) (record as Record<string, unknown>)[name] = v;
+  }
+  return { record, flag, ph: r.phTotal, ta: r.taUmolKg, dic: r.dicUmolKg, pco2Out: r.pco2Uatm };
+}

@@ -1,0 +1,88 @@
+// What happens as the watermark moves: flux windows whose end it has passed (on the cadence grid), pruning of
+// old samples, and the alert engine's stale check. Records emitted per window (not per message) start here.
+import type { DerivedRecord, ReefdConfig } from '../contract/index.js';
+import type { AlertEngine } from '../alerts/index.js';
+import type { TransectParams } from '../metabolism/index.js';
+import { fluxAt, transectParams } from './flux.js';
+import { alertRecord, type Observer } from './observe.js';
+import { pruneBefore, type Series } from './series.js';
+import type { ProcessorTimes } from './settings.js';
+import type { ProcessorState, SiteVar, StationVar } from './state.js';
+
+const MIN = 60_000;
+const HOUR = 3_600_000;
+/** After a silence longer than this, the grid resumes near the watermark instead of walking every tick. */
+const MAX_TICK_WALK_MS = 48 * HOUR;
+
+export interface Windows {
+  /** Computes what the watermark's move makes due; records and alerts go to `out`. */
+  advance(watermarkMs: number, out: DerivedRecord[]): void;
+}
+
+export function createWindows(
+  config: ReefdConfig,
+  state: ProcessorState,
+  times: ProcessorTimes,
+  alerts: AlertEngine,
+  observer: Observer,
+): Windows {
+  const params = new Map<string, TransectParams>(
+    Object.entries(config.transects).map(([id, tr]) => [id, transectParams(config, tr)]),
+  );
+  const hasTransects = params.size > 0;
+  // Pruning walks every series of every station, so it runs when the watermark enters a new minute, not on
+  // every message: the horizons are hours longer than anything a derivation reads, so when the old samples
+  // go changes no record. (Not in the checkpoint: after a restart the first advance prunes.)
+  let lastPruneStep = -1;
+
+  function tick(endMs: number, out: DerivedRecord[]): void {
+    if (!hasTransects) return;
+    for (const r of fluxAt(config, state, endMs, params)) {
+      out.push(r);
+      observer.record(r, undefined, Date.parse(r.t), r.flag, out);
+    }
+  }
+
+  function prune(watermarkMs: number): void {
+    const cut = watermarkMs - times.horizonMs;
+    const sampleCut = watermarkMs - times.sampleHorizonMs;
+    for (const id in state.stations) {
+      const st = state.stations[id] as Record<StationVar, Series>;
+      for (const k in st) {
+        const s = st[k as StationVar];
+        const c = k.startsWith('sample') ? sampleCut : cut;
+        if (s.t.length > 0 && (s.t[0] as number) < c) pruneBefore(s, c);
+      }
+    }
+    const siteCut = watermarkMs - times.siteHorizonMs;
+    for (const k in state.site) {
+      const s = state.site[k as SiteVar];
+      if (s.t.length > 0 && (s.t[0] as number) < siteCut) pruneBefore(s, siteCut);
+    }
+  }
+
+  return {
+    advance(watermarkMs, out) {
+      const cadence = times.cadenceMs;
+      if (state.lastTickMs < 0) {
+        // The cadence grid starts at the earliest message derived (not the first to arrive), so the windows
+        // do not depend on the delivery order within the lateness.
+        if (state.firstDerivedMs === undefined) return;
+        state.lastTickMs = Math.floor(state.firstDerivedMs / cadence) * cadence;
+      }
+      let next = state.lastTickMs + cadence;
+      if (watermarkMs - next > MAX_TICK_WALK_MS)
+        next = Math.floor((watermarkMs - 2 * times.windowMs) / cadence) * cadence;
+      for (; next + times.windowDelayMs <= watermarkMs; next += cadence) {
+        tick(next, out);
+        state.lastTickMs = next;
+      }
+      const pruneStep = Math.floor(watermarkMs / MIN);
+      if (pruneStep !== lastPruneStep) {
+        lastPruneStep = pruneStep;
+        prune(watermarkMs);
+      }
+      for (const a of alerts.advance(watermarkMs)) out.push(alertRecord(a));
+    },
+  };
+}
