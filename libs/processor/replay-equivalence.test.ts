@@ -160,9 +160,11 @@ describe('records on two simulated days of the demo reef, against the digest fro
   let inOrder: ReturnType<typeof replay>;
   let shuffled: ReturnType<typeof replay>;
   let fixture: Fixture;
+  let parMessages = 0;
 
   beforeAll(() => {
     const list = deliveries(config);
+    parMessages = list.filter((d) => d.message.kind === 'par').length;
     inOrder = replay(config, list);
     shuffled = replay(config, roughen(list));
     const now: Fixture = {
@@ -194,6 +196,14 @@ describe('records on two simulated days of the demo reef, against the digest fro
     expect(shuffled.digest.byType).toEqual(fixture.shuffled.byType);
     expect(shuffled.digest.all).toEqual(fixture.shuffled.all);
     expect(shuffled.digest.counters).toEqual(fixture.shuffled.counters);
+  });
+
+  it('adds one light record per PAR sample, and nothing else', () => {
+    const light = inOrder.records.filter((r) => r.type === 'light');
+    expect(parMessages).toBeGreaterThan(500); // 2 d at 5 min
+    expect(light.length).toBe(parMessages);
+    const types = new Set(inOrder.records.map((r) => r.type));
+    expect([...types].filter((t) => fixture.inOrder.byType[t] === undefined)).toEqual(['light']);
   });
 
   it('keeps the checkpoint shape and version', () => {
