@@ -3,6 +3,7 @@
 // here; the built-in rules' defaults are the contract's (docs/contract-v1.md section 4) and docs/methods/alerts.md.
 
 import { z } from 'zod';
+import type { Kind } from '../contract/index.js';
 
 const ID = /^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$/; // docs/contract-v1.md section 1
 const id = z.string().regex(ID, 'ids match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');
@@ -17,8 +18,11 @@ const minutes = z.number().finite().min(0);
 export const severitySchema = z.enum(['info', 'warning', 'critical']);
 export type Severity = z.output<typeof severitySchema>;
 
-/** Kinds of the contract that carry `battery_v`. */
+/** Kinds of the contract that carry `battery_v` (every kind: libs/contract KINDS). */
 export const SENSOR_KINDS = ['ctd', 'oxygen', 'pco2', 'pressure', 'adcp', 'par', 'met', 'sample'] as const;
+// A kind of the contract missing above (or one it does not have) is a compile error naming it.
+type KindsOff = Exclude<Kind, (typeof SENSOR_KINDS)[number]> | Exclude<(typeof SENSOR_KINDS)[number], Kind>;
+const _sameKindsAsContract: [KindsOff] extends [never] ? true : KindsOff = true;
 
 /** Where a rule applies: omitted = every station (site-wide scope). */
 const scope = {

@@ -2,7 +2,7 @@
 // (processing, sources, outputs, archive, http). Unknown keys are rejected everywhere; defaults live here only.
 import { z } from 'zod';
 import { alertsConfigSchema, notifyConfigSchema } from '../alerts/index.js';
-import { ID_PATTERN } from './ids.js';
+import { ID_PATTERN, type Kind } from './ids.js';
 
 const id = z.string().regex(ID_PATTERN, 'must match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');
 const bearing = z.number().min(0).lt(360);
@@ -68,6 +68,11 @@ export const sensorConfigSchema = z.discriminatedUnion('kind', [
   metSensorSchema,
   sampleSensorSchema,
 ]);
+// One sensor schema per message kind (ids.ts KINDS), no more: a kind without one is a compile error naming it.
+type SensorKindsOff =
+  | Exclude<Kind, z.infer<typeof sensorConfigSchema>['kind']>
+  | Exclude<z.infer<typeof sensorConfigSchema>['kind'], Kind>;
+const _sensorSchemaPerKind: [SensorKindsOff] extends [never] ? true : SensorKindsOff = true;
 
 export const stationSchema = z.strictObject({
   label: z.string().max(80).optional(),

@@ -1,6 +1,6 @@
 // The simulator's public generator: reef state + time -> sensor messages (contract section 1) and the truth
 // they were built from. Pure: the same config, start, duration and seed give the same sequence.
-import type { ReefdConfig, SensorConfig } from '../contract/index.js';
+import type { Kind, ReefdConfig, SensorConfig } from '../contract/index.js';
 import { adcpEnsemble, type AdcpSetup } from './adcp.js';
 import { synthesizeBurst } from './burst.js';
 import { density, o2MgL, speciate } from './chemistry.js';
@@ -40,8 +40,8 @@ export interface SimMessage {
 
 export type SimEvent = { type: 'message'; message: SimMessage } | { type: 'truth'; row: TruthRow };
 
-/** Reporting interval of each kind, s (pressure: one burst per interval). */
-export const CADENCE_S: Readonly<Record<SensorConfig['kind'], number>> = Object.freeze({
+/** Reporting interval of each kind of the contract, s (pressure: one burst per interval). */
+export const CADENCE_S: Readonly<Record<Kind, number>> = Object.freeze({
   ctd: 300,
   oxygen: 300,
   pco2: 600,
@@ -131,7 +131,7 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
         (f.station === s.station || f.station === WHOLE_SITE) &&
         f.fault === kind &&
         tMs >= f.startMs &&
-        tMs < f.endMs + (kind === 'spike' ? CADENCE_S[s.kind as SensorConfig['kind']] * 1000 : 0),
+        tMs < f.endMs + (kind === 'spike' ? CADENCE_S[s.kind as Kind] * 1000 : 0),
     );
   let nextCycleMs = opts.startMs;
   function* startCycle(cycleMs: number): Generator<SimEvent> {
@@ -350,6 +350,11 @@ function buildMessage(
           temp_c: r(w.tempC, 3),
         },
       };
+    }
+    default: {
+      // Every configurable kind has a message above: a new kind is a compile error here.
+      const missing: never = s.config;
+      return missing;
     }
   }
 }
