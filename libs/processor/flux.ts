@@ -169,6 +169,67 @@ export function significant(value: number | null | undefined, sigma: number | nu
 /** A flux record always carries its QARTOD flag (9 when the window could not be computed). */
 export type FlaggedFluxRecord = FluxRecord & { flag: number };
 
+/** The record of a window whose inputs are missing (`missing` names them, e.g. `back.o2`). */
+function missingFluxRecord(site: string, t: string, transect: string, missing: string[]): FlaggedFluxRecord {
+  return {
+    type: 'flux',
+    site,
+    t,
+    transect,
+    ncp_mmol_m2_h: null,
+    nec_mmol_m2_h: null,
+    nec_method: null,
+    u_m_s: null,
+    depth_m: null,
+    residence_min: null,
+    valid: false,
+    ncp_significant: false,
+    nec_significant: false,
+    flag: 9,
+    invalid_reasons: 'input_missing',
+    missing: missing.join(','),
+  };
+}
+
+/** The record of a computed window. */
+function fluxRecord(
+  site: string,
+  t: string,
+  transect: string,
+  tr: TransectConfig,
+  r: FluxResult,
+): FlaggedFluxRecord {
+  const rec: FlaggedFluxRecord = {
+    type: 'flux',
+    site,
+    t,
+    transect,
+    ncp_mmol_m2_h: fin(r.ncpMmolM2H),
+    nec_mmol_m2_h: fin(r.necMmolM2H),
+    nec_method: r.necMethod,
+    u_m_s: fin(r.uMS),
+    depth_m: fin(r.depthM),
+    residence_min: fin(r.residenceMin),
+    valid: r.valid,
+    ncp_significant: significant(r.ncpMmolM2H, r.sigmaNcpMmolM2H),
+    nec_significant: significant(r.necMmolM2H, r.sigmaNecMmolM2H),
+    flag: r.flag,
+    ncp_sigma_mmol_m2_h: fin(r.sigmaNcpMmolM2H),
+    nec_sigma_mmol_m2_h: fin(r.sigmaNecMmolM2H),
+    invalid_reasons: r.invalidReasons.join(','),
+    upstream: r.swapped ? tr.downstream : tr.upstream,
+    downstream: r.swapped ? tr.upstream : tr.downstream,
+    angle_off_deg: fin(r.angleOffDeg),
+    storage_fraction: fin(r.storageFractionO2),
+  };
+  if (r.airSea) {
+    rec.fas_o2_mmol_m2_h = fin(r.airSea.fasO2MmolM2H);
+    rec.fas_co2_mmol_m2_h = fin(r.airSea.fasCo2MmolM2H);
+  }
+  if (r.notes.length > 0) rec.notes = r.notes.join(',');
+  return rec;
+}
+
 /** The flux records of every transect for the window ending at endMs. */
 export function fluxAt(
   config: ReefdConfig,
@@ -186,60 +247,16 @@ export function fluxAt(
     const t = new Date(endMs - W / 2).toISOString();
     const results = (state.transects[id] ??= {});
     if (!cur.window) {
-      out.push({
-        type: 'flux',
-        site: config.site,
-        t,
-        transect: id,
-        ncp_mmol_m2_h: null,
-        nec_mmol_m2_h: null,
-        nec_method: null,
-        u_m_s: null,
-        depth_m: null,
-        residence_min: null,
-        valid: false,
-        ncp_significant: false,
-        nec_significant: false,
-        flag: 9,
-        invalid_reasons: 'input_missing',
-        missing: cur.missing.join(','),
-      });
+      out.push(missingFluxRecord(config.site, t, id, cur.missing));
       continue;
     }
     const prev = transectWindow(state, tr, startMs - W, startMs).window;
     const prevResult = results[String(startMs)] as FluxResult | undefined;
     const r = computeTransectFlux(cur.window, prev, p, prevResult ? { previousResult: prevResult } : {});
+    // The storage form of the next window's inverse needs this one's result (kept for two windows).
     results[String(endMs)] = r;
     for (const k of Object.keys(results)) if (Number(k) < endMs - 2 * W) delete results[k];
-    const rec: FlaggedFluxRecord = {
-      type: 'flux',
-      site: config.site,
-      t,
-      transect: id,
-      ncp_mmol_m2_h: fin(r.ncpMmolM2H),
-      nec_mmol_m2_h: fin(r.necMmolM2H),
-      nec_method: r.necMethod,
-      u_m_s: fin(r.uMS),
-      depth_m: fin(r.depthM),
-      residence_min: fin(r.residenceMin),
-      valid: r.valid,
-      ncp_significant: significant(r.ncpMmolM2H, r.sigmaNcpMmolM2H),
-      nec_significant: significant(r.necMmolM2H, r.sigmaNecMmolM2H),
-      flag: r.flag,
-      ncp_sigma_mmol_m2_h: fin(r.sigmaNcpMmolM2H),
-      nec_sigma_mmol_m2_h: fin(r.sigmaNecMmolM2H),
-      invalid_reasons: r.invalidReasons.join(','),
-      upstream: r.swapped ? tr.downstream : tr.upstream,
-      downstream: r.swapped ? tr.upstream : tr.downstream,
-      angle_off_deg: fin(r.angleOffDeg),
-      storage_fraction: fin(r.storageFractionO2),
-    };
-    if (r.airSea) {
-      rec.fas_o2_mmol_m2_h = fin(r.airSea.fasO2MmolM2H);
-      rec.fas_co2_mmol_m2_h = fin(r.airSea.fasCo2MmolM2H);
-    }
-    if (r.notes.length > 0) rec.notes = r.notes.join(',');
-    out.push(rec);
+    out.push(fluxRecord(config.site, t, id, tr, r));
   }
   return out;
 }

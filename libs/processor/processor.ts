@@ -6,7 +6,7 @@ import type { DerivedRecord, ReefdConfig, SensorMessage } from '../contract/inde
 import { createAlertEngine, type AlertEngine, type EngineSnapshot } from '../alerts/index.js';
 import { makeContext } from './derive.js';
 import { deriveMessage, moduleOf } from './dispatch.js';
-import { alertRecord, createObserver } from './observe.js';
+import { alertRecord, createObserver, type Observer } from './observe.js';
 import { hold, takeDue } from './order.js';
 import { isDuplicate, sensorHealth, type SensorHealthRow } from './sensors.js';
 import { processorTimes } from './settings.js';
@@ -66,6 +66,35 @@ function startAlerts(config: ReefdConfig, state: ProcessorState): AlertEngine {
   return alerts;
 }
 
+/**
+ * The intake rules before a message is accepted: a disabled sensor, a clock running ahead, a duplicate.
+ * Returns the status of a refused message (counted; a clock fault feeds the alert engine), or undefined.
+ */
+function screen(
+  config: ReefdConfig,
+  state: ProcessorState,
+  observer: Observer,
+  m: SensorMessage,
+  rxMs: number,
+  out: DerivedRecord[],
+): Exclude<PushStatus, 'ok'> | undefined {
+  if (config.stations[m.station]?.sensors[m.sensor]?.enabled === false) {
+    state.counters.disabledSensor++;
+    return 'disabled';
+  }
+  if (m.tMs - rxMs > MAX_CLOCK_LEAD_MS) {
+    // A sensor clock running ahead would drag the watermark into the future and close every window.
+    state.counters.clockFaults++;
+    observer.alert(m, `${m.kind}.clock`, Number.NaN, 4, out);
+    return 'clock_fault';
+  }
+  if (isDuplicate(state, m)) {
+    state.counters.duplicates++;
+    return 'duplicate';
+  }
+  return undefined;
+}
+
 export function createProcessor(config: ReefdConfig, restored?: ProcessorState): Processor {
   const state = startState(config, restored);
   const alerts = startAlerts(config, state);
@@ -106,20 +135,8 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
   return {
     push(m, rxMs) {
       const out: DerivedRecord[] = [];
-      if (config.stations[m.station]?.sensors[m.sensor]?.enabled === false) {
-        state.counters.disabledSensor++;
-        return { status: 'disabled', records: out, late: false };
-      }
-      if (m.tMs - rxMs > MAX_CLOCK_LEAD_MS) {
-        // A sensor clock running ahead would drag the watermark into the future and close every window.
-        state.counters.clockFaults++;
-        observer.alert(m, `${m.kind}.clock`, Number.NaN, 4, out);
-        return { status: 'clock_fault', records: out, late: false };
-      }
-      if (isDuplicate(state, m)) {
-        state.counters.duplicates++;
-        return { status: 'duplicate', records: out, late: false };
-      }
+      const refused = screen(config, state, observer, m, rxMs, out);
+      if (refused !== undefined) return { status: refused, records: out, late: false };
       const late = accept(m, rxMs, out);
       count(out);
       return { status: 'ok', records: out, late };

@@ -19,6 +19,28 @@ export interface Windows {
   advance(watermarkMs: number, out: DerivedRecord[]): void;
 }
 
+/**
+ * Drops samples behind the horizons (station series, bottle samples, site series): memory stays bounded in
+ * time, and nothing a derivation or a window may still read is dropped.
+ */
+function prune(state: ProcessorState, times: ProcessorTimes, watermarkMs: number): void {
+  const cut = watermarkMs - times.horizonMs;
+  const sampleCut = watermarkMs - times.sampleHorizonMs;
+  for (const id in state.stations) {
+    const st = state.stations[id] as Record<StationVar, Series>;
+    for (const k in st) {
+      const s = st[k as StationVar];
+      const c = k.startsWith('sample') ? sampleCut : cut;
+      if (s.t.length > 0 && (s.t[0] as number) < c) pruneBefore(s, c);
+    }
+  }
+  const siteCut = watermarkMs - times.siteHorizonMs;
+  for (const k in state.site) {
+    const s = state.site[k as SiteVar];
+    if (s.t.length > 0 && (s.t[0] as number) < siteCut) pruneBefore(s, siteCut);
+  }
+}
+
 export function createWindows(
   config: ReefdConfig,
   state: ProcessorState,
@@ -43,24 +65,6 @@ export function createWindows(
     }
   }
 
-  function prune(watermarkMs: number): void {
-    const cut = watermarkMs - times.horizonMs;
-    const sampleCut = watermarkMs - times.sampleHorizonMs;
-    for (const id in state.stations) {
-      const st = state.stations[id] as Record<StationVar, Series>;
-      for (const k in st) {
-        const s = st[k as StationVar];
-        const c = k.startsWith('sample') ? sampleCut : cut;
-        if (s.t.length > 0 && (s.t[0] as number) < c) pruneBefore(s, c);
-      }
-    }
-    const siteCut = watermarkMs - times.siteHorizonMs;
-    for (const k in state.site) {
-      const s = state.site[k as SiteVar];
-      if (s.t.length > 0 && (s.t[0] as number) < siteCut) pruneBefore(s, siteCut);
-    }
-  }
-
   return {
     advance(watermarkMs, out) {
       const cadence = times.cadenceMs;
@@ -80,7 +84,7 @@ export function createWindows(
       const pruneStep = Math.floor(watermarkMs / MIN);
       if (pruneStep !== lastPruneStep) {
         lastPruneStep = pruneStep;
-        prune(watermarkMs);
+        prune(state, times, watermarkMs);
       }
       for (const a of alerts.advance(watermarkMs)) out.push(alertRecord(a));
     },

@@ -2,11 +2,11 @@
 // station's pressure logger once its burst is complete, a `current` record per ensemble, and the east and north
 // series of the flux windows.
 import type { AdcpMessage, CurrentRecord } from '../../contract/index.js';
-import { processEnsemble } from '../../currents/index.js';
+import { processEnsemble, type AdcpEnsemble, type AdcpSensorConfig } from '../../currents/index.js';
 import { densityEos80 } from '../../seawater/index.js';
 import { baroAt, ctdAt, series, worst, type DeriveContext } from '../derive.js';
 import { nearest } from '../series.js';
-import { atSampleTime, defineKind } from './types.js';
+import { atSampleTime, defineKind, type SensorConfigOf } from './types.js';
 
 const HOUR = 3_600_000;
 
@@ -23,7 +23,7 @@ export const adcp = defineKind({
     io.emit(r.record);
     const tilt = r.record.reason === 'tilt' ? 4 : 1;
     const speed = r.record.speed_m_s;
-    io.alert('current.speed_m_s', speed ?? Number.NaN, Math.max(r.flag, tilt));
+    io.alert('current.speed_m_s', speed === null ? Number.NaN : speed, Math.max(r.flag, tilt));
     if (r.eastMS !== null && r.northMS !== null) {
       io.put('east', m.tMs, r.eastMS, r.flag);
       io.put('north', m.tMs, r.northMS, r.flag);
@@ -31,58 +31,54 @@ export const adcp = defineKind({
   },
 });
 
-export interface AdcpSettings {
-  height_m: number;
-  beam_angle_deg: number;
-  orientation: 'up' | 'down';
-  declination_deg: number;
-  heading_offset_deg: number;
-  head: 'convex' | 'concave';
-  first_bin_range_m?: number | undefined;
+/** The message as the currents library's ensemble (optional fields only when present). */
+function ensembleOf(m: AdcpMessage): AdcpEnsemble {
+  return {
+    coord: m.coord,
+    blankM: m.blank_m,
+    binM: m.bin_m,
+    velMS: m.vel_m_s,
+    ...(m.heading_deg !== undefined ? { headingDeg: m.heading_deg } : {}),
+    ...(m.pitch_deg !== undefined ? { pitchDeg: m.pitch_deg } : {}),
+    ...(m.roll_deg !== undefined ? { rollDeg: m.roll_deg } : {}),
+    ...(m.corr_pct !== undefined ? { corrPct: m.corr_pct } : {}),
+    ...(m.echo !== undefined ? { echo: m.echo } : {}),
+    ...(m.pres_dbar !== undefined ? { presDbar: m.pres_dbar } : {}),
+    ...(m.temp_c !== undefined ? { tempC: m.temp_c } : {}),
+  };
+}
+
+/** The sensor's configuration as the currents library's. */
+function headOf(s: SensorConfigOf<'adcp'>): AdcpSensorConfig {
+  return {
+    heightM: s.height_m,
+    beamAngleDeg: s.beam_angle_deg,
+    orientation: s.orientation,
+    declinationDeg: s.declination_deg,
+    headingOffsetDeg: s.heading_offset_deg,
+    convex: s.head === 'convex',
+    ...(s.first_bin_range_m !== undefined ? { firstBinRangeM: s.first_bin_range_m } : {}),
+  };
 }
 
 export function deriveCurrent(
   ctx: DeriveContext,
   m: AdcpMessage,
-  s: AdcpSettings,
+  s: SensorConfigOf<'adcp'>,
 ): { record: CurrentRecord; flag: number; eastMS: number | null; northMS: number | null } {
   // Depth from the station's pressure logger within the last hour, else the ADCP's own pressure (the lib).
   const depth = nearest(series(ctx, m.station, 'depthDone'), m.tMs, HOUR, ctx.asOfMs);
   const hm0 = nearest(series(ctx, m.station, 'hm0ssDone'), m.tMs, HOUR, ctx.asOfMs);
   const ctd = ctdAt(ctx, m.station, m.tMs);
   const baro = baroAt(ctx, m.tMs);
-  const r = processEnsemble(
-    {
-      coord: m.coord,
-      blankM: m.blank_m,
-      binM: m.bin_m,
-      velMS: m.vel_m_s,
-      ...(m.heading_deg !== undefined ? { headingDeg: m.heading_deg } : {}),
-      ...(m.pitch_deg !== undefined ? { pitchDeg: m.pitch_deg } : {}),
-      ...(m.roll_deg !== undefined ? { rollDeg: m.roll_deg } : {}),
-      ...(m.corr_pct !== undefined ? { corrPct: m.corr_pct } : {}),
-      ...(m.echo !== undefined ? { echo: m.echo } : {}),
-      ...(m.pres_dbar !== undefined ? { presDbar: m.pres_dbar } : {}),
-      ...(m.temp_c !== undefined ? { tempC: m.temp_c } : {}),
-    },
-    {
-      heightM: s.height_m,
-      beamAngleDeg: s.beam_angle_deg,
-      orientation: s.orientation,
-      declinationDeg: s.declination_deg,
-      headingOffsetDeg: s.heading_offset_deg,
-      convex: s.head === 'convex',
-      ...(s.first_bin_range_m !== undefined ? { firstBinRangeM: s.first_bin_range_m } : {}),
-    },
-    {
-      reefAxisDeg: ctx.config.reef_axis_deg,
-      patmDbar: baro.hpa * 0.01,
-      gMS2: ctx.gMS2,
-      ...(depth ? { depthM: depth.value } : {}),
-      ...(hm0 ? { hm0SsM: hm0.value } : {}),
-      ...(ctd ? { rhoKgM3: densityEos80(ctd.sal.value, ctd.temp.value) } : {}),
-    },
-  );
+  const r = processEnsemble(ensembleOf(m), headOf(s), {
+    reefAxisDeg: ctx.config.reef_axis_deg,
+    patmDbar: baro.hpa * 0.01,
+    gMS2: ctx.gMS2,
+    ...(depth ? { depthM: depth.value } : {}),
+    ...(hm0 ? { hm0SsM: hm0.value } : {}),
+    ...(ctd ? { rhoKgM3: densityEos80(ctd.sal.value, ctd.temp.value) } : {}),
+  });
   const base = {
     type: 'current' as const,
     site: ctx.config.site,

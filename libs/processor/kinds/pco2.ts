@@ -2,8 +2,8 @@
 // station CTD's temperature with TA from salinity or bottle samples, a `carbonate` record per reading, and the
 // pCO2, TA and DIC series of the flux windows. The last pH is the warm start of the next solve.
 import type { CarbonateRecord, Pco2Message } from '../../contract/index.js';
-import { carbonateUncertainty, solveCarbonate } from '../../carbonate/index.js';
-import { baroAt, ctdAt, taFor, worst, type DeriveContext } from '../derive.js';
+import { carbonateUncertainty, solveCarbonate, type CarbonateInput } from '../../carbonate/index.js';
+import { baroAt, ctdAt, taFor, worst, type DeriveContext, type TaSource } from '../derive.js';
 import { atSampleTime, defineKind } from './types.js';
 
 export const pco2 = defineKind({
@@ -29,6 +29,38 @@ export const pco2 = defineKind({
   },
 });
 
+/**
+ * Standard uncertainties of pH, aragonite saturation and DIC, propagated by libs/carbonate from those of
+ * the inputs: pCO2 1 % (at least 2 uatm), TA 10 umol/kg from salinity or 3 from a bottle, 0.05 degC and
+ * 0.05 in salinity. Added to the record where finite.
+ */
+function addSigmas(
+  ctx: DeriveContext,
+  record: CarbonateRecord,
+  input: CarbonateInput,
+  pco2Uatm: number,
+  taSource: TaSource,
+): void {
+  const sig = carbonateUncertainty(
+    input,
+    {
+      pco2Uatm: Math.max(2, 0.01 * pco2Uatm),
+      taUmolKg: taSource === 'salinity' ? 10 : 3,
+      tempC: 0.05,
+      salinity: 0.05,
+    },
+    ctx.carbonateOptions,
+  );
+  for (const [k, name] of [
+    ['phTotal', 'ph_total_sigma'],
+    ['omegaAr', 'omega_ar_sigma'],
+    ['dicUmolKg', 'dic_umol_kg_sigma'],
+  ] as const) {
+    const v = (sig as unknown as Record<string, unknown>)[k];
+    if (typeof v === 'number' && Number.isFinite(v)) (record as Record<string, unknown>)[name] = v;
+  }
+}
+
 /** The carbonate system at a pCO2 reading, reported at the CTD temperature (docs/methods/carbonate.md 3.6, 3.8). */
 export function deriveCarbonate(
   ctx: DeriveContext,
@@ -44,7 +76,7 @@ export function deriveCarbonate(
   const tIn = m.temp_c ?? tOut;
   const { ta, source } = taFor(ctx, m.station, m.tMs, S);
   const baro = baroAt(ctx, m.tMs);
-  const input = {
+  const input: CarbonateInput = {
     salinity: S,
     tempC: tIn,
     pco2Uatm: m.pco2_uatm,
@@ -55,20 +87,6 @@ export function deriveCarbonate(
   };
   const r = solveCarbonate(input, ctx.carbonateOptions);
   if (!r.ok) return { skip: `carbonate:${r.code}` };
-  const sig = carbonateUncertainty(
-    input,
-    {
-      pco2Uatm: Math.max(2, 0.01 * m.pco2_uatm),
-      taUmolKg: source === 'salinity' ? 10 : 3,
-      tempC: 0.05,
-      salinity: 0.05,
-    },
-    ctx.carbonateOptions,
-  );
-  const sg = (k: string): number | undefined => {
-    const v = (sig as unknown as Record<string, unknown>)[k];
-    return typeof v === 'number' && Number.isFinite(v) ? v : undefined;
-  };
   const flag = worst(r.flag, ctd.sal.flag, ctd.temp.flag, baro.source === 'default' ? 2 : 1);
   const record: CarbonateRecord = {
     type: 'carbonate',
@@ -92,13 +110,6 @@ export function deriveCarbonate(
     flag,
     constants: `${ctx.config.carbonate.carbonic_constants}/${ctx.config.carbonate.boron}`,
   };
-  for (const [k, name] of [
-    ['phTotal', 'ph_total_sigma'],
-    ['omegaAr', 'omega_ar_sigma'],
-    ['dicUmolKg', 'dic_umol_kg_sigma'],
-  ] as const) {
-    const v = sg(k);
-    if (v !== undefined) (record as Record<string, unknown>)[name] = v;
-  }
+  addSigmas(ctx, record, input, m.pco2_uatm, source);
   return { record, flag, ph: r.phTotal, ta: r.taUmolKg, dic: r.dicUmolKg, pco2Out: r.pco2Uatm };
 }

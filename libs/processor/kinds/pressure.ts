@@ -39,11 +39,35 @@ export const pressure = defineKind({
   },
 });
 
-export function deriveWaves(
-  ctx: DeriveContext,
-  m: PressureMessage,
-  heightM: number,
-): { record: WavesRecord; flag: number; depthM: number | null; hm0SsM: number | null } {
+type WavesBase = Pick<WavesRecord, 'type' | 'site' | 't' | 'station' | 'sensor'>;
+type BurstFailure = Extract<ReturnType<typeof analyzeBurst>, { ok: false }>;
+type WavesResult = { record: WavesRecord; flag: number; depthM: number | null; hm0SsM: number | null };
+
+/** The record of a burst the waves library refused: no wave statistics; the depth unless it fell dry. */
+function failedBurst(base: WavesBase, r: BurstFailure): WavesResult {
+  const record: WavesRecord = {
+    ...base,
+    hm0_m: null,
+    tp_s: null,
+    tm01_s: null,
+    tm02_s: null,
+    hrms_m: null,
+    hm0_ss_m: null,
+    hm0_ig_m: null,
+    depth_m: r.depthM ?? null,
+    flag: r.flag,
+    reason: r.code,
+  };
+  return {
+    record,
+    flag: r.flag,
+    depthM: r.code === 'REEFD_WAVES_DRY' ? null : (r.depthM ?? null),
+    hm0SsM: null,
+  };
+}
+
+/** Waves and mean depth of a burst, stamped at its centre (docs/methods/waves.md). */
+export function deriveWaves(ctx: DeriveContext, m: PressureMessage, heightM: number): WavesResult {
   const n = m.p_dbar.length;
   const tCentre = m.tMs + (n / (2 * m.fs_hz)) * 1000;
   const baro = baroAt(ctx, tCentre);
@@ -60,34 +84,14 @@ export function deriveWaves(
     rhoKgM3: rho,
     gMS2: ctx.gMS2,
   });
-  const base = {
-    type: 'waves' as const,
+  const base: WavesBase = {
+    type: 'waves',
     site: ctx.config.site,
     t: new Date(tCentre).toISOString(),
     station: m.station,
     sensor: m.sensor,
   };
-  if (!r.ok) {
-    const record: WavesRecord = {
-      ...base,
-      hm0_m: null,
-      tp_s: null,
-      tm01_s: null,
-      tm02_s: null,
-      hrms_m: null,
-      hm0_ss_m: null,
-      hm0_ig_m: null,
-      depth_m: r.depthM ?? null,
-      flag: r.flag,
-      reason: r.code,
-    };
-    return {
-      record,
-      flag: r.flag,
-      depthM: r.code === 'REEFD_WAVES_DRY' ? null : (r.depthM ?? null),
-      hm0SsM: null,
-    };
-  }
+  if (!r.ok) return failedBurst(base, r);
   const flag = worst(r.flag, ctd ? 1 : 3, baro.flag);
   const record: WavesRecord = {
     ...base,
