@@ -1,19 +1,19 @@
 // Fuzzing the message parser (libs/contract parseMessage) and the archive line built from what it read.
 import fc from 'fast-check';
 import { describe, it } from 'vitest';
+import { KINDS } from '../../../libs/contract/index.js';
 import { fuzz, fuzzTimeoutMs } from './harness.js';
 import { messageProperty, type MessageInput } from './properties.js';
 
 const idChar = fc.constantFrom(...'abcXYZ019_.-'.split(''));
 const id = fc.string({ unit: idChar, minLength: 1, maxLength: 8 }).map((s) => `a${s}`);
-const kinds = ['ctd', 'oxygen', 'pco2', 'pressure', 'adcp', 'par', 'met', 'sample'] as const;
 const hostile = fc.oneof(
   fc.string(),
   fc.string({ unit: 'binary' }),
   fc.constantFrom('', '/', '#', '+', '..', '\u0000', 'a/b', 'é', '\ud800', 'x'.repeat(300)),
 );
 const topic = fc.oneof(
-  fc.tuple(id, id, fc.constantFrom(...kinds), id).map(([si, st, k, se]) => `reef/${si}/${st}/${k}/${se}`),
+  fc.tuple(id, id, fc.constantFrom(...KINDS), id).map(([si, st, k, se]) => `reef/${si}/${st}/${k}/${se}`),
   fc.tuple(hostile, hostile, hostile).map((p) => `reef/${p.join('/')}`),
   fc.array(hostile, { maxLength: 8 }).map((p) => p.join('/')),
 );
