@@ -10,7 +10,7 @@ import { alertRecord, createObserver, type Observer } from './observe.js';
 import { hold, takeDue } from './order.js';
 import { isDuplicate, sensorHealth, type SensorHealthRow } from './sensors.js';
 import { processorTimes } from './settings.js';
-import { createState, emptyStation, STATE_VERSION, type ProcessorState } from './state.js';
+import { completeState, createState, STATE_VERSION, type ProcessorState } from './state.js';
 import { createWindows } from './windows.js';
 
 /** A sample stamped more than this after its receive time comes from a wrong clock (QARTOD timing test). */
@@ -50,7 +50,7 @@ function startState(config: ReefdConfig, restored: ProcessorState | undefined): 
     restored !== undefined && restored.version === STATE_VERSION
       ? structuredClone(restored)
       : createState(stationIds);
-  for (const id of stationIds) state.stations[id] ??= emptyStation();
+  completeState(state, stationIds);
   return state;
 }
 

@@ -20,7 +20,10 @@ export interface SensorState {
   lastFlag?: number;
 }
 
-/** The variables the processor remembers per station (time series, bounded in time). */
+/**
+ * The variables the processor remembers per station (time series, bounded in time). Each is written by one
+ * kind (its module's `writes`, kinds/<kind>.ts); kinds/index.ts does not compile while one has no writer.
+ */
 export const STATION_VARS = [
   'temp', // CTD temperature, degC
   'sal', // CTD practical salinity
@@ -106,4 +109,17 @@ export function createState(stationIds: readonly string[]): ProcessorState {
 
 export function emptyStation(): Record<StationVar, Series> {
   return Object.fromEntries(STATION_VARS.map((v) => [v, createSeries()])) as Record<StationVar, Series>;
+}
+
+/**
+ * Completes a restored state for the configuration: a station added since the checkpoint, and a series added
+ * to STATION_VARS or SITE_VARS since, start empty. So a new series needs no STATE_VERSION bump; a change of
+ * what an existing key holds does.
+ */
+export function completeState(state: ProcessorState, stationIds: readonly string[]): void {
+  for (const id of stationIds) {
+    const st = (state.stations[id] ??= emptyStation());
+    for (const v of STATION_VARS) st[v] ??= createSeries();
+  }
+  for (const v of SITE_VARS) state.site[v] ??= createSeries();
 }

@@ -92,6 +92,11 @@ describe('the kind table', () => {
     for (const [k, m] of Object.entries(KIND_MODULES)) expect(m.kind).toBe(k);
   });
 
+  it('gives every kind its own release order', () => {
+    const orders = modules.map((m) => m.order);
+    expect(new Set(orders).size).toBe(orders.length);
+  });
+
   it('keeps the release order of the processor before the registry (partners first)', () => {
     // The order messages of one time were released in before the table existed (processor.ts KIND_ORDER):
     // the records depend on it, so it may only change with the replay-equivalence digest.
