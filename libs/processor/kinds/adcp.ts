@@ -1,4 +1,4 @@
-// ADCP: the depth-averaged current of each ensemble (docs/methods/currents.md), with the depth of the
+// ADCP: the depth-averaged current of each ensemble (docs/methods/currents.md 5.5-5.6), with the depth of the
 // station's pressure logger once its burst is complete, a `current` record per ensemble, and the east and north
 // series of the flux windows.
 import type { AdcpMessage, CurrentRecord } from '../../contract/index.js';

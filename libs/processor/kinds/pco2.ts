@@ -31,8 +31,8 @@ export const pco2 = defineKind({
 
 /**
  * Standard uncertainties of pH, aragonite saturation and DIC, propagated by libs/carbonate from those of
- * the inputs: pCO2 1 % (at least 2 uatm), TA 10 umol/kg from salinity or 3 from a bottle, 0.05 degC and
- * 0.05 in salinity. Added to the record where finite.
+ * the inputs (docs/methods/uncertainty.md 9.1, 9.3): pCO2 1 % (at least 2 uatm), TA 10 umol/kg from salinity
+ * or 3 from a bottle, 0.05 degC and 0.05 in salinity. Added to the record where finite.
  */
 function addSigmas(
   ctx: DeriveContext,

@@ -1,4 +1,4 @@
-// Pressure logger: waves and mean depth from each burst (docs/methods/waves.md), a `waves` record per burst,
+// Pressure logger: waves and mean depth from each burst (docs/methods/waves.md 4.1-4.6), a `waves` record per burst,
 // and the depth and sea-swell height series that the flux windows and the ADCP's depth average read.
 import type { PressureMessage, WavesRecord } from '../../contract/index.js';
 import { densityEos80 } from '../../seawater/index.js';
@@ -66,7 +66,7 @@ function failedBurst(base: WavesBase, r: BurstFailure): WavesResult {
   };
 }
 
-/** Waves and mean depth of a burst, stamped at its centre (docs/methods/waves.md). */
+/** Waves and mean depth of a burst, stamped at its centre (docs/methods/waves.md 4.1, 4.6). */
 export function deriveWaves(ctx: DeriveContext, m: PressureMessage, heightM: number): WavesResult {
   const n = m.p_dbar.length;
   const tCentre = m.tMs + (n / (2 * m.fs_hz)) * 1000;
