@@ -39,6 +39,10 @@ export const COMMANDS: Record<string, CommandEntry> = {
     load: () => import('./commands/shore.js'),
   },
   doctor: { summary: 'check a live install and say what to fix', load: () => import('./commands/doctor.js') },
+  export: {
+    summary: 'derived records to CSV or CF NetCDF files',
+    load: () => import('./commands/export.js'),
+  },
   logbook: {
     summary: 'add to or list the field log (logbook add|list)',
     load: () => import('./commands/logbook.js'),
