@@ -1,10 +1,19 @@
-// `reefd replay --config FILE --input ARCHIVE [--out FILE]`: the live pipeline's processor over a raw archive.
-// Output: derived records as NDJSON (stdout by default). Deterministic: the same archive and configuration
-// give byte-identical output.
+// `reefd replay --config FILE --input ARCHIVE [--out FILE] [--from ISO] [--to ISO]`: the live pipeline's
+// processor over a raw archive. Output: derived records as NDJSON (stdout by default). Deterministic: the same
+// archive and configuration give byte-identical output. Lab results received after their windows closed are
+// replayed at their event time (services/replay/ordered.ts), so they are used like bottles that came in time.
+// A range replays the messages of [from - warm-up, to + the windows' closing time) and writes the records
+// whose time is in [from, to): the warm-up gives the windows, the storage term and the QC tests the history
+// they read, so the records in range are those of a full replay.
 import { createWriteStream, existsSync, type WriteStream } from 'node:fs';
 import { createProcessor, messageFromArchiveLine } from '../../../libs/processor/index.js';
-import { formatProblem, type DerivedRecord } from '../../../libs/contract/index.js';
-import { readArchive } from '../../archive/index.js';
+import {
+  formatProblem,
+  type DerivedRecord,
+  type ReefdConfig,
+  type SensorMessage,
+} from '../../../libs/contract/index.js';
+import { readArchiveOrdered, type OrderedStats } from '../../replay/ordered.js';
 import { loadConfigFile } from '../../config/load.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
 import { parseCommand } from '../args.js';
@@ -18,6 +27,8 @@ Options:
   --config FILE     site configuration (required)
   --input PATH      archive file or folder (required)
   --out FILE        output file (default: stdout)
+  --from ISO        only records from this time (ISO 8601 with zone; event time)
+  --to ISO          only records before this time
   --flush-tail      also compute the windows still open at the end of the archive (the live
                     daemon would compute them once later data arrives)
   --quiet           no progress or summary on stderr
@@ -34,6 +45,10 @@ export interface ReplaySummary {
   late: number;
   recordsByType: Record<string, number>;
   records: number;
+  /** Lab results received after their windows had closed, replayed at their own time. */
+  lateSamplesMoved: number;
+  /** Messages outside the range (and its warm-up) that were not processed. */
+  outOfRange: number;
   interrupted: boolean;
   seconds: number;
 }
@@ -66,6 +81,8 @@ export const run: CommandRun = async (args, io) => {
       input: { type: 'string' },
       out: { type: 'string' },
       'flush-tail': { type: 'boolean', default: false },
+      from: { type: 'string' },
+      to: { type: 'string' },
       quiet: { type: 'boolean', default: false },
       'summary-json': { type: 'string' },
     },
@@ -95,6 +112,12 @@ export const run: CommandRun = async (args, io) => {
   }
   const config = cfg.config;
   const quiet = values.quiet ?? false;
+  const range = parseRange(values.from, values.to);
+  if (typeof range === 'string') {
+    io.stderr(`reefd replay: ${range}\n`);
+    return EXIT_USAGE;
+  }
+  const bounds = rangeBounds(config, range);
 
   let fileOut: WriteStream | undefined;
   let out: NodeJS.WritableStream = process.stdout;
@@ -114,6 +137,8 @@ export const run: CommandRun = async (args, io) => {
     late: 0,
     recordsByType: {},
     records: 0,
+    lateSamplesMoved: 0,
+    outOfRange: 0,
     interrupted: false,
     seconds: 0,
   };
@@ -133,6 +158,11 @@ export const run: CommandRun = async (args, io) => {
   };
   const emit = async (records: readonly DerivedRecord[]) => {
     for (const r of records) {
+      if (range.fromMs !== undefined || range.toMs !== undefined) {
+        const t = Date.parse(r.t);
+        if ((range.fromMs !== undefined && t < range.fromMs) || (range.toMs !== undefined && t >= range.toMs))
+          continue;
+      }
       summary.records++;
       summary.recordsByType[r.type] = (summary.recordsByType[r.type] ?? 0) + 1;
       await writer.line(JSON.stringify(r));
@@ -140,7 +170,17 @@ export const run: CommandRun = async (args, io) => {
   };
 
   try {
-    for await (const entry of readArchive(values.input)) {
+    const ordered: OrderedStats = { lateSamples: 0, lateSamplesUnmoved: 0 };
+    const stream = readArchiveOrdered(
+      values.input,
+      {
+        topicPrefix: config.topic_prefix,
+        latenessMs: config.processing.lateness_min * 60_000,
+        ...(bounds.stopAfterRxMs !== undefined ? { stopAfterRxMs: bounds.stopAfterRxMs } : {}),
+      },
+      ordered,
+    );
+    for await (const entry of stream) {
       if (stop) {
         summary.interrupted = true;
         break;
@@ -153,6 +193,10 @@ export const run: CommandRun = async (args, io) => {
       const input = messageFromArchiveLine(config, entry.line);
       if (!input.ok) {
         reject(input.reason);
+        continue;
+      }
+      if (!bounds.inRange(input.message)) {
+        summary.outOfRange++;
         continue;
       }
       summary.accepted++;
@@ -170,7 +214,10 @@ export const run: CommandRun = async (args, io) => {
         }
       }
     }
-    if (values['flush-tail'] && !summary.interrupted) await emit(processor.drain());
+    summary.lateSamplesMoved = ordered.lateSamples;
+    // With --to, the windows before `to` are closed from the data read (the archive may go on).
+    if ((values['flush-tail'] || range.toMs !== undefined) && !summary.interrupted)
+      await emit(processor.drain());
     await writer.flush();
   } catch (err) {
     io.stderr(`reefd replay: ${(err as Error).message}\n`);
@@ -196,9 +243,61 @@ export const run: CommandRun = async (args, io) => {
     io.stderr(
       `${io.isTty ? '\n' : ''}replay ${summary.interrupted ? 'interrupted' : 'done'}: ${summary.lines} lines read ` +
         `(${summary.unreadable} unreadable), ${summary.accepted} accepted, ${summary.rejected} rejected ` +
-        `(${by(summary.rejectsByReason)}), ${summary.duplicates} duplicates, ${summary.late} late; ` +
+        `(${by(summary.rejectsByReason)}), ${summary.duplicates} duplicates, ${summary.late} late, ` +
+        `${summary.lateSamplesMoved} late lab results replayed at their time` +
+        `${summary.outOfRange > 0 ? `, ${summary.outOfRange} outside the range` : ''}; ` +
         `${summary.records} records (${by(summary.recordsByType)}) in ${summary.seconds.toFixed(1)} s\n`,
     );
   }
   return summary.interrupted ? EXIT_FAILURE : EXIT_OK;
 };
+
+interface Range {
+  fromMs?: number;
+  toMs?: number;
+}
+
+const ISO_WITH_ZONE = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/;
+
+/** --from and --to as ms, or the reason they are not usable. */
+export function parseRange(from: string | undefined, to: string | undefined): Range | string {
+  const out: Range = {};
+  for (const [name, v] of [
+    ['from', from],
+    ['to', to],
+  ] as const) {
+    if (v === undefined) continue;
+    const ms = Date.parse(v);
+    if (!ISO_WITH_ZONE.test(v) || !Number.isFinite(ms))
+      return `--${name} ${v} is not an ISO 8601 time with a zone (e.g. 2026-07-14T00:00:00Z)`;
+    if (name === 'from') out.fromMs = ms;
+    else out.toMs = ms;
+  }
+  if (out.fromMs !== undefined && out.toMs !== undefined && out.fromMs >= out.toMs)
+    return `--from ${from} must be before --to ${to}`;
+  return out;
+}
+
+/**
+ * Which messages a range needs. Before `from`: the processor's history horizon (two windows, the window
+ * delay, the lateness and the CTD match) plus 6 h for the QC tests' flat-line windows; bottles up to
+ * sample_max_age_h (TA carried from the last bottle). After `to`: a window, its delay and the lateness, so
+ * every window before `to` closes; reading stops a day after that in receive time.
+ */
+export function rangeBounds(
+  config: ReefdConfig,
+  range: Range,
+): { inRange: (m: SensorMessage) => boolean; stopAfterRxMs?: number } {
+  const p = config.processing;
+  const MIN = 60_000;
+  const warmMs = (2 * p.window_min + p.window_delay_min + p.lateness_min + p.ctd_match_min + 360) * MIN;
+  const sampleWarmMs = Math.max(warmMs, p.sample_max_age_h * 60 * MIN);
+  const tailMs = (p.window_min + p.window_delay_min + p.lateness_min) * MIN;
+  const from = range.fromMs ?? Number.NEGATIVE_INFINITY;
+  const to = range.toMs ?? Number.POSITIVE_INFINITY;
+  const out: { inRange: (m: SensorMessage) => boolean; stopAfterRxMs?: number } = {
+    inRange: (m) => m.tMs >= from - (m.kind === 'sample' ? sampleWarmMs : warmMs) && m.tMs < to + tailMs,
+  };
+  if (range.toMs !== undefined) out.stopAfterRxMs = range.toMs + tailMs + 24 * 60 * MIN;
+  return out;
+}
