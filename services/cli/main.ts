@@ -43,6 +43,10 @@ export const COMMANDS: Record<string, CommandEntry> = {
     summary: 'derived records to CSV or CF NetCDF files',
     load: () => import('./commands/export.js'),
   },
+  samples: {
+    summary: 'import lab results into the raw archive (samples import)',
+    load: () => import('./commands/samples.js'),
+  },
   logbook: {
     summary: 'add to or list the field log (logbook add|list)',
     load: () => import('./commands/logbook.js'),
