@@ -39,6 +39,10 @@ export const COMMANDS: Record<string, CommandEntry> = {
     load: () => import('./commands/shore.js'),
   },
   doctor: { summary: 'check a live install and say what to fix', load: () => import('./commands/doctor.js') },
+  calibrate: {
+    summary: 'fit sensor corrections from the bottles in an archive',
+    load: () => import('./commands/calibrate.js'),
+  },
   export: {
     summary: 'derived records to CSV or CF NetCDF files',
     load: () => import('./commands/export.js'),
