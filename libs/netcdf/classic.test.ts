@@ -98,15 +98,13 @@ const name = fc.stringMatching(/^[A-Za-z_][A-Za-z0-9_]{0,12}$/);
 
 const attribute: fc.Arbitrary<NcAttribute> = fc.oneof(
   fc.record({ name, type: fc.constant('char' as const), value: fc.string({ maxLength: 40 }) }),
-  fc
-    .constantFrom(...(TYPES.filter((t) => t !== 'char') as Exclude<NcType, 'char'>[]))
-    .chain((type) =>
-      fc.record({
-        name,
-        type: fc.constant(type),
-        value: fc.array(valueOf(type), { minLength: 1, maxLength: 5 }),
-      }),
-    ),
+  fc.constantFrom(...(TYPES.filter((t) => t !== 'char') as Exclude<NcType, 'char'>[])).chain((type) =>
+    fc.record({
+      name,
+      type: fc.constant(type),
+      value: fc.array(valueOf(type), { minLength: 1, maxLength: 5 }),
+    }),
+  ),
 );
 const uniqueByName = <T extends { name: string }>(arb: fc.Arbitrary<T>, max: number) =>
   fc.uniqueArray(arb, { selector: (x) => x.name, maxLength: max });
