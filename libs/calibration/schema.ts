@@ -2,8 +2,12 @@
 // list of linear corrections of one message field of one sensor, optionally limited to a time range.
 // Pure: parsing text and checking it against the configuration; reading the file is the caller's.
 import { isNode, LineCounter, parseDocument } from 'yaml';
-import { z } from 'zod';
-import { ID_PATTERN, type Kind, type ReefdConfig } from '../contract/index.js';
+import {
+  calibrationFileSchema,
+  type CalibrationEntry,
+  type Kind,
+  type ReefdConfig,
+} from '../contract/index.js';
 
 /** Message fields a calibration may correct, per kind: the scalar readings (not ids, counters, settings). */
 export const CALIBRATABLE_FIELDS = {
@@ -18,43 +22,12 @@ export const CALIBRATABLE_FIELDS = {
   sample: [],
 } as const satisfies Record<Kind, readonly string[]>;
 
-const isoTime = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/, {
-    error: 'is not an ISO 8601 time with a zone (e.g. 2026-07-14T00:00:00Z)',
-  })
-  .refine((s) => Number.isFinite(Date.parse(s)), { error: 'is not a valid time' });
-
-/** Allow YAML timestamps that the parser already turned into Date objects. */
-const time = z.preprocess((v) => (v instanceof Date ? v.toISOString() : v), isoTime);
-const finite = z.number().refine(Number.isFinite, { error: 'must be a finite number' });
-
-export const calibrationEntrySchema = z
-  .strictObject({
-    sensor: z.string().refine(
-      (s) => {
-        const [st, se, ...rest] = s.split('/');
-        return rest.length === 0 && ID_PATTERN.test(st ?? '') && ID_PATTERN.test(se ?? '');
-      },
-      { error: 'must be <station>/<sensor>, e.g. back/co2' },
-    ),
-    field: z.string().regex(/^[a-z][A-Za-z0-9_]{0,63}$/, { error: 'must be a message field name' }),
-    from: time.optional(),
-    to: time.optional(),
-    slope: finite.default(1),
-    offset: finite.default(0),
-    drift_per_day: finite.default(0),
-    slope_drift_per_day: finite.default(0),
-  })
-  .refine((e) => e.from === undefined || e.to === undefined || Date.parse(e.from) < Date.parse(e.to), {
-    error: '`from` must be before `to`',
-    path: ['to'],
-  });
-
-export const calibrationFileSchema = z.array(calibrationEntrySchema).max(10_000);
-
-export type CalibrationEntry = z.infer<typeof calibrationEntrySchema>;
-export type CalibrationEntryInput = z.input<typeof calibrationEntrySchema>;
+export {
+  calibrationEntrySchema,
+  calibrationFileSchema,
+  type CalibrationEntry,
+  type CalibrationEntryInput,
+} from '../contract/index.js';
 
 export interface CalibrationProblem {
   /** Dotted path inside the file, e.g. `3.offset` (entry index from 0) or `(file)`. */

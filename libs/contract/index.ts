@@ -7,3 +7,4 @@ export * from './record-types.js';
 export * from './config-schema.js';
 export * from './config-parse.js';
 export * from './errors.js';
+export * from './field-files.js';

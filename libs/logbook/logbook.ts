@@ -2,51 +2,18 @@
 // technicians did on the reef and when, and the hours whose data must not be used. Pure: parsing and
 // checking the YAML text, and the exclusion lookup the processor calls for each message.
 import { isNode, LineCounter, parseDocument } from 'yaml';
-import { z } from 'zod';
-import { ID_PATTERN, type ReefdConfig } from '../contract/index.js';
+import { logbookFileSchema, type LogbookEntry, type ReefdConfig } from '../contract/index.js';
 
-export const LOGBOOK_EVENTS = ['cleaning', 'swap', 'relevel', 'deploy', 'recover', 'note'] as const;
-export type LogbookEvent = (typeof LOGBOOK_EVENTS)[number];
+export {
+  LOGBOOK_EVENTS,
+  logbookEntrySchema,
+  logbookFileSchema,
+  type LogbookEntry,
+  type LogbookEvent,
+} from '../contract/index.js';
 
 /** Reason given with flag 4 for data inside an exclusion (docs/contract-v1.md). */
 export const LOGBOOK_EXCLUSION_REASON = 'logbook_exclusion';
-
-const isoTime = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/, {
-    error: 'is not an ISO 8601 time with a zone (e.g. 2026-07-14T09:30:00Z)',
-  })
-  .refine((s) => Number.isFinite(Date.parse(s)), { error: 'is not a valid time' });
-const time = z.preprocess((v) => (v instanceof Date ? v.toISOString() : v), isoTime);
-const id = z.string().regex(ID_PATTERN, { error: 'must match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}' });
-
-export const logbookEntrySchema = z
-  .strictObject({
-    t: time,
-    station: id,
-    sensor: id.optional(),
-    event: z.enum(LOGBOOK_EVENTS, { error: `must be one of ${LOGBOOK_EVENTS.join(', ')}` }),
-    text: z.string().max(2000),
-    exclude_from: time.optional(),
-    exclude_to: time.optional(),
-  })
-  .superRefine((e, ctx) => {
-    if ((e.exclude_from === undefined) !== (e.exclude_to === undefined)) {
-      ctx.addIssue({
-        code: 'custom',
-        path: [e.exclude_from === undefined ? 'exclude_from' : 'exclude_to'],
-        message: 'an exclusion needs both exclude_from and exclude_to',
-      });
-    } else if (
-      e.exclude_from !== undefined &&
-      !(Date.parse(e.exclude_from) < Date.parse(e.exclude_to as string))
-    ) {
-      ctx.addIssue({ code: 'custom', path: ['exclude_to'], message: 'must be after exclude_from' });
-    }
-  });
-
-export const logbookFileSchema = z.array(logbookEntrySchema).max(100_000);
-export type LogbookEntry = z.infer<typeof logbookEntrySchema>;
 
 export interface LogbookProblem {
   path: string;
@@ -189,7 +156,8 @@ export function exclusionAt(
 export function formatLogbookEntry(e: LogbookEntry): string {
   const lines = [`- t: ${e.t}`, `  station: ${e.station}`];
   if (e.sensor !== undefined) lines.push(`  sensor: ${e.sensor}`);
-  lines.push(`  event: ${e.event}`, `  text: ${JSON.stringify(e.text)}`);
+  lines.push(`  event: ${e.event}`);
+  if (e.text !== undefined) lines.push(`  text: ${JSON.stringify(e.text)}`);
   if (e.exclude_from !== undefined) lines.push(`  exclude_from: ${e.exclude_from}`);
   if (e.exclude_to !== undefined) lines.push(`  exclude_to: ${e.exclude_to}`);
   return `${lines.join('\n')}\n`;

@@ -110,7 +110,7 @@ describe('reefd logbook add', () => {
         ],
         /--exclude-to must be after exclude_from/,
       ],
-      [['--station', 'back', '--event', 'note'], /--station, --event and --text are required/],
+      [['--event', 'note'], /--station and --event are required/],
     ];
     for (const [argv, msg] of cases) {
       const r = await add(...argv);

@@ -17,7 +17,7 @@ import { loadConfigFile } from '../../config/load.js';
 import { parseCommand } from '../args.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
 
-const HELP = `Usage: reefd logbook add --config FILE --station S [--sensor X] --event EVENT --text TEXT
+const HELP = `Usage: reefd logbook add --config FILE --station S [--sensor X] --event EVENT [--text TEXT]
                          [--exclude-from ISO --exclude-to ISO] [--t ISO]
        reefd logbook list --config FILE [--station S]
 
@@ -157,16 +157,16 @@ export const run: CommandRun = async (args, io) => {
   const { config, logbook } = loaded;
   if (sub === 'list') return list(logbook, config, v.station, io);
 
-  if (!v.station || !v.event || v.text === undefined) {
-    io.stderr(`reefd logbook add: --station, --event and --text are required\n\n${HELP}`);
+  if (!v.station || !v.event) {
+    io.stderr(`reefd logbook add: --station and --event are required\n\n${HELP}`);
     return EXIT_USAGE;
   }
   const raw: Record<string, unknown> = {
     t: v.t ?? new Date(Math.floor(Date.now() / 1000) * 1000).toISOString().replace('.000Z', 'Z'),
     station: v.station,
     event: v.event,
-    text: v.text,
   };
+  if (v.text !== undefined) raw.text = v.text;
   if (v.sensor !== undefined) raw.sensor = v.sensor;
   if (v['exclude-from'] !== undefined) raw.exclude_from = v['exclude-from'];
   if (v['exclude-to'] !== undefined) raw.exclude_to = v['exclude-to'];
@@ -242,7 +242,7 @@ async function list(
     if (station !== undefined && e.station !== station) continue;
     const where = e.sensor !== undefined ? `${e.station}/${e.sensor}` : e.station;
     const excl = e.exclude_from !== undefined ? `  [excluded ${e.exclude_from} .. ${e.exclude_to}]` : '';
-    io.stdout(`${e.t}  ${e.event.padEnd(8)} ${where}  ${e.text}${excl}\n`);
+    io.stdout(`${e.t}  ${e.event.padEnd(8)} ${where}  ${e.text ?? ''}${excl}\n`);
   }
   return EXIT_OK;
 }
