@@ -110,6 +110,20 @@ describe('reefd samples import', () => {
     expect(await snapshot()).toEqual(snap);
   });
 
+  it('a failed archive write imports nothing and exits 1', async () => {
+    // Today's archive file cannot be opened (a folder stands in its place): the writer rejects the batch.
+    const today = new Date().toISOString().slice(0, 10);
+    await mkdir(path.join(archive, `raw-${today}.ndjson`));
+    const snap = await snapshot();
+    const r = await importCsv('t,station,sensor,ta_umol_kg\n2026-07-14T06:00:00Z,back,bottle-back,2291.4\n');
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/writing the archive failed \(.*\); nothing was imported/);
+    expect(await snapshot()).toEqual(snap);
+    const samples = [];
+    for await (const e of readArchive(archive)) if (e.line?.topic.includes('/sample/')) samples.push(e);
+    expect(samples).toEqual([]);
+  });
+
   it('--dry-run checks and writes nothing', async () => {
     const snap = await snapshot();
     const r = await importCsv('t,station,sensor,ph_total\n2026-07-14T06:00:00Z,back,bottle-back,8.02\n', [
