@@ -177,7 +177,10 @@ export interface CfContext {
   sourceName: string;
 }
 
-function position(ctx: CfContext, key: GroupKey): { lat: number; lon: number } | undefined {
+export function position(
+  ctx: Pick<CfContext, 'config'>,
+  key: GroupKey,
+): { lat: number; lon: number } | undefined {
   const cfg = ctx.config;
   if (cfg === undefined) return undefined;
   if (key.subject === 'station') return cfg.stations[key.id]?.position;

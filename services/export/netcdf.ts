@@ -4,7 +4,7 @@
 import { rename, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { encodeNetcdf } from '../../libs/netcdf/index.js';
-import { buildDataset, GroupPlan, GroupValues, groupOf, type CfContext } from './cf.js';
+import { buildDataset, GroupPlan, GroupValues, groupOf, position, type CfContext } from './cf.js';
 import { eachWinner, type ScanResult } from './scan.js';
 
 export const fileNameOf = (site: string, subject: string, id: string): string =>
@@ -15,7 +15,7 @@ export async function exportNetcdf(
   scan: ScanResult,
   outDir: string,
   ctx: Omit<CfContext, 'site'>,
-): Promise<{ files: string[]; site: string | undefined }> {
+): Promise<{ files: string[]; site: string | undefined; withoutPosition: string[] }> {
   const plans = new Map<string, GroupPlan>();
   let site: string | undefined;
   for await (const r of eachWinner(recordsFile, scan)) {
@@ -36,7 +36,10 @@ export async function exportNetcdf(
     if (g !== undefined) values.get(`${g.subject}|${g.id}`)?.add(r);
   }
   const files: string[] = [];
+  const withoutPosition: string[] = [];
   for (const v of [...values.values()].sort((a, b) => (a.plan.key.id < b.plan.key.id ? -1 : 1))) {
+    if (position(ctx, v.plan.key) === undefined)
+      withoutPosition.push(`${v.plan.key.subject} ${v.plan.key.id}`);
     const ds = buildDataset({ ...ctx, site: site ?? 'site' }, v);
     const file = path.join(outDir, fileNameOf(site ?? 'site', v.plan.key.subject, v.plan.key.id));
     const tmp = `${file}.tmp-${process.pid}`;
@@ -44,5 +47,5 @@ export async function exportNetcdf(
     await rename(tmp, file);
     files.push(file);
   }
-  return { files, site };
+  return { files, site, withoutPosition };
 }

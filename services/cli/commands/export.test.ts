@@ -146,12 +146,13 @@ describe('reefd export --format netcdf', () => {
     const meta = path.join(dir, 'meta.yaml');
     await writeFile(meta, 'creator_name: Ornen field team\nlicense: CC-BY-4.0\n');
     const out = path.join(dir, 'nc-meta');
+    const io = captureIo();
     expect(
-      await run(
-        ['--records', records, '--format', 'netcdf', '--out', out, '--meta', meta, '--quiet'],
-        captureIo(),
-      ),
+      await run(['--records', records, '--format', 'netcdf', '--out', out, '--meta', meta, '--quiet'], io),
     ).toBe(0);
+    expect(io.text().stderr).toMatch(
+      /no position for station back, transect inner: lat and lon are left out/,
+    );
     const ds = decodeNetcdf(new Uint8Array(await readFile(path.join(out, 'ornen-reef_station_back.nc'))));
     expect(ds.attributes.find((a) => a.name === 'creator_name')?.value).toBe('Ornen field team');
     expect(ds.attributes.find((a) => a.name === 'license')?.value).toBe('CC-BY-4.0');

@@ -122,15 +122,20 @@ export const run: CommandRun = async (args, io) => {
     let files: string[];
     if (v.format === 'csv') files = (await exportCsv(v.records, scan, v.out)).files;
     else {
-      files = (
-        await exportNetcdf(v.records, scan, v.out, {
-          config,
-          createdIso: new Date(createdMs).toISOString().replace(/\.\d{3}Z$/, 'Z'),
-          software: `reefd ${version()}`,
-          meta,
-          sourceName: v.records.split(/[\\/]/).pop() ?? v.records,
-        })
-      ).files;
+      const nc = await exportNetcdf(v.records, scan, v.out, {
+        config,
+        createdIso: new Date(createdMs).toISOString().replace(/\.\d{3}Z$/, 'Z'),
+        software: `reefd ${version()}`,
+        meta,
+        sourceName: v.records.split(/[\\/]/).pop() ?? v.records,
+      });
+      files = nc.files;
+      if (nc.withoutPosition.length > 0) {
+        io.stderr(
+          `reefd export: no position for ${nc.withoutPosition.join(', ')}: lat and lon are left out, so CF ` +
+            `checkers see points, not time series; give --config with stations.<id>.position\n`,
+        );
+      }
     }
     if (!v.quiet) {
       io.stderr(
