@@ -29,6 +29,8 @@ export interface OrderedOptions {
   maxLateSamples?: number;
   /** Lines received after this are not read (everything that can still matter came before). */
   stopAfterRxMs?: number;
+  /** Polled while the first pass reads, so a signal stops a long archive promptly. */
+  shouldStop?: () => boolean;
 }
 
 export interface OrderedStats {
@@ -73,6 +75,7 @@ async function findLateSamples(files: string[], opts: OrderedOptions, stats: Ord
   for (const file of files) {
     const name = basename(file);
     for await (const { lineNo, text } of rawLines(file)) {
+      if ((lineNo & 1023) === 0 && opts.shouldStop?.() === true) return late;
       if (!text.includes(marker)) continue;
       const r = parseArchiveLine(text);
       if (!r.ok || r.line.reject !== undefined) continue;

@@ -176,6 +176,7 @@ export const run: CommandRun = async (args, io) => {
       {
         topicPrefix: config.topic_prefix,
         latenessMs: config.processing.lateness_min * 60_000,
+        shouldStop: () => stop,
         ...(bounds.stopAfterRxMs !== undefined ? { stopAfterRxMs: bounds.stopAfterRxMs } : {}),
       },
       ordered,
