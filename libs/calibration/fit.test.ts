@@ -28,7 +28,7 @@ describe('fitPco2', () => {
       pairs.push({ tMs, reference: truth + 2 * n(), raw: truth + 12 + 0.3 * days + 1.5 * n() });
     }
     pairs[6]!.reference += 45; // a bottle with a bubble
-    const r = fitPco2(target('back/co2', 'pco2_uatm'), pairs);
+    const r = fitPco2(target('back/co2', 'pco2_uatm'), pairs, { drift: true });
     if (!r.ok) throw new Error(r.reason);
     const [off, drift] = r.params;
     expect(off?.name).toBe('offset');
@@ -90,6 +90,28 @@ describe('fitPco2', () => {
         /^the bottles scatter by \d+\.\d uatm about the fit for back\/co2, more than the 15 uatm/,
       );
     }
+  });
+});
+
+describe('drift: auto', () => {
+  it('drops a drift within 2 SE of zero and refits a constant; keeps a clear one', () => {
+    const n = normals(21);
+    const flat = Array.from({ length: 12 }, (_, i) => ({
+      tMs: T0 + i * 0.8 * DAY,
+      raw: 400,
+      reference: 388 + 2 * n(),
+    }));
+    const r = fitPco2(target('back/co2', 'pco2_uatm'), flat);
+    if (!r.ok) throw new Error(r.reason);
+    expect(r.params.map((p) => p.name)).toEqual(['offset']);
+    expect(r.entry.drift_per_day).toBe(0);
+    expect(Math.abs(r.driftDropped!.value)).toBeLessThanOrEqual(2 * r.driftDropped!.se);
+    expect(Math.abs(r.entry.offset + 12)).toBeLessThan(3 * r.params[0]!.se);
+    const rising = flat.map((p, i) => ({ ...p, raw: p.raw + 2 * i * 0.8 }));
+    const d = fitPco2(target('back/co2', 'pco2_uatm'), rising);
+    if (!d.ok) throw new Error(d.reason);
+    expect(d.driftDropped).toBeUndefined();
+    expect(d.entry.drift_per_day).toBeCloseTo(-2, 0);
   });
 });
 

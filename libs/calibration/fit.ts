@@ -19,8 +19,13 @@ export interface FitOptions {
   minSpanDays?: number;
   /** Smallest fraction of the sensor's record the bottles must span to fit a drift (default 0.3). */
   minSpanFraction?: number;
-  /** Fit a drift (default true); false fits a constant offset or gain only. */
-  drift?: boolean;
+  /**
+   * Drift: 'auto' (default) fits it and keeps it only when it is distinguishable from zero (|drift| > 2 SE),
+   * else refits a constant, since a drift that the bottles cannot tell from zero only adds noise (common
+   * practice: the simpler model unless the data need the other); true always keeps it; false fits a
+   * constant offset or gain only.
+   */
+  drift?: boolean | 'auto';
   /**
    * Largest robust scatter of the bottles about the fit that is believed: pCO2 in uatm (default 15), the
    * optode gain as a fraction (default 0.05). Past it the bottles disagree among themselves more than any
@@ -70,6 +75,8 @@ export type FitResult =
       /** Robust scale of the residuals, field units. */
       scale: number;
       outliers: number;
+      /** Set when 'auto' dropped a drift the bottles could not tell from zero: its value and SE. */
+      driftDropped?: { value: number; se: number };
     }
   | { ok: false; code: CalibrationErrorCode; reason: string; rows: FitRow[] };
 
@@ -91,7 +98,8 @@ function spreadProblem(target: FitTarget, days: number[], opts: FitOptions): str
 }
 
 function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitOptions): FitResult {
-  const drift = opts.drift ?? true;
+  const auto = opts.drift === undefined || opts.drift === 'auto';
+  let drift = opts.drift !== false;
   const minPairs = opts.minPairs ?? (drift ? 4 : 3);
   const sorted = [...pairs].sort((p, q) => p.tMs - q.tMs);
   const days = sorted.map((p) => (p.tMs - target.fromMs) / DAY_MS);
@@ -127,7 +135,16 @@ function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitO
     if (why !== undefined) return { ok: false, code: 'REEFD_CALIBRATION_SPREAD', reason: why, rows: blank() };
   }
   const y = sorted.map((p) => (model === 'offset' ? p.reference - p.raw : p.reference / p.raw));
-  const f: LineFit | undefined = drift ? robustLine(days, y) : robustLocation(y);
+  let f: LineFit | undefined = drift ? robustLine(days, y) : robustLocation(y);
+  let driftDropped: { value: number; se: number } | undefined;
+  if (f !== undefined && drift && auto && !(Math.abs(f.b) > 2 * f.seB)) {
+    const constant = robustLocation(y);
+    if (constant !== undefined) {
+      driftDropped = { value: f.b, se: f.seB };
+      f = constant;
+      drift = false;
+    }
+  }
   if (f === undefined) {
     return {
       ok: false,
@@ -184,7 +201,8 @@ function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitO
         ];
   // The scale of the fit is in y units; for the gain it is relative, so report it in field units.
   const meanRaw = sorted.reduce((s, p) => s + p.raw, 0) / sorted.length;
-  return { ok: true, entry, params, rows, scale: model === 'offset' ? f.scale : f.scale * meanRaw, outliers };
+  const scale = model === 'offset' ? f.scale : f.scale * meanRaw;
+  return { ok: true, entry, params, rows, scale, outliers, ...(driftDropped ? { driftDropped } : {}) };
 }
 
 /** pCO2 offset and drift of one sensor against reference pCO2 values (see pco2Reference). */

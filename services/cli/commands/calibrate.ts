@@ -45,6 +45,8 @@ Options:
   --out FILE        calibration file to write (required)
   --match-min N     pair a bottle with the sensor's readings within N minutes (default 10)
   --sensor S/X      fit only this sensor (repeatable)
+  --drift           keep every fitted drift (by default a drift within 2 standard errors of
+                    zero is dropped and the correction refitted as a constant)
   --no-drift        fit constant offsets and gains only (short deployments)
 `;
 
@@ -250,7 +252,11 @@ function describeFit(j: Job, r: FitResult, windowMin: number): string[] {
         return `${p.name} ${p.value.toPrecision(6)} +- ${p.se.toPrecision(2)}${u}`;
       })
       .join(', ');
-    lines.push(`${head}: ${ps}; scatter ${f(r.scale, 2)} ${unit}, ${r.outliers} outlier(s)`);
+    const dropped = r.driftDropped
+      ? `; drift ${r.driftDropped.value.toPrecision(2)} +- ${r.driftDropped.se.toPrecision(2)}${j.kind === 'pco2' ? ` ${unit}` : ''}/d ` +
+        `is within 2 SE of zero: fitted constant`
+      : '';
+    lines.push(`${head}: ${ps}; scatter ${f(r.scale, 2)} ${unit}, ${r.outliers} outlier(s)${dropped}`);
   } else lines.push(`${head}: REFUSED (${r.code}): ${r.reason}`);
   if (r.rows.length > 0) {
     lines.push(
@@ -276,6 +282,7 @@ export const run: CommandRun = async (args, io) => {
       out: { type: 'string' },
       'match-min': { type: 'string' },
       sensor: { type: 'string', multiple: true },
+      drift: { type: 'boolean', default: false },
       'no-drift': { type: 'boolean', default: false },
     },
     HELP,
@@ -322,7 +329,11 @@ export const run: CommandRun = async (args, io) => {
   }
   const entries: { entry: CalibrationEntry; comments: string[] }[] = [];
   let refused = 0;
-  const fitOpts = { drift: !v['no-drift'] };
+  if (v.drift && v['no-drift']) {
+    io.stderr('reefd calibrate: give --drift or --no-drift, not both\n');
+    return EXIT_USAGE;
+  }
+  const fitOpts = { drift: v['no-drift'] ? false : v.drift ? true : ('auto' as const) };
   for (const j of todo) {
     const r =
       j.kind === 'pco2' ? fitPco2(j.target, j.pairs, fitOpts) : fitOptodeGain(j.target, j.pairs, fitOpts);
