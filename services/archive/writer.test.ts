@@ -155,6 +155,139 @@ describe('archive writer', () => {
   });
 });
 
+describe('archive writer commits on count, size or time', () => {
+  it('commits as soon as maxBatchLines wait, without waiting for the timer', async () => {
+    // fsync_ms at its configured maximum: were the count ignored, the appends would wait 10 s and the
+    // test would time out.
+    const w = await createArchiveWriter({
+      dir,
+      fsyncMs: 10_000,
+      retentionDays: 0,
+      clock: () => DEC2,
+      maxBatchLines: 50,
+    });
+    await Promise.all(Array.from({ length: 120 }, (_, i) => w.append(line(i, DEC2), DEC2)));
+    expect(w.stats().lines).toBe(120);
+    // All 120 were appended in one turn of the event loop: one commit took them all.
+    expect(w.stats().fsyncs).toBe(1);
+    await w.close();
+    expect((await readAll(dir)).seqs).toEqual(Array.from({ length: 120 }, (_, i) => i));
+  });
+
+  it('commits as soon as maxBatchBytes wait', async () => {
+    const w = await createArchiveWriter({
+      dir,
+      fsyncMs: 10_000,
+      retentionDays: 0,
+      clock: () => DEC2,
+      maxBatchBytes: 1000,
+    });
+    const big = (i: number) =>
+      archiveLine(
+        'reef/s/st/ctd/c1',
+        new Date(DEC2).toISOString(),
+        JSON.stringify({ seq: i, pad: 'x'.repeat(600) }),
+      );
+    await Promise.all([w.append(big(1), DEC2), w.append(big(2), DEC2)]);
+    expect(w.stats()).toMatchObject({ lines: 2, fsyncs: 1 });
+    await w.close();
+  });
+
+  it('holds fewer lines than the count for the timer, then commits them together', async () => {
+    const w = await createArchiveWriter({
+      dir,
+      fsyncMs: 10_000,
+      retentionDays: 0,
+      clock: () => DEC2,
+      maxBatchLines: 50,
+    });
+    let resolved = 0;
+    const all = Array.from({ length: 10 }, (_, i) => w.append(line(i, DEC2), DEC2).then(() => resolved++));
+    // Several turns of the event loop: nothing is committed before the timer or a trigger.
+    for (let i = 0; i < 5; i++) await new Promise((r) => setImmediate(r));
+    expect(resolved).toBe(0);
+    expect(w.stats().fsyncs).toBe(0);
+    await w.flush();
+    await Promise.all(all);
+    expect(w.stats()).toMatchObject({ lines: 10, fsyncs: 1 });
+    await w.close();
+  });
+
+  it('takes the lines that arrive during a commit into the next one (batches grow with the fsync time)', async () => {
+    let syncs = 0;
+    let release: () => void = () => {};
+    const openFile: OpenAppendFile = async (path) => {
+      const f = await openAppendFile(path);
+      return {
+        ...f,
+        sync: async () => {
+          // The first fsync is held until 300 more lines are waiting.
+          if (syncs++ === 0) await new Promise<void>((r) => (release = r));
+          return f.sync();
+        },
+      };
+    };
+    const w = await createArchiveWriter({
+      dir,
+      fsyncMs: 10_000,
+      retentionDays: 0,
+      clock: () => DEC2,
+      maxBatchLines: 10,
+      openFile,
+    });
+    const first = Array.from({ length: 10 }, (_, i) => w.append(line(i, DEC2), DEC2));
+    while (syncs === 0) await new Promise((r) => setImmediate(r));
+    const more = Array.from({ length: 300 }, (_, i) => w.append(line(10 + i, DEC2), DEC2));
+    release();
+    await Promise.all([...first, ...more]);
+    expect(w.stats()).toMatchObject({ lines: 310, fsyncs: 2 });
+    await w.close();
+    expect((await readAll(dir)).seqs).toEqual(Array.from({ length: 310 }, (_, i) => i));
+  });
+});
+
+describe('archive writer, messages spliced from their bytes', () => {
+  it('writes the payload as received and reads it back as the payload value', async () => {
+    const w = await createArchiveWriter({ dir, fsyncMs: 0, retentionDays: 0, clock: () => DEC2 });
+    const payloads = [
+      '{"v":1,"t":"2026-12-02T00:00:00Z","seq":1}',
+      '{\r\n  "v": 1,\n  "seq": 2.0e0 }',
+      '{"seq":3}', // sent with a byte order mark
+      'not json',
+    ];
+    const bytes = payloads.map((p, i) =>
+      i === 2 ? Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), Buffer.from(p)]) : Buffer.from(p),
+    );
+    await w.appendMessage({ topic: 'reef/s/st/ctd/c1', rxMs: DEC2, payload: bytes[0]!, json: true });
+    await w.appendMessage({
+      topic: 'reef/s/st/ctd/c1',
+      rxMs: DEC2,
+      payload: bytes[1]!,
+      json: true,
+      reject: 'x:y',
+    });
+    await w.appendMessage({ topic: 'reef/s/st/ctd/c1', rxMs: DEC2, payload: bytes[2]!, json: true });
+    await w.appendMessage({ topic: 'reef/s/st/ctd/c1', rxMs: DEC2, payload: bytes[3]!, json: false });
+    await w.close();
+    const text = await readFile(join(dir, 'raw-2026-12-02.ndjson'), 'utf8');
+    expect(text.split('\n')[0]).toBe(
+      archiveLine('reef/s/st/ctd/c1', new Date(DEC2).toISOString(), payloads[0]!),
+    );
+    const got = [];
+    for await (const e of readArchive(dir)) got.push(e.line);
+    expect(got).toEqual([
+      {
+        topic: 'reef/s/st/ctd/c1',
+        rx: new Date(DEC2).toISOString(),
+        msg: { v: 1, t: '2026-12-02T00:00:00Z', seq: 1 },
+      },
+      { topic: 'reef/s/st/ctd/c1', rx: new Date(DEC2).toISOString(), msg: { v: 1, seq: 2 }, reject: 'x:y' },
+      { topic: 'reef/s/st/ctd/c1', rx: new Date(DEC2).toISOString(), msg: { seq: 3 } },
+      { topic: 'reef/s/st/ctd/c1', rx: new Date(DEC2).toISOString(), msg: 'not json' },
+    ]);
+  });
+});
+
 describe('archive writer and compressed days', () => {
   it('never writes into a day that is already compressed, even for a line stamped with it', async () => {
     const { gzipSync } = await import('node:zlib');

@@ -1,12 +1,16 @@
 // The raw archive writer (contract section 2): daily NDJSON files by UTC day of the receive time,
-// group commit (many appends share one fsync within fsyncMs; each append resolves after its fsync),
-// rotation at the day boundary, gzip of closed days, retention in days.
+// group commit (many appends share one write and fsync; each append resolves after its fsync), rotation at
+// the day boundary, gzip of closed days, retention in days.
+// A commit starts when the waiting lines reach a count or a size, or when the oldest has waited fsyncMs,
+// whichever comes first; commits run one at a time and each takes every line waiting when it starts, so
+// under load the batches grow with the fsync time instead of the acknowledgements waiting for a timer.
 import { mkdir, readdir, rm } from 'node:fs/promises';
 import { join } from 'node:path';
 import { ReefdError } from '../../libs/contract/index.js';
 import type { ArchiveWriter } from '../pipeline/types.js';
 import type { Logger } from '../log/logger.js';
 import { compressFile, repairArchiveDir } from './compress.js';
+import { archiveLineBytes, type ArchiveMessage } from './line.js';
 import {
   dayOf,
   dayOfName,
@@ -18,15 +22,17 @@ import {
 
 export interface ArchiveWriterOptions {
   dir: string;
-  /** Longest time an append waits for its fsync; 0 = fsync on the next turn of the event loop. */
+  /** Longest time a line waits for its commit to start; 0 = on the next turn of the event loop. */
   fsyncMs: number;
   /** Files of days more than this many days before the clock's day are removed; 0 keeps everything. */
   retentionDays: number;
   /** Wall clock in ms, for closing days and retention. */
   clock: () => number;
   logger?: Logger;
-  /** A batch this large is written at once instead of waiting for the timer (bounds memory). */
+  /** Waiting lines of this many bytes are committed at once instead of waiting for the timer (1 MiB). */
   maxBatchBytes?: number;
+  /** This many waiting lines are committed at once (default 256, well below the broker's in-flight window). */
+  maxBatchLines?: number;
   /** For tests: replaces the file opener (e.g. to simulate a full disk). */
   openFile?: OpenAppendFile;
 }
@@ -47,6 +53,11 @@ interface Pending {
 }
 
 export interface RawArchiveWriter extends ArchiveWriter {
+  /**
+   * Appends the line of one received message, its payload spliced in as received when it is JSON
+   * (line.ts). Resolves when the line is fsync'd, like append(). The payload is copied before this returns.
+   */
+  appendMessage(m: ArchiveMessage): Promise<void>;
   /** Closes a finished day, compresses closed days and applies retention; also runs on a timer. */
   maintain(): Promise<void>;
   stats(): ArchiveWriterStats;
@@ -72,6 +83,7 @@ class Writer implements RawArchiveWriter {
   readonly #o: ArchiveWriterOptions;
   readonly #open: OpenAppendFile;
   readonly #maxBatch: number;
+  readonly #maxLines: number;
   #file: AppendFile | undefined;
   #fileDay = -1;
   /** First day that may still be written: every earlier day with a `.gz` is closed for good. */
@@ -81,6 +93,7 @@ class Writer implements RawArchiveWriter {
   #queue: Pending[] = [];
   #queueBytes = 0;
   #timer: NodeJS.Timeout | undefined;
+  #immediate: NodeJS.Immediate | undefined;
   #chain: Promise<void> = Promise.resolve();
   #closed = false;
   /** A failed write could not be cut back: the next write starts a new line. */
@@ -92,7 +105,8 @@ class Writer implements RawArchiveWriter {
   constructor(o: ArchiveWriterOptions) {
     this.#o = o;
     this.#open = o.openFile ?? openAppendFile;
-    this.#maxBatch = o.maxBatchBytes ?? 4 * 1024 * 1024;
+    this.#maxBatch = o.maxBatchBytes ?? 1024 * 1024;
+    this.#maxLines = o.maxBatchLines ?? 256;
   }
 
   async init(): Promise<void> {
@@ -114,27 +128,42 @@ class Writer implements RawArchiveWriter {
 
   append(line: string, rxMs: number): Promise<void> {
     if (this.#closed) return Promise.reject(new Error('REEFD_ARCHIVE_CLOSED: append after close()'));
+    return this.#enqueue(
+      Buffer.from(/[\n\r]/.test(line) ? line.replace(/[\n\r]/g, ' ') : line, 'utf8'),
+      rxMs,
+    );
+  }
+
+  appendMessage(m: ArchiveMessage): Promise<void> {
+    if (this.#closed) return Promise.reject(new Error('REEFD_ARCHIVE_CLOSED: append after close()'));
+    return this.#enqueue(archiveLineBytes(m), m.rxMs);
+  }
+
+  #enqueue(data: Buffer, rxMs: number): Promise<void> {
     // Days never go backwards: a line stamped with an already closed day goes to the open file, so a
     // compressed day is never reopened (a plain file beside its .gz would be taken for crash leftovers).
     const day = Math.max(dayOf(rxMs), this.#fileDay, this.#minDay);
     return new Promise<void>((resolve, reject) => {
-      const data = Buffer.from(line.includes('\n') ? line.replace(/\n/g, ' ') : line, 'utf8');
       this.#queue.push({ data, day, resolve, reject });
       this.#queueBytes += data.length + 1;
-      if (this.#queueBytes >= this.#maxBatch || this.#o.fsyncMs === 0) this.#schedule(0);
-      else this.#schedule(this.#o.fsyncMs);
+      if (this.#queueBytes >= this.#maxBatch || this.#queue.length >= this.#maxLines || this.#o.fsyncMs === 0)
+        this.#commitSoon();
+      else if (this.#timer === undefined) {
+        this.#timer = setTimeout(() => {
+          this.#timer = undefined;
+          void this.#commit();
+        }, this.#o.fsyncMs);
+      }
     });
   }
 
-  #schedule(ms: number): void {
-    if (this.#timer !== undefined) {
-      if (ms > 0) return;
-      clearTimeout(this.#timer);
-    }
-    this.#timer = setTimeout(() => {
-      this.#timer = undefined;
+  /** After the appends of this turn of the event loop (they join the batch). */
+  #commitSoon(): void {
+    if (this.#immediate !== undefined) return;
+    this.#immediate = setImmediate(() => {
+      this.#immediate = undefined;
       void this.#commit();
-    }, ms);
+    });
   }
 
   /** Runs one group commit after the previous one; commits are serialised so file order = append order. */
@@ -153,6 +182,11 @@ class Writer implements RawArchiveWriter {
       const batch = this.#queue;
       this.#queue = [];
       this.#queueBytes = 0;
+      // These lines' timer is no longer needed; lines that arrive during this commit start their own.
+      if (this.#timer !== undefined) {
+        clearTimeout(this.#timer);
+        this.#timer = undefined;
+      }
       // Split at day changes: each file gets its own lines.
       let start = 0;
       while (start < batch.length) {
@@ -261,6 +295,10 @@ class Writer implements RawArchiveWriter {
     if (this.#timer !== undefined) {
       clearTimeout(this.#timer);
       this.#timer = undefined;
+    }
+    if (this.#immediate !== undefined) {
+      clearImmediate(this.#immediate);
+      this.#immediate = undefined;
     }
     await this.#commit().catch(() => undefined);
   }
