@@ -1,5 +1,14 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { carbonateUncertainty, solveCarbonate, UNCERTAIN_OUTPUTS } from './index.js';
+import {
+  carbonateUncertainty,
+  solveCarbonate,
+  UNCERTAIN_OUTPUTS,
+  type CarbonateInput,
+  type CarbonateOptions,
+  type CarbonateSigmas,
+} from './index.js';
+import { referenceUncertainty } from '../../test/bench/lib/uncertainty-before.js';
 
 const base = { salinity: 35, tempC: 25, taUmolKg: 2300, pco2Uatm: 400 };
 
@@ -74,5 +83,98 @@ describe('carbonateUncertainty (docs/methods/uncertainty.md 9.1)', () => {
     if (!r.ok) throw new Error(r.reason);
     expect(Math.abs(r.sigma.omegaAr / (Math.LN10 * r.value.omegaAr * 0.02) - 1)).toBeLessThan(1e-7);
     expect(Math.abs(r.sigma.omegaCa / (Math.LN10 * r.value.omegaCa * 0.02) - 1)).toBeLessThan(1e-7);
+  });
+});
+
+// The propagation as first written (constants recomputed for every perturbed solve, records filled by key)
+// is kept as the reference in test/bench/lib/uncertainty-before.ts (the carbonate benchmark times both): the
+// faster one must give the very same numbers, not merely close ones.
+/** Identical results (Object.is on every number, keys in the same order), and sigma-only equal sigmas. */
+function same(input: CarbonateInput, sigmas: CarbonateSigmas, options?: CarbonateOptions): boolean {
+  const got = carbonateUncertainty(input, sigmas, options);
+  const want = referenceUncertainty(input, sigmas, options);
+  expect(got).toStrictEqual(want);
+  if (!got.ok || !want.ok) return false;
+  expect(Object.keys(got.sigma)).toEqual([...UNCERTAIN_OUTPUTS]);
+  for (const k of UNCERTAIN_OUTPUTS) expect(Object.is(got.sigma[k], want.sigma[k])).toBe(true);
+  const lean = carbonateUncertainty(input, sigmas, options, 'sigma');
+  expect(lean.ok && lean.sigma).toStrictEqual(want.sigma);
+  expect(lean.ok && Object.keys(lean.contributions).length).toBe(0);
+  return true;
+}
+
+const PROCESSOR_SIGMAS: CarbonateSigmas = { pco2Uatm: 4, taUmolKg: 10, tempC: 0.05, salinity: 0.05 };
+
+describe('carbonateUncertainty gives the numbers of the per-source recomputation, exactly', () => {
+  it('over a grid of conditions, input pairs and options', () => {
+    let solved = 0;
+    const pairs: Partial<CarbonateInput>[] = [
+      { taUmolKg: 2300, pco2Uatm: 400 },
+      { taUmolKg: 1900, pco2Uatm: 1200 },
+      { taUmolKg: 2300, dicUmolKg: 2000 },
+      { dicUmolKg: 1950, phTotal: 8.05 },
+      { phTotal: 7.9, pco2Uatm: 600 },
+      { taUmolKg: 2250, phTotal: 8.1 },
+      { dicUmolKg: 2050, fco2Uatm: 380 },
+    ];
+    const options: (CarbonateOptions | undefined)[] = [
+      undefined,
+      {
+        carbonicConstants: 'dickson-millero1987',
+        boron: 'uppstrom1974',
+        kw: 'millero1995-sws',
+        fugacity: 'weiss1974-dilute',
+      },
+    ];
+    for (const salinity of [20, 33, 36.5])
+      for (const tempC of [2, 18, 29.5])
+        for (const out of [{}, { outTempC: tempC + 1.3 }, { seaPressureDbar: 12, outSeaPressureDbar: 0 }])
+          for (const pair of pairs)
+            for (const opt of options) {
+              const input = {
+                salinity,
+                tempC,
+                ...out,
+                ...pair,
+                po4UmolKg: 0.4,
+                sio4UmolKg: 3,
+              } as CarbonateInput;
+              const sig: CarbonateSigmas = {
+                ...PROCESSOR_SIGMAS,
+                dicUmolKg: 4,
+                phTotal: 0.01,
+                outTempC: 0.02,
+              };
+              if (same(input, sig, opt)) solved++;
+            }
+    expect(solved).toBeGreaterThan(300);
+  });
+
+  it('property: random conditions and inputs (as the processor calls it, warm-started)', () => {
+    fc.assert(
+      fc.property(
+        fc.record({
+          salinity: fc.double({ min: 5, max: 42, noNaN: true }),
+          tempC: fc.double({ min: -1.5, max: 34, noNaN: true }),
+          outTempC: fc.option(fc.double({ min: -1.5, max: 34, noNaN: true }), { nil: undefined }),
+          taUmolKg: fc.double({ min: 1500, max: 2800, noNaN: true }),
+          pco2Uatm: fc.double({ min: 100, max: 3000, noNaN: true }),
+          baroHpa: fc.double({ min: 950, max: 1050, noNaN: true }),
+          initialPh: fc.option(fc.double({ min: 7, max: 8.6, noNaN: true }), { nil: undefined }),
+        }),
+        fc.constantFrom<CarbonateSigmas>(PROCESSOR_SIGMAS, { taUmolKg: 3, pco2Uatm: 2, constants: 'none' }),
+        (rec, sig) => {
+          const input = Object.fromEntries(
+            Object.entries(rec).filter(([, v]) => v !== undefined),
+          ) as unknown as CarbonateInput;
+          same(input, sig);
+        },
+      ),
+      { numRuns: 300 },
+    );
+  });
+
+  it('returns the same failure at the edge of the domain', () => {
+    same({ salinity: 35, tempC: 25, dicUmolKg: 5, pco2Uatm: 400 }, { pco2Uatm: 2 });
   });
 });

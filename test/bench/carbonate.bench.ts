@@ -10,6 +10,7 @@ import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import {
+  carbonateUncertainty,
   createConstants,
   equilibriumConstantsInto,
   resolveCarbonateOptions,
@@ -19,6 +20,8 @@ import {
   STATE,
   STATE_LENGTH,
 } from '../../libs/carbonate/index.js';
+import { bytesPerCall, cpuMicros } from './lib/measure.js';
+import { referenceUncertainty } from './lib/uncertainty-before.js';
 
 const n = Number(process.argv[2] ?? 200_000);
 // Deterministic grid, identical to carbonate_pyco2sys_timing.py.
@@ -151,3 +154,41 @@ console.log(
   `goal > 1e6 solves/s per core (CPU time): constants + solve ${withConstants.cpu > 1e6 ? 'met' : 'NOT met'}, ` +
     `solve only ${solveOnly.cpu > 1e6 ? 'met' : 'NOT met'}`,
 );
+
+// 4. Uncertainty propagation per pCO2 reading, as the processor asks for it (TA + pCO2 with a separate output
+// temperature, its sigmas and the constants' defaults): the former propagation (constants recomputed for
+// every perturbed solve; test/bench/lib/uncertainty-before.ts) against the current one, interleaved, in CPU
+// time, and the heap bytes each allocates per call. The two give identical numbers (uncertainty.test.ts).
+{
+  const cases = Array.from({ length: 64 }, (_, i) => ({
+    salinity: sal[i]!,
+    tempC: temp[i]!,
+    outTempC: temp[i]! + 0.2,
+    taUmolKg: ta[i]!,
+    pco2Uatm: pco2[i]!,
+    baroHpa: 1011,
+  }));
+  const sig = { pco2Uatm: 4, taUmolKg: 10, tempC: 0.05, salinity: 0.05 };
+  let j = 0;
+  const next = () => cases[j++ % cases.length]!;
+  const [before, after, lean] = cpuMicros([
+    {
+      label: 'carbonateUncertainty, before (recomputed constants)',
+      iter: 400,
+      fn: () => referenceUncertainty(next(), sig),
+    },
+    { label: 'carbonateUncertainty, after', iter: 400, fn: () => carbonateUncertainty(next(), sig) },
+    {
+      label: "carbonateUncertainty, after, detail 'sigma'",
+      iter: 400,
+      fn: () => carbonateUncertainty(next(), sig, undefined, 'sigma'),
+    },
+  ]) as [number, number, number];
+  const bBefore = bytesPerCall((i) => referenceUncertainty(cases[i % 64]!, sig), 50);
+  const bAfter = bytesPerCall((i) => carbonateUncertainty(cases[i % 64]!, sig), 50);
+  const bLean = bytesPerCall((i) => carbonateUncertainty(cases[i % 64]!, sig, undefined, 'sigma'), 50);
+  console.log(
+    `uncertainty per pCO2 reading: ${(before / after).toFixed(2)}x faster (${before.toFixed(1)} -> ${after.toFixed(1)} us; ` +
+      `sigma only ${lean.toFixed(1)} us); heap bytes per call ${Math.round(bBefore)} -> ${Math.round(bAfter)} (sigma only ${Math.round(bLean)})`,
+  );
+}

@@ -2,6 +2,8 @@
 // despike, Welch, dispersion and Kp per bin, bulk statistics, whole-burst reconstruction and zero crossings),
 // against baselines measured in the same run: the bare fft.js 2048-point real transform, and welchPsd alone.
 // A 1800-sample burst shows the cost of the Bluestein path (half-length) for lengths that are not a power of two.
+// The burst as a message carries it (a plain array with null for bad samples) is analysed directly, against
+// the earlier path that first copied it into a Float64Array through a per-sample callback.
 // Run: npx tsx test/bench/waves.bench.ts   (goal: under 200 us per 2048-sample burst on one core)
 import FFT from 'fft.js';
 import { analyzeBurst, jonswapPressureBurst, welchPsd } from '../../libs/waves/index.js';
@@ -67,7 +69,13 @@ const fftIn = Float64Array.from(p2048);
 // Float64Array in and out, as the library uses them (mixing plain arrays in would make fft.js polymorphic)
 const fftOut = new Float64Array(4096);
 
-const [base, welch, full, odd] = bench([
+// p_dbar as it comes out of JSON.parse (4 decimals on the wire), with one flagged sample.
+const wire: (number | null)[] = JSON.parse(
+  JSON.stringify(Array.from(p2048, (x) => Math.round(x * 1e4) / 1e4)),
+);
+wire[700] = null;
+
+const [base, welch, full, odd, copyPath, arrayPath] = bench([
   {
     label: 'baseline: fft.js realTransform, 2048 points',
     iter: 4000,
@@ -97,7 +105,23 @@ const [base, welch, full, odd] = bench([
       if (r.ok) sink += r.hm0M;
     },
   },
-]) as [number, number, number, number];
+  {
+    label: 'p_dbar -> Float64Array.from(mapper) -> analyzeBurst',
+    iter: 500,
+    fn: () => {
+      const r = analyzeBurst(input(Float64Array.from(wire, (x) => (x === null ? Number.NaN : x))));
+      if (r.ok) sink += r.hm0M;
+    },
+  },
+  {
+    label: 'p_dbar (plain array) -> analyzeBurst',
+    iter: 500,
+    fn: () => {
+      const r = analyzeBurst({ ...input(p2048), pDbar: wire });
+      if (r.ok) sink += r.hm0M;
+    },
+  },
+]) as [number, number, number, number, number, number];
 
 console.log('');
 console.log(
@@ -105,4 +129,8 @@ console.log(
 );
 console.log(`analyzeBurst 2048 / welchPsd 2048     ratio ${(full / welch).toFixed(1)}x`);
 console.log(`analyzeBurst 1800 / analyzeBurst 2048 ratio ${(odd / full).toFixed(2)}x`);
+console.log(
+  `burst as carried (plain array) / copied through a callback: ratio ${(arrayPath / copyPath).toFixed(2)} ` +
+    `(${copyPath.toFixed(0)} -> ${arrayPath.toFixed(0)} us)`,
+);
 if (!Number.isFinite(sink)) console.log('unreachable');

@@ -42,10 +42,10 @@ export function median(xs: readonly number[]): number {
  * collection interrupted (a GC profiler watches each try; a try with a GC is repeated with fewer calls).
  * Median of 5 clean tries. Counts what the calls allocate and drop, which is what the GC must clear.
  */
-export function bytesPerCall(fn: (i: number) => unknown, iter = 200): number {
+export function bytesPerCall(fn: (i: number) => unknown, iter = 200, warmup = 2000): number {
   const gc = (globalThis as { gc?: () => void }).gc;
   if (gc === undefined) throw new Error('REEFD_BENCH_NO_GC: run with --expose-gc (npm run bench does)');
-  for (let i = 0; i < 50; i++) fn(i); // warm-up: the first calls allocate compiled code and caches
+  for (let i = 0; i < warmup; i++) fn(i); // warm-up: unoptimised code boxes every number it computes
   const tries: number[] = [];
   let n = iter;
   let keep: unknown;
