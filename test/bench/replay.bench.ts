@@ -2,12 +2,14 @@
 // through the processor in-process (parseArchiveLine + messageFromArchiveLine + processor.push, the loop
 // of `reefd replay` without the file reading and NDJSON writing), against a baseline of parseArchiveLine +
 // messageFromArchiveLine alone (JSON.parse + schema validation) on the same lines, in the same run.
-// Goal (issue 6): >= 50,000 messages/s.
+// Goals: issue 6, >= 50,000 messages/s; issue 17, replay >= 0.35 of the parse-only baseline in one process,
+// and a sharded replay >= 1.6x the single process on 2 cores (not built yet: printed as such).
 // Env: REEFD_BENCH_REPLAY_COPIES (default 16 copies of the demo site), REEFD_BENCH_REPLAY_HOURS (32).
 import { archiveLine, parseArchiveLine } from '../../libs/contract/index.js';
 import { createProcessor, messageFromArchiveLine } from '../../libs/processor/index.js';
 import { simulateMessages } from '../../libs/simulator/index.js';
 import { parsed, replicatedDemo } from '../e2e/helpers/big-site.js';
+import { summaryRow } from './lib/measure.js';
 
 const copies = Number(process.env.REEFD_BENCH_REPLAY_COPIES ?? 16);
 const hours = Number(process.env.REEFD_BENCH_REPLAY_HOURS ?? 32);
@@ -74,3 +76,21 @@ console.log(`ratio replay / baseline: ${(f / b).toFixed(3)}`);
 console.log(
   `goal >= 50000 messages/s: ${f >= 50_000 ? 'met' : 'NOT met'} (${(f / 50_000).toFixed(2)} x goal)`,
 );
+summaryRow({
+  id: 'replay',
+  what: 'replay / parse-only baseline (same archive, same run), one process',
+  baseline: `${Math.round(b)} lines/s (JSON.parse + validation)`,
+  measured: `${Math.round(f)} messages/s`,
+  ratio: f / b,
+  goal: '>= 0.35',
+  met: f / b >= 0.35,
+});
+summaryRow({
+  id: 'replay-sharded',
+  what: 'sharded replay / single-process replay, 2 cores',
+  baseline: `${Math.round(f)} messages/s single process`,
+  measured: 'not built (issue 17 Deliver 3)',
+  ratio: NaN,
+  goal: '>= 1.6x',
+  met: 'n/a',
+});
