@@ -40,6 +40,9 @@ export interface ArchiveWriterOptions {
 export interface ArchiveWriterStats {
   lines: number;
   fsyncs: number;
+  /** Wall time of the commits (write + fsync), summed and the longest, ms: the acknowledgement delay floor. */
+  commitMsTotal: number;
+  commitMsMax: number;
   bytes: number;
   openDay: string | undefined;
   errors: number;
@@ -100,7 +103,15 @@ class Writer implements RawArchiveWriter {
   #needsNewline = false;
   #maintTimer: NodeJS.Timeout | undefined;
   #maintChain: Promise<void> = Promise.resolve();
-  #stats: ArchiveWriterStats = { lines: 0, fsyncs: 0, bytes: 0, openDay: undefined, errors: 0 };
+  #stats: ArchiveWriterStats = {
+    lines: 0,
+    fsyncs: 0,
+    commitMsTotal: 0,
+    commitMsMax: 0,
+    bytes: 0,
+    openDay: undefined,
+    errors: 0,
+  };
 
   constructor(o: ArchiveWriterOptions) {
     this.#o = o;
@@ -207,6 +218,7 @@ class Writer implements RawArchiveWriter {
       const parts: Buffer[] = [];
       for (const p of group) parts.push(p.data, NL);
       const data = Buffer.concat(parts);
+      const t0 = performance.now();
       try {
         await file.write(data);
         await file.sync();
@@ -221,6 +233,9 @@ class Writer implements RawArchiveWriter {
       this.#stats.lines += group.length;
       this.#stats.bytes += data.length;
       this.#stats.fsyncs++;
+      const ms = performance.now() - t0;
+      this.#stats.commitMsTotal += ms;
+      if (ms > this.#stats.commitMsMax) this.#stats.commitMsMax = ms;
       for (const p of group) p.resolve();
     } catch (err) {
       this.#stats.errors++;

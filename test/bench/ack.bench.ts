@@ -77,6 +77,8 @@ console.log(
 
 const logger = createLogger({ level: 'warn' });
 
+const commitMs: number[] = [];
+
 async function archivedRate(mode: 'before' | 'after'): Promise<number> {
   const prefix = `bench-${randomSuffix()}`;
   const dir = mkdtempSync(path.join(tmpdir(), 'reefd-bench-ack-'));
@@ -142,8 +144,10 @@ async function archivedRate(mode: 'before' | 'after'): Promise<number> {
   const rate = (acked / (last - t0)) * 1000;
   console.log(
     `  ${mode}: ${acked}/${list.length} archived and acknowledged, ${Math.round(rate)} msg/s; ` +
-      `${st.fsyncs} commits (${(st.lines / Math.max(1, st.fsyncs)).toFixed(0)} lines each on average)`,
+      `${st.fsyncs} commits (${(st.lines / Math.max(1, st.fsyncs)).toFixed(0)} lines each on average, ` +
+      `write + fsync ${(st.commitMsTotal / Math.max(1, st.fsyncs)).toFixed(1)} ms on average, ${st.commitMsMax.toFixed(0)} ms at most)`,
   );
+  commitMs.push(st.commitMsTotal / Math.max(1, st.fsyncs));
   return rate;
 }
 
@@ -163,4 +167,5 @@ summaryRow({
   ratio: after / base,
   goal: 'none below the broker (ratio >= ~1 within noise)',
   met: after / base >= 0.9,
+  note: `a commit (write + fsync) took ${commitMs[1]?.toFixed(1)} ms on average: with 1,000 in flight that bounds the rate near ${Math.round(1000 / ((commitMs[1] ?? 1) / 1000))} msg/s`,
 });
