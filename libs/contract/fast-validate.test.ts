@@ -286,6 +286,20 @@ describe('fast validation', () => {
     agree('ctd', { ...ctd, temp_c: undefined });
   });
 
+  it('covers the reference oxygen of a bottle sample (o2_umol_kg) at and past its bounds', () => {
+    const sample = good.find((g) => kindOf(g.topic) === 'sample')!.msg;
+    expect(Object.keys(shapeOf('sample'))).toContain('o2_umol_kg');
+    const decided: boolean[] = [];
+    for (const o2 of [0, -0, 212.4, 1000, nextUp(1000), nextDown(0), NaN, '212', null]) {
+      agree('sample', { ...sample, o2_umol_kg: o2 });
+      decided.push(validatePayload(partsOf('sample'), { ...sample, o2_umol_kg: o2 }).ok);
+      // Alone, it is the one result the sample carries.
+      const alone = { v: 1, t: '2026-03-01T06:00:00Z', o2_umol_kg: o2 };
+      agree('sample', alone);
+    }
+    expect(decided).toEqual([true, true, true, true, false, false, false, false, false]);
+  });
+
   it('checks a burst at the sample limit and just past it', () => {
     const p = good.find((g) => kindOf(g.topic) === 'pressure')!.msg;
     const full = Array.from({ length: MAX_PRESSURE_SAMPLES }, (_, i) => 10 + Math.sin(i / 7));
