@@ -37,6 +37,9 @@ export const LAGOON_COMMUNITY: Readonly<CommunityParams> = Object.freeze({
 export interface Metabolism {
   ncpMmolM2H: number;
   necMmolM2H: number;
+  /** The two parts of NCP: gross production and community respiration (positive), mmol O2 m-2 h-1. */
+  gppMmolM2H: number;
+  respMmolM2H: number;
 }
 
 /** Community rates at surface PAR parSurface (umol m-2 s-1) over water depth depthM. Check: PAR 0 gives
@@ -49,9 +52,12 @@ export function communityRates(
 ): Metabolism {
   const iBed = Math.max(0, parSurfaceUmolM2S) * Math.exp(-p.kdPerM * Math.max(depthM, 0));
   const shape = Math.tanh(iBed / p.ikUmolM2S);
+  const gpp = productivityScale * p.pmaxMmolM2H * shape;
   return {
-    ncpMmolM2H: productivityScale * p.pmaxMmolM2H * shape - p.respMmolM2H,
+    ncpMmolM2H: gpp - p.respMmolM2H,
     necMmolM2H: p.necNightMmolM2H + (p.necDayMmolM2H - p.necNightMmolM2H) * shape,
+    gppMmolM2H: gpp,
+    respMmolM2H: p.respMmolM2H,
   };
 }
 

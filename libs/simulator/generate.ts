@@ -14,6 +14,7 @@ import {
 } from './faults.js';
 import { ReefModel, type ReefSnapshot, type WaveClimateOverride } from './model.js';
 import { optodeSalinityFactor } from './optode.js';
+import { DailyTruthAccumulator } from './daily-truth.js';
 import { createRng, type Rng } from './prng.js';
 import { solarHour } from './signals.js';
 import { siteLayout, type Role } from './site.js';
@@ -29,6 +30,8 @@ export interface SimulateOptions {
   truthEveryMs?: number;
   /** Turn the scripted faults and the low-oxygen night off (clean data for physics tests). */
   faults?: boolean;
+  /** IANA zone of the local days of the `daily` truth (default: the configuration's `timezone`, else UTC). */
+  timeZone?: string;
 }
 
 export interface SimMessage {
@@ -154,12 +157,14 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
   const endMs = opts.startMs + opts.durationMs;
   const spiked = new Set<ScriptedFault>();
   const backlog = new Map<SimMessage, number>();
+  const daily = new DailyTruthAccumulator(config.transects, layout, opts.timeZone ?? config.timezone, STEP_S);
   for (let tMs = opts.startMs; tMs < endMs; tMs += STEP_S * 1000) {
     if (withFaults && tMs >= nextCycleMs) {
       yield* startCycle(nextCycleMs);
       nextCycleMs += FAULT_CYCLE_MS;
     }
     const snap = model.step();
+    for (const row of daily.add(snap)) yield { type: 'truth', row };
     if (tMs >= nextTruth) {
       for (const [station] of Object.entries(config.stations)) {
         const role = layout.roleOf.get(station) ?? 'flat';
@@ -217,6 +222,7 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
     }
   }
   for (const m of pending) if (m.tMs <= endMs) yield { type: 'message', message: m };
+  for (const row of daily.finish(endMs)) yield { type: 'truth', row };
 }
 
 function firstO2Field(p: Record<string, unknown>): string {

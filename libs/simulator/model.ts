@@ -7,6 +7,7 @@ import {
   LAGOON_COMMUNITY,
   MMOL_M2_H_TO_UMOL_M2_S,
   transferVelocities,
+  type Metabolism,
 } from './community.js';
 import {
   co2SolubilityMolKgAtm,
@@ -80,8 +81,8 @@ export interface ReefSnapshot {
   flow: CrossReefState;
   roles: Record<Role, RoleState>;
   /** Community rates (mmol m-2 h-1) on the two flat segments, at their mean depth. */
-  outer: { ncpMmolM2H: number; necMmolM2H: number };
-  inner: { ncpMmolM2H: number; necMmolM2H: number };
+  outer: Metabolism;
+  inner: Metabolism;
 }
 
 function copyWater(w: Water): Water {

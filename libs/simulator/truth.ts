@@ -2,6 +2,7 @@
 // can score the daemon's derived records. Field names follow the derived records (contract section 4).
 import type { TransectConfig } from '../contract/index.js';
 import { density, o2MgL, speciate } from './chemistry.js';
+import type { DailyTruth } from './daily-truth.js';
 import type { ScriptedFault } from './faults.js';
 import type { ReefSnapshot } from './model.js';
 import type { Role, SiteLayout } from './site.js';
@@ -50,7 +51,8 @@ export interface EventTruth {
   centreMs: number;
 }
 
-export type TruthRow = StationTruth | TransectTruth | FaultTruth | EventTruth;
+export type TruthRow = StationTruth | TransectTruth | FaultTruth | EventTruth | DailyTruth;
+export type { DailyTruth };
 
 const r = (x: number, dp: number) => Math.round(x * 10 ** dp) / 10 ** dp;
 
