@@ -15,6 +15,8 @@ export interface DailyState {
   windows: FluxWindowInput[];
   /** The last local day closed (YYYY-MM-DD), or null before the first. */
   lastClosedDay: string | null;
+  /** End (ms) of the next day that can close, once known: nothing is due before it (saves calendar work). */
+  nextCloseMs?: number;
 }
 
 export function createDailyState(): DailyState {
@@ -69,10 +71,14 @@ export function closeDueDays(
   const out: DailyResult[] = [];
   const first = state.windows[0];
   if (first === undefined) return out;
+  if (state.nextCloseMs !== undefined && finalBeforeMs < state.nextCloseMs) return out;
   let day = state.lastClosedDay === null ? calendar.localDate(first.tMs) : nextDate(state.lastClosedDay);
   for (;;) {
     const b = calendar.dayBounds(day);
-    if (b.endMs > finalBeforeMs) break;
+    if (b.endMs > finalBeforeMs) {
+      state.nextCloseMs = b.endMs;
+      break;
+    }
     const dayWindows = slice(state.windows, b.startMs, b.endMs);
     if (dayWindows.length > 0) {
       const weekStart = calendar.dayBounds(nextDate(day, -(WEEK_DAYS - 1))).startMs;

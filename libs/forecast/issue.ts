@@ -1,0 +1,320 @@
+// Issuing tonight's forecasts (docs/methods/forecast.md 11.5-11.7): the station models are built from the
+// state at the issue time (only data before it), run by forecastNight, then calibrated by the station's own
+// scored nights: the median error is added as a bias and the error variance the members do not explain is
+// added to the interval (model output statistics in their simplest form, common practice in forecasting).
+import { sunEvents } from '../daily/index.js';
+import { blockMeans, meanOver, valueAt, type Blocks } from './blocks.js';
+import { predictTide } from './harmonics.js';
+import { forecastNight, type FlowSource, type StationForecast, type StationModel } from './night.js';
+import type { ForecastPlan, PlanStation } from './plan.js';
+import { O2_MG_L_PER_MMOL_M3 } from './box-model.js';
+import type { ForecastError, ForecastState, ModelFits } from './state.js';
+
+export interface IssueOptions {
+  members: number;
+  /** Model error sd before any night has been scored, mg/L (engineering default 0.25). */
+  defaultModelSigmaMgL: number;
+  /** Fewest scored forecasts for a calibration (default 3). */
+  minCalibration: number;
+}
+
+/** The 80 % interval of a normal: +-1.2816 sd. */
+const Z80 = 1.2815515655446004;
+const HOUR = 3_600_000;
+
+export interface CalibratedForecast extends StationForecast {
+  rawMgL: number;
+  biasMgL: number;
+  modelSigmaMgL: number;
+  halfLoMgL: number;
+  halfHiMgL: number;
+}
+
+/** Predicted depth of a station: the tide fit plus the mean residual of the last three hours (setup, surge),
+ * or the last depth held when there is no fit. */
+function depthPredictor(
+  s: ForecastState,
+  fits: ModelFits,
+  station: string,
+  T: number,
+): ((t: number) => number) | undefined {
+  const b = s.depth[station];
+  if (!b) return undefined;
+  const recent = blockMeans(b, T - 3 * HOUR, T);
+  if (recent.v.length === 0) return undefined;
+  const fit = fits.tide[station];
+  if (!fit) {
+    const last = recent.v[recent.v.length - 1] as number;
+    return () => last;
+  }
+  const resid =
+    recent.v.reduce((a, v, i) => a + v - predictTide(fit, recent.tMs[i] as number), 0) / recent.v.length;
+  // The ensemble asks for the same grid times again and again: remember them.
+  const cache = new Map<number, number>();
+  return (t) => {
+    let d = cache.get(t);
+    if (d === undefined) {
+      d = Math.max(0.05, predictTide(fit, t) + resid);
+      cache.set(t, d);
+    }
+    return d;
+  };
+}
+
+function flowSource(
+  s: ForecastState,
+  fits: ModelFits,
+  plan: ForecastPlan,
+  transect: string,
+  T: number,
+): FlowSource | undefined {
+  const t = plan.transects.find((x) => x.id === transect);
+  const flow = fits.flow[transect];
+  if (!t || !flow) return undefined;
+  const currentDepthM = depthPredictor(s, fits, t.current, T);
+  return currentDepthM ? { flow, currentDepthM } : undefined;
+}
+
+/** Night respiration of a transect: the mean of its last three nights, with the larger of their spread and
+ * their propagated sigma. */
+function respiration(
+  s: ForecastState,
+  transect: string,
+  T: number,
+): { r: number; sigma: number } | undefined {
+  const rows = (s.resp[transect] ?? []).filter((x) => x.tMs < T).slice(-3);
+  if (rows.length === 0) return undefined;
+  const r = rows.reduce((a, x) => a + x.rMmolM2H, 0) / rows.length;
+  const sd =
+    rows.length > 1 ? Math.sqrt(rows.reduce((a, x) => a + (x.rMmolM2H - r) ** 2, 0) / (rows.length - 1)) : 0;
+  const prop = Math.sqrt(rows.reduce((a, x) => a + x.sigma ** 2, 0)) / rows.length;
+  return { r, sigma: Math.max(sd, prop) };
+}
+
+/** Dusks of the nights before tonight (at most `nights`), from the sun. */
+function pastDusks(plan: ForecastPlan, duskMs: number, nights: number): number[] {
+  const out: number[] = [];
+  for (let n = 1; n <= nights; n++) {
+    const around = duskMs - n * 24 * HOUR;
+    const set = sunEvents(around - 3 * HOUR, around + 3 * HOUR, plan.latDeg, plan.lonDeg).find(
+      (e) => e.kind === 'set',
+    );
+    if (set) out.push(set.tMs);
+  }
+  return out;
+}
+
+/** The station's mean course through past nights, aligned on dusk, relative to the value at the same time
+ * after dusk as now; and the sd across nights of the drop to their minimum (docs/methods/forecast.md 11.5). */
+function climatology(
+  b: Blocks,
+  night: { duskMs: number; sunriseMs: number },
+  T: number,
+  dusks: readonly number[],
+): { drift: (t: number) => number; sigma: number } | undefined {
+  const rows: { dusk: number; base: number }[] = [];
+  const drops: number[] = [];
+  for (const d of dusks) {
+    const base = valueAt(b, d + (T - night.duskMs), HOUR);
+    if (base === undefined) continue;
+    rows.push({ dusk: d, base });
+    const m = blockMeans(b, d + (T - night.duskMs), d + (night.sunriseMs - night.duskMs)).v;
+    if (m.length > 2) drops.push(Math.min(...m) - base);
+  }
+  if (rows.length === 0) return undefined;
+  const cache = new Map<number, number>();
+  const drift = (t: number) => {
+    const hit = cache.get(t);
+    if (hit !== undefined) return hit;
+    let sum = 0;
+    let n = 0;
+    for (const r of rows) {
+      const v = valueAt(b, r.dusk + (t - night.duskMs), HOUR);
+      if (v === undefined) continue;
+      sum += v - r.base;
+      n++;
+    }
+    const d = n ? sum / n : 0;
+    cache.set(t, d);
+    return d;
+  };
+  const mean = drops.reduce((a, x) => a + x, 0) / Math.max(1, drops.length);
+  const sd =
+    drops.length > 1 ? Math.sqrt(drops.reduce((a, x) => a + (x - mean) ** 2, 0) / (drops.length - 1)) : 0.1;
+  return { drift, sigma: sd };
+}
+
+/** Median of observed minus modelled O2 of a transect's downstream station over the dark hours of past
+ * nights (from two hours after dusk, when the water has lost the day's oxygen) and of tonight so far: a
+ * persistent offset between the stations' sensors, or a bias of R, PQ or air-sea exchange. */
+function transectOffset(
+  s: ForecastState,
+  t: { id: string; upstream: string; downstream: string; lengthM: number },
+  rMmolM2H: number,
+  night: { duskMs: number; sunriseMs: number },
+  T: number,
+  dusks: readonly number[],
+): number {
+  const down = s.o2[t.downstream];
+  const up = s.o2[t.upstream];
+  const u = s.flowU[t.id];
+  const hu = s.depth[t.upstream];
+  const hd = s.depth[t.downstream];
+  if (!down || !up || !u || !hu || !hd) return 0;
+  const spans = dusks.map((d) => [d + 2 * HOUR, d + (night.sunriseMs - night.duskMs)] as const);
+  if (T - night.duskMs >= 2.5 * HOUR) spans.push([night.duskMs + 2 * HOUR, T] as const);
+  const res: number[] = [];
+  for (const [from, to] of spans) {
+    const m = blockMeans(down, from, to);
+    m.tMs.forEach((x, i) => {
+      const o = valueAt(up, x, HOUR);
+      const ux = valueAt(u, x, HOUR);
+      const h1 = valueAt(hu, x, HOUR);
+      const h2 = valueAt(hd, x, HOUR);
+      if (o === undefined || ux === undefined || h1 === undefined || h2 === undefined || !(ux > 0.01)) return;
+      const drop = (rMmolM2H * O2_MG_L_PER_MMOL_M3 * (t.lengthM / ux / 3600)) / (0.5 * (h1 + h2));
+      res.push((m.v[i] as number) - (o - drop));
+    });
+  }
+  if (res.length === 0) return 0;
+  res.sort((a, b) => a - b);
+  return 0.5 * ((res[(res.length - 1) >> 1] as number) + (res[res.length >> 1] as number));
+}
+
+function buildModel(
+  s: ForecastState,
+  fits: ModelFits,
+  plan: ForecastPlan,
+  p: PlanStation,
+  T: number,
+  night: { duskMs: number; sunriseMs: number },
+  dusks: readonly number[],
+): StationModel | undefined {
+  const b = s.o2[p.station];
+  const now = b && meanOver(b, T - HOUR / 2, T);
+  if (!b || now === undefined) return undefined;
+  const clim = climatology(b, night, T, dusks);
+  const persistence: StationModel = {
+    kind: 'persistence',
+    station: p.station,
+    o2NowMgL: now,
+    sigmaMgL: clim?.sigma ?? 0.1,
+    ...(clim ? { driftMgL: clim.drift } : {}),
+  };
+  if (p.kind === 'persistence') return persistence;
+  if (p.kind === 'transect') {
+    const t = plan.transects.find((x) => x.id === p.transect)!;
+    const flow = flowSource(s, fits, plan, t.id, T);
+    const dUp = depthPredictor(s, fits, t.upstream, T);
+    const dDown = depthPredictor(s, fits, t.downstream, T);
+    const resp = respiration(s, t.id, T);
+    if (!flow || !dUp || !dDown || !resp) return persistence;
+    const meanDepthM = (x: number) => 0.5 * (dUp(x) + dDown(x));
+    return {
+      kind: 'transect',
+      station: p.station,
+      upstream: t.upstream,
+      lengthM: t.lengthM,
+      rMmolM2H: resp.r,
+      rSigmaMmolM2H: resp.sigma,
+      flow,
+      meanDepthM,
+      offsetMgL: transectOffset(s, t, resp.r, night, T, dusks),
+    };
+  }
+  const box = fits.box[p.station];
+  const depthM = depthPredictor(s, fits, p.station, T);
+  const feed = flowSource(s, fits, plan, p.feed, T);
+  if (!box || !depthM || !feed) return persistence;
+  return { kind: 'box', station: p.station, source: p.source, o2NowMgL: now, box, depthM, feed };
+}
+
+/** Bias and model-error sd of a station from its scored forecasts at about the same lead. */
+export function calibration(
+  errors: readonly ForecastError[],
+  lead: number,
+  o: Pick<IssueOptions, 'defaultModelSigmaMgL' | 'minCalibration'>,
+): { bias: number; sigma: number } {
+  let rows = errors.filter((e) => e.lead === lead);
+  if (rows.length < o.minCalibration) rows = errors.filter((e) => Math.abs(e.lead - lead) <= 1);
+  if (rows.length < o.minCalibration) rows = [...errors];
+  if (rows.length < o.minCalibration) return { bias: 0, sigma: o.defaultModelSigmaMgL };
+  const sorted = rows.map((e) => e.errMgL).sort((a, b) => a - b);
+  const bias = sorted[(sorted.length - 1) >> 1]! / 2 + sorted[sorted.length >> 1]! / 2;
+  const msErr = rows.reduce((a, e) => a + (e.errMgL - bias) ** 2, 0) / rows.length;
+  const ensVar = rows.reduce((a, e) => a + ((e.halfLoMgL + e.halfHiMgL) / 2 / Z80) ** 2, 0) / rows.length;
+  return { bias, sigma: Math.sqrt(Math.max(0, msErr - ensVar)) };
+}
+
+/** Offshore Hm0 now (mean of the last two hours) and the sd of ln Hm0 changes over six hours in the record. */
+function offshoreNow(s: ForecastState, T: number): { hm0: number; lnSigma: number } | undefined {
+  const recent = meanOver(s.offshore, T - 2 * HOUR, T);
+  if (recent === undefined || !(recent > 0)) return undefined;
+  const m = blockMeans(s.offshore, -Infinity, T);
+  const d: number[] = [];
+  for (let i = 0, j = 0; i < m.tMs.length; i++) {
+    while (j < m.tMs.length && (m.tMs[j] as number) < (m.tMs[i] as number) + 6 * HOUR) j++;
+    if (j < m.tMs.length && (m.tMs[j] as number) - (m.tMs[i] as number) < 6.5 * HOUR)
+      d.push(Math.log((m.v[j] as number) / (m.v[i] as number)));
+  }
+  const sd = d.length > 10 ? Math.sqrt(d.reduce((a, x) => a + x * x, 0) / d.length) : 0.15;
+  return { hm0: recent, lnSigma: sd };
+}
+
+/** Forecasts of every station of the plan that can be forecast at T, calibrated. */
+export function issueAt(
+  s: ForecastState,
+  plan: ForecastPlan,
+  fits: ModelFits,
+  T: number,
+  night: { duskMs: number; sunriseMs: number },
+  lead: number,
+  o: IssueOptions,
+): CalibratedForecast[] {
+  const off = offshoreNow(s, T);
+  const dusks = pastDusks(plan, night.duskMs, 7);
+  const sunriseMs = night.sunriseMs;
+  const models: StationModel[] = [];
+  for (const p of plan.stations) {
+    const m = buildModel(s, fits, plan, p, T, night, dusks);
+    if (!m) continue;
+    const needs = m.kind === 'transect' ? m.upstream : m.kind === 'box' ? m.source : undefined;
+    // Without an offshore height (or the station that drives it) the physics cannot run: persistence.
+    if (
+      (m.kind !== 'persistence' && !off) ||
+      (needs !== undefined && !models.some((x) => x.station === needs))
+    )
+      models.push({
+        kind: 'persistence',
+        station: p.station,
+        o2NowMgL: meanOver(s.o2[p.station]!, T - HOUR, T)!,
+        sigmaMgL: 0.05,
+      });
+    else models.push(m);
+  }
+  if (models.length === 0) return [];
+  const raw = forecastNight(models, {
+    issueMs: T,
+    endMs: sunriseMs,
+    hm0OffshoreM: off?.hm0 ?? 1,
+    hm0LnSigma: off?.lnSigma ?? 0.15,
+    members: o.members,
+  });
+  return raw.map((f) => {
+    const c = calibration(s.errors[f.station] ?? [], lead, o);
+    const halfLo = f.o2MinMgL - f.loMgL;
+    const halfHi = f.hiMgL - f.o2MinMgL;
+    const centre = f.o2MinMgL + c.bias;
+    return {
+      ...f,
+      rawMgL: f.o2MinMgL,
+      o2MinMgL: centre,
+      loMgL: Math.max(0, centre - Math.hypot(halfLo, Z80 * c.sigma)),
+      hiMgL: centre + Math.hypot(halfHi, Z80 * c.sigma),
+      biasMgL: c.bias,
+      modelSigmaMgL: c.sigma,
+      halfLoMgL: halfLo,
+      halfHiMgL: halfHi,
+    };
+  });
+}

@@ -1,0 +1,93 @@
+// The daily refit of the forecast's models from the state's own history (docs/methods/forecast.md 11.2-11.4):
+// the tide of every station with a depth record, the flow model of every transect, the box of every lagoon
+// or pool station. Only data before asOfMs are used, so a refit is the same live and in replay.
+import { isSunDown } from '../daily/index.js';
+import { blockMeans, valueAt } from './blocks.js';
+import { fitBoxModel, type BoxSample } from './box-model.js';
+import { fitFlowModel } from './flow-model.js';
+import { fitTide } from './harmonics.js';
+import type { ForecastPlan } from './plan.js';
+import type { ForecastState, ModelFits } from './state.js';
+
+export interface RefitOptions {
+  /** Days of ensembles for the flow model (default 7) and of nights for the box (default 7). */
+  flowDays: number;
+  boxDays: number;
+  tideDays: number;
+}
+
+const DAY = 86_400_000;
+
+export function refitModels(
+  s: ForecastState,
+  plan: ForecastPlan,
+  asOfMs: number,
+  o: RefitOptions,
+): ModelFits {
+  const fits: ModelFits = { fittedAtMs: asOfMs, tide: {}, flow: {}, box: {} };
+  for (const [station, b] of Object.entries(s.depth)) {
+    const m = blockMeans(b, asOfMs - o.tideDays * DAY, asOfMs);
+    const f = fitTide(m.tMs, m.v, { maxRecordDays: o.tideDays });
+    fits.tide[station] = f.ok ? f : null;
+  }
+  for (const t of plan.transects) {
+    const rows = (s.flowSamples[t.id] ?? []).filter(
+      (r) => r.tMs < asOfMs && r.tMs >= asOfMs - o.flowDays * DAY,
+    );
+    const f = fitFlowModel(rows, asOfMs);
+    fits.flow[t.id] = f.ok ? f : null;
+  }
+  for (const p of plan.stations) {
+    if (p.kind !== 'box') continue;
+    const f = fitBoxModel(boxNights(s, plan, p, asOfMs, o.boxDays));
+    fits.box[p.station] = f.ok ? f : null;
+  }
+  return fits;
+}
+
+/** The box's night history: consecutive night blocks with the box O2, the source O2, the box depth and the
+ * flushing driver q/h_box (m/h) from the feeding transect's measured flow. */
+function boxNights(
+  s: ForecastState,
+  plan: ForecastPlan,
+  p: { station: string; source: string; feed: string },
+  asOfMs: number,
+  days: number,
+): BoxSample[][] {
+  const box = s.o2[p.station];
+  const src = s.o2[p.source];
+  const depth = s.depth[p.station];
+  const u = s.flowU[p.feed];
+  const hc = s.flowDepth[p.feed];
+  if (!box || !src || !depth || !u || !hc) return [];
+  const m = blockMeans(box, asOfMs - days * DAY, asOfMs);
+  const nights: BoxSample[][] = [];
+  let cur: BoxSample[] = [];
+  let lastT = -Infinity;
+  for (let i = 0; i < m.tMs.length; i++) {
+    const t = m.tMs[i] as number;
+    const dark = isSunDown(t, plan.latDeg, plan.lonDeg);
+    const o2Src = valueAt(src, t, 3_600_000);
+    const h = valueAt(depth, t, 3_600_000);
+    const uc = valueAt(u, t, 3_600_000);
+    const dc = valueAt(hc, t, 3_600_000);
+    const ok =
+      dark && o2Src !== undefined && h !== undefined && uc !== undefined && dc !== undefined && uc > 0;
+    if (!ok || t - lastT > 45 * 60_000) {
+      if (cur.length > 1) nights.push(cur);
+      cur = [];
+    }
+    if (ok) {
+      cur.push({
+        tMs: t,
+        o2MgL: m.v[i] as number,
+        o2SourceMgL: o2Src,
+        depthM: h,
+        driver: (uc * 3600 * dc) / h,
+      });
+      lastT = t;
+    }
+  }
+  if (cur.length > 1) nights.push(cur);
+  return nights;
+}
