@@ -194,6 +194,7 @@ function checkSpread(points: readonly LightPoint[], o: Required<LightFitOptions>
 const DEFAULTS: Required<LightFitOptions> = {
   loss: 'huber',
   huberK: 1.345,
+  tukeyC: 4.685,
   maxIter: 50,
   overlapFactor: 1,
   minWindows: 12,
@@ -229,7 +230,9 @@ export function fitTanhCurve(
   const w = new Float64Array(n);
   let last: { ik: number; p: Profile; atBound: boolean } | undefined;
   let iterations = 0;
-  for (let it = 1; it <= o.maxIter; it++) {
+  // Stages as in robustLinearFit: Huber to convergence, then (for 'tukey') the biweight from there.
+  let stage: 'huber' | 'tukey' = 'huber';
+  for (let it = 1; it <= 2 * o.maxIter; it++) {
     iterations = it;
     for (let i = 0; i < n; i++) w[i] = (rw[i] as number) / (sigma[i] as number) ** 2;
     const s = searchIk(I, y, w, lo, hi, sign, last && Math.log(last.ik));
@@ -240,12 +243,16 @@ export function fitTanhCurve(
       Math.abs(s.p.amp - last.p.amp) <= 1e-8 * (Math.abs(s.p.amp) + 1e-9) &&
       Math.abs(s.p.intercept - last.p.intercept) <= 1e-8 * (Math.abs(s.p.intercept) + 1e-9);
     last = s;
-    if (o.loss !== 'huber' || done) break;
+    if (o.loss === 'linear') break;
+    if (done || it === o.maxIter) {
+      if (stage === 'tukey' || o.loss === 'huber') break;
+      stage = 'tukey';
+    }
     const r = Float64Array.from(
       I,
       (x, i) => (y[i] as number) - s.p.amp * Math.tanh(x / s.ik) - sign * s.p.intercept,
     );
-    const hw = huberWeights(r, sigma, o.huberK);
+    const hw = huberWeights(r, sigma, stage === 'tukey' ? o.tukeyC : o.huberK, stage);
     rw = hw.weights;
     scale = hw.scale;
   }
@@ -279,10 +286,11 @@ function finish(
   if (!lin.ok) return refuse('REEFD_DAILY_FIT_FAILED', `singular Jacobian (${lin.reason})`);
   const r = Float64Array.from(I, (x, i) => (y[i] as number) - evalTanh(curve, x).value);
   const z = Float64Array.from(r, (v, i) => v / (sigma[i] as number));
-  if (o.loss !== 'huber') info.scale = huberWeights(r, sigma, o.huberK).scale;
+  if (o.loss === 'linear') info.scale = huberWeights(r, sigma, o.huberK).scale;
   const s = fitCovariance(lin.covUnscaled, z, 3, {
     loss: o.loss,
     huberK: o.huberK,
+    tukeyC: o.tukeyC,
     scale: info.scale,
     overlapFactor: o.overlapFactor,
   });

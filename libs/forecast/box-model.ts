@@ -73,10 +73,13 @@ export function fitBoxModel(
     }
   }
   if (rows.length < (o.minSteps ?? 24)) return { ok: false, reason: `${rows.length} night steps` };
+  // Tukey's biweight: an anomalous night (a bloom's decay, a stratified calm) can be a large share of the
+  // steps, and a redescending loss gives those steps no weight at all.
   const fit = robustLinearFit(
     rows,
     y,
     y.map(() => 1),
+    { loss: 'tukey' },
   );
   if (!fit.ok) return { ok: false, reason: fit.reason };
   const [kappa, r] = fit.coef as [number, number];

@@ -7,7 +7,7 @@ import { blockMeans, meanOver, valueAt, type Blocks } from './blocks.js';
 import { predictTide } from './harmonics.js';
 import { forecastNight, type FlowSource, type StationForecast, type StationModel } from './night.js';
 import type { ForecastPlan, PlanStation } from './plan.js';
-import { O2_MG_L_PER_MMOL_M3 } from './box-model.js';
+import { O2_MG_L_PER_MMOL_M3, type BoxModel } from './box-model.js';
 import type { ForecastError, ForecastState, ModelFits } from './state.js';
 
 export interface IssueOptions {
@@ -23,6 +23,8 @@ const Z80 = 1.2815515655446004;
 const HOUR = 3_600_000;
 
 export interface CalibratedForecast extends StationForecast {
+  /** The station's own data tonight departed from its model (see assimilateBox). */
+  anomalous: boolean;
   rawMgL: number;
   biasMgL: number;
   modelSigmaMgL: number;
@@ -222,11 +224,68 @@ function buildModel(
       offsetMgL: transectOffset(s, t, resp.r, night, T, dusks),
     };
   }
-  const box = fits.box[p.station];
+  const fitted = fits.box[p.station];
   const depthM = depthPredictor(s, fits, p.station, T);
   const feed = flowSource(s, fits, plan, p.feed, T);
-  if (!box || !depthM || !feed) return persistence;
-  return { kind: 'box', station: p.station, source: p.source, o2NowMgL: now, box, depthM, feed };
+  if (!fitted || !depthM || !feed) return persistence;
+  const box = assimilateBox(s, p, fitted, night, T);
+  return {
+    kind: 'box',
+    station: p.station,
+    source: p.source,
+    o2NowMgL: now,
+    box,
+    depthM,
+    feed,
+    anomalous: box !== fitted,
+  };
+}
+
+/** Tonight's own respiration of a box, from its last two dark hours (the budget solved for R with the fitted
+ * exchange); when it is clearly above the fitted R (more than three of its sigmas: a bloom's decay, a calm
+ * stratified night) it replaces it, with the difference as its sigma. The forecasts after dusk then follow
+ * an event the history could not foresee (docs/methods/forecast.md 11.4). */
+function assimilateBox(
+  s: ForecastState,
+  p: { station: string; source: string; feed: string },
+  box: BoxModel,
+  night: { duskMs: number },
+  T: number,
+): BoxModel {
+  const from = Math.max(night.duskMs + HOUR, T - 2 * HOUR);
+  const b = s.o2[p.station];
+  const src = s.o2[p.source];
+  const h = s.depth[p.station];
+  const u = s.flowU[p.feed];
+  const hc = s.flowDepth[p.feed];
+  if (!b || !src || !h || !u || !hc || T - from < HOUR) return box;
+  const m = blockMeans(b, from, T);
+  const r: number[] = [];
+  for (let i = 1; i < m.tMs.length; i++) {
+    const t0 = m.tMs[i - 1] as number;
+    const t1 = m.tMs[i] as number;
+    const tm = (t0 + t1) / 2;
+    const [o2s, hh, uc, dc] = [
+      valueAt(src, tm, HOUR),
+      valueAt(h, tm, HOUR),
+      valueAt(u, tm, HOUR),
+      valueAt(hc, tm, HOUR),
+    ];
+    if (o2s === undefined || hh === undefined || uc === undefined || dc === undefined) continue;
+    const k = box.kappa * ((Math.max(0, uc) * 3600 * dc) / hh);
+    const o2 = 0.5 * ((m.v[i - 1] as number) + (m.v[i] as number));
+    const dOdt = ((m.v[i] as number) - (m.v[i - 1] as number)) / ((t1 - t0) / HOUR);
+    r.push(((k * (o2s - o2) - dOdt) * hh) / O2_MG_L_PER_MMOL_M3);
+  }
+  if (r.length < 4) return box;
+  r.sort((a, c) => a - c);
+  const med = 0.5 * ((r[(r.length - 1) >> 1] as number) + (r[r.length >> 1] as number));
+  const sdFit = Math.sqrt(Math.max(0, box.cov[3] as number));
+  const spread = 1.4826 * (r.map((x) => Math.abs(x - med)).sort((a, c) => a - c)[r.length >> 1] as number);
+  const sigma = Math.max(sdFit, spread / Math.sqrt(r.length));
+  if (!(med - box.rMmolM2H > 3 * sigma)) return box;
+  const extra = ((med - box.rMmolM2H) / 2) ** 2;
+  return { ...box, rMmolM2H: med, cov: [box.cov[0] as number, 0, 0, (box.cov[3] as number) + extra] };
 }
 
 /** Bias and model-error sd of a station from its scored forecasts at about the same lead. */
@@ -234,16 +293,45 @@ export function calibration(
   errors: readonly ForecastError[],
   lead: number,
   o: Pick<IssueOptions, 'defaultModelSigmaMgL' | 'minCalibration'>,
-): { bias: number; sigma: number } {
+): { bias: number; sigma: number; widen: number } {
   let rows = errors.filter((e) => e.lead === lead);
   if (rows.length < o.minCalibration) rows = errors.filter((e) => Math.abs(e.lead - lead) <= 1);
   if (rows.length < o.minCalibration) rows = [...errors];
-  if (rows.length < o.minCalibration) return { bias: 0, sigma: o.defaultModelSigmaMgL };
-  const sorted = rows.map((e) => e.errMgL).sort((a, b) => a - b);
-  const bias = sorted[(sorted.length - 1) >> 1]! / 2 + sorted[sorted.length >> 1]! / 2;
+  if (rows.length < o.minCalibration) return { bias: 0, sigma: o.defaultModelSigmaMgL, widen: 1 };
+  const med = (xs: number[]) => {
+    const q = [...xs].sort((a, b) => a - b);
+    return 0.5 * ((q[(q.length - 1) >> 1] as number) + (q[q.length >> 1] as number));
+  };
+  // Nights far outside the usual errors (an event the model could not know) would drag the bias and the
+  // spread of every ordinary night: beyond 6 robust sigmas they are left out of the calibration.
+  const m0 = med(rows.map((e) => e.errMgL));
+  const mad = 1.4826 * med(rows.map((e) => Math.abs(e.errMgL - m0)));
+  if (mad > 0) {
+    const kept = rows.filter((e) => Math.abs(e.errMgL - m0) <= 6 * mad);
+    if (kept.length >= o.minCalibration) rows = kept;
+  }
+  const bias = med(rows.map((e) => e.errMgL));
   const msErr = rows.reduce((a, e) => a + (e.errMgL - bias) ** 2, 0) / rows.length;
   const ensVar = rows.reduce((a, e) => a + ((e.halfLoMgL + e.halfHiMgL) / 2 / Z80) ** 2, 0) / rows.length;
-  return { bias, sigma: Math.sqrt(Math.max(0, msErr - ensVar)) };
+  // A spread and a bias estimated from n nights: Student's t for n - 1 degrees of freedom instead of the
+  // normal quantile, and (1 + 1/n) for the bias's own error (a prediction interval, common practice).
+  const n = rows.length;
+  return {
+    bias,
+    sigma: Math.sqrt(Math.max(0, msErr - ensVar)),
+    widen: (studentT90(n - 1) / Z80) * Math.sqrt(1 + 1 / n),
+  };
+}
+
+/** The 0.9 quantile of Student's t with nu degrees of freedom, by the Cornish-Fisher expansion about the
+ * normal quantile (Abramowitz & Stegun 1964, 26.7.5; within 0.2 % for nu >= 3). Check: nu = 9 gives 1.383. */
+export function studentT90(nu: number): number {
+  const z = Z80;
+  if (!(nu >= 1)) return Infinity;
+  const g1 = (z ** 3 + z) / 4;
+  const g2 = (5 * z ** 5 + 16 * z ** 3 + 3 * z) / 96;
+  const g3 = (3 * z ** 7 + 19 * z ** 5 + 17 * z ** 3 - 15 * z) / 384;
+  return z + g1 / nu + g2 / nu ** 2 + g3 / nu ** 3;
 }
 
 /** Offshore Hm0 now (mean of the last two hours) and the sd of ln Hm0 changes over six hours in the record. */
@@ -305,12 +393,14 @@ export function issueAt(
     const halfLo = f.o2MinMgL - f.loMgL;
     const halfHi = f.hiMgL - f.o2MinMgL;
     const centre = f.o2MinMgL + c.bias;
+    const model = models.find((m) => m.station === f.station);
     return {
       ...f,
+      anomalous: model?.kind === 'box' && model.anomalous === true,
       rawMgL: f.o2MinMgL,
       o2MinMgL: centre,
-      loMgL: Math.max(0, centre - Math.hypot(halfLo, Z80 * c.sigma)),
-      hiMgL: centre + Math.hypot(halfHi, Z80 * c.sigma),
+      loMgL: Math.max(0, centre - c.widen * Math.hypot(halfLo, Z80 * c.sigma)),
+      hiMgL: centre + c.widen * Math.hypot(halfHi, Z80 * c.sigma),
       biasMgL: c.bias,
       modelSigmaMgL: c.sigma,
       halfLoMgL: halfLo,

@@ -49,6 +49,8 @@ export interface BoxStationModel {
   depthM: (tMs: number) => number;
   /** The transect whose flow flushes the box (driver q/h_box), or none (driver 1). */
   feed?: FlowSource;
+  /** Tonight's data replaced the fitted respiration (an anomaly; bookkeeping only). */
+  anomalous?: boolean;
 }
 
 export type StationModel = PersistenceModel | TransectModel | BoxStationModel;

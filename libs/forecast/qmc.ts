@@ -1,6 +1,6 @@
 // Deterministic ensembles (docs/methods/forecast.md 11.6): quasi-random normal deviates from the Halton
-// sequence (Halton 1960, Numer. Math. 2, 84) through the inverse normal distribution, so a forecast needs no
-// random-number generator and repeats exactly in replay. Inverse normal: Acklam's rational approximation
+// sequence (Halton 1960, Numer. Math. 2, 84) through the inverse normal distribution, in antithetic pairs,
+// so a forecast needs no random-number generator and repeats exactly in replay. Inverse normal: Acklam's rational approximation
 // (relative error < 1.15e-9) with one Halley step, common practice.
 
 const PRIMES = [2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37];
@@ -82,12 +82,18 @@ export function normalQuantile(p: number): number {
   return x - u / (1 + (x * u) / 2);
 }
 
-/** n members x dims standard normal deviates (member-major), from the Halton points 1..n. */
+/** n members x dims standard normal deviates (member-major): Halton points 1..n/2 and their mirror images
+ * (antithetic pairs), so every dimension has a mean of exactly zero and no odd moments. */
 export function haltonNormals(n: number, dims: number): Float64Array {
   if (dims > PRIMES.length) throw new RangeError(`at most ${PRIMES.length} dimensions`);
   const z = new Float64Array(n * dims);
-  for (let i = 0; i < n; i++) {
-    for (let d = 0; d < dims; d++) z[i * dims + d] = normalQuantile(vanDerCorput(i + 1, PRIMES[d] as number));
+  const half = Math.ceil(n / 2);
+  for (let i = 0; i < half; i++) {
+    for (let d = 0; d < dims; d++) {
+      const x = normalQuantile(vanDerCorput(i + 1, PRIMES[d] as number));
+      z[i * dims + d] = x;
+      if (half + i < n) z[(half + i) * dims + d] = -x;
+    }
   }
   return z;
 }

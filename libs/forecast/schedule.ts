@@ -64,7 +64,10 @@ function nextDusk(
 function scoreNight(s: ForecastState, o: ForecastOptions): void {
   const night = s.night;
   if (!night) return;
+  for (const st of night.anomalies) (s.anomalies[st] ??= []).push([night.duskMs, night.sunriseMs]);
   for (const f of night.issued) {
+    // An anomalous night says nothing about the model's everyday error.
+    if (night.anomalies.includes(f.station)) continue;
     const b = s.o2[f.station];
     if (!b) continue;
     const m = blockMeans(b, f.issueMs, f.sunriseMs + b.blockMs / 2);
@@ -105,7 +108,7 @@ export function stepForecast(
       if (dusk === undefined || dusk > watermarkMs) break;
       const sunrise = nextSunrise(dusk, plan.latDeg, plan.lonDeg);
       if (sunrise === undefined) break;
-      s.night = { duskMs: dusk, sunriseMs: sunrise, nextIssueMs: dusk, issued: [] };
+      s.night = { duskMs: dusk, sunriseMs: sunrise, nextIssueMs: dusk, issued: [], anomalies: [] };
     }
     const night = s.night;
     while (night.nextIssueMs <= watermarkMs && night.nextIssueMs < night.sunriseMs) {
@@ -113,6 +116,7 @@ export function stepForecast(
       if (s.fits === null || T - s.fits.fittedAtMs >= 24 * HOUR - 1) s.fits = refitModels(s, plan, T, o);
       const lead = Math.round((T - night.duskMs) / HOUR);
       for (const f of issueAt(s, plan, s.fits, T, night, lead, o)) {
+        if (f.anomalous && !night.anomalies.includes(f.station)) night.anomalies.push(f.station);
         night.issued.push({
           station: f.station,
           issueMs: T,

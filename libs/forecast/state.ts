@@ -43,6 +43,8 @@ export interface NightState {
   sunriseMs: number;
   nextIssueMs: number;
   issued: IssuedForecast[];
+  /** Stations whose own data showed an anomaly tonight (respiration far above the fitted one). */
+  anomalies: string[];
 }
 
 export interface ForecastState {
@@ -62,6 +64,8 @@ export interface ForecastState {
   fits: ModelFits | null;
   night: NightState | null;
   errors: Record<string, ForecastError[]>;
+  /** Nights (dusk, sunrise) flagged anomalous per station: kept out of the box fit and the calibration. */
+  anomalies: Record<string, [number, number][]>;
   /** Event time up to which the schedule has run, ms (null before the first step). */
   lastStepMs: number | null;
 }
@@ -80,6 +84,7 @@ export function createForecastState(): ForecastState {
     fits: null,
     night: null,
     errors: {},
+    anomalies: {},
     lastStepMs: null,
   };
 }
@@ -160,6 +165,8 @@ export function pruneState(
   pruneBefore(s.par, tMs - 2 * day);
   for (const m of [s.flowU, s.flowDepth])
     for (const b of Object.values(m)) pruneBefore(b, tMs - o.historyDays * day);
+  for (const [k, spans] of Object.entries(s.anomalies))
+    s.anomalies[k] = spans.filter(([, to]) => to >= tMs - o.historyDays * day);
   for (const [k, rows] of Object.entries(s.flowSamples))
     s.flowSamples[k] = rows.filter((r) => r.tMs >= tMs - o.flowDays * day);
 }
