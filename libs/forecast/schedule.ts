@@ -55,7 +55,7 @@ function nextDusk(
   const par = blockMeans(s.par, set.tMs - 1.5 * HOUR, set.tMs + 1.5 * HOUR);
   for (let i = 1; i < par.v.length; i++) {
     if ((par.v[i - 1] as number) >= o.darkParUmolM2S && (par.v[i] as number) < o.darkParUmolM2S)
-      return (par.tMs[i] as number) + s.par.blockMs / 2;
+      return (par.tMs[i] as number) - s.par.blockMs / 2; // the first dark block: the light went within it or just before
   }
   return set.tMs;
 }
