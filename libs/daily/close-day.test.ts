@@ -80,7 +80,7 @@ describe('daily budget: data-free analytic cases', () => {
     const r = closeDay(cal.dayBounds('2026-06-10'), d.windows, d.windows, OPTS);
     expect(r.gapFilled).toBeGreaterThan(0.03);
     expect(r.coverage + r.gapFilled).toBeCloseTo(1, 12);
-    expect(r.fillCurve).toBe('day');
+    expect(r.fillCurve).toBe('day_week_ik');
     expect(r.ncp.value).toBeCloseTo(d.truth.ncp, 4);
     expect(r.gpp.value).toBeCloseTo(d.truth.gpp, 4);
     expect(r.necDay.value).toBeCloseTo(d.truth.necDay, 4);
@@ -141,7 +141,7 @@ describe('daily budget: sigmas propagated through the windows, the fit and the f
 });
 
 describe('daily budget: fallbacks and refusals', () => {
-  it('the day fit refused (no bright windows valid): the sliding week fills the gaps', () => {
+  it('the day fit refused (no bright windows valid): the day windows with the week Ik fill the gaps', () => {
     const d = makeDay('2026-06-10', { ncp: 1, nec: 0.3, seed: 3 }, (_t, I) => I > 300);
     const week = [
       ...makeDay('2026-06-08', { ncp: 1, nec: 0.3, seed: 4 }).windows,
@@ -150,7 +150,9 @@ describe('daily budget: fallbacks and refusals', () => {
     ];
     const r = closeDay(cal.dayBounds('2026-06-10'), d.windows, week, { ...OPTS, maxFilledFraction: 0.8 });
     expect(r.day.ncp.ok ? '' : r.day.ncp.code).toBe('REEFD_DAILY_IK_UNRESOLVED');
-    expect(r.fillCurve).toBe('week');
+    expect(r.fillCurve).toBe('day_week_ik');
+    if (!r.week.ncp.ok) throw new Error(r.week.ncp.reason);
+    expect(Math.abs(r.week.ncp.curve.ik - 380)).toBeLessThan(40);
     expect(r.valid).toBe(true);
     expect(Math.abs(r.ncp.value! - d.truth.ncp)).toBeLessThan(3 * r.ncp.sigma!);
   });

@@ -1,10 +1,10 @@
 // One transect's local day, closed: the day's and the sliding week's light-response fits, then the budget
 // (docs/methods/daily.md 10.2-10.6). Pure: the same windows give the same result, live and in replay.
 import { combine, estimateSlots, type FillCurve, type RateSeries } from './budget.js';
-import type { Refusal } from './errors.js';
 import {
   fitCalcificationLight,
   fitProductionLight,
+  fitTanhFixedIk,
   type LightFitOptions,
   type LightFitResult,
   type LightPoint,
@@ -31,6 +31,9 @@ export interface DailyOptions {
   light?: LightFitOptions;
   omega?: OmegaFitOptions;
 }
+
+/** Which curve filled the gaps: the day's own fit, the day's windows with the week's Ik, or the week's fit. */
+export type FillSource = 'day' | 'day_week_ik' | 'week';
 
 export interface DailyValue {
   /** mmol m-2 d-1 (NCP, R, GPP in O2; NEC in CaCO3), or null when it cannot be formed. */
@@ -64,8 +67,8 @@ export interface DailyResult {
   /** Hourly respiration used (mmol m-2 h-1) and where it came from. */
   rHourly: DailyValue;
   rSource: 'night_mean' | 'fit' | null;
-  fillCurve: 'day' | 'week' | null;
-  necFillCurve: 'day' | 'week' | null;
+  fillCurve: FillSource | null;
+  necFillCurve: FillSource | null;
   day: FitSet;
   week: FitSet;
   valid: boolean;
@@ -88,10 +91,18 @@ function points(ws: readonly FluxWindowInput[], kind: 'ncp' | 'nec'): LightPoint
   return out;
 }
 
+function lightOptions(o: DailyOptions): LightFitOptions {
+  return {
+    overlapFactor: Math.max(1, o.windowMin / o.cadenceMin),
+    darkParUmolM2S: o.darkParUmolM2S ?? 1,
+    ...o.light,
+  };
+}
+
 /** The three fits over a set of windows. */
 export function fitWindows(ws: readonly FluxWindowInput[], o: DailyOptions): FitSet {
   const overlapFactor = Math.max(1, o.windowMin / o.cadenceMin);
-  const light = { overlapFactor, darkParUmolM2S: o.darkParUmolM2S ?? 1, ...o.light };
+  const light = lightOptions(o);
   const om = ws.flatMap((w) =>
     w.valid &&
     w.necMmolM2H !== null &&
@@ -108,13 +119,22 @@ export function fitWindows(ws: readonly FluxWindowInput[], o: DailyOptions): Fit
   };
 }
 
+/** The fill curve: the day's windows with the sliding week's Ik when the week's fit stands (see
+ * fitTanhFixedIk), else the day's own free fit, else the week's fit (docs/methods/daily.md 10.4). */
 function pickFill(
+  dayPoints: readonly LightPoint[],
+  sign: -1 | 1,
   day: LightFitResult,
   week: LightFitResult,
-): { fill?: FillCurve; from: 'day' | 'week' | null } {
-  const ok = (f: LightFitResult): f is Exclude<LightFitResult, Refusal> => f.ok;
-  if (ok(day)) return { fill: { curve: day.curve, residualSd: day.residualSd }, from: 'day' };
-  if (ok(week)) return { fill: { curve: week.curve, residualSd: week.residualSd }, from: 'week' };
+  o: LightFitOptions,
+): { fill?: FillCurve; from: FillSource | null } {
+  if (week.ok) {
+    const fixed = fitTanhFixedIk(dayPoints, sign, week.curve.ik, week.se.ik ** 2, o);
+    if (fixed.ok && fixed.nDark >= (o.minDark ?? 3))
+      return { fill: { curve: fixed.curve, residualSd: fixed.residualSd }, from: 'day_week_ik' };
+  }
+  if (day.ok) return { fill: { curve: day.curve, residualSd: day.residualSd }, from: 'day' };
+  if (week.ok) return { fill: { curve: week.curve, residualSd: week.residualSd }, from: 'week' };
   return { from: null };
 }
 
@@ -139,8 +159,9 @@ export function closeDay(
   });
   const day = fitWindows(dayWindows, o);
   const week = fitWindows(weekWindows, o);
-  const ncpFill = pickFill(day.ncp, week.ncp);
-  const necFill = pickFill(day.nec, week.nec);
+  const light = lightOptions(o);
+  const ncpFill = pickFill(points(dayWindows, 'ncp'), -1, day.ncp, week.ncp, light);
+  const necFill = pickFill(points(dayWindows, 'nec'), 1, day.nec, week.nec, light);
   const isNight = (s: Slot) => s.par !== null && s.par < dark;
   const ncpSeries = estimateSlots(
     slots,

@@ -23,6 +23,7 @@ export {
   evalTanh,
   tanhVariance,
   fitTanhCurve,
+  fitTanhFixedIk,
   fitProductionLight,
   fitCalcificationLight,
   type LightPoint,
@@ -58,6 +59,7 @@ export {
   type DailyOptions,
   type DailyResult,
   type DailyValue,
+  type FillSource,
   type FitSet,
 } from './close-day.js';
 export { createDailyState, addWindow, closeDueDays, DAILY_STATE_VERSION, type DailyState } from './state.js';

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import {
   evalTanh,
+  fitTanhFixedIk,
   fitCalcificationLight,
   fitProductionLight,
   tanhVariance,
@@ -133,5 +134,29 @@ describe('curve evaluation', () => {
     for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) v += g[i]! * c.cov[i * 3 + j]! * g[j]!;
     expect(tanhVariance(c, I)).toBeCloseTo(v, 12);
     expect(evalTanh(c, -5).value).toBe(-20);
+  });
+});
+
+describe('the day curve with a known Ik (gap filling)', () => {
+  it('exact data with the right Ik gives Pmax and R exactly; the covariance carries the given Ik variance', () => {
+    const pts = dayPar(1500).map((I) => ({ parUmolM2S: I, rate: ncpCurve(I), sigma: 1 }));
+    const f = fitTanhFixedIk(pts, -1, 380, 400);
+    if (!f.ok) throw new Error(f.reason);
+    expect(f.curve.amp).toBeCloseTo(58, 10);
+    expect(f.curve.intercept).toBeCloseTo(19, 10);
+    expect(f.curve.ik).toBe(380);
+    expect(f.curve.cov[4]).toBe(400);
+    expect(f.se.ik).toBe(20);
+  });
+  it('refuses too few windows and a flat response', () => {
+    const few = fitTanhFixedIk([{ parUmolM2S: 100, rate: 1, sigma: 1 }], -1, 300, 0);
+    expect(few.ok ? '' : few.code).toBe('REEFD_DAILY_TOO_FEW_WINDOWS');
+    const flat = fitTanhFixedIk(
+      dayPar(1500).map((I) => ({ parUmolM2S: I, rate: -19 - I / 300, sigma: 1 })),
+      -1,
+      300,
+      0,
+    );
+    expect(flat.ok ? '' : flat.code).toBe('REEFD_DAILY_NO_LIGHT_RESPONSE');
   });
 });

@@ -10,7 +10,7 @@
 // three-parameter Jacobian at the optimum.
 import { refuse, type DailyErrorCode, type Refusal } from './errors.js';
 import { weightedLeastSquares } from './lsq.js';
-import { fitCovariance, huberWeights, type RobustOptions } from './robust.js';
+import { fitCovariance, huberWeights, robustLinearFit, type RobustOptions } from './robust.js';
 
 export interface LightPoint {
   /** Window-mean PAR, umol photons m-2 s-1 (>= 0). */
@@ -324,4 +324,55 @@ export function fitCalcificationLight(
   options: LightFitOptions = {},
 ): LightFitResult {
   return fitTanhCurve(points, 1, options);
+}
+
+/**
+ * The day's curve with Ik held at a value known from a longer record (the sliding week): amplitude and
+ * intercept by robust weighted least squares, which is linear once Ik is fixed. The saturation light is a
+ * slow property of the community (photoacclimation takes days to weeks) while Pmax follows the day's cloud
+ * and water, and one day's windows pin Ik down poorly; this is the curve the daily budget fills gaps with
+ * (docs/methods/daily.md 10.4). The covariance keeps the week's variance of Ik (taken as independent of the
+ * day's two parameters).
+ */
+export function fitTanhFixedIk(
+  points: readonly LightPoint[],
+  sign: -1 | 1,
+  ikUmolM2S: number,
+  ikVariance: number,
+  options: RobustOptions = {},
+): LightFitResult {
+  if (points.length < 6)
+    return refuse('REEFD_DAILY_TOO_FEW_WINDOWS', `${points.length} windows, fewer than 6`);
+  const rows = points.map((p) => [Math.tanh(Math.max(0, p.parUmolM2S) / ikUmolM2S), sign]);
+  const fit = robustLinearFit(
+    rows,
+    points.map((p) => p.rate),
+    points.map((p) => p.sigma),
+    options,
+  );
+  if (!fit.ok) return refuse('REEFD_DAILY_FIT_FAILED', fit.reason);
+  const [amp, intercept] = fit.coef as [number, number];
+  if (!(amp > 0)) return refuse('REEFD_DAILY_NO_LIGHT_RESPONSE', `fitted amplitude ${amp.toFixed(3)}`);
+  const [caa, cac, , ccc] = fit.cov as [number, number, number, number];
+  const curve: TanhCurve = {
+    amp,
+    ik: ikUmolM2S,
+    intercept,
+    sign,
+    cov: [caa, 0, cac, 0, Math.max(0, ikVariance), 0, cac, 0, ccc],
+  };
+  let ss = 0;
+  for (const p of points) ss += (p.rate - evalTanh(curve, p.parUmolM2S).value) ** 2;
+  return {
+    ok: true,
+    curve,
+    se: { amp: fit.se[0] as number, ik: Math.sqrt(Math.max(0, ikVariance)), intercept: fit.se[1] as number },
+    scale: fit.scale,
+    reducedChi2: fit.reducedChi2,
+    residualSd: Math.sqrt(ss / Math.max(1, points.length - 2)),
+    n: points.length,
+    nDark: points.filter((p) => p.parUmolM2S < 1).length,
+    maxParUmolM2S: Math.max(...points.map((p) => p.parUmolM2S)),
+    iterations: fit.iterations,
+  };
 }
