@@ -293,11 +293,12 @@ export function calibration(
   errors: readonly ForecastError[],
   lead: number,
   o: Pick<IssueOptions, 'defaultModelSigmaMgL' | 'minCalibration'>,
-): { bias: number; sigma: number; widen: number } {
+): { bias: number; sigma: number; widen: number; ensembleScale: number } {
   let rows = errors.filter((e) => e.lead === lead);
   if (rows.length < o.minCalibration) rows = errors.filter((e) => Math.abs(e.lead - lead) <= 1);
   if (rows.length < o.minCalibration) rows = [...errors];
-  if (rows.length < o.minCalibration) return { bias: 0, sigma: o.defaultModelSigmaMgL, widen: 1 };
+  if (rows.length < o.minCalibration)
+    return { bias: 0, sigma: o.defaultModelSigmaMgL, widen: 1, ensembleScale: 1 };
   const med = (xs: number[]) => {
     const q = [...xs].sort((a, b) => a - b);
     return 0.5 * ((q[(q.length - 1) >> 1] as number) + (q[q.length >> 1] as number));
@@ -315,11 +316,15 @@ export function calibration(
   const ensVar = rows.reduce((a, e) => a + ((e.halfLoMgL + e.halfHiMgL) / 2 / Z80) ** 2, 0) / rows.length;
   // A spread and a bias estimated from n nights: Student's t for n - 1 degrees of freedom instead of the
   // normal quantile, and (1 + 1/n) for the bias's own error (a prediction interval, common practice).
+  // Members wider than the errors they should explain are narrowed towards them, the ratio shrunk towards 1
+  // with a prior weight of five nights (a ratio from a few nights is noisy); errors wider than the members add
+  // a model error in quadrature.
   const n = rows.length;
   return {
     bias,
     sigma: Math.sqrt(Math.max(0, msErr - ensVar)),
     widen: (studentT90(n - 1) / Z80) * Math.sqrt(1 + 1 / n),
+    ensembleScale: ensVar > msErr ? Math.sqrt((n * (msErr / ensVar) + 5) / (n + 5)) : 1,
   };
 }
 
@@ -399,8 +404,8 @@ export function issueAt(
       anomalous: model?.kind === 'box' && model.anomalous === true,
       rawMgL: f.o2MinMgL,
       o2MinMgL: centre,
-      loMgL: Math.max(0, centre - c.widen * Math.hypot(halfLo, Z80 * c.sigma)),
-      hiMgL: centre + c.widen * Math.hypot(halfHi, Z80 * c.sigma),
+      loMgL: Math.max(0, centre - c.widen * Math.hypot(c.ensembleScale * halfLo, Z80 * c.sigma)),
+      hiMgL: centre + c.widen * Math.hypot(c.ensembleScale * halfHi, Z80 * c.sigma),
       biasMgL: c.bias,
       modelSigmaMgL: c.sigma,
       halfLoMgL: halfLo,
