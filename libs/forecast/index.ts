@@ -60,3 +60,4 @@ export { refitModels, type RefitOptions } from './refit.js';
 export { calibration, issueAt, type CalibratedForecast, type IssueOptions } from './issue.js';
 export { stepForecast, DEFAULT_FORECAST_OPTIONS, type ForecastOptions, type StepResult } from './schedule.js';
 export { toForecastRecord, type ForecastRecord } from './record.js';
+export { modelledFlow, type ModelledFlow } from './modelled-flow.js';

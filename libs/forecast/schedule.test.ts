@@ -3,6 +3,7 @@ import { solarElevationDeg, sunEvents } from '../daily/index.js';
 import { O2_MG_L_PER_MMOL_M3 } from './box-model.js';
 import type { ForecastPlan } from './plan.js';
 import type { ForecastRecord } from './record.js';
+import { modelledFlow } from './modelled-flow.js';
 import { stepForecast } from './schedule.js';
 import {
   createForecastState,
@@ -120,5 +121,28 @@ describe('the night schedule', () => {
     const dusk = Date.parse(first.t);
     expect(dusk).toBeLessThan(sets[0]!.tMs - 5 * 60_000);
     expect(dusk).toBeGreaterThan(sets[0]!.tMs - 40 * 60_000);
+  });
+});
+
+describe('modelled flow for an ADCP gap', () => {
+  it('the fitted power law reproduces the synthetic flow u = 0.03 H h^-0.5 within 1 %', () => {
+    const s = createForecastState();
+    for (let t = START; t < START + 2 * 24 * H; t += 10 * 60_000) {
+      if (t % (30 * 60_000) === 0) {
+        observeDepth(s, 'flat', t, reef.depthFlat(t));
+        observeOffshoreWaves(s, t, reef.hm0(t));
+      }
+      observeCurrent(s, 'outer', t, reef.u(t), reef.depthFlat(t));
+    }
+    const t = START + 2 * 24 * H + 20 * 60_000;
+    const m = modelledFlow(s, PLAN, 'outer', t, { hm0OffshoreM: 1.3, depthM: 1.1 });
+    if (!m) throw new Error('no model');
+    expect(Math.abs(m.uMS / (0.03 * 1.3 * 1.1 ** -0.5) - 1)).toBeLessThan(0.01);
+    // Each ensemble is paired with the last complete 15-min block of offshore Hm0 (up to 45 min old).
+    expect(Math.abs(m.model.b - 1)).toBeLessThan(0.05);
+    expect(Math.abs(m.model.c + 0.5)).toBeLessThan(0.05);
+    expect(modelledFlow(s, PLAN, 'nowhere', t)).toBeUndefined();
+    const fromState = modelledFlow(s, PLAN, 'outer', t)!;
+    expect(fromState.depthM).toBeCloseTo(reef.depthFlat(START + 2 * 24 * H - 30 * 60_000), 10);
   });
 });
