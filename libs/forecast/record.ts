@@ -11,10 +11,10 @@ export interface ForecastRecord {
   o2_min_mg_l: number;
   o2_min_lo_mg_l: number;
   o2_min_hi_mg_l: number;
-  /** Expected time of the minimum, ISO UTC. */
+  /** Expected time of the minimum, ISO UTC, and the hours from the issue to it. */
   t_min: string;
   horizon_h: number;
-  /** Extension fields. */
+  /** Extension fields: the model, the end of the night (the forecast covers issue to sunrise), ... */
   model: 'persistence' | 'transect' | 'box';
   sunrise: string;
   lead_h: number;
@@ -40,7 +40,7 @@ export function toForecastRecord(
     o2_min_lo_mg_l: r(f.loMgL, 3),
     o2_min_hi_mg_l: r(f.hiMgL, 3),
     t_min: new Date(f.tMinMs).toISOString(),
-    horizon_h: r(f.horizonH, 3),
+    horizon_h: r((f.tMinMs - issueMs) / 3.6e6, 3),
     model: f.kind,
     sunrise: new Date(sunriseMs).toISOString(),
     lead_h: lead,

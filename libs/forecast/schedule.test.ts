@@ -91,7 +91,9 @@ describe('the night schedule', () => {
     for (const r of records) {
       expect(solarElevationDeg(Date.parse(r.t), LAT, LON)).toBeLessThan(-0.8);
       expect(Date.parse(r.sunrise)).toBeGreaterThan(Date.parse(r.t));
-      expect(r.horizon_h).toBeCloseTo((Date.parse(r.sunrise) - Date.parse(r.t)) / H, 3);
+      expect(r.horizon_h).toBeCloseTo((Date.parse(r.t_min) - Date.parse(r.t)) / H, 3);
+      expect(Date.parse(r.t_min)).toBeLessThanOrEqual(Date.parse(r.sunrise));
+      expect(Date.parse(r.t_min)).toBeGreaterThanOrEqual(Date.parse(r.t));
     }
     expect(records.filter((r) => r.station === 'crest').length).toBe(flat.length);
     expect(flat[0]!.lead_h).toBe(0);

@@ -63,7 +63,7 @@ function row(name: string, sel: ScoredForecast[]): string {
   const within = e.filter((x) => x <= 0.5).length / Math.max(1, e.length);
   const cover = sel.filter((r) => r.truthMin >= r.lo && r.truthMin <= r.hi).length / Math.max(1, sel.length);
   return [
-    name.padEnd(14),
+    name.padEnd(20),
     String(sel.length).padStart(6),
     mean(e).toFixed(3).padStart(8),
     `${(100 * within).toFixed(0)} %`.padStart(9),
@@ -75,7 +75,7 @@ function row(name: string, sel: ScoredForecast[]): string {
 
 const startMs = Date.UTC(2026, 1, 20, 10); // local midnight at UTC-10
 const clean = seeds.flatMap((seed, i) => deployment(seed, startMs + i * 40 * 86_400_000, days, false).scored);
-const header = `${'station'.padEnd(14)} ${'n'.padStart(6)} ${'MAE mg/L'.padStart(8)} ${'<=0.5'.padStart(9)} ${'cover80'.padStart(9)} ${'pers MAE'.padStart(9)} ${'ratio'.padStart(7)}`;
+const header = `${'station'.padEnd(20)} ${'n'.padStart(6)} ${'MAE mg/L'.padStart(8)} ${'<=0.5'.padStart(9)} ${'cover80'.padStart(9)} ${'pers MAE'.padStart(9)} ${'ratio'.padStart(7)}`;
 for (const [title, pick] of [
   ['dusk forecasts (one per station and night)', (r: ScoredForecast) => r.lead === 0],
   ['all forecasts (dusk and hourly to sunrise)', () => true],
@@ -111,6 +111,7 @@ for (const c of f.events) {
   const crossMs = Date.parse(cross.t);
   const warned = night.find((r) => r.central < 2 && r.issueMs <= crossMs);
   const dusk0 = night.find((r) => r.lead === 0)!;
+  const last = night.filter((r) => r.issueMs <= crossMs).at(-1)!;
   console.log(
     `  ${new Date(c).toISOString().slice(0, 16)}: truth min ${Math.min(...lag.map((t) => t.o2_mg_l)).toFixed(2)} mg/L, ` +
       `below 2 mg/L at ${cross.t.slice(11, 16)}; dusk forecast ${dusk0.central.toFixed(2)}; first forecast below 2 mg/L ` +
