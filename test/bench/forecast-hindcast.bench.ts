@@ -117,6 +117,8 @@ for (const c of f.events) {
       `below 2 mg/L at ${cross.t.slice(11, 16)}; dusk forecast ${dusk0.central.toFixed(2)}; first forecast below 2 mg/L ` +
       (warned
         ? `${((crossMs - warned.issueMs) / 3.6e6).toFixed(1)} h before the crossing`
-        : 'none before the crossing'),
+        : 'none before the crossing') +
+      `; last before it (${new Date(last.issueMs).toISOString().slice(11, 16)}): ${last.central.toFixed(2)} ` +
+      `[${last.lo.toFixed(2)}, ${last.hi.toFixed(2)}]`,
   );
 }
