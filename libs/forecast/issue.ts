@@ -4,11 +4,12 @@
 // added to the interval (model output statistics in their simplest form, common practice in forecasting).
 import { sunEvents } from '../daily/index.js';
 import { blockMeans, meanOver, valueAt, type Blocks } from './blocks.js';
+import { calibration, Z80 } from './calibration.js';
 import { predictTide } from './harmonics.js';
 import { forecastNight, type FlowSource, type StationForecast, type StationModel } from './night.js';
 import type { ForecastPlan, PlanStation } from './plan.js';
 import { O2_MG_L_PER_MMOL_M3, type BoxModel } from './box-model.js';
-import type { ForecastError, ForecastState, ModelFits } from './state.js';
+import type { ForecastState, ModelFits } from './state.js';
 
 export interface IssueOptions {
   members: number;
@@ -18,8 +19,6 @@ export interface IssueOptions {
   minCalibration: number;
 }
 
-/** The 80 % interval of a normal: +-1.2816 sd. */
-const Z80 = 1.2815515655446004;
 const HOUR = 3_600_000;
 
 export interface CalibratedForecast extends StationForecast {
@@ -286,57 +285,6 @@ function assimilateBox(
   if (!(med - box.rMmolM2H > 3 * sigma)) return box;
   const extra = ((med - box.rMmolM2H) / 2) ** 2;
   return { ...box, rMmolM2H: med, cov: [box.cov[0] as number, 0, 0, (box.cov[3] as number) + extra] };
-}
-
-/** Bias and model-error sd of a station from its scored forecasts at about the same lead. */
-export function calibration(
-  errors: readonly ForecastError[],
-  lead: number,
-  o: Pick<IssueOptions, 'defaultModelSigmaMgL' | 'minCalibration'>,
-): { bias: number; sigma: number; widen: number; ensembleScale: number } {
-  let rows = errors.filter((e) => e.lead === lead);
-  if (rows.length < o.minCalibration) rows = errors.filter((e) => Math.abs(e.lead - lead) <= 1);
-  if (rows.length < o.minCalibration) rows = [...errors];
-  if (rows.length < o.minCalibration)
-    return { bias: 0, sigma: o.defaultModelSigmaMgL, widen: 1, ensembleScale: 1 };
-  const med = (xs: number[]) => {
-    const q = [...xs].sort((a, b) => a - b);
-    return 0.5 * ((q[(q.length - 1) >> 1] as number) + (q[q.length >> 1] as number));
-  };
-  // Nights far outside the usual errors (an event the model could not know) would drag the bias and the
-  // spread of every ordinary night: beyond 6 robust sigmas they are left out of the calibration.
-  const m0 = med(rows.map((e) => e.errMgL));
-  const mad = 1.4826 * med(rows.map((e) => Math.abs(e.errMgL - m0)));
-  if (mad > 0) {
-    const kept = rows.filter((e) => Math.abs(e.errMgL - m0) <= 6 * mad);
-    if (kept.length >= o.minCalibration) rows = kept;
-  }
-  const bias = med(rows.map((e) => e.errMgL));
-  const msErr = rows.reduce((a, e) => a + (e.errMgL - bias) ** 2, 0) / rows.length;
-  const ensVar = rows.reduce((a, e) => a + ((e.halfLoMgL + e.halfHiMgL) / 2 / Z80) ** 2, 0) / rows.length;
-  // A spread and a bias estimated from n nights: Student's t for n - 1 degrees of freedom instead of the
-  // normal quantile, and (1 + 1/n) for the bias's own error (a prediction interval, common practice).
-  // Members wider than the errors they should explain are narrowed towards them, the ratio shrunk towards 1
-  // with a prior weight of five nights (a ratio from a few nights is noisy); errors wider than the members add
-  // a model error in quadrature.
-  const n = rows.length;
-  return {
-    bias,
-    sigma: Math.sqrt(Math.max(0, msErr - ensVar)),
-    widen: (studentT90(n - 1) / Z80) * Math.sqrt(1 + 1 / n),
-    ensembleScale: ensVar > msErr ? Math.sqrt((n * (msErr / ensVar) + 5) / (n + 5)) : 1,
-  };
-}
-
-/** The 0.9 quantile of Student's t with nu degrees of freedom, by the Cornish-Fisher expansion about the
- * normal quantile (Abramowitz & Stegun 1964, 26.7.5; within 0.2 % for nu >= 3). Check: nu = 9 gives 1.383. */
-export function studentT90(nu: number): number {
-  const z = Z80;
-  if (!(nu >= 1)) return Infinity;
-  const g1 = (z ** 3 + z) / 4;
-  const g2 = (5 * z ** 5 + 16 * z ** 3 + 3 * z) / 96;
-  const g3 = (3 * z ** 7 + 19 * z ** 5 + 17 * z ** 3 - 15 * z) / 384;
-  return z + g1 / nu + g2 / nu ** 2 + g3 / nu ** 3;
 }
 
 /** Offshore Hm0 now (mean of the last two hours) and the sd of ln Hm0 changes over six hours in the record. */

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { seeded } from '../daily/test-helpers.js';
-import { calibration, studentT90 } from './issue.js';
+import { calibration, studentT90 } from './calibration.js';
 import type { ForecastError } from './state.js';
 
 const O = { defaultModelSigmaMgL: 0.25, minCalibration: 3 };

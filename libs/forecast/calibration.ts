@@ -1,0 +1,58 @@
+// Calibration of a station's forecasts by its own scored nights (docs/methods/forecast.md 11.6): model output
+// statistics in their simplest form, with a prediction interval for the small number of nights behind them.
+import type { IssueOptions } from './issue.js';
+import type { ForecastError } from './state.js';
+
+/** The 80 % interval of a normal: +-1.2816 sd. */
+export const Z80 = 1.2815515655446004;
+
+/** Bias and model-error sd of a station from its scored forecasts at about the same lead. */
+export function calibration(
+  errors: readonly ForecastError[],
+  lead: number,
+  o: Pick<IssueOptions, 'defaultModelSigmaMgL' | 'minCalibration'>,
+): { bias: number; sigma: number; widen: number; ensembleScale: number } {
+  let rows = errors.filter((e) => e.lead === lead);
+  if (rows.length < o.minCalibration) rows = errors.filter((e) => Math.abs(e.lead - lead) <= 1);
+  if (rows.length < o.minCalibration) rows = [...errors];
+  if (rows.length < o.minCalibration)
+    return { bias: 0, sigma: o.defaultModelSigmaMgL, widen: 1, ensembleScale: 1 };
+  const med = (xs: number[]) => {
+    const q = [...xs].sort((a, b) => a - b);
+    return 0.5 * ((q[(q.length - 1) >> 1] as number) + (q[q.length >> 1] as number));
+  };
+  // Nights far outside the usual errors (an event the model could not know) would drag the bias and the
+  // spread of every ordinary night: beyond 6 robust sigmas they are left out of the calibration.
+  const m0 = med(rows.map((e) => e.errMgL));
+  const mad = 1.4826 * med(rows.map((e) => Math.abs(e.errMgL - m0)));
+  if (mad > 0) {
+    const kept = rows.filter((e) => Math.abs(e.errMgL - m0) <= 6 * mad);
+    if (kept.length >= o.minCalibration) rows = kept;
+  }
+  const bias = med(rows.map((e) => e.errMgL));
+  const msErr = rows.reduce((a, e) => a + (e.errMgL - bias) ** 2, 0) / rows.length;
+  const ensVar = rows.reduce((a, e) => a + ((e.halfLoMgL + e.halfHiMgL) / 2 / Z80) ** 2, 0) / rows.length;
+  // A spread and a bias estimated from n nights: Student's t for n - 1 degrees of freedom instead of the
+  // normal quantile, and (1 + 1/n) for the bias's own error (a prediction interval, common practice).
+  // Members wider than the errors they should explain are narrowed towards them, the ratio shrunk towards 1
+  // with a prior weight of five nights (a ratio from a few nights is noisy); errors wider than the members add
+  // a model error in quadrature.
+  const n = rows.length;
+  return {
+    bias,
+    sigma: Math.sqrt(Math.max(0, msErr - ensVar)),
+    widen: (studentT90(n - 1) / Z80) * Math.sqrt(1 + 1 / n),
+    ensembleScale: ensVar > msErr ? Math.sqrt((n * (msErr / ensVar) + 5) / (n + 5)) : 1,
+  };
+}
+
+/** The 0.9 quantile of Student's t with nu degrees of freedom, by the Cornish-Fisher expansion about the
+ * normal quantile (Abramowitz & Stegun 1964, 26.7.5; within 0.2 % for nu >= 3). Check: nu = 9 gives 1.383. */
+export function studentT90(nu: number): number {
+  const z = Z80;
+  if (!(nu >= 1)) return Infinity;
+  const g1 = (z ** 3 + z) / 4;
+  const g2 = (5 * z ** 5 + 16 * z ** 3 + 3 * z) / 96;
+  const g3 = (3 * z ** 7 + 19 * z ** 5 + 17 * z ** 3 - 15 * z) / 384;
+  return z + g1 / nu + g2 / nu ** 2 + g3 / nu ** 3;
+}
