@@ -345,7 +345,7 @@ export function issueAt(
     const c = calibration(s.errors[f.station] ?? [], lead, o);
     const halfLo = f.o2MinMgL - f.loMgL;
     const halfHi = f.hiMgL - f.o2MinMgL;
-    const centre = f.o2MinMgL + c.bias;
+    const centre = Math.max(0, f.o2MinMgL + c.bias);
     const model = models.find((m) => m.station === f.station);
     return {
       ...f,

@@ -117,7 +117,10 @@ function runMember(
       for (let i = 0; i < times.length; i++) {
         const t = times[i] as number;
         const tauH = s.lengthM / flowAt(s.flow, m, t, minU) / 3600;
-        o[i] = (up[i] as number) - (r * O2_MG_L_PER_MMOL_M3 * tauH) / s.meanDepthM(t) + s.offsetMgL;
+        o[i] = Math.max(
+          0,
+          (up[i] as number) - (r * O2_MG_L_PER_MMOL_M3 * tauH) / s.meanDepthM(t) + s.offsetMgL,
+        );
       }
     } else {
       const src = out.get(s.source);
@@ -132,7 +135,11 @@ function runMember(
         const h = s.depthM(tm);
         const driver = s.feed ? (flowAt(s.feed, m, tm, minU) * 3600 * s.feed.currentDepthM(tm)) / h : 1;
         const srcMid = 0.5 * ((src[i - 1] as number) + (src[i] as number));
-        o[i] = stepBox(o[i - 1] as number, srcMid, kappa * driver, (r * O2_MG_L_PER_MMOL_M3) / h, dtH);
+        // Oxygen cannot go below zero: respiration stops there (the budget's linear demand does not know it).
+        o[i] = Math.max(
+          0,
+          stepBox(o[i - 1] as number, srcMid, kappa * driver, (r * O2_MG_L_PER_MMOL_M3) / h, dtH),
+        );
       }
     }
     out.set(s.station, o);
