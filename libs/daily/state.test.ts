@@ -3,7 +3,7 @@ import { closeDay, type DailyOptions, type DailyResult } from './close-day.js';
 import { createLocalCalendar } from './local-day.js';
 import { toDailyRecord } from './record.js';
 import type { FluxWindowInput } from './slots.js';
-import { addWindow, closeDueDays, createDailyState } from './state.js';
+import { addWindow, closeDueDays, createDailyState, packWindow, unpackWindow } from './state.js';
 import { solarElevationDeg } from './sun.js';
 import { seeded } from './test-helpers.js';
 
@@ -68,10 +68,12 @@ describe('incremental daily state', () => {
     const { out } = run();
     const day = out.find((r) => r.bounds.day === '2026-06-09')!;
     const b = cal.dayBounds('2026-06-09');
-    const week = all.filter((w) => w.tMs >= cal.dayBounds('2026-06-03').startMs && w.tMs < b.endMs);
+    // The state keeps windows to 1e-6 of their unit: the batch gets the same values.
+    const same = all.map((w) => unpackWindow(packWindow(w)));
+    const week = same.filter((w) => w.tMs >= cal.dayBounds('2026-06-03').startMs && w.tMs < b.endMs);
     const batch = closeDay(
       b,
-      all.filter((w) => w.tMs >= b.startMs && w.tMs < b.endMs),
+      same.filter((w) => w.tMs >= b.startMs && w.tMs < b.endMs),
       week,
       OPTS,
     );
@@ -88,7 +90,11 @@ describe('incremental daily state', () => {
 
   it('keeps only the sliding week of windows', () => {
     const { state } = run();
-    const oldest = state.windows[0]!.tMs;
+    const oldest = state.windows[0]![0];
+    // Closed days keep only their valid windows; the open day keeps all.
+    const closedEnd = cal.dayBounds('2026-06-11').endMs;
+    expect(state.windows.filter((w) => w[0] < closedEnd).every((w) => w[1] === 1)).toBe(true);
+    expect(state.windows.some((w) => w[0] >= closedEnd && w[1] === 0)).toBe(true);
     expect(oldest).toBeGreaterThanOrEqual(cal.dayBounds('2026-06-06').startMs);
     expect(state.lastClosedDay).toBe('2026-06-11');
   });
@@ -117,7 +123,7 @@ describe('incremental daily state', () => {
     addWindow(s, { ...w[2]!, ncpMmolM2H: 99 });
     addWindow(s, w[0]!);
     expect(s.windows.length).toBe(w.length);
-    expect(s.windows[2]!.ncpMmolM2H).toBe(99);
+    expect(unpackWindow(s.windows[2]!).ncpMmolM2H).toBe(99);
   });
 });
 

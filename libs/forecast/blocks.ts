@@ -1,52 +1,56 @@
 // Block means on a fixed grid (default 15 min): the forecast's memory of a variable, small and plain JSON.
-// A sample joins the block that holds its time, late samples included; old blocks are pruned by age.
+// A sample joins the block that holds its time, late samples included; old blocks are pruned by age. Blocks
+// are kept as their index on the grid, their mean (to 1e-6 of the unit, far below any sensor's resolution, so
+// checkpoints stay small) and their count.
 
 export interface Blocks {
   blockMs: number;
-  /** Block start times (ms, multiples of blockMs), increasing; running sums and counts. */
-  t: number[];
-  sum: number[];
+  /** Block indices (start = k blockMs), increasing; the block means and sample counts. */
+  k: number[];
+  v: number[];
   n: number[];
 }
 
+const round6 = (x: number) => Math.round(x * 1e6) / 1e6;
+
 export function createBlocks(blockMs = 15 * 60_000): Blocks {
-  return { blockMs, t: [], sum: [], n: [] };
+  return { blockMs, k: [], v: [], n: [] };
 }
 
 export function addSample(b: Blocks, tMs: number, value: number): void {
   if (!Number.isFinite(value) || !Number.isFinite(tMs)) return;
-  const start = Math.floor(tMs / b.blockMs) * b.blockMs;
-  const last = b.t.length - 1;
-  if (last < 0 || start > (b.t[last] as number)) {
-    b.t.push(start);
-    b.sum.push(value);
-    b.n.push(1);
-    return;
+  const k = Math.floor(tMs / b.blockMs);
+  const last = b.k.length - 1;
+  let i: number;
+  if (last < 0 || k > (b.k[last] as number)) i = b.k.length;
+  else {
+    let lo = 0;
+    let hi = b.k.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >>> 1;
+      if ((b.k[mid] as number) < k) lo = mid + 1;
+      else hi = mid;
+    }
+    i = lo;
   }
-  let lo = 0;
-  let hi = b.t.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >>> 1;
-    if ((b.t[mid] as number) < start) lo = mid + 1;
-    else hi = mid;
-  }
-  if (b.t[lo] === start) {
-    b.sum[lo] = (b.sum[lo] as number) + value;
-    b.n[lo] = (b.n[lo] as number) + 1;
+  if (b.k[i] === k) {
+    const n = (b.n[i] as number) + 1;
+    b.v[i] = round6((b.v[i] as number) + (value - (b.v[i] as number)) / n);
+    b.n[i] = n;
   } else {
-    b.t.splice(lo, 0, start);
-    b.sum.splice(lo, 0, value);
-    b.n.splice(lo, 0, 1);
+    b.k.splice(i, 0, k);
+    b.v.splice(i, 0, round6(value));
+    b.n.splice(i, 0, 1);
   }
 }
 
 /** Drops blocks that start before tMs. */
 export function pruneBefore(b: Blocks, tMs: number): void {
   let i = 0;
-  while (i < b.t.length && (b.t[i] as number) < tMs) i++;
+  while (i < b.k.length && (b.k[i] as number) * b.blockMs < tMs) i++;
   if (i > 0) {
-    b.t.splice(0, i);
-    b.sum.splice(0, i);
+    b.k.splice(0, i);
+    b.v.splice(0, i);
     b.n.splice(0, i);
   }
 }
@@ -55,11 +59,11 @@ export function pruneBefore(b: Blocks, tMs: number): void {
 export function blockMeans(b: Blocks, fromMs = -Infinity, toMs = Infinity): { tMs: number[]; v: number[] } {
   const tMs: number[] = [];
   const v: number[] = [];
-  for (let i = 0; i < b.t.length; i++) {
-    const s = b.t[i] as number;
+  for (let i = 0; i < b.k.length; i++) {
+    const s = (b.k[i] as number) * b.blockMs;
     if (s < fromMs || s + b.blockMs > toMs) continue;
     tMs.push(s + b.blockMs / 2);
-    v.push((b.sum[i] as number) / (b.n[i] as number));
+    v.push(b.v[i] as number);
   }
   return { tMs, v };
 }
@@ -73,19 +77,29 @@ export function meanOver(b: Blocks, fromMs: number, toMs: number): number | unde
 /** The block mean at the block holding tMs, else linear interpolation between the nearest blocks at most
  * maxGapMs apart, else undefined. */
 export function valueAt(b: Blocks, tMs: number, maxGapMs = 3 * 3_600_000): number | undefined {
-  const centre = (i: number) => (b.t[i] as number) + b.blockMs / 2;
-  const mean = (i: number) => (b.sum[i] as number) / (b.n[i] as number);
+  const centre = (i: number) => ((b.k[i] as number) + 0.5) * b.blockMs;
   let lo = 0;
-  let hi = b.t.length;
+  let hi = b.k.length;
   while (lo < hi) {
     const mid = (lo + hi) >>> 1;
     if (centre(mid) < tMs) lo = mid + 1;
     else hi = mid;
   }
-  if (lo < b.t.length && centre(lo) === tMs) return mean(lo);
-  if (lo === 0 || lo === b.t.length) return undefined;
+  if (lo < b.k.length && centre(lo) === tMs) return b.v[lo] as number;
+  if (lo === 0 || lo === b.k.length) return undefined;
   const t0 = centre(lo - 1);
   const t1 = centre(lo);
   if (t1 - t0 > maxGapMs) return undefined;
-  return mean(lo - 1) + ((tMs - t0) / (t1 - t0)) * (mean(lo) - mean(lo - 1));
+  return (b.v[lo - 1] as number) + ((tMs - t0) / (t1 - t0)) * ((b.v[lo] as number) - (b.v[lo - 1] as number));
+}
+
+/** The mean of the last block that ended at or before tMs, if it started within maxAgeMs. */
+export function latest(b: Blocks, tMs: number, maxAgeMs: number): number | undefined {
+  for (let i = b.k.length - 1; i >= 0; i--) {
+    const start = (b.k[i] as number) * b.blockMs;
+    if (start + b.blockMs > tMs) continue;
+    if (tMs - start > maxAgeMs) return undefined;
+    return b.v[i] as number;
+  }
+  return undefined;
 }

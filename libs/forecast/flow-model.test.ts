@@ -70,6 +70,6 @@ describe('flow model ln u = a + b ln H + c ln h', () => {
     const s = samples(40, () => 0.05, 0, 4);
     s.forEach((x, i) => i % 2 && (x.uMS = -0.03));
     const m = fitFlowModel(s, 0);
-    expect(m.ok ? '' : m.reason).toBe('20 valid ensembles');
+    expect(m.ok ? '' : m.reason).toBe('20 valid samples');
   });
 });

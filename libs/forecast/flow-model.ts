@@ -40,7 +40,7 @@ export interface FlowModel {
 export type FlowModelResult = FlowModel | { ok: false; reason: string };
 
 export interface FlowFitOptions {
-  /** Fewest ensembles (default 36: six hours of 10-min ensembles). */
+  /** Fewest samples (default 24: six hours of 15-min means). */
   minSamples?: number;
   /** Ensembles slower than this are left out (default 0.005 m/s: the log needs u > 0). */
   minSpeedMS?: number;
@@ -63,7 +63,7 @@ export function fitFlowModel(
       s.depthM > 0 &&
       [s.uMS, s.hm0OffshoreM, s.depthM].every(Number.isFinite),
   );
-  if (use.length < (o.minSamples ?? 36)) return { ok: false, reason: `${use.length} valid ensembles` };
+  if (use.length < (o.minSamples ?? 24)) return { ok: false, reason: `${use.length} valid samples` };
   const lnH = use.map((s) => Math.log(s.hm0OffshoreM));
   const lnD = use.map((s) => Math.log(s.depthM));
   const wave = spread(lnH) >= (o.minLnSpread ?? 0.1);

@@ -2,7 +2,8 @@
 // ensemble, the fitted flow model gives the velocity from the offshore wave height and the station's depth,
 // so the budget can go on (the processor flags those windows 3 with the reason `modelled_flow`, for at most
 // the configured number of hours). The models are those of the daily refit, refreshed here when older than a day.
-import { latest, type ForecastState } from './state.js';
+import { latest } from './blocks.js';
+import type { ForecastState } from './state.js';
 import { predictFlow, type FlowModel } from './flow-model.js';
 import type { ForecastPlan } from './plan.js';
 import { refitModels } from './refit.js';

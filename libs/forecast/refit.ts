@@ -4,7 +4,7 @@
 import { isSunDown } from '../daily/index.js';
 import { blockMeans, valueAt } from './blocks.js';
 import { fitBoxModel, type BoxSample } from './box-model.js';
-import { fitFlowModel } from './flow-model.js';
+import { fitFlowModel, type FlowSample } from './flow-model.js';
 import { fitTide } from './harmonics.js';
 import type { ForecastPlan } from './plan.js';
 import type { ForecastState, ModelFits } from './state.js';
@@ -31,10 +31,7 @@ export function refitModels(
     fits.tide[station] = f.ok ? f : null;
   }
   for (const t of plan.transects) {
-    const rows = (s.flowSamples[t.id] ?? []).filter(
-      (r) => r.tMs < asOfMs && r.tMs >= asOfMs - o.flowDays * DAY,
-    );
-    const f = fitFlowModel(rows, asOfMs);
+    const f = fitFlowModel(flowSamples(s, t.id, asOfMs, o.flowDays), asOfMs);
     fits.flow[t.id] = f.ok ? f : null;
   }
   for (const p of plan.stations) {
@@ -43,6 +40,23 @@ export function refitModels(
     fits.box[p.station] = f.ok ? f : null;
   }
   return fits;
+}
+
+/** The flow model's data: 15-minute means of the valid ensembles of the last days, each with the depth there
+ * and the offshore Hm0 interpolated to its time. */
+function flowSamples(s: ForecastState, transect: string, asOfMs: number, days: number): FlowSample[] {
+  const u = s.flowU[transect];
+  const h = s.flowDepth[transect];
+  if (!u || !h) return [];
+  const m = blockMeans(u, asOfMs - days * DAY, asOfMs);
+  const out: FlowSample[] = [];
+  m.tMs.forEach((t, i) => {
+    const depthM = valueAt(h, t, 3_600_000);
+    const hm0OffshoreM = valueAt(s.offshore, t, 3 * 3_600_000);
+    if (depthM !== undefined && hm0OffshoreM !== undefined)
+      out.push({ tMs: t, uMS: m.v[i] as number, hm0OffshoreM, depthM });
+  });
+  return out;
 }
 
 /** The box's night history: consecutive night blocks with the box O2, the source O2, the box depth and the

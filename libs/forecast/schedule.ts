@@ -35,6 +35,8 @@ export const DEFAULT_FORECAST_OPTIONS: Readonly<ForecastOptions> = Object.freeze
 });
 
 const HOUR = 3_600_000;
+/** Scores and issued values are kept to 1e-4 mg/L in the state (checkpoints stay small). */
+const r4 = (x: number) => Math.round(x * 1e4) / 1e4;
 
 export interface StepResult {
   records: ForecastRecord[];
@@ -76,9 +78,9 @@ function scoreNight(s: ForecastState, o: ForecastOptions): void {
     rows.push({
       issueMs: f.issueMs,
       lead: f.lead,
-      errMgL: Math.min(...m.v) - f.rawMgL,
-      halfLoMgL: f.halfLoMgL,
-      halfHiMgL: f.halfHiMgL,
+      errMgL: r4(Math.min(...m.v) - f.rawMgL),
+      halfLoMgL: r4(f.halfLoMgL),
+      halfHiMgL: r4(f.halfHiMgL),
     });
     const keepFrom = f.issueMs - o.calibrationNights * 24 * HOUR;
     s.errors[f.station] = rows.filter((r) => r.issueMs >= keepFrom);
@@ -122,9 +124,9 @@ export function stepForecast(
           issueMs: T,
           sunriseMs: night.sunriseMs,
           lead,
-          rawMgL: f.rawMgL,
-          halfLoMgL: f.halfLoMgL,
-          halfHiMgL: f.halfHiMgL,
+          rawMgL: r4(f.rawMgL),
+          halfLoMgL: r4(f.halfLoMgL),
+          halfHiMgL: r4(f.halfHiMgL),
         });
         out.forecasts.push(f);
         out.records.push(toForecastRecord(plan.site, T, f, night.sunriseMs, lead));
@@ -143,5 +145,11 @@ export function stepForecast(
   // No night open: nothing can be due before the watermark any more.
   if (s.night === null) s.lastStepMs = watermarkMs;
   pruneState(s, watermarkMs, o);
+  // Depth records of stations no model reads (the fore reef, a channel) are not kept.
+  const needed = new Set([
+    ...plan.stations.map((p) => p.station),
+    ...plan.transects.flatMap((t) => [t.upstream, t.downstream, t.current]),
+  ]);
+  for (const k of Object.keys(s.depth)) if (!needed.has(k)) delete s.depth[k];
   return out;
 }

@@ -2,9 +2,9 @@
 // with the derived records as they are made (docs/methods/forecast.md 11.7). Observations go into block
 // means; models are refitted once a day from them; forecasts are issued at dusk and hourly until sunrise and
 // scored at sunrise, and the scores calibrate the next nights' intervals.
-import { addSample, createBlocks, pruneBefore, valueAt, type Blocks } from './blocks.js';
+import { addSample, createBlocks, latest, pruneBefore, valueAt, type Blocks } from './blocks.js';
 import type { BoxModel } from './box-model.js';
-import type { FlowModel, FlowSample } from './flow-model.js';
+import type { FlowModel } from './flow-model.js';
 import type { TideFit } from './harmonics.js';
 
 export const FORECAST_STATE_VERSION = 1;
@@ -54,11 +54,10 @@ export interface ForecastState {
   depth: Record<string, Blocks>;
   offshore: Blocks;
   par: Blocks;
-  /** Per transect: velocity along it at the current station (m/s) and the depth there (m), as blocks, and the
-   * valid ensembles paired with the offshore height for the flow model. */
+  /** Per transect: velocity along it at the current station (m/s) and the depth there (m), as block means of
+   * the valid ensembles (the flow model is fitted on these, paired with the offshore height). */
   flowU: Record<string, Blocks>;
   flowDepth: Record<string, Blocks>;
-  flowSamples: Record<string, FlowSample[]>;
   /** Night respiration per transect (mmol m-2 h-1), one row per night (from the daily budgets). */
   resp: Record<string, { tMs: number; rMmolM2H: number; sigma: number }[]>;
   fits: ModelFits | null;
@@ -79,7 +78,6 @@ export function createForecastState(): ForecastState {
     par: createBlocks(),
     flowU: {},
     flowDepth: {},
-    flowSamples: {},
     resp: {},
     fits: null,
     night: null,
@@ -89,7 +87,7 @@ export function createForecastState(): ForecastState {
   };
 }
 
-const blocksOf = (m: Record<string, Blocks>, k: string) => (m[k] ??= createBlocks());
+const blocksOf = (m: Record<string, Blocks>, k: string, blockMs?: number) => (m[k] ??= createBlocks(blockMs));
 
 /** An oxygen record of a station (mg/L). */
 export function observeOxygen(s: ForecastState, station: string, tMs: number, o2MgL: number): void {
@@ -98,7 +96,8 @@ export function observeOxygen(s: ForecastState, station: string, tMs: number, o2
 
 /** A mean water depth of a station (a waves record's depth_m). */
 export function observeDepth(s: ForecastState, station: string, tMs: number, depthM: number): void {
-  addSample(blocksOf(s.depth, station), tMs, depthM);
+  // 30-min blocks: the tide needs a month of them, and bursts come every 30 min anyway.
+  addSample(blocksOf(s.depth, station, 30 * 60_000), tMs, depthM);
 }
 
 /** Hm0 at the outermost pressure station (a waves record's hm0_m). */
@@ -112,7 +111,7 @@ export function observePar(s: ForecastState, tMs: number, parUmolM2S: number): v
 }
 
 /** A valid current ensemble at a transect's current station: velocity along the transect (m/s, downstream
- * positive) and the water depth there (m). Paired with the offshore Hm0 of the last three hours. */
+ * positive) and the water depth there (m). */
 export function observeCurrent(
   s: ForecastState,
   transect: string,
@@ -122,8 +121,6 @@ export function observeCurrent(
 ): void {
   addSample(blocksOf(s.flowU, transect), tMs, uMS);
   addSample(blocksOf(s.flowDepth, transect), tMs, depthM);
-  const h = latest(s.offshore, tMs, 3 * 3_600_000);
-  if (h !== undefined) (s.flowSamples[transect] ??= []).push({ tMs, uMS, hm0OffshoreM: h, depthM });
 }
 
 /** The night respiration of a transect (the daily record's r_mmol_m2_h and its sigma), stamped at the day. */
@@ -141,17 +138,6 @@ export function observeRespiration(
   if (rows.length > 14) rows.splice(0, rows.length - 14);
 }
 
-/** The mean of the last block at or before tMs within maxAgeMs (blocks that ended before tMs only). */
-export function latest(b: Blocks, tMs: number, maxAgeMs: number): number | undefined {
-  for (let i = b.t.length - 1; i >= 0; i--) {
-    const start = b.t[i] as number;
-    if (start + b.blockMs > tMs) continue;
-    if (tMs - start > maxAgeMs) return undefined;
-    return (b.sum[i] as number) / (b.n[i] as number);
-  }
-  return undefined;
-}
-
 /** Drops everything older than the history each part needs. */
 export function pruneState(
   s: ForecastState,
@@ -167,8 +153,6 @@ export function pruneState(
     for (const b of Object.values(m)) pruneBefore(b, tMs - o.historyDays * day);
   for (const [k, spans] of Object.entries(s.anomalies))
     s.anomalies[k] = spans.filter(([, to]) => to >= tMs - o.historyDays * day);
-  for (const [k, rows] of Object.entries(s.flowSamples))
-    s.flowSamples[k] = rows.filter((r) => r.tMs >= tMs - o.flowDays * day);
 }
 
-export { valueAt };
+export { latest, valueAt };

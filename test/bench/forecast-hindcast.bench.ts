@@ -50,7 +50,8 @@ function deployment(seed: number, startMs: number, durationDays: number, faults:
   const t2 = performance.now();
   console.log(
     `seed ${seed}: ${durationDays} days${faults ? ' with faults' : ''}, simulate + process ${((t1 - t0) / 1000).toFixed(0)} s, ` +
-      `hindcast ${((t2 - t1) / 1000).toFixed(1)} s, ${h.forecasts.length} forecasts`,
+      `hindcast ${((t2 - t1) / 1000).toFixed(1)} s, ${h.forecasts.length} forecasts, ` +
+      `state ${(h.stateBytes / 1024).toFixed(0)} kB of JSON at the end`,
   );
   const scored = h.scored.filter((s) => s.issueMs - startMs >= SPIN_UP_MS);
   return { scored, events, truth };

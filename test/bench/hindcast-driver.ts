@@ -53,7 +53,7 @@ export function runHindcast(
   par: readonly [number, number][],
   truth: readonly TruthO2[],
   opts: { timeZone: string; forecast?: Partial<ForecastOptions> },
-): { scored: ScoredForecast[]; daily: DailyRecord[]; forecasts: ForecastRecord[] } {
+): { scored: ScoredForecast[]; daily: DailyRecord[]; forecasts: ForecastRecord[]; stateBytes: number } {
   const plan = planFromConfig(config);
   const cal = createLocalCalendar(opts.timeZone);
   const W = config.processing.window_min * 60_000;
@@ -164,5 +164,7 @@ export function runHindcast(
       persistence: rows[0]!.v,
     });
   }
-  return { scored, daily: dailyOut, forecasts };
+  // Checkpoint size of the two libraries' state at the end (plain JSON).
+  const stateBytes = JSON.stringify(fs).length + JSON.stringify(daily).length;
+  return { scored, daily: dailyOut, forecasts, stateBytes };
 }
