@@ -6,9 +6,8 @@ import type { BrowserContext, Page } from 'playwright-core';
 import { launchChromium } from './chromium.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { parseConfigText, type DerivedRecord, type ReefdConfig } from '../../libs/contract/index.js';
-import { simulateMessages } from '../../libs/simulator/index.js';
 import { createDashboardServer, type DashboardServer } from '../../services/dashboard/index.js';
-import { healthFromMessages, recordsFromTruth } from '../../services/dashboard/truth-records.js';
+import { runDemo } from '../../services/dashboard/demo-records.js';
 
 const HOUR = 3_600_000;
 const START = Date.UTC(2026, 2, 1, 0, 0);
@@ -30,18 +29,18 @@ beforeAll(async () => {
   );
   if (!r.ok) throw new Error('demo config invalid');
   config = r.config;
-  const sim = simulateMessages(config, { startMs: START, durationMs: DURATION, seed: 8 });
-  const records = recordsFromTruth(config, sim.truth);
+  const demo = runDemo({ config, startMs: START, hours: DURATION / HOUR, seed: 8 });
+  const records = demo.batches.flatMap((b) => b.records);
   const seeded = records.filter((x) => Date.parse(x.t) < SPLIT);
   live = records.filter((x) => Date.parse(x.t) >= SPLIT);
+  void acks;
   server = await createDashboardServer({
     config,
-    history: seeded,
+    seed: seeded,
     port: 0,
     logger: quiet,
-    onAck: (id, by) => void acks.push({ id, by }),
     metrics: () => '# HELP reefd_up 1\nreefd_up 1\n',
-    health: () => healthFromMessages(sim.messages, SPLIT),
+    health: () => demo.processor.sensorHealth(),
   });
   chrome = await launchChromium();
   browser = chrome.browser;
