@@ -114,7 +114,12 @@ describe('SensorWatch', () => {
       qc_flag: 3,
       faults: [{ fault: 'flatline', since: iso(T0), value: 512.3, unit: 'uatm' }],
     });
-    expect(by('adcp-crest')).toMatchObject({ state: 'failing', qc_flag: 4, qc_reason: 'too_few_bins' });
+    expect(by('adcp-crest')).toMatchObject({
+      state: 'suspect',
+      state_reason: 'too_few_bins',
+      qc_flag: 4,
+      qc_reason: 'too_few_bins',
+    });
     expect(by('met')).toMatchObject({ state: 'unknown', last_seen: null });
   });
 

@@ -307,8 +307,10 @@ function classify(o: {
   const failing = names.find((f) => FAILING_FAULTS.has(f));
   if (failing) return { state: 'failing', why: failing };
   if (!o.seen) return { state: 'unknown', why: 'no message yet' };
-  if (o.flag === 4) return { state: 'failing', why: o.reason ?? 'qc_fail' };
+  // A reading that fails QC without a fault behind it (too few good bins at low tide, a tilted head) says the
+  // data are unusable now, not that the instrument broke: someone should look, so "suspect".
   if (names.length > 0) return { state: 'suspect', why: names[0] as string };
+  if (o.flag === 4) return { state: 'suspect', why: o.reason ?? 'qc_fail' };
   if (o.flag === 3) return { state: 'suspect', why: o.reason ?? 'qc_suspect' };
   if (o.hoursLeft !== null && o.hoursLeft < BATTERY_WARN_H) return { state: 'suspect', why: 'battery_trend' };
   return { state: 'ok', why: 'ok' };
