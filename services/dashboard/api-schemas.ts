@@ -230,6 +230,7 @@ export const sensorViewSchema = z.object({
       id: z.string(),
       fault: z.string(),
       rule: z.string(),
+      field: z.string().nullable().describe('the field the fault concerns (its metric), if any'),
       since: iso,
       value: z.number().nullable(),
       limit: z.number().nullable(),

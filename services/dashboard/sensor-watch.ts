@@ -225,6 +225,7 @@ export class SensorWatch {
       faults: faults.map((a) => ({
         id: a.id,
         fault: a.fault ?? a.rule,
+        field: a.metric !== null ? (a.metric.split('.')[1] ?? null) : null,
         rule: a.rule,
         since: a.raised_t,
         value: a.value,
@@ -275,9 +276,20 @@ function qcReason(r: DerivedRecord): string | null {
   return null;
 }
 
+/** What each kind of sensor measures itself: listed first, before what was derived from it. */
+const MEASURED: Readonly<Record<string, readonly string[]>> = {
+  ctd: ['temp_c', 'sal'],
+  oxygen: ['o2_mg_l', 'o2_sat_pct'],
+  pco2: ['pco2_uatm'],
+  pressure: ['depth_m', 'hm0_m', 'tp_s'],
+  adcp: ['speed_m_s', 'dir_to_deg'],
+  par: ['par_umol_m2_s'],
+};
+
 function lastValues(r: DerivedRecord, kind: string): SensorView['last_values'] {
   // A CTD's own values reach the records as the temperature and salinity of the carbonate solution.
-  const fields = kind === 'ctd' ? ['temp_c', 'sal'] : valueFields(r.type);
+  const own = MEASURED[kind] ?? [];
+  const fields = kind === 'ctd' ? own : [...own, ...valueFields(r.type).filter((f) => !own.includes(f))];
   const out: SensorView['last_values'] = [];
   for (const f of fields) {
     const v = (r as Record<string, unknown>)[f];

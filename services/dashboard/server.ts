@@ -48,6 +48,8 @@ export interface DashboardOptions {
   historyDir?: string;
   historyWindowMs?: number;
   historyResolutionMs?: number;
+  /** Least wall time between two reads of `health` while records stream in, ms (default 250). */
+  healthPollMs?: number;
   /** How often the history's final buckets are appended to its folder, ms (default 10 s). */
   saveEveryMs?: number;
   /** Records to start from (previews and tests). */
@@ -108,7 +110,12 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
     ...(log ? { onFinal: (records) => log.append(records) } : {}),
   });
   const book = new AlertBook({ windowMs, acks: opts.acks });
-  const sensors = new SensorWatch({ config: opts.config, health: opts.health, wallClock: wall });
+  const sensors = new SensorWatch({
+    config: opts.config,
+    health: opts.health,
+    wallClock: wall,
+    ...(opts.healthPollMs !== undefined ? { minPollMs: opts.healthPollMs } : {}),
+  });
   const fieldLog = fieldLogSource({
     baseDir: opts.baseDir ?? process.cwd(),
     calibrationFile: opts.config.calibration_file,

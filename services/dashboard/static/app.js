@@ -81,12 +81,14 @@ function render() {
  * Fetches the records of the range shown for the selected station and transect, once per range.
  * @param {string} key 'station:<id>' or 'transect:<id>'
  * @param {string} query
+ * @param {{fromMs: number, toMs: number}} [range] default the range shown
+ * @param {boolean} [quiet] say nothing in the range's status line (a table's own fetch)
  */
-async function ensureRange(key, query) {
-  const r = viewRange(app.view, app.nowMs());
+async function ensureRange(key, query, range = viewRange(app.view, app.nowMs()), quiet = false) {
+  const r = range;
   const have = app.fetched.get(key);
   if (have && have.fromMs <= r.fromMs && have.toMs >= Math.min(r.toMs, app.nowMs())) return;
-  const status = byId('range-status');
+  const status = quiet ? document.createElement('p') : byId('range-status');
   status.textContent = 'Loading the records of this range…';
   let cursor = '';
   let n = 0;
@@ -122,7 +124,19 @@ function ensureRanges() {
   if (app.selected.transect)
     void ensureRange(
       `transect:${app.selected.transect}`,
-      `transect=${encodeURIComponent(app.selected.transect)}&type=flux,daily`,
+      `transect=${encodeURIComponent(app.selected.transect)}&type=flux`,
+    );
+  // The daily budgets table lists the last fortnight whatever range the plots show.
+  const now = app.nowMs();
+  for (const t of app.site.transects)
+    void ensureRange(
+      `daily:${t.id}`,
+      `transect=${encodeURIComponent(t.id)}&type=daily`,
+      {
+        fromMs: now - 15 * 86_400_000,
+        toMs: now + 60_000,
+      },
+      true,
     );
 }
 

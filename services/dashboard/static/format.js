@@ -40,6 +40,17 @@ export function unitText(unit) {
     .join(' ');
 }
 
+/**
+ * Tick labels with the decimals their spacing needs, the same for every tick of an axis.
+ * @param {number[]} vals
+ */
+export function tickLabels(vals) {
+  if (vals.length < 2) return vals.map((v) => num(v));
+  const step = Math.abs((vals[1] ?? 0) - (vals[0] ?? 0)) || 1;
+  const dp = Math.max(0, Math.min(4, -Math.floor(Math.log10(step) + 1e-9)));
+  return vals.map((v) => v.toFixed(dp).replace('-', '−'));
+}
+
 /** Decimals by field where the trade reads more (pH, saturation states), else by magnitude. */
 const FIELD_DECIMALS = /** @type {Record<string, number>} */ ({
   ph_total: 3,

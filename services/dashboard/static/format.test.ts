@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { siteInfo } from '../site-info.js';
 import { demoSiteConfig } from '../demo-records.js';
-import { ago, duration, num, siteClock, unitText, withUnit } from './format.js';
+import { ago, duration, num, siteClock, tickLabels, unitText, withUnit } from './format.js';
 
 describe('units for print', () => {
   it('writes every unit the daemon serves without UDUNITS spelling', () => {
@@ -29,6 +29,13 @@ describe('units for print', () => {
     expect(withUnit(92.4, 'percent')).toBe('92.4%');
     expect(withUnit(null, 'mg L-1')).toBe('—');
     expect(num(Number.NaN)).toBe('—');
+  });
+
+  it('labels axis ticks with the decimals their spacing needs, the same on every tick', () => {
+    expect(tickLabels([-100, -50, 0, 50, 100])).toEqual(['−100', '−50', '0', '50', '100']);
+    expect(tickLabels([7.8, 7.9, 8.0])).toEqual(['7.8', '7.9', '8.0']);
+    expect(tickLabels([35.1, 35.11, 35.12])).toEqual(['35.10', '35.11', '35.12']);
+    expect(tickLabels([2.5])).toEqual(['2.50']);
   });
 
   it('says lengths of time in words', () => {

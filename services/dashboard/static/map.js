@@ -90,7 +90,7 @@ export function drawMap(node, site, onPick, narrow) {
       );
     node.append(
       svg('text', { class: 'tag', x: W - 12, y: H - 12, 'text-anchor': 'end' }, 'open sea'),
-      svg('text', { class: 'tag', x: (west + inner.x) / 2, y: H - 58, 'text-anchor': 'middle' }, 'lagoon'),
+      svg('text', { class: 'tag', x: west + 6, y: H - 56, 'text-anchor': 'start' }, 'lagoon'),
     );
   }
   /** @type {Record<string, SVGGElement>} */

@@ -1,7 +1,7 @@
 // @ts-check
 // The plots (uPlot): site-local time on the axis, UTC in the readout, night shading, the site's limits,
 // flagged points marked by their flag, field-log markers, drag to zoom, cursors linked within a station.
-import { FLAG_WORDS, num, unitText, withUnit } from './format.js';
+import { FLAG_WORDS, num, tickLabels, unitText, withUnit } from './format.js';
 import { reasonWords } from './verdicts.js';
 
 /** @typedef {import('./series.js').PlotColumns} PlotColumns */
@@ -44,8 +44,7 @@ function timeAxis(clock) {
   });
 }
 
-/** @param {string} field */
-function valueAxis(field) {
+function valueAxis() {
   return /** @type {uPlot.Axis} */ ({
     stroke: INK,
     grid: { stroke: GRID, width: 1 },
@@ -53,8 +52,29 @@ function valueAxis(field) {
     font: FONT,
     size: 52,
     space: 24,
-    values: (/** @type {uPlot} */ _u, /** @type {number[]} */ vals) => vals.map((v) => num(v, field)),
+    values: (/** @type {uPlot} */ _u, /** @type {number[]} */ vals) => tickLabels(vals),
   });
+}
+
+/** Diagonal hatching for windows that are not valid (distinct from the night's flat shade). */
+let hatch = /** @type {CanvasPattern | null} */ (null);
+/** @param {CanvasRenderingContext2D} ctx */
+function invalidFill(ctx) {
+  if (hatch) return hatch;
+  const c = document.createElement('canvas');
+  c.width = 10;
+  c.height = 10;
+  const g = /** @type {CanvasRenderingContext2D} */ (c.getContext('2d'));
+  g.fillStyle = 'rgba(180, 35, 24, 0.06)';
+  g.fillRect(0, 0, 10, 10);
+  g.strokeStyle = 'rgba(180, 35, 24, 0.35)';
+  g.lineWidth = 1.5;
+  g.beginPath();
+  g.moveTo(-2, 12);
+  g.lineTo(12, -2);
+  g.stroke();
+  hatch = ctx.createPattern(c, 'repeat');
+  return hatch ?? INVALID;
 }
 
 /**
@@ -77,7 +97,7 @@ function drawUnder(u, nights, logbook, invalid = []) {
     const x1 = u.valToPos(b / 1000, 'x', true);
     if (x1 > left && x0 < left + width) ctx.fillRect(x0, top, x1 - x0, height);
   }
-  ctx.fillStyle = INVALID;
+  ctx.fillStyle = invalidFill(ctx);
   for (const w of invalid) {
     const x0 = u.valToPos(w.fromS, 'x', true);
     const x1 = u.valToPos(w.toS, 'x', true);
@@ -245,7 +265,7 @@ export function quantityPlot(node, o) {
     legend: { show: false },
     tzDate: (ts) => uPlot.tzDate(new Date(ts * 1000), o.clock.timeZone),
     scales: { x: { time: true }, y: { range: (_u, min, max) => padRange(min, max, c.limits) } },
-    axes: [timeAxis(o.clock), valueAxis(o.field)],
+    axes: [timeAxis(o.clock), valueAxis()],
     cursor: {
       sync: { key: o.syncKey },
       drag: { x: true, y: false, setScale: false },
@@ -383,10 +403,7 @@ export function fluxPlot(node, o) {
     legend: { show: false },
     tzDate: (ts) => uPlot.tzDate(new Date(ts * 1000), o.clock.timeZone),
     scales: { x: { time: true } },
-    axes: [
-      timeAxis(o.clock),
-      { ...valueAxis('ncp_mmol_m2_h'), label: unitText(o.unit), labelSize: 18, labelFont: FONT },
-    ],
+    axes: [timeAxis(o.clock), { ...valueAxis(), label: unitText(o.unit), labelSize: 18, labelFont: FONT }],
     cursor: { sync: { key: o.syncKey }, drag: { x: true, y: false, setScale: false }, points: { size: 8 } },
     series: [
       {},

@@ -326,14 +326,15 @@ export function alertWords(a, site, clock, nowMs) {
     title = `${ruleWords({ id: a.rule, label: a.label, dir }).title} at ${where}`;
     detail =
       a.state === 'raised'
-        ? `${capitalise(a.label)} ${v(a.value)}, ${dir} the site's limit of ${v(a.limit)}.`
+        ? `${capitalise(a.label)} ${v(a.value)} when raised, ${dir} the site's limit of ${v(a.limit)}.`
         : `Back to ${v(a.value)} (clears ${dir === 'below' ? 'above' : 'below'} ${v(a.limit)}).`;
   }
   const raised = Date.parse(a.raised_t);
+  const cleared = Date.parse(a.cleared_t ?? a.t);
   const when =
     a.state === 'raised'
-      ? `since ${clock.when(raised, nowMs)} (${duration(nowMs - raised)})`
-      : `${clock.when(raised, nowMs)} – ${clock.when(Date.parse(a.cleared_t ?? a.t), nowMs)}`;
+      ? `${clock.when(raised, nowMs)}, ${duration(nowMs - raised)} ago`
+      : `${clock.when(raised, nowMs)}, cleared ${clock.when(cleared, nowMs)} (after ${duration(cleared - raised)})`;
   return { title, detail, when };
 }
 

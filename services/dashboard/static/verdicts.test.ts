@@ -186,6 +186,7 @@ describe('instrument verdict and alert words', () => {
             id: 'f1',
             fault: 'flatline',
             rule: 'flatline',
+            field: 'pco2_uatm',
             since: iso(NOW - 4.5 * H),
             value: 512,
             limit: null,
@@ -208,8 +209,8 @@ describe('instrument verdict and alert words', () => {
     const low = alertWords(view({}), site, clock, NOW);
     expect(low).toEqual({
       title: 'Low oxygen at Lagoon patch reef',
-      detail: "Dissolved oxygen 1.42 mg/L, below the site's limit of 2.00 mg/L.",
-      when: 'since 02:00 (2 h)',
+      detail: "Dissolved oxygen 1.42 mg/L when raised, below the site's limit of 2.00 mg/L.",
+      when: '02:00, 2 h ago',
     });
     const stale = alertWords(
       view({
@@ -253,7 +254,7 @@ describe('instrument verdict and alert words', () => {
       NOW,
     );
     expect(cleared.detail).toBe('Back to 2.51 mg/L (clears above 2.50 mg/L).');
-    expect(cleared.when).toBe('02:00 – 03:00');
+    expect(cleared.when).toBe('02:00, cleared 03:00 (after 60 min)');
     expect(reasonWords('storage_dominates,input_fault:back/co2-back/flatline')).toBe(
       'change in the water dominates the budget (dawn or dusk); co2-back at back: value frozen (flat line)',
     );

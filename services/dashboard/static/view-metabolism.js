@@ -3,7 +3,7 @@
 // with their reasons, daily budgets when the daemon writes them), tonight's oxygen forecasts, and the
 // weather mast.
 import { el, byId } from './dom.js';
-import { ago, num, unitText, withUnit } from './format.js';
+import { ago, decimals, num, unitText, withUnit } from './format.js';
 import { fluxPlot } from './plots.js';
 import { fluxColumns, viewRange } from './series.js';
 import { nightsFor } from './view-station.js';
@@ -53,7 +53,7 @@ export function renderMetabolism(app) {
         'div',
         { class: 'big', 'data-field': name, 'data-significant': String(sig) },
         el('span', { class: 'k', text: `${name} · ${what}` }),
-        el('span', { class: 'v', text: last.valid === true ? `${num(v)} ± ${num(sigma)}` : '—' }),
+        el('span', { class: 'v', text: last.valid === true ? plusMinus(v, sigma) : '—' }),
         el('span', { class: 'u', text: unitText(unit) }),
         el('span', {
           class: 'sig',
@@ -118,9 +118,11 @@ export function renderMetabolism(app) {
   const have = app.plots.get(key);
   if (!have || !have.update(data, common)) app.plots.set(key, fluxPlot(holder, { ...common, data, unit }));
   const invalid = data.invalid.length;
+  holder.dataset.invalid = String(invalid);
+  holder.dataset.windows = String(data.recs.length);
   byId('flux-invalid').textContent = invalid
-    ? `Shaded: ${invalid} stretch${invalid > 1 ? 'es' : ''} of windows not valid (${[...new Set(data.invalid.flatMap((w) => w.reasons.split(',')))].map((r) => reasonWords(r)).join('; ')}). Hollow dots: not distinguishable from zero.`
-    : 'Every window in this range is valid. Hollow dots: not distinguishable from zero.';
+    ? `Hatched: ${invalid} stretch${invalid > 1 ? 'es' : ''} of windows not valid (${[...new Set(data.invalid.flatMap((w) => w.reasons.split(',')))].map((r) => reasonWords(r)).join('; ')}). ${KEY}`
+    : `Every window in this range is valid. ${KEY}`;
   renderDaily(app, t.id);
 }
 
@@ -137,7 +139,7 @@ function renderDaily(app, transect) {
   const f = app.site.record_types.daily?.fields ?? {};
   const u = unitText(f.ncp_mmol_m2_d?.unit ?? '');
   const cell = (/** @type {Rec} */ r, /** @type {string} */ k) =>
-    el('td', { text: `${num(r[k])} ± ${num(r[`${k}_sigma`])}` });
+    el('td', { text: plusMinus(r[k], r[`${k}_sigma`]) });
   const rows = [...s.r]
     .reverse()
     .slice(0, 14)
@@ -151,13 +153,30 @@ function renderDaily(app, transect) {
         cell(r, 'gpp_mmol_m2_d'),
         cell(r, 'nec_mmol_m2_d'),
         el('td', {
-          text: `${num(typeof r.coverage === 'number' ? r.coverage * 100 : null)} %${typeof r.gap_filled === 'number' && r.gap_filled > 0 ? ` (${num(r.gap_filled * 100)} % filled)` : ''}`,
+          text: `${pct(r.coverage)}${typeof r.gap_filled === 'number' && r.gap_filled > 0 ? ` (${pct(r.gap_filled)} filled)` : ''}${r.valid === true ? '' : ' · not valid'}`,
         }),
       ),
     );
   byId('daily-body').replaceChildren(...rows);
   byId('daily-unit').textContent = `per local day, ${u}; measured share of the day`;
 }
+
+const KEY =
+  'Green: NCP, orange: NEC, each with its ±1σ band; a filled dot is clearly different from zero (more than 2σ), a hollow one is not.';
+
+/**
+ * A value and its uncertainty with the value's decimals: '17.0 ± 9.0'.
+ * @param {unknown} v
+ * @param {unknown} s
+ */
+function plusMinus(v, s) {
+  if (typeof v !== 'number' || !Number.isFinite(v)) return '—';
+  const dp = decimals(v);
+  return `${v.toFixed(dp).replace('-', '−')}${typeof s === 'number' && Number.isFinite(s) ? ` ± ${s.toFixed(dp)}` : ''}`;
+}
+
+/** @param {unknown} f a fraction */
+const pct = (f) => (typeof f === 'number' && Number.isFinite(f) ? `${Math.round(f * 100)} %` : '—');
 
 /** @param {App} app */
 export function renderTonight(app) {

@@ -143,7 +143,7 @@ function sensorItem(app, s, now, open) {
       : s.faults
           .map(
             (f) =>
-              `${FAULT_WORDS[f.fault] ?? f.fault} since ${app.clock.when(Date.parse(f.since), now)}${f.value !== null && f.fault !== 'stale' && f.fault !== 'spike' ? ` (${withUnit(f.value, f.unit)})` : ''}`,
+              `${FAULT_WORDS[f.fault] ?? f.fault} since ${app.clock.when(Date.parse(f.since), now)}${f.value !== null && f.fault !== 'stale' && f.fault !== 'spike' ? ` (${withUnit(f.value, f.unit, f.field ?? undefined)})` : ''}`,
           )
           .join('; '),
   );
@@ -153,12 +153,15 @@ function sensorItem(app, s, now, open) {
       s.battery_trend_v_per_day === null
         ? ''
         : `, ${s.battery_trend_v_per_day < 0 ? 'falling' : 'rising'} ${withUnit(Math.abs(s.battery_trend_v_per_day), 'V', 'battery_v')} a day`;
+    const lim = s.battery_limit_v;
     const left =
-      s.battery_hours_left !== null
-        ? `; at this rate it reaches its limit of ${withUnit(s.battery_limit_v, 'V', 'battery_v')} in about ${duration(s.battery_hours_left * 3_600_000)}`
-        : s.battery_limit_v !== null
-          ? `; limit ${withUnit(s.battery_limit_v, 'V', 'battery_v')}`
-          : '';
+      lim !== null && s.battery_v < lim
+        ? `; below its limit of ${withUnit(lim, 'V', 'battery_v')}`
+        : s.battery_hours_left !== null
+          ? `; at this rate it reaches its limit of ${withUnit(s.battery_limit_v, 'V', 'battery_v')} in about ${duration(s.battery_hours_left * 3_600_000)}`
+          : s.battery_limit_v !== null
+            ? `; limit ${withUnit(s.battery_limit_v, 'V', 'battery_v')}`
+            : '';
     battery.append(
       `${withUnit(s.battery_v, 'V', 'battery_v')}${trend}${left}`,
       sparkline(s.battery_series, s.battery_limit_v),

@@ -133,6 +133,9 @@ export function renderStation(app, reef) {
   const now = app.nowMs();
   const range = viewRange(app.view, now);
   const nights = nightsFor(app, range);
+  byId('station-groups').dataset.nights = nights
+    .map(([a, b]) => `${new Date(a).toISOString()}/${new Date(b).toISOString()}`)
+    .join(' ');
   const logbook = app.fieldLog.logbook.filter((e) => e.station === id);
   const findings = reef.findings
     .filter((f) => f.station === id)
@@ -244,6 +247,14 @@ export function renderStation(app, reef) {
               : /** @type {number} */ (latest[item.field]) > r.limit),
         );
       card.dataset.beyond = String(Boolean(beyond));
+      // What the plot holds, for a person inspecting the page and for the browser tests.
+      card.dataset.points = String(data.xs.length);
+      card.dataset.first = data.xs.length
+        ? new Date(/** @type {number} */ (data.xs[0]) * 1000).toISOString()
+        : '';
+      card.dataset.suspect = String(data.marks.filter((m) => m.flag === 3).length);
+      card.dataset.failed = String(data.marks.filter((m) => m.flag === 4).length);
+      card.dataset.limits = limits.map((r) => r.limit).join(',');
       const common = {
         clock: app.clock,
         syncKey: `station-${id}`,

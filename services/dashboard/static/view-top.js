@@ -3,14 +3,7 @@
 // acknowledgements.
 import { el, byId } from './dom.js';
 import { capitalise, withUnit } from './format.js';
-import {
-  alertWords,
-  forecastSentence,
-  instrumentVerdict,
-  reefVerdict,
-  sensorProblem,
-  stationLabel,
-} from './verdicts.js';
+import { alertWords, instrumentVerdict, reefVerdict, sensorProblem, stationLabel } from './verdicts.js';
 
 /** @typedef {import('./app.js').App} App */
 /** @typedef {import('./types.js').AlertView} AlertView */
@@ -155,7 +148,7 @@ function reefFacts(app, reef) {
         el('span', { class: 'v', text: `lowest ${withUnit(w.rec.o2_min_mg_l, 'mg L-1', 'o2_mg_l')}` }),
         el('span', {
           class: 'at',
-          text: `${stationLabel(app.site, w.station)} · ${forecastSentence(w.rec, app.clock, now)}`,
+          text: `${stationLabel(app.site, w.station)} · around ${typeof w.rec.t_min === 'string' ? app.clock.when(Date.parse(w.rec.t_min), now) : '?'} (80 %: ${withUnit(w.rec.o2_min_lo_mg_l, 'mg L-1', 'o2_mg_l')} to ${withUnit(w.rec.o2_min_hi_mg_l, 'mg L-1', 'o2_mg_l')})`,
         }),
       ),
     );
@@ -206,13 +199,14 @@ function alertItem(app, a, now) {
     },
     el('div', { class: 'title' }, el('strong', { text: w.title })),
     el('div', { class: 'detail', text: w.detail }),
-    el('div', { class: 'when', text: a.state === 'raised' ? `Raised ${w.when}` : `Was raised ${w.when}` }),
+    el('div', { class: 'when', text: `Raised ${w.when}` }),
   );
   if (a.ack) {
     li.append(
       el('div', {
         class: 'ack',
-        text: `Acknowledged by ${a.ack.by}, ${app.clock.when(Date.parse(a.ack.t), now)}${a.ack.comment ? `: “${a.ack.comment}”` : ''}`,
+        // An acknowledgement is a person's act on the wall clock, not a time of the data.
+        text: `Acknowledged by ${a.ack.by}, ${app.clock.when(Date.parse(a.ack.t), Date.now())}${a.ack.comment ? `: “${a.ack.comment}”` : ''}`,
       }),
     );
   } else if (a.can_ack) {
