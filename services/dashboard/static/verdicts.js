@@ -350,13 +350,13 @@ export const STATE_RANK = /** @type {Record<import('./types.js').SensorState, nu
 
 /** Kinds of sensor in words. */
 export const KIND_WORDS = /** @type {Record<string, string>} */ ({
-  ctd: 'CTD (temperature, salinity)',
+  ctd: 'CTD: temperature and salinity',
   oxygen: 'oxygen optode',
   pco2: 'pCO₂ sensor',
-  pressure: 'pressure (waves, depth)',
+  pressure: 'pressure logger: depth and waves',
   adcp: 'current profiler',
-  par: 'light (PAR)',
-  met: 'weather mast',
+  par: 'light sensor (PAR)',
+  met: 'weather station',
   sample: 'water samples',
 });
 
@@ -416,7 +416,7 @@ export function instrumentVerdict(sensors, siteFaults, site, clock, nowMs) {
     headline = w.title;
     detail = `${w.detail} ${w.when}.`;
   } else if (worst) {
-    headline = `${worst.label} (${KIND_WORDS[worst.kind] ?? worst.kind}) at ${stationLabel(site, worst.station)}`;
+    headline = `${worst.label} (${(KIND_WORDS[worst.kind] ?? worst.kind).split(':')[0]}) at ${stationLabel(site, worst.station)}`;
     detail = `${capitalise(sensorProblem(worst, clock, nowMs))}.`;
   } else if (level === 'ok') {
     headline = `All ${counts.ok} sensors working`;
