@@ -64,6 +64,7 @@ class Series {
   readonly others = new Map<string, Other[]>();
   lastBucket = Number.NEGATIVE_INFINITY;
   latest: DerivedRecord | undefined;
+  latestMs = Number.NEGATIVE_INFINITY;
 
   constructor(r: DerivedRecord, cap: number) {
     this.type = r.type;
@@ -202,7 +203,10 @@ export class RecordHistory {
         this.#series.set(key, s);
       }
       if (tMs > this.#latestMs) this.#latestMs = tMs;
-      if (s.latest === undefined || Date.parse(s.latest.t) <= tMs) s.latest = r;
+      if (tMs >= s.latestMs) {
+        s.latest = r;
+        s.latestMs = tMs;
+      }
       const b = Math.floor(tMs / this.resolutionMs);
       if (b <= s.lastBucket - this.#cap) continue; // older than the ring reaches
       const slot = ((b % this.#cap) + this.#cap) % this.#cap;
