@@ -4,9 +4,10 @@ import { rm } from 'node:fs/promises';
 import path from 'node:path';
 import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
 import { resolveSecret } from '../config/load.js';
-import { createDashboardServer, ndjsonRecordQuery, type DashboardServer } from '../dashboard/index.js';
+import { createDashboardServer, recordStoreQuery, type DashboardServer } from '../dashboard/index.js';
 import type { Logger } from '../log/logger.js';
 import { alertsStateDir, watchAcks } from '../notifiers/index.js';
+import { createRecordStore, recordsDir } from '../records/index.js';
 import type { Daemon } from './daemon.js';
 
 export interface HttpFront {
@@ -34,7 +35,20 @@ export async function startHttp(o: HttpOptions): Promise<HttpFront> {
   await rm(path.join(o.daemon.dataDir, 'dashboard-history.ndjson'), { force: true });
   // Until the daemon offers its record bus (daemon.bus.subscribe), `publish` below is the bus.
   const listeners = new Set<RecordListener>();
-  const ndjson = o.config.outputs.ndjson?.path;
+  // The durable record history behind /api/records (services/records), kept as long as the raw archive.
+  // Until the daemon writes it as one of its outputs, the HTTP front appends what the bus delivers.
+  const store = await createRecordStore({
+    dir: recordsDir(o.daemon.dataDir),
+    retentionDays: o.config.archive.retention_days,
+    clock: Date.now,
+  });
+  listeners.add((records) => {
+    store
+      .append(records)
+      .catch((err: unknown) => o.logger.warn({ err }, 'records not kept for /api/records'));
+  });
+  const maintain = setInterval(() => void store.maintain().catch(() => undefined), 3_600_000);
+  maintain.unref();
   const server: DashboardServer = await createDashboardServer({
     host: o.config.http.host,
     port: o.port ?? o.config.http.port,
@@ -48,9 +62,7 @@ export async function startHttp(o: HttpOptions): Promise<HttpFront> {
     activeAlerts: () => o.daemon.processor.activeAlerts(),
     health: () => o.daemon.processor.sensorHealth(),
     acks: o.daemon.notifier,
-    ...(ndjson !== undefined
-      ? { query: ndjsonRecordQuery(path.resolve(o.baseDir, ndjson), path.basename(ndjson)) }
-      : {}),
+    query: recordStoreQuery(store, 'record history'),
     historyDir: path.join(o.daemon.dataDir, 'dashboard-history'),
     logger: o.logger,
     portAttempts: o.tryNextPorts ? 10 : 0,
@@ -72,7 +84,9 @@ export async function startHttp(o: HttpOptions): Promise<HttpFront> {
     },
     close: async () => {
       acks.close();
+      clearInterval(maintain);
       await server.close();
+      await store.close();
     },
   };
 }

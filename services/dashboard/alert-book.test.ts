@@ -78,7 +78,9 @@ describe('AlertBook', () => {
       raised_t: stale.t,
       cleared_t: expect.any(String),
     });
-    expect(alertUnit({ fault: 'battery' })).toEqual({ unit: 'V', label: 'supply voltage' });
+    expect(alertUnit({ rule: 'battery', fault: 'battery' })).toEqual({ unit: 'V', label: 'supply voltage' });
+    // The trend warning's value is the hours left to the cut-off, whatever its metric (pco2.battery_v).
+    expect(alertUnit({ rule: 'battery_trend', fault: 'battery', metric: 'pco2.battery_v' }).unit).toBe('h');
   });
 
   it('acknowledges through the notifier by name with a comment, refuses cleared ones, and shows CLI acks', async () => {

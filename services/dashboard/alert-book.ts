@@ -35,8 +35,15 @@ export function alertIdOf(a: AlertRecord): string {
   );
 }
 
-/** Unit of an alert's value and limit: its metric's, seconds for a silence, volts for a battery. */
-export function alertUnit(a: Pick<AlertRecord, 'metric' | 'fault'>): { unit: string; label: string } {
+/**
+ * Unit of an alert's value and limit: its metric's; seconds for a silence, volts for a battery, hours for the
+ * battery trend warning (hours left to the cut-off).
+ */
+export function alertUnit(a: Pick<AlertRecord, 'metric' | 'fault' | 'rule'>): {
+  unit: string;
+  label: string;
+} {
+  if (a.rule === 'battery_trend') return { unit: 'h', label: 'hours to the battery cut-off' };
   if (a.metric !== undefined) return metricInfo(a.metric);
   if (a.fault === 'stale' || (a.fault as string | undefined) === 'silent')
     return { unit: 's', label: 'time without a message' };

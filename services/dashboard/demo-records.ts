@@ -49,19 +49,7 @@ export function runDemo(o: {
     const p = parseMessage(m.topic, Buffer.from(JSON.stringify(m.payload)), config.topic_prefix);
     if (!p.ok || checkAgainstConfig(config, p.message) !== undefined) continue;
     const r = processor.push(p.message, m.tMs + 200);
-    const records = [...r.records];
-    // The processor does not publish PAR as `light` records yet (docs/contract-v1.md): made here from the
-    // same message, in the record's shape, until it does.
-    if (p.message.kind === 'par' && !records.some((x) => x.type === 'light'))
-      records.push({
-        type: 'light',
-        site: config.site,
-        t: p.message.t,
-        station: p.message.station,
-        sensor: p.message.sensor,
-        par_umol_m2_s: p.message.par_umol_m2_s,
-        flag: 1,
-      } as DerivedRecord);
+    const records = r.records;
     if (records.length > 0 || o.health)
       batches.push({ tMs: m.tMs, records, ...(o.health ? { health: processor.sensorHealth() } : {}) });
   }

@@ -6,7 +6,7 @@ export { AlertBook, alertIdOf, type AckStore } from './alert-book.js';
 export { SensorWatch, type SensorHealthRow } from './sensor-watch.js';
 export {
   historyRecordQuery,
-  ndjsonRecordQuery,
+  recordStoreQuery,
   type RecordFilter,
   type RecordPage,
   type RecordQuery,

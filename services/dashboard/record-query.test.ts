@@ -1,10 +1,11 @@
-import { appendFile, mkdtemp, writeFile } from 'node:fs/promises';
+import { mkdtemp } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import type { DerivedRecord } from '../../libs/contract/index.js';
 import { RecordHistory } from './history.js';
-import { historyRecordQuery, ndjsonRecordQuery, type RecordQuery } from './record-query.js';
+import { createRecordStore } from '../records/index.js';
+import { historyRecordQuery, recordStoreQuery, type RecordQuery } from './record-query.js';
 
 const MIN = 60_000;
 const T0 = Date.UTC(2026, 2, 1);
@@ -30,7 +31,7 @@ const rec = (i: number, station = 'lagoon'): DerivedRecord =>
         }),
   }) as DerivedRecord;
 
-async function all(q: RecordQuery, f: Parameters<RecordQuery['query']>[0], limit: number) {
+async function all_(q: RecordQuery, f: Parameters<RecordQuery['query']>[0], limit: number) {
   const out: DerivedRecord[] = [];
   let cursor: string | undefined;
   let pages = 0;
@@ -43,39 +44,30 @@ async function all(q: RecordQuery, f: Parameters<RecordQuery['query']>[0], limit
   return { out, pages };
 }
 
-describe('ndjsonRecordQuery', () => {
-  it('pages through a range of an output file with a cursor, filtered by type and station', async () => {
+describe('recordStoreQuery', () => {
+  it('pages through a range of the record store, several types and one station at a time', async () => {
     const dir = await mkdtemp(path.join(tmpdir(), 'reefd-rq-'));
-    const file = path.join(dir, 'records.ndjson');
-    // ~12 MB: 30 days of two stations at 5 min, so the sparse index has many chunks to skip.
-    const lines: string[] = [];
-    for (let i = 0; i < 30 * 288; i++) lines.push(JSON.stringify(rec(i)), JSON.stringify(rec(i, 'crest')));
-    await writeFile(file, lines.join('\n') + '\n');
-    const q = ndjsonRecordQuery(file, 'records.ndjson');
-    expect(q.source).toBe('ndjson:records.ndjson');
-    expect(await q.latestMs!()).toBe(T0 + (30 * 288 - 1) * 5 * MIN);
+    const store = await createRecordStore({ dir, retentionDays: 0, fsyncMs: 5, clock: () => T0 });
+    // 30 days of two stations at 5 min (oxygen and carbonate in turn): 30 day files.
+    const all: DerivedRecord[] = [];
+    for (let i = 0; i < 30 * 288; i++) all.push(rec(i), rec(i, 'crest'));
+    await store.append(all);
+    const q = recordStoreQuery(store, 'record store');
+    expect(q.source).toBe('record store');
     const fromMs = T0 + 10 * 86_400_000;
     const toMs = fromMs + 86_400_000;
-    const { out, pages } = await all(q, { types: ['oxygen'], station: 'lagoon', fromMs, toMs }, 50);
-    expect(out).toHaveLength(144); // every other 5-min record of one day
-    expect(pages).toBe(3);
-    expect(out.every((r) => r.type === 'oxygen' && r.station === 'lagoon')).toBe(true);
-    expect(out[0]!.t).toBe(iso(fromMs + 5 * MIN));
-    expect(out.at(-1)!.t).toBe(iso(toMs - 5 * MIN));
-    // Records written after the first query are found (the index extends over the new bytes only).
-    await appendFile(file, JSON.stringify(rec(30 * 288)) + '\n');
-    expect(await q.latestMs!()).toBe(T0 + 30 * 288 * 5 * MIN);
-  });
-
-  it('answers an empty page for a missing file and skips a line still being written', async () => {
-    const dir = await mkdtemp(path.join(tmpdir(), 'reefd-rq-'));
-    const file = path.join(dir, 'records.ndjson');
-    const q = ndjsonRecordQuery(file);
-    expect((await q.query({ fromMs: 0, toMs: Infinity }, { limit: 10 })).records).toEqual([]);
-    await writeFile(file, JSON.stringify(rec(1)) + '\n' + JSON.stringify(rec(3)).slice(0, 30));
-    const p = await q.query({ fromMs: 0, toMs: Infinity }, { limit: 10 });
-    expect(p.records.map((r) => r.t)).toEqual([iso(T0 + 5 * MIN)]);
-    expect(p.next).toBeUndefined();
+    const one = await all_(q, { types: ['oxygen'], station: 'lagoon', fromMs, toMs }, 50);
+    expect(one.out).toHaveLength(144); // every other 5-min record of one day
+    expect(one.pages).toBe(3);
+    expect(one.out.every((r) => r.type === 'oxygen' && r.station === 'lagoon')).toBe(true);
+    expect(one.out[0]!.t).toBe(iso(fromMs + 5 * MIN));
+    expect(one.out.at(-1)!.t).toBe(iso(toMs - 5 * MIN));
+    // Two types: the store is asked for every type of the station and the page is filtered here.
+    const two = await all_(q, { types: ['oxygen', 'carbonate'], station: 'crest', fromMs, toMs }, 100);
+    expect(two.out).toHaveLength(288);
+    expect(two.out.every((r) => r.station === 'crest')).toBe(true);
+    expect(two.out.map((r) => r.t)).toEqual([...two.out.map((r) => r.t)].sort());
+    await store.close();
   });
 });
 
@@ -84,7 +76,7 @@ describe('historyRecordQuery', () => {
     const h = new RecordHistory({ resolutionMs: 5 * MIN });
     h.add(Array.from({ length: 100 }, (_, i) => rec(2 * i + 1)));
     const q = historyRecordQuery(h);
-    const { out, pages } = await all(q, { types: ['oxygen'], fromMs: T0, toMs: T0 + 1e12 }, 30);
+    const { out, pages } = await all_(q, { types: ['oxygen'], fromMs: T0, toMs: T0 + 1e12 }, 30);
     expect(out).toHaveLength(100);
     expect(pages).toBe(4);
     expect(q.source).toMatch(/dashboard history \(5-min buckets, last 48 h\)/);

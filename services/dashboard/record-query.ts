@@ -1,9 +1,9 @@
 // `/api/records` answers from durable storage through one small interface, `RecordQuery`, so the store can be
-// swapped without touching the HTTP side: today an NDJSON output file of the daemon (the `outputs.ndjson`
-// file, read through a sparse time index), or the dashboard's own history when the site writes no such file.
-// A paged answer carries an opaque cursor; memory is bounded by the page size whatever the range.
-import { open, stat } from 'node:fs/promises';
+// swapped without touching the HTTP side: the daemon's record history (services/records, day files in the
+// data folder), or the dashboard's own history when there is none. A paged answer carries an opaque cursor;
+// memory is bounded by the page size whatever the range.
 import type { DerivedRecord, RecordType } from '../../libs/contract/index.js';
+import { MAX_PAGE, type RecordQuery as StoreQuery, type RecordStore } from '../records/index.js';
 import type { RecordHistory } from './history.js';
 
 export interface RecordFilter {
@@ -63,131 +63,30 @@ export function historyRecordQuery(history: RecordHistory): RecordQuery {
   };
 }
 
-// ------------------------------------------------------------------------------------ NDJSON output file
-
-/** One stretch of the file: byte range (whole lines) and the range of record times in it. */
-interface Chunk {
-  start: number;
-  end: number;
-  minT: number;
-  maxT: number;
-}
-
-const CHUNK_BYTES = 1 << 20;
-const NL = 0x0a;
-const T_FIELD = /"t":"([^"]{10,40})"/;
-
-function encodeCursor(offset: number): string {
-  return Buffer.from(`o${offset}`).toString('base64url');
-}
-function decodeCursor(c: string): number | undefined {
-  const s = Buffer.from(c, 'base64url').toString('utf8');
-  const n = /^o(\d{1,15})$/.exec(s);
-  return n ? Number(n[1]) : undefined;
-}
+// ----------------------------------------------------------------------------- the daemon's record store
 
 /**
- * Records of an append-only NDJSON file (the daemon's `outputs.ndjson`). A sparse index (per 1 MB of whole
- * lines: the least and greatest `t`) is built as the file grows, reading only the new bytes, so a range
- * query reads only the stretches that can hold it. Pages follow file order (the order records were derived,
- * time order within each series); the cursor is a byte offset.
+ * The durable record history of services/records (day files under the data folder) as a RecordQuery. That
+ * store filters by one type, station and transect; several types and a sensor are filtered here, so a page
+ * may hold fewer records than asked while its cursor still leads on.
  */
-export function ndjsonRecordQuery(file: string, label = file): RecordQuery {
-  const chunks: Chunk[] = [];
-  let indexedTo = 0;
-  let newest = Number.NEGATIVE_INFINITY;
-  let indexing: Promise<void> | undefined;
-
-  async function readRange(start: number, end: number): Promise<Buffer> {
-    const fh = await open(file, 'r');
-    try {
-      const buf = Buffer.alloc(end - start);
-      const { bytesRead } = await fh.read(buf, 0, buf.length, start);
-      return buf.subarray(0, bytesRead);
-    } finally {
-      await fh.close();
-    }
-  }
-
-  async function extend(): Promise<void> {
-    let size: number;
-    try {
-      size = (await stat(file)).size;
-    } catch {
-      return; // no file yet: an empty store
-    }
-    if (size < indexedTo) {
-      chunks.length = 0; // the file was replaced: start over
-      indexedTo = 0;
-    }
-    while (indexedTo < size) {
-      const buf = await readRange(indexedTo, Math.min(size, indexedTo + CHUNK_BYTES));
-      const lastNl = buf.lastIndexOf(NL);
-      if (lastNl < 0) break; // a line still being written
-      const bytes = lastNl + 1;
-      let minT = Number.POSITIVE_INFINITY;
-      let maxT = Number.NEGATIVE_INFINITY;
-      for (const line of buf.toString('utf8', 0, bytes).split('\n')) {
-        const m = T_FIELD.exec(line);
-        if (!m) continue;
-        const t = Date.parse(m[1] as string);
-        if (!Number.isFinite(t)) continue;
-        if (t < minT) minT = t;
-        if (t > maxT) maxT = t;
-      }
-      chunks.push({ start: indexedTo, end: indexedTo + bytes, minT, maxT });
-      if (maxT > newest) newest = maxT;
-      indexedTo += bytes;
-    }
-  }
-
-  const index = async () => {
-    indexing ??= extend().finally(() => (indexing = undefined));
-    await indexing;
-  };
-
+export function recordStoreQuery(store: RecordStore, label: string): RecordQuery {
   return {
-    source: `ndjson:${label}`,
-    async latestMs() {
-      await index();
-      return Number.isFinite(newest) ? newest : undefined;
-    },
+    source: label,
     async query(f, page) {
-      await index();
-      let offset = page.cursor !== undefined ? (decodeCursor(page.cursor) ?? 0) : 0;
-      const records: DerivedRecord[] = [];
-      for (const c of chunks) {
-        if (c.end <= offset) continue;
-        if (c.maxT < f.fromMs || c.minT >= f.toMs) {
-          offset = c.end;
-          continue;
-        }
-        const from = Math.max(offset, c.start);
-        const buf = await readRange(from, c.end);
-        let pos = 0;
-        while (pos < buf.length) {
-          let nl = buf.indexOf(NL, pos);
-          if (nl < 0) nl = buf.length;
-          const line = buf.toString('utf8', pos, nl);
-          const lineEnd = from + nl + 1;
-          pos = nl + 1;
-          if (line.length === 0) continue;
-          let r: DerivedRecord;
-          try {
-            r = JSON.parse(line) as DerivedRecord;
-          } catch {
-            continue;
-          }
-          if (!matches(r, f)) continue;
-          records.push(r);
-          if (records.length >= page.limit) {
-            const more = lineEnd < indexedTo;
-            return more ? { records, next: encodeCursor(lineEnd) } : { records };
-          }
-        }
-        offset = c.end;
-      }
-      return { records };
+      const one = f.types?.length === 1 ? f.types[0] : undefined;
+      const q: StoreQuery = {
+        fromMs: f.fromMs,
+        toMs: f.toMs,
+        limit: Math.min(page.limit, MAX_PAGE),
+        ...(one !== undefined ? { type: one } : {}),
+        ...(f.station !== undefined ? { station: f.station } : {}),
+        ...(f.transect !== undefined ? { transect: f.transect } : {}),
+        ...(page.cursor !== undefined ? { cursor: page.cursor } : {}),
+      };
+      const r = await store.query(q);
+      const records = r.records.filter((x) => matches(x, f));
+      return r.next !== undefined ? { records, next: r.next } : { records };
     },
   };
 }

@@ -93,13 +93,26 @@ describe('SensorWatch', () => {
       unit: 'uatm',
       value: 512.3,
     });
-    const views = w.views([flat], noLog);
+    // The processor's battery trend warning (rule battery_trend, fault battery, value = hours left).
+    const trend = fault({
+      id: 'f00d0002',
+      station: 'flat',
+      sensor: 'co2-flat',
+      fault: 'battery',
+      rule: 'battery_trend',
+      metric: 'pco2.battery_v',
+      unit: 'h',
+      value: 2,
+      limit: 6,
+    });
+    expect(w.views([flat], noLog).find((v) => v.sensor === 'co2-flat')?.state).toBe('ok'); // no warning raised
+    const views = w.views([flat, trend], noLog);
     const by = (s: string) => views.find((v) => v.sensor === s)!;
     expect(views).toHaveLength(
       Object.values(config.stations).reduce((n, s) => n + Object.keys(s.sensors).length, 0),
     );
     expect(by('co2-flat')).toMatchObject({
-      state: 'suspect', // 11.6 V falling 1.2 V/day reaches the 11.5 V limit in about 2 h
+      state: 'suspect', // warned, still working: 11.6 V falling 1.2 V/day reaches 11.5 V in about 2 h
       state_reason: 'battery_trend',
       expected_interval_s: 600,
       expected_source: 'usual',

@@ -28,8 +28,6 @@ const GAPS_KEPT = 15; // the stale rule's "usual interval" is the median of the 
 const BATTERY_POINTS = 600;
 const BATTERY_SPACING_MS = 5 * MIN_MS;
 const TREND_SPAN_MS = 12 * HOUR_MS;
-/** A battery that reaches its limit sooner than this at its recent trend makes the sensor suspect. */
-const BATTERY_WARN_H = 24;
 
 interface Track {
   lastSeenMs: number;
@@ -204,8 +202,6 @@ export class SensorWatch {
       faults,
       flag,
       reason,
-      hoursLeft,
-      limit,
     });
     const entries = entriesFor(log, station, sensor);
     const stride = Math.max(1, Math.ceil(tr.batteryT.length / 96));
@@ -309,11 +305,10 @@ function classify(o: {
   faults: readonly AlertView[];
   flag: number | null;
   reason: string | null;
-  hoursLeft: number | null;
-  limit: number | null;
 }): { state: SensorState; why: string } {
   if (!o.enabled) return { state: 'disabled', why: 'switched off in the configuration' };
-  const names = o.faults.map((f) => f.fault ?? f.rule);
+  // The battery trend warning (rule battery_trend, fault battery) says the supply will fail: still working.
+  const names = o.faults.map((f) => (f.rule === 'battery_trend' ? 'battery_trend' : (f.fault ?? f.rule)));
   const silent = names.find((f) => SILENT_FAULTS.has(f));
   if (silent) return { state: 'silent', why: silent };
   const failing = names.find((f) => FAILING_FAULTS.has(f));
@@ -324,6 +319,5 @@ function classify(o: {
   if (names.length > 0) return { state: 'suspect', why: names[0] as string };
   if (o.flag === 4) return { state: 'suspect', why: o.reason ?? 'qc_fail' };
   if (o.flag === 3) return { state: 'suspect', why: o.reason ?? 'qc_suspect' };
-  if (o.hoursLeft !== null && o.hoursLeft < BATTERY_WARN_H) return { state: 'suspect', why: 'battery_trend' };
   return { state: 'ok', why: 'ok' };
 }

@@ -116,11 +116,7 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
     wallClock: wall,
     ...(opts.healthPollMs !== undefined ? { minPollMs: opts.healthPollMs } : {}),
   });
-  const fieldLog = fieldLogSource({
-    baseDir: opts.baseDir ?? process.cwd(),
-    calibrationFile: opts.config.calibration_file,
-    logbookFile: opts.config.logbook_file,
-  });
+  const fieldLog = fieldLogSource({ baseDir: opts.baseDir ?? process.cwd(), config: opts.config });
   const query = opts.query ?? historyRecordQuery(history);
   const files = loadStaticFiles();
   const hub = new SseHub();

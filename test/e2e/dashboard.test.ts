@@ -1,8 +1,8 @@
 // The dashboard in a real browser (Debian's Chromium through playwright-core), asked the field team's
 // questions on the fictional demo reef: 16 hours of its messages through the real processor, fed to the
-// dashboard as the daemon feeds it, with a real notifier for acknowledgements, the records in an NDJSON
-// output file for /api/records, a field log and a calibration file. Records the processor does not write
-// yet (light, daily, forecast) are constructed in their contract shapes. Screenshots go to test/artifacts/.
+// dashboard as the daemon feeds it, with a real notifier for acknowledgements, the records in the durable
+// record history (services/records) for /api/records, a field log and a calibration file. Records the processor does not write
+// yet (daily, forecast) are constructed in their contract shapes. Screenshots go to test/artifacts/.
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { mkdtemp } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
@@ -13,9 +13,10 @@ import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
 import { run as alertsCli } from '../../services/cli/commands/alerts.js';
 import {
   createDashboardServer,
-  ndjsonRecordQuery,
+  recordStoreQuery,
   type DashboardServer,
 } from '../../services/dashboard/index.js';
+import { createRecordStore, type RecordStore } from '../../services/records/index.js';
 import type { AlertView } from '../../services/dashboard/api-schemas.js';
 import {
   constructedDaily,
@@ -46,6 +47,7 @@ let config: ReefdConfig;
 let data: string;
 let server: DashboardServer;
 let notifier: Notifier;
+let store: RecordStore;
 let ackWatch: AckWatch;
 let chrome: Awaited<ReturnType<typeof launchChromium>> | undefined;
 let browser: BrowserContext;
@@ -100,12 +102,17 @@ beforeAll(async () => {
       1.3,
     ),
   ];
-  // The output file holds more than the dashboard's 48-h history: the lagoon's oxygen of a week earlier.
+  // The record history holds more than the dashboard's 48-h history: the lagoon's oxygen of a week earlier.
   const older = all
     .filter((r) => r.type === 'oxygen' && r.station === 'lagoon')
     .map((r) => ({ ...r, t: iso(Date.parse(r.t) - 5 * 24 * HOUR) }));
-  const file = path.join(data, 'records.ndjson');
-  writeFileSync(file, [...older, ...all, ...constructed].map((r) => JSON.stringify(r)).join('\n') + '\n');
+  store = await createRecordStore({
+    dir: path.join(data, 'records'),
+    retentionDays: 0,
+    fsyncMs: 5,
+    clock: () => START + HOURS * HOUR,
+  });
+  await store.append([...older, ...all, ...constructed]);
   lastLagoonO2 = (
     all.filter((r) => r.type === 'oxygen' && r.station === 'lagoon').at(-1) as { o2_mg_l: number }
   ).o2_mg_l;
@@ -127,7 +134,7 @@ beforeAll(async () => {
     health: () => health,
     healthPollMs: 0,
     activeAlerts: () => demo.processor.activeAlerts(),
-    query: ndjsonRecordQuery(file, 'records.ndjson'),
+    query: recordStoreQuery(store, 'record history'),
     historyDir: path.join(data, 'dashboard-history'),
   });
   // Fed batch by batch as the daemon's record bus would, the sensor rows of each moment alongside.
@@ -150,6 +157,7 @@ afterAll(async () => {
   ackWatch?.close();
   await server?.close();
   await notifier?.stop();
+  await store?.close();
 });
 
 describe('the first screen answers: is the reef in trouble, and which instrument is failing', () => {
@@ -278,11 +286,11 @@ describe('the plots', () => {
     ).toBeGreaterThan(START + 3 * HOUR);
     await over.dblclick();
     await expect.poll(() => page.locator('#range-label').innerText()).toMatch(/^last 24 h/);
-    // A week: beyond the dashboard's own 48 h, answered by /api/records from the output file.
+    // A week: beyond the dashboard's own 48 h, answered by /api/records from the record history.
     await page.locator('#range button[data-preset="168"]').click();
     await expect
       .poll(() => page.locator('#range-status').innerText(), { timeout: 15_000 })
-      .toMatch(/records from ndjson:records\.ndjson/);
+      .toMatch(/records from record history/);
     await expect
       .poll(async () =>
         Date.parse((await page.locator('[data-plot="oxygen.o2_mg_l"]').getAttribute('data-first')) ?? ''),

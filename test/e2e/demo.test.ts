@@ -121,6 +121,7 @@ describe('the demo', () => {
       'carbonate.sal',
       'waves.depth_m',
       'current.dir_to_deg',
+      'light.par_umol_m2_s',
     ]) {
       const card = page.locator(`[data-plot="${q}"]`);
       await expect
@@ -141,12 +142,12 @@ describe('the demo', () => {
     );
   }, 60_000);
 
-  it('answers /api/records from the output file for a range, and documents every endpoint', async () => {
+  it('answers /api/records from the record history for a range, and documents every endpoint', async () => {
     type Page = { source: string; records: { t: string; station: string }[] };
     const get = async (q: string) => (await (await fetch(`${url}/api/records?${q}`)).json()) as Page;
     // The simulation starts a day back: the default range (the 48 h before the newest record) holds it all.
     const all = await get('type=oxygen&station=lagoon');
-    expect(all.source).toBe('ndjson:records.ndjson');
+    expect(all.source).toBe('record history');
     expect(all.records.length).toBeGreaterThan(4);
     const from = all.records[1]!.t;
     const to = all.records[Math.floor(all.records.length / 2)]!.t;

@@ -224,6 +224,7 @@ export function ruleWords(rule) {
 
 /** Faults in words: what a technician would say. */
 export const FAULT_WORDS = /** @type {Record<string, string>} */ ({
+  battery_trend: 'Battery running down',
   stale: 'No messages',
   silent: 'Site silent',
   flatline: 'Value frozen (flat line)',
@@ -241,7 +242,7 @@ export const REASON_WORDS = /** @type {Record<string, string>} */ ({
   range: 'outside the sensor’s range',
   spike: 'spikes',
   battery: 'battery below its limit',
-  battery_trend: 'battery falling towards its limit',
+  battery_trend: 'battery running down towards its cut-off',
   qc_fail: 'readings fail quality control',
   qc_suspect: 'readings suspect in quality control',
   too_few_bins: 'too few good current bins',
@@ -294,12 +295,28 @@ export function alertWords(a, site, clock, nowMs) {
   let title;
   let detail;
   if (a.class === 'fault') {
-    title = `${FAULT_WORDS[a.fault ?? a.rule] ?? capitalise(a.rule.replace(/^reefd\./, '').replace(/_/g, ' '))}: ${a.sensor ?? where}`;
-    if (a.fault === 'stale' || a.fault === 'silent') {
+    const words =
+      FAULT_WORDS[a.rule] ??
+      FAULT_WORDS[a.fault ?? ''] ??
+      capitalise(a.rule.replace(/^reefd\./, '').replace(/_/g, ' '));
+    // A sensor's fault names the sensor and its station; a fault of the whole site (site_silent) stands alone.
+    title = a.sensor ? `${words}: ${a.sensor} at ${where}` : a.station ? `${words} at ${where}` : words;
+    if (a.fault === 'silent') {
+      detail =
+        a.state === 'raised'
+          ? `No message from the site for longer than ${duration((a.limit ?? 0) * 1000)}: the uplink, the broker or the power.`
+          : `Messages again after ${duration((a.value ?? 0) * 1000)} of silence.`;
+    } else if (a.fault === 'stale') {
       detail =
         a.state === 'raised'
           ? `No message for longer than ${duration((a.limit ?? 0) * 1000)} (about 3 usual intervals).`
           : `Messages again after ${duration((a.value ?? 0) * 1000)} of silence.`;
+    } else if (a.rule === 'battery_trend') {
+      // value: hours to the cut-off at the recent slope; limit: the warning horizon, hours.
+      detail =
+        a.state === 'raised'
+          ? `At its recent rate the supply reaches its cut-off in about ${duration((a.value ?? 0) * 3_600_000)}.`
+          : 'The supply no longer falls towards its cut-off.';
     } else if (a.fault === 'battery') {
       detail =
         a.state === 'raised'
@@ -316,11 +333,10 @@ export function alertWords(a, site, clock, nowMs) {
           ? `${a.value ?? ''} spikes in ${a.label || 'the readings'} within the hour.`
           : 'No more spikes.';
     } else if (a.fault === 'range') {
-      detail = `${capitalise(a.label)} ${v(a.value)}, outside what the sensor can measure (${v(a.limit)}).`;
+      detail = `${capitalise(a.label)} ${v(a.value)}: outside the sensor's range, or stuck at one end of it (${v(a.limit)}).`;
     } else {
       detail = a.value !== null ? `${v(a.value)} (limit ${v(a.limit)}).` : '';
     }
-    title += ` at ${where}`;
   } else {
     const dir = rule?.dir ?? (a.value !== null && a.limit !== null && a.value < a.limit ? 'below' : 'above');
     title = `${ruleWords({ id: a.rule, label: a.label, dir }).title} at ${where}`;
