@@ -10,7 +10,7 @@ import { idleTimers, manualClock } from '../notifiers/test-helpers.js';
 import type { AlertView, SensorsBody, SiteInfo } from './api-schemas.js';
 import { demoSiteConfig, runDemo, type DemoRun } from './demo-records.js';
 import type { RecordQuery } from './record-query.js';
-import { checkSchema } from './schema-check.js';
+import { checkSchema } from './testing.js';
 import { createDashboardServer, type DashboardOptions, type DashboardServer } from './server.js';
 
 const config = demoSiteConfig();

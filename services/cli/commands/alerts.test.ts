@@ -52,7 +52,7 @@ describe('reefd alerts list | ack', () => {
     const l = io();
     expect(await run(['list', '--data', data], l)).toBe(0);
     expect(l.out).toBe(
-      `${a.id}  ${a.t}  critical low_oxygen crest oxygen.o2_mg_l value 1.7  raised\nqueued: ui 3\n`,
+      `${a.id}  ${a.t}  critical low_oxygen crest oxygen.o2_mg_l value 1.7 mg L-1  raised\nqueued: ui 3\n`,
     );
     const all = io();
     await run(['list', '--data', data, '--all', '--json'], all);

@@ -4,6 +4,7 @@
 // stops reminding. The dashboard and its HTTP API write the same journal, so every path shows one state.
 import { parseArgs } from 'node:util';
 import { alertsStateDir, appendAck, loadOutboxState, type Episode } from '../../notifiers/index.js';
+import { alertUnit } from '../../dashboard/alert-book.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
 
 const HELP = `Usage: reefd alerts list --data DIR [--all] [--json]
@@ -27,7 +28,8 @@ function describe(e: Episode): string {
   const a = e.raised ?? e.last;
   const where = a.sensor === undefined ? a.station : `${a.station}/${a.sensor}`;
   const what = a.metric ?? a.fault ?? '';
-  const value = a.value === null ? '' : ` value ${a.value}`;
+  const unit = alertUnit(a).unit;
+  const value = a.value === null ? '' : ` value ${a.value}${unit && unit !== '1' ? ` ${unit}` : ''}`;
   const state = e.cleared ? `cleared ${e.last.t}` : 'raised';
   const said = e.ack?.comment !== undefined ? ` "${e.ack.comment}"` : '';
   const ack = e.ack ? ` acked by ${e.ack.by} ${new Date(e.ack.atMs).toISOString()}${said}` : '';

@@ -1,6 +1,7 @@
-// A small JSON Schema (2020-12) checker for the keywords the OpenAPI document of the dashboard uses, so a
-// test can hold every live answer against the published document itself (not against the zod schemas it was
-// generated from, which would prove nothing about the document). Unknown keywords fail loudly.
+// Test support (kept out of the build, see tsconfig.build.json): a small JSON Schema (2020-12) checker for the
+// keywords the dashboard's OpenAPI document uses, so a test can hold every live answer against the published
+// document itself (not against the zod schemas it was generated from, which would prove nothing about the
+// document). Unknown keywords fail loudly.
 type Schema = Record<string, unknown> | boolean;
 
 const KNOWN = new Set([
