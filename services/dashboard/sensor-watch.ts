@@ -25,8 +25,9 @@ export interface SensorHealthRow {
 const MIN_MS = 60_000;
 const HOUR_MS = 3_600_000;
 const GAPS_KEPT = 15; // the stale rule's "usual interval" is the median of the last 15 (libs/alerts README)
-const BATTERY_POINTS = 600;
-const BATTERY_SPACING_MS = 5 * MIN_MS;
+/** Supply voltages kept per sensor: one per 10 min over 24 h (the trend reads the last 12 h). */
+const BATTERY_POINTS = 144;
+const BATTERY_SPACING_MS = 10 * MIN_MS;
 const TREND_SPAN_MS = 12 * HOUR_MS;
 
 interface Track {
