@@ -125,6 +125,10 @@ export const historyQuerySchema = z.strictObject({
   type: csvTypes.optional(),
   station: id.optional(),
   transect: id.optional(),
+  part: z
+    .enum(['all', 'records', 'latest'])
+    .default('all')
+    .describe('records: the downsampled series only; latest: the newest record of each series only'),
   token: z.string().optional(),
 });
 

@@ -339,6 +339,14 @@ alerts:
     const b = await start({ historyDir: dir });
     const after = await get<{ records: DerivedRecord[] }>(`${b.url}/api/history?type=oxygen&station=lagoon`);
     expect(after.records).toEqual(before.records);
+    // The page asks for the newest of every series first, and a place's series only when it shows it.
+    const latest = await get<{ records: DerivedRecord[]; latest: DerivedRecord[] }>(
+      `${b.url}/api/history?part=latest`,
+    );
+    expect(latest.records).toEqual([]);
+    expect(latest.latest.find((r) => r.type === 'oxygen' && r.station === 'lagoon')?.t).toBe(
+      before.records.at(-1)!.t,
+    );
   });
 
   it('describes every /api endpoint in /openapi.json, and every live answer fits the document', async () => {
@@ -382,6 +390,7 @@ alerts:
       ['/api/site', '/api/site'],
       ['/api/history', '/api/history'],
       ['/api/history', '/api/history?station=lagoon&type=oxygen,forecast'],
+      ['/api/history', '/api/history?part=latest'],
       ['/api/records', '/api/records?type=flux,daily&limit=20'],
       ['/api/alerts', '/api/alerts'],
       ['/api/sensors', '/api/sensors'],

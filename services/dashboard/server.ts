@@ -208,8 +208,8 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
       window_h: windowMs / HOUR_MS,
       resolution_min: history.resolutionMs / 60_000,
       latest_t: history.latestMs ? new Date(history.latestMs).toISOString() : null,
-      records: history.records(f),
-      latest: history.latest(f),
+      records: q.data.part === 'latest' ? [] : history.records(f),
+      latest: q.data.part === 'records' ? [] : history.latest(f),
     });
   }
 

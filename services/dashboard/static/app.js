@@ -140,6 +140,27 @@ function ensureRanges() {
     );
 }
 
+/**
+ * True for the records whose whole series the page keeps: the station and transect shown, and the site-wide
+ * series the panels read (light for the night, forecasts, daily budgets).
+ * @param {Rec} r
+ */
+function keepSeries(r) {
+  if (!app) return true;
+  if (r.type === 'light' || r.type === 'forecast' || r.type === 'daily') return true;
+  return r.station === app.selected.station || r.transect === app.selected.transect;
+}
+
+/**
+ * The dashboard's recent history of one place, for its plots (the ranges beyond come from /api/records).
+ * @param {string} query
+ */
+async function loadPlace(query) {
+  const body = /** @type {HistoryBody} */ (await api(`/api/history?part=records&${query}`));
+  app.store.add(/** @type {Rec[]} */ (body.records));
+  app.changed('records');
+}
+
 async function refreshSensors() {
   try {
     app.sensors = /** @type {SensorsBody} */ (await api('/api/sensors'));
@@ -184,13 +205,13 @@ function connect() {
 async function start() {
   const site = /** @type {SiteInfo} */ (await api('/api/site'));
   const [history, alerts, sensors, fieldLog] = await Promise.all([
-    /** @type {Promise<HistoryBody>} */ (api('/api/history')),
+    /** @type {Promise<HistoryBody>} */ (api('/api/history?part=latest')),
     /** @type {Promise<{alerts: AlertView[]}>} */ (api('/api/alerts')),
     /** @type {Promise<SensorsBody>} */ (api('/api/sensors')),
     /** @type {Promise<FieldLog>} */ (api('/api/fieldlog')),
   ]);
-  const store = new RecordStore();
-  store.add(/** @type {Rec[]} */ (history.records));
+  // Whole series for the station and transect shown (and the small site-wide ones); the newest of the rest.
+  const store = new RecordStore(20_000, (r) => keepSeries(r));
   store.add(/** @type {Rec[]} */ (history.latest));
   const narrow = matchMedia('(max-width: 720px)').matches;
   app = {
@@ -221,14 +242,18 @@ async function start() {
     selectStation(id, scroll) {
       if (app.selected.station !== id) {
         app.selected.station = id;
+        app.store.prune();
         app.changed('station');
+        void loadPlace(`station=${encodeURIComponent(id)}`);
         ensureRanges();
       }
       if (scroll) byId('stations').scrollIntoView({ block: 'start' });
     },
     selectTransect(id) {
       app.selected.transect = id;
+      app.store.prune();
       app.changed('station');
+      void loadPlace(`transect=${encodeURIComponent(id)}`);
       ensureRanges();
     },
     setRange(fromMs, toMs) {
@@ -254,6 +279,11 @@ async function start() {
   const mapNode = /** @type {SVGSVGElement} */ (/** @type {unknown} */ (byId('map')));
   app.map = drawMap(mapNode, site, (id) => app.selectStation(id, false), narrow);
   wireControls();
+  await Promise.all([
+    loadPlace(`station=${encodeURIComponent(app.selected.station)}`),
+    app.selected.transect ? loadPlace(`transect=${encodeURIComponent(app.selected.transect)}`) : undefined,
+    loadPlace('type=light,forecast,daily'),
+  ]);
   for (const w of /** @type {Change[]} */ (['alerts', 'sensors', 'records', 'station'])) dirty.add(w);
   render();
   connect();

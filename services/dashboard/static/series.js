@@ -16,14 +16,32 @@ export function seriesKey(r) {
   return `${r.type}|${where}|${sensor}`;
 }
 
-/** Records per series, sorted by time, one per time; bounded per series. */
+/**
+ * Records per series, sorted by time, one per time, bounded per series; and the newest record of every series.
+ * Whole series are kept only for what `keep` accepts (the station and transect shown, the light for the night
+ * shading), so a site of a thousand stations does not fill the browser: the verdicts need only the newest.
+ */
 export class RecordStore {
-  /** @param {number} [maxPerSeries] */
-  constructor(maxPerSeries = 20_000) {
+  /**
+   * @param {number} [maxPerSeries]
+   * @param {(r: Rec) => boolean} [keep] whole series for these records; the newest only for the others
+   */
+  constructor(maxPerSeries = 20_000, keep = () => true) {
     this.maxPerSeries = maxPerSeries;
+    this.keep = keep;
     /** @type {Map<string, {t: number[], r: Rec[]}>} */
     this.series = new Map();
+    /** @type {Map<string, Rec>} */
+    this.newest = new Map();
     this.latestMs = 0;
+  }
+
+  /** Forgets the whole series `keep` no longer accepts (their newest records stay). */
+  prune() {
+    for (const [key, s] of this.series) {
+      const r = s.r[s.r.length - 1];
+      if (r && !this.keep(r)) this.series.delete(key);
+    }
   }
 
   /**
@@ -38,9 +56,13 @@ export class RecordStore {
       const tMs = Date.parse(r.t);
       if (!Number.isFinite(tMs)) continue;
       const key = seriesKey(r);
+      const have = this.newest.get(key);
+      if (!have || have.t <= r.t) this.newest.set(key, r);
+      if (tMs > this.latestMs) this.latestMs = tMs;
+      changed.add(key);
+      if (!this.keep(r)) continue;
       let s = this.series.get(key);
       if (!s) this.series.set(key, (s = { t: [], r: [] }));
-      if (tMs > this.latestMs) this.latestMs = tMs;
       const n = s.t.length;
       if (n === 0 || /** @type {number} */ (s.t[n - 1]) < tMs) {
         s.t.push(tMs);
@@ -64,7 +86,6 @@ export class RecordStore {
         s.t.splice(0, drop);
         s.r.splice(0, drop);
       }
-      changed.add(key);
     }
     return changed;
   }
@@ -90,9 +111,7 @@ export class RecordStore {
   latestByPlace() {
     /** @type {Map<string, Rec>} */
     const out = new Map();
-    for (const [key, s] of this.series) {
-      const r = s.r[s.r.length - 1];
-      if (!r) continue;
+    for (const [key, r] of this.newest) {
       const place = key.slice(0, key.lastIndexOf('|'));
       const have = out.get(place);
       if (!have || have.t < r.t) out.set(place, r);
@@ -107,8 +126,7 @@ export class RecordStore {
   latestOfType(type) {
     /** @type {Rec[]} */
     const out = [];
-    for (const [key, s] of this.series)
-      if (key.startsWith(`${type}|`) && s.r.length) out.push(/** @type {Rec} */ (s.r[s.r.length - 1]));
+    for (const [key, r] of this.newest) if (key.startsWith(`${type}|`)) out.push(r);
     return out;
   }
 }

@@ -36,6 +36,26 @@ describe('RecordStore', () => {
   });
 });
 
+describe('RecordStore for a large site', () => {
+  it('keeps whole series only where asked, and the newest record of every series', () => {
+    let shown = 'lagoon';
+    const s = new RecordStore(100, (r) => r.station === shown);
+    s.add([
+      o2(0, 5),
+      o2(1, 5.1),
+      { ...o2(0, 6), station: 'crest', sensor: 'o2-crest' },
+      { ...o2(1, 6.1), station: 'crest', sensor: 'o2-crest' },
+    ]);
+    expect(s.seriesOf('oxygen', 'lagoon')[0]!.r).toHaveLength(2);
+    expect(s.seriesOf('oxygen', 'crest')).toEqual([]);
+    expect(s.latestByPlace().get('oxygen|crest')?.o2_mg_l).toBe(6.1);
+    shown = 'crest';
+    s.prune();
+    expect(s.seriesOf('oxygen', 'lagoon')).toEqual([]);
+    expect(s.latestByPlace().get('oxygen|lagoon')?.o2_mg_l).toBe(5.1);
+  });
+});
+
 describe('plot columns', () => {
   it('leaves failed values out of the line, marks suspect and failed ones, and breaks the line at a silence', () => {
     const s = new RecordStore();
