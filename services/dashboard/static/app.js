@@ -5,7 +5,8 @@
 import { byId } from './dom.js';
 import { siteClock } from './format.js';
 import { drawMap } from './map.js';
-import { RecordStore, viewRange } from './series.js';
+import { viewRange } from './series.js';
+import { RecordStore } from './store.js';
 import { computeReef, renderAlerts, renderClock, renderVerdicts } from './view-top.js';
 import { renderMast, renderMetabolism, renderTonight } from './view-metabolism.js';
 import { renderSensors } from './view-sensors.js';

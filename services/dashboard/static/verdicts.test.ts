@@ -5,7 +5,7 @@ import type { AlertView, SensorView, SiteInfo } from '../api-schemas.js';
 import { demoSiteConfig } from '../demo-records.js';
 import { siteInfo } from '../site-info.js';
 import { siteClock } from './format.js';
-import { alertWords, instrumentVerdict, reasonWords, reefVerdict } from './verdicts.js';
+import { instrumentVerdict, reefVerdict } from './verdicts.js';
 import { readFileSync } from 'node:fs';
 
 type Rec = DerivedRecord & Record<string, unknown>;
@@ -203,60 +203,5 @@ describe('instrument verdict and alert words', () => {
     expect(v.ranked.map((s) => s.sensor)).toEqual(['co2-back', 'co2-flat']);
     const ok = instrumentVerdict([sensor({}), sensor({ sensor: 'y' })], [], site, clock, NOW);
     expect(ok).toMatchObject({ level: 'ok', headline: 'All 2 sensors working' });
-  });
-
-  it('writes alerts with units and plain words', () => {
-    const low = alertWords(view({}), site, clock, NOW);
-    expect(low).toEqual({
-      title: 'Low oxygen at Lagoon patch reef',
-      detail: "Dissolved oxygen 1.42 mg/L when raised, below the site's limit of 2.00 mg/L.",
-      when: '02:00, 2 h ago',
-    });
-    const stale = alertWords(
-      view({
-        class: 'fault',
-        rule: 'stale',
-        fault: 'stale',
-        metric: null,
-        sensor: 'ctd-lagoon',
-        value: 900,
-        limit: 900,
-        unit: 's',
-      }),
-      site,
-      clock,
-      NOW,
-    );
-    expect(stale.title).toBe('No messages: ctd-lagoon at Lagoon patch reef');
-    expect(stale.detail).toBe('No message for longer than 15 min (about 3 usual intervals).');
-    const bat = alertWords(
-      view({
-        class: 'fault',
-        rule: 'battery',
-        fault: 'battery',
-        metric: 'pco2.battery_v',
-        sensor: 'co2-flat',
-        station: 'flat',
-        value: 11.43,
-        limit: 11.5,
-        unit: 'V',
-        label: 'supply voltage',
-      }),
-      site,
-      clock,
-      NOW,
-    );
-    expect(bat.detail).toBe('Supply 11.43 V, below the limit of 11.50 V.');
-    const cleared = alertWords(
-      view({ state: 'cleared', value: 2.51, limit: 2.5, cleared_t: iso(NOW - H), t: iso(NOW - H) }),
-      site,
-      clock,
-      NOW,
-    );
-    expect(cleared.detail).toBe('Back to 2.51 mg/L (clears above 2.50 mg/L).');
-    expect(cleared.when).toBe('02:00, cleared 03:00 (after 60 min)');
-    expect(reasonWords('storage_dominates,input_fault:back/co2-back/flatline')).toBe(
-      'change in the water dominates the budget (dawn or dusk); co2-back at back: value frozen (flat line)',
-    );
   });
 });

@@ -7,7 +7,7 @@ import { ago, decimals, num, unitText, withUnit } from './format.js';
 import { fluxPlot } from './plots.js';
 import { fluxColumns, viewRange } from './series.js';
 import { nightsFor } from './view-station.js';
-import { forecastSentence, reasonWords, sensorProblem, stationLabel } from './verdicts.js';
+import { forecastSentence, reasonWords, sensorProblem, stationLabel } from './words.js';
 
 /** @typedef {import('./app.js').App} App */
 /** @typedef {import('./types.js').Rec} Rec */

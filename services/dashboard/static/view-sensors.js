@@ -4,7 +4,8 @@
 // calibration and field-log entries that concern it.
 import { el, byId, sparkline } from './dom.js';
 import { ago, capitalise, duration, FLAG_WORDS, withUnit } from './format.js';
-import { KIND_WORDS, reasonWords, sensorProblem, STATE_RANK, FAULT_WORDS } from './verdicts.js';
+import { STATE_RANK } from './verdicts.js';
+import { FAULT_WORDS, KIND_WORDS, reasonWords, sensorProblem } from './words.js';
 
 /** @typedef {import('./app.js').App} App */
 /** @typedef {import('./types.js').SensorView} SensorView */

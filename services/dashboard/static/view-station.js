@@ -130,13 +130,19 @@ export function renderStation(app, reef) {
   const id = app.selected.station;
   const st = app.site.stations.find((s) => s.id === id);
   if (!st) return;
+  renderStationStatus(app, st, reef);
+  renderStationPlots(app, id);
+}
+
+/**
+ * The station's name and one line: its condition against the site's limits, its sensors, its last update.
+ * @param {App} app
+ * @param {import('./types.js').SiteStation} st
+ * @param {ReturnType<typeof import('./verdicts.js').reefVerdict>} reef
+ */
+function renderStationStatus(app, st, reef) {
+  const id = st.id;
   const now = app.nowMs();
-  const range = viewRange(app.view, now);
-  const nights = nightsFor(app, range);
-  byId('station-groups').dataset.nights = nights
-    .map(([a, b]) => `${new Date(a).toISOString()}/${new Date(b).toISOString()}`)
-    .join(' ');
-  const logbook = app.fieldLog.logbook.filter((e) => e.station === id);
   const findings = reef.findings
     .filter((f) => f.station === id)
     .sort((a, b) => LEVEL_RANK[b.level] - LEVEL_RANK[a.level]);
@@ -173,11 +179,30 @@ export function renderStation(app, reef) {
   ]
     .filter(Boolean)
     .join(' · ');
+}
 
+/**
+ * Every quantity the station measures, in groups, over the range shown (rebuilt when the station changes,
+ * updated in place otherwise).
+ * @param {App} app
+ * @param {string} id
+ */
+function renderStationPlots(app, id) {
+  const now = app.nowMs();
+  const range = viewRange(app.view, now);
+  const nights = nightsFor(app, range);
+  const logbook = app.fieldLog.logbook.filter((e) => e.station === id);
   const box = byId('station-groups');
+  box.dataset.nights = nights
+    .map(([a, b]) => `${new Date(a).toISOString()}/${new Date(b).toISOString()}`)
+    .join(' ');
   if (box.dataset.station !== id) {
-    for (const p of app.plots.values()) p.destroy();
-    app.plots.clear();
+    // The plots of the station shown before go; the metabolism's stay.
+    for (const [key, p] of app.plots)
+      if (key.startsWith(`${box.dataset.station}|`)) {
+        p.destroy();
+        app.plots.delete(key);
+      }
     box.replaceChildren();
     box.dataset.station = id;
   }

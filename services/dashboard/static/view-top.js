@@ -3,7 +3,8 @@
 // acknowledgements.
 import { el, byId } from './dom.js';
 import { capitalise, withUnit } from './format.js';
-import { alertWords, instrumentVerdict, reefVerdict, sensorProblem, stationLabel } from './verdicts.js';
+import { instrumentVerdict, reefVerdict } from './verdicts.js';
+import { alertWords, sensorProblem, stationLabel } from './words.js';
 
 /** @typedef {import('./app.js').App} App */
 /** @typedef {import('./types.js').AlertView} AlertView */
