@@ -162,7 +162,9 @@ function reefFacts(app, reef) {
 export function renderAlerts(app) {
   const now = app.nowMs();
   const all = [...app.alerts.values()].sort((a, b) => Date.parse(b.t) - Date.parse(a.t));
-  const open = all.filter((a) => a.state === 'raised');
+  // Raised ones by severity (the critical first), then the newest; cleared ones newest first.
+  const rank = (/** @type {AlertView} */ a) => SEVERITY_ORDER[a.severity] ?? 1;
+  const open = all.filter((a) => a.state === 'raised').sort((a, b) => rank(b) - rank(a));
   const cleared = all.filter((a) => a.state === 'cleared');
   const waiting = open.filter((a) => a.ack === null).length;
   const count = byId('alert-count');
@@ -217,6 +219,7 @@ function alertItem(app, a, now) {
 }
 
 const NAME_KEY = 'reefd.ack.name';
+const SEVERITY_ORDER = /** @type {Record<string, number>} */ ({ info: 0, warning: 1, critical: 2 });
 
 /**
  * The acknowledgement: a named person and a comment, sent to the daemon (the same journal as the CLI).
