@@ -71,6 +71,8 @@ export default tseslint.config(
         requestAnimationFrame: 'readonly',
         ResizeObserver: 'readonly',
         Intl: 'readonly',
+        CSS: 'readonly',
+        devicePixelRatio: 'readonly',
       },
     },
   },

@@ -1,12 +1,13 @@
 // The HTTP front of the daemon: dashboard, /healthz, /readyz, /metrics (services/dashboard), with the
-// dashboard's 48-h history persisted in the data folder so it survives a restart.
-import { readFile } from 'node:fs/promises';
+// dashboard's history saved incrementally in the data folder so a restart shows the last 48 h at once.
+import { rm } from 'node:fs/promises';
 import path from 'node:path';
 import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
 import { resolveSecret } from '../config/load.js';
-import { createDashboardServer, type DashboardServer } from '../dashboard/index.js';
+import { createDashboardServer, recordStoreQuery, type DashboardServer } from '../dashboard/index.js';
 import type { Logger } from '../log/logger.js';
-import { writeFileAtomic } from './checkpoint.js';
+import { alertsStateDir, watchAcks } from '../notifiers/index.js';
+import { createRecordStore, recordsDir } from '../records/index.js';
 import type { Daemon } from './daemon.js';
 
 export interface HttpFront {
@@ -24,75 +25,68 @@ export interface HttpOptions {
   port?: number;
   /** Try the following ports when the configured one is taken (the demo). */
   tryNextPorts: boolean;
-  persistEveryMs?: number;
 }
 
-async function readHistory(file: string): Promise<DerivedRecord[]> {
-  try {
-    const text = await readFile(file, 'utf8');
-    const out: DerivedRecord[] = [];
-    for (const line of text.split('\n')) {
-      if (line.length === 0) continue;
-      try {
-        out.push(JSON.parse(line) as DerivedRecord);
-      } catch {
-        // a damaged line of a cache file: skip it, the archive is the source of truth
-      }
-    }
-    return out;
-  } catch {
-    return [];
-  }
-}
-
-async function writeHistory(file: string, records: readonly DerivedRecord[]): Promise<void> {
-  await writeFileAtomic(file, records.map((r) => JSON.stringify(r)).join('\n') + '\n');
-}
+type RecordListener = (records: readonly DerivedRecord[]) => void;
 
 export async function startHttp(o: HttpOptions): Promise<HttpFront> {
-  const file = path.join(o.daemon.dataDir, 'dashboard-history.ndjson');
   const token = o.config.http.token ? await resolveSecret(o.config.http.token, o.env, o.baseDir) : undefined;
+  // The one-file history of earlier versions, rewritten whole every minute: replaced by dashboard-history/.
+  await rm(path.join(o.daemon.dataDir, 'dashboard-history.ndjson'), { force: true });
+  // Until the daemon offers its record bus (daemon.bus.subscribe), `publish` below is the bus.
+  const listeners = new Set<RecordListener>();
+  // The durable record history behind /api/records (services/records), kept as long as the raw archive.
+  // Until the daemon writes it as one of its outputs, the HTTP front appends what the bus delivers.
+  const store = await createRecordStore({
+    dir: recordsDir(o.daemon.dataDir),
+    retentionDays: o.config.archive.retention_days,
+    clock: Date.now,
+  });
+  listeners.add((records) => {
+    store
+      .append(records)
+      .catch((err: unknown) => o.logger.warn({ err }, 'records not kept for /api/records'));
+  });
+  const maintain = setInterval(() => void store.maintain().catch(() => undefined), 3_600_000);
+  maintain.unref();
   const server: DashboardServer = await createDashboardServer({
     host: o.config.http.host,
     port: o.port ?? o.config.http.port,
     ...(token !== undefined ? { token } : {}),
     config: o.config,
-    history: await readHistory(file),
+    baseDir: o.baseDir,
+    subscribe: (fn) => {
+      listeners.add(fn);
+      return () => void listeners.delete(fn);
+    },
+    activeAlerts: () => o.daemon.processor.activeAlerts(),
+    health: () => o.daemon.processor.sensorHealth(),
+    acks: o.daemon.notifier,
+    query: recordStoreQuery(store, 'record history'),
+    historyDir: path.join(o.daemon.dataDir, 'dashboard-history'),
     logger: o.logger,
     portAttempts: o.tryNextPorts ? 10 : 0,
     metrics: () => o.daemon.metrics.registry.metrics(),
     ready: () => o.daemon.ready(),
-    health: () =>
-      o.daemon.processor.sensorHealth().map((h) => ({
-        station: h.station,
-        sensor: h.sensor,
-        kind: h.kind,
-        last_seen: h.lastSeenMs > 0 ? new Date(h.lastSeenMs).toISOString() : null,
-        battery_v: h.batteryV,
-        qc_flag: h.flag,
-      })),
-    onAck: async (id, by) => {
-      const r = await o.daemon.notifier.ack(id, by);
-      if (!r.ok) o.logger.info({ id }, 'acknowledged on the dashboard only (not in the notification outbox)');
-    },
+  });
+  // `reefd alerts ack` appends to the notifier's journal: the page shows it within a second or two.
+  const acks = watchAcks(alertsStateDir(o.daemon.dataDir), () => void o.daemon.notifier.syncAcks(), {
+    onError: (err) => o.logger.debug({ err }, 'no watch on the acknowledgement journal; read every 30 s'),
   });
   o.daemon.setNoticeSink((m) => {
     const worst = m.alerts.some((a) => a.severity === 'critical') ? 'critical' : m.alerts[0]?.severity;
     server.notify({ title: m.subject, body: m.text, ...(worst !== undefined ? { severity: worst } : {}) });
   });
-  const persist = () =>
-    writeHistory(file, server.history.records()).catch((err: unknown) =>
-      o.logger.warn({ err: (err as Error).message }, 'dashboard history not saved'),
-    );
-  const timer = setInterval(() => void persist(), o.persistEveryMs ?? 60_000);
-  timer.unref();
   return {
     url: server.url,
-    publish: (records) => server.publish(records),
+    publish: (records) => {
+      for (const fn of listeners) fn(records);
+    },
     close: async () => {
-      clearInterval(timer);
-      await persist();
+      acks.close();
+      clearInterval(maintain);
       await server.close();
+      await store.close();
     },
   };
 }

@@ -1,46 +1,68 @@
-// The live dashboard: plain node:http, JSON APIs, Server-Sent Events, static files. Bound to 127.0.0.1 by
-// default; an optional token guards every route but /healthz for LAN use. No CORS headers: the page and
-// its APIs share one origin, and POSTs must be JSON from that origin (a cross-site form cannot ack).
-import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
-import type { AddressInfo } from 'node:net';
-import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
+// The live dashboard: plain node:http, JSON APIs described by /openapi.json, Server-Sent Events, static files.
+// Bound to 127.0.0.1 by default; an optional token guards every route but /healthz for LAN use. No CORS
+// headers: the page and its APIs share one origin, and POSTs must be JSON from that origin (a cross-site form
+// cannot acknowledge an alert).
+//
+// Inputs are functions, so wiring it to the daemon is one line each: `subscribe` (the daemon's record bus),
+// `activeAlerts` and `health` (the processor), `acks` (the notifier), `query` (a durable record store).
+import { readFileSync } from 'node:fs';
+import { createServer, type IncomingMessage, type ServerResponse } from 'node:http';
+import path from 'node:path';
+import type { DerivedRecord, RecordType, ReefdConfig } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
+import { packageRoot } from '../paths.js';
+import { AlertBook, type AckStore } from './alert-book.js';
+import { ackRequestSchema, historyQuerySchema, recordsQuerySchema, type SensorsBody } from './api-schemas.js';
 import { requestToken, tokenMatches } from './auth.js';
-import { alertIdOf, RecordHistory, type AlertEntry } from './history.js';
+import { fieldLogSource } from './field-log.js';
+import { RecordHistory } from './history.js';
+import { HistoryLog } from './history-log.js';
+import { fail, json, listen, readBody, send, SECURITY_HEADERS } from './http-util.js';
+import { openApiDocument } from './openapi.js';
+import { historyRecordQuery, type RecordQuery } from './record-query.js';
+import { SensorWatch, type SensorHealthRow } from './sensor-watch.js';
+import { siteInfo } from './site-info.js';
 import { SseHub } from './sse.js';
 import { loadStaticFiles } from './static-files.js';
 
-/** One sensor's health as the daemon knows it (last message, supply voltage, QC flags). */
-export interface SensorHealth {
-  station: string;
-  sensor: string;
-  kind?: string;
-  last_seen?: string | null;
-  battery_v?: number | null;
-  /** Worst QARTOD flag of the last sample (1 pass, 3 suspect, 4 fail, 9 missing). */
-  qc_flag?: number | null;
-  /** Active fault names (stale, flatline, range, spike, battery). */
-  flags?: string[];
-}
+const HOUR_MS = 3_600_000;
 
 export interface DashboardOptions {
   host?: string;
   port?: number;
   token?: string;
   config: ReefdConfig;
-  /** A history to serve, or records to seed a new 48-h history with. */
-  history?: RecordHistory | readonly DerivedRecord[];
-  onAck?: (alertId: string, by: string) => void | Promise<void>;
+  /** Folder of the configuration file: calibration_file and logbook_file are relative to it. */
+  baseDir?: string;
+  /** The daemon's record bus: called with every batch of derived records; returns the unsubscribe. */
+  subscribe?: (fn: (records: readonly DerivedRecord[]) => void) => () => void;
+  /** Alerts raised and not cleared (the processor's), read once at start-up. */
+  activeAlerts?: () => readonly DerivedRecord[];
+  /** Per-sensor health rows (the processor's sensorHealth()). */
+  health?: () => readonly SensorHealthRow[];
+  /** The acknowledgement store (the notifier): without it alerts are listed but cannot be acknowledged. */
+  acks?: AckStore;
+  /** Durable records for /api/records; default the dashboard's own history. */
+  query?: RecordQuery;
+  /** Folder the history is saved to and read back from (omit: memory only). */
+  historyDir?: string;
+  historyWindowMs?: number;
+  historyResolutionMs?: number;
+  /** Least wall time between two reads of `health` while records stream in, ms (default 250). */
+  healthPollMs?: number;
+  /** How often the history's final buckets are appended to its folder, ms (default 10 s). */
+  saveEveryMs?: number;
+  /** Records to start from (previews and tests). */
+  seed?: readonly DerivedRecord[];
   logger: Pick<Logger, 'info' | 'warn' | 'error' | 'debug'>;
   /** Prometheus text for /metrics (the daemon passes prom-client's registry.metrics()). */
   metrics?: () => string | Promise<string>;
   /** /readyz answers 200 when this returns true (default: ready once listening). */
   ready?: () => boolean | Promise<boolean>;
-  /** Per-sensor health from the daemon (last seen, battery, flags); merged with the fault alerts. */
-  health?: () => SensorHealth[] | Promise<SensorHealth[]>;
   /** Further ports to try when the port is taken, before falling back to any free port (default 10);
    * 0 binds exactly `port` and rejects with EADDRINUSE if it is taken. */
   portAttempts?: number;
+  /** Wall clock, ms. */
   now?: () => number;
 }
 
@@ -48,147 +70,185 @@ export interface DashboardServer {
   url: string;
   port: number;
   history: RecordHistory;
+  /** Feeds a batch of records (what `subscribe` delivers; for callers without a bus). */
   publish(records: readonly DerivedRecord[]): void;
   /** Shows a notice banner (the notifier's dashboard channel). */
   notify(message: { title: string; body?: string; severity?: string }): void;
+  /** Appends the history's final buckets now (the timer does this every saveEveryMs). */
+  save(): Promise<void>;
   close(): Promise<void>;
 }
 
-const SECURITY_HEADERS = {
-  'x-content-type-options': 'nosniff',
-  'x-frame-options': 'DENY',
-  'referrer-policy': 'no-referrer',
-  'content-security-policy':
-    "default-src 'self'; script-src 'self'; style-src 'self'; img-src 'self' data:; connect-src 'self'; frame-ancestors 'none'; base-uri 'none'; form-action 'none'",
-};
+const version = (): string =>
+  (JSON.parse(readFileSync(path.join(packageRoot(), 'package.json'), 'utf8')) as { version: string }).version;
 
-function send(
-  res: ServerResponse,
-  status: number,
-  body: string | Buffer,
-  type = 'application/json; charset=utf-8',
-): void {
-  res.writeHead(status, { 'content-type': type, 'cache-control': 'no-store', ...SECURITY_HEADERS });
-  res.end(body);
-}
-const json = (res: ServerResponse, status: number, value: unknown) =>
-  send(res, status, JSON.stringify(value));
+/** Query parameters as a plain object (the last value of a repeated name). */
+const paramsOf = (url: URL): Record<string, string> => Object.fromEntries(url.searchParams.entries());
 
-async function readBody(req: IncomingMessage, limit: number): Promise<string> {
-  let size = 0;
-  const chunks: Buffer[] = [];
-  for await (const chunk of req) {
-    size += (chunk as Buffer).length;
-    if (size > limit) throw Object.assign(new Error('body too large'), { status: 413 });
-    chunks.push(chunk as Buffer);
-  }
-  return Buffer.concat(chunks).toString('utf8');
-}
-
-function siteSummary(config: ReefdConfig) {
-  return {
-    site: config.site,
-    reef_axis_deg: config.reef_axis_deg,
-    stations: Object.entries(config.stations).map(([id, s]) => ({
-      id,
-      label: s.label ?? id,
-      position: s.position ?? null,
-      sensors: Object.entries(s.sensors).map(([sid, sc]) => ({
-        id: sid,
-        kind: sc.kind,
-        label: sc.label ?? sid,
-      })),
-    })),
-    transects: Object.entries(config.transects).map(([id, t]) => ({
-      id,
-      label: t.label ?? id,
-      upstream: t.upstream,
-      downstream: t.downstream,
-      length_m: t.length_m,
-    })),
-  };
-}
-
-function alertView(a: AlertEntry) {
-  return {
-    id: a.id,
-    raised_t: a.raisedT,
-    ack: a.ack ? { by: a.ack.by, t: new Date(a.ack.atMs).toISOString() } : null,
-    ...a.record,
-    alert_id: a.id,
-  };
-}
-
-async function listen(server: Server, host: string, port: number, attempts: number): Promise<number> {
-  const tryPort = (p: number) =>
-    new Promise<number>((resolve, reject) => {
-      const onError = (err: NodeJS.ErrnoException) => {
-        server.off('listening', onListening);
-        reject(err);
-      };
-      const onListening = () => {
-        server.off('error', onError);
-        resolve((server.address() as AddressInfo).port);
-      };
-      server.once('error', onError);
-      server.once('listening', onListening);
-      server.listen(p, host);
-    });
-  // portAttempts 0 means exactly this port (fail if taken); otherwise the next ones, then any free port.
-  const candidates =
-    port === 0 || attempts === 0
-      ? [port]
-      : [...Array.from({ length: attempts + 1 }, (_, i) => port + i).filter((p) => p <= 65535), 0];
-  let last: unknown;
-  for (const p of candidates) {
-    try {
-      return await tryPort(p);
-    } catch (err) {
-      last = err;
-      if ((err as NodeJS.ErrnoException).code !== 'EADDRINUSE') throw err;
-    }
-  }
-  throw last;
-}
+const badQuery = (res: ServerResponse, issues: { path: PropertyKey[]; message: string }[]) =>
+  fail(
+    res,
+    400,
+    'REEFD_DASHBOARD_BAD_QUERY',
+    issues.map((i) => `${i.path.map(String).join('.') || 'query'}: ${i.message}`).join('; '),
+  );
 
 export async function createDashboardServer(opts: DashboardOptions): Promise<DashboardServer> {
   const host = opts.host ?? '127.0.0.1';
-  const now = opts.now ?? Date.now;
-  const history = opts.history instanceof RecordHistory ? opts.history : new RecordHistory();
-  if (Array.isArray(opts.history)) history.add(opts.history as readonly DerivedRecord[]);
+  const wall = opts.now ?? Date.now;
+  const windowMs = opts.historyWindowMs ?? 48 * HOUR_MS;
+  const log = opts.historyDir
+    ? new HistoryLog({
+        dir: opts.historyDir,
+        windowMs,
+        onError: (err) => opts.logger.warn({ err }, 'dashboard history not saved'),
+      })
+    : undefined;
+  const history = new RecordHistory({
+    windowMs,
+    ...(opts.historyResolutionMs !== undefined ? { resolutionMs: opts.historyResolutionMs } : {}),
+    ...(log ? { onFinal: (records) => log.append(records) } : {}),
+  });
+  const book = new AlertBook({ windowMs, acks: opts.acks });
+  const sensors = new SensorWatch({
+    config: opts.config,
+    health: opts.health,
+    wallClock: wall,
+    ...(opts.healthPollMs !== undefined ? { minPollMs: opts.healthPollMs } : {}),
+  });
+  const fieldLog = fieldLogSource({ baseDir: opts.baseDir ?? process.cwd(), config: opts.config });
+  const query = opts.query ?? historyRecordQuery(history);
   const files = loadStaticFiles();
   const hub = new SseHub();
-  const site = siteSummary(opts.config);
+  const site = siteInfo(opts.config, { windowMs, resolutionMs: history.resolutionMs });
+  const api = openApiDocument(version());
   let listening = false;
 
-  const health = async () => {
-    const extra = opts.health ? await opts.health() : [];
-    const byKey = new Map(extra.map((h) => [`${h.station}/${h.sensor}`, h]));
-    const faults = new Map<string, string[]>();
-    const battery = new Map<string, number>();
-    for (const a of history.alerts()) {
-      const r = a.record;
-      if (r.class !== 'fault' || r.state !== 'raised' || !r.sensor || !r.station) continue;
-      const key = `${r.station}/${r.sensor}`;
-      faults.set(key, [...(faults.get(key) ?? []), r.fault ?? r.rule]);
-      if (r.fault === 'battery' && r.value !== null) battery.set(key, r.value);
-    }
-    return site.stations.flatMap((st) =>
-      st.sensors.map((s) => {
-        const key = `${st.id}/${s.id}`;
-        const h = byKey.get(key);
-        return {
-          station: st.id,
-          sensor: s.id,
-          kind: s.kind,
-          last_seen: h?.last_seen ?? null,
-          battery_v: h?.battery_v ?? battery.get(key) ?? null,
-          qc_flag: h?.qc_flag ?? null,
-          flags: [...new Set([...(h?.flags ?? []), ...(faults.get(key) ?? [])])],
-        };
-      }),
+  if (log) {
+    const n = await log.load((batch) => {
+      history.add(batch, true);
+      sensors.observe(batch);
+    });
+    if (n > 0) opts.logger.info({ records: n, dir: log.dir }, 'dashboard history read back');
+  }
+  const ingest = (records: readonly DerivedRecord[]): void => {
+    if (records.length === 0) return;
+    history.add(records);
+    sensors.observe(records);
+    const changed = book.observe(records);
+    hub.send(
+      'records',
+      records.filter((r) => r.type !== 'alert'),
     );
+    for (const a of changed) hub.send('alert', a);
   };
+  if (opts.seed) ingest(opts.seed);
+  book.seed(opts.activeAlerts?.() ?? []);
+  const offAck = opts.acks?.onAck((ev) => {
+    const view = book.applyAck(ev);
+    if (view) hub.send('alert', view);
+  });
+  const unsubscribe = opts.subscribe?.(ingest);
+
+  /** The time "now" for the page: the wall clock, or the data's own time when it is far from it (a replay). */
+  const refNowMs = (): number => {
+    const latest = history.latestMs;
+    const now = wall();
+    return latest > 0 && Math.abs(now - latest) > 2 * HOUR_MS ? latest : now;
+  };
+
+  async function sensorsBody(): Promise<SensorsBody> {
+    sensors.poll();
+    const raised = book.raised();
+    return {
+      now: new Date(refNowMs()).toISOString(),
+      sensors: sensors.views(raised, await fieldLog.get()),
+      site_faults: raised.filter((a) => a.class === 'fault' && a.sensor === null),
+    };
+  }
+
+  async function records(url: URL, res: ServerResponse): Promise<void> {
+    const q = recordsQuerySchema.safeParse(paramsOf(url));
+    if (!q.success) return badQuery(res, q.error.issues);
+    const p = q.data;
+    const latest = (await query.latestMs?.()) ?? (history.latestMs || refNowMs());
+    const toMs = p.to !== undefined ? Date.parse(p.to) : latest + 1;
+    const fromMs = p.from !== undefined ? Date.parse(p.from) : toMs - windowMs;
+    if (!Number.isFinite(fromMs) || !Number.isFinite(toMs) || fromMs >= toMs)
+      return fail(res, 400, 'REEFD_DASHBOARD_BAD_QUERY', 'from and to must be ISO times with from before to');
+    const page = await query.query(
+      {
+        ...(p.type ? { types: p.type.split(',') as RecordType[] } : {}),
+        ...(p.station !== undefined ? { station: p.station } : {}),
+        ...(p.transect !== undefined ? { transect: p.transect } : {}),
+        ...(p.sensor !== undefined ? { sensor: p.sensor } : {}),
+        fromMs,
+        toMs,
+      },
+      { limit: p.limit, ...(p.cursor !== undefined ? { cursor: p.cursor } : {}) },
+    );
+    json(res, 200, {
+      source: query.source,
+      from: new Date(fromMs).toISOString(),
+      to: new Date(toMs).toISOString(),
+      records: page.records,
+      next_cursor: page.next ?? null,
+    });
+  }
+
+  function historyBody(url: URL, res: ServerResponse): void {
+    const q = historyQuerySchema.safeParse(paramsOf(url));
+    if (!q.success) return badQuery(res, q.error.issues);
+    const f = {
+      ...(q.data.type ? { types: q.data.type.split(',') as RecordType[] } : {}),
+      ...(q.data.station !== undefined ? { station: q.data.station } : {}),
+      ...(q.data.transect !== undefined ? { transect: q.data.transect } : {}),
+    };
+    json(res, 200, {
+      window_h: windowMs / HOUR_MS,
+      resolution_min: history.resolutionMs / 60_000,
+      latest_t: history.latestMs ? new Date(history.latestMs).toISOString() : null,
+      records: q.data.part === 'latest' ? [] : history.records(f),
+      latest: q.data.part === 'records' ? [] : history.latest(f),
+    });
+  }
+
+  async function acknowledge(req: IncomingMessage, res: ServerResponse, id: string): Promise<void> {
+    if (!/^application\/json\b/i.test(req.headers['content-type'] ?? ''))
+      return fail(res, 415, 'REEFD_DASHBOARD_JSON_ONLY', 'send the acknowledgement as application/json');
+    const origin = req.headers.origin;
+    if (origin !== undefined && origin !== 'null' && new URL(origin).host !== req.headers.host)
+      return fail(
+        res,
+        403,
+        'REEFD_DASHBOARD_CROSS_ORIGIN',
+        'acknowledgements are accepted from the dashboard page only',
+      );
+    let body: unknown;
+    try {
+      body = JSON.parse((await readBody(req, 4096)) || '{}');
+    } catch (err) {
+      const status = (err as { status?: number }).status ?? 400;
+      return fail(
+        res,
+        status,
+        'REEFD_DASHBOARD_BAD_BODY',
+        'the body must be JSON like {"by": "name", "comment": "..."} under 4 kB',
+      );
+    }
+    const b = ackRequestSchema.safeParse(body);
+    if (!b.success)
+      return fail(
+        res,
+        400,
+        'REEFD_DASHBOARD_ACK_NAME',
+        'say who acknowledges: {"by": "your name", "comment": "optional"}',
+      );
+    const r = await book.ack(id, b.data.by, b.data.comment);
+    if (!r.ok) return fail(res, r.status, r.code, r.message);
+    hub.send('alert', r.alert);
+    json(res, 200, { ok: true, alert: r.alert });
+  }
 
   const handle = async (req: IncomingMessage, res: ServerResponse): Promise<void> => {
     const url = new URL(req.url ?? '/', 'http://dashboard.invalid');
@@ -197,53 +257,20 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
       return send(res, listening ? 200 : 503, listening ? 'ok\n' : 'starting\n', 'text/plain; charset=utf-8');
     if (opts.token !== undefined && !tokenMatches(opts.token, requestToken(req, url))) {
       res.setHeader('www-authenticate', 'Bearer realm="reefd"');
-      return json(res, 401, {
-        error: 'REEFD_DASHBOARD_UNAUTHORIZED',
-        message:
-          'this dashboard needs its access token: add ?token=... to the address or send Authorization: Bearer ...',
-      });
+      return fail(
+        res,
+        401,
+        'REEFD_DASHBOARD_UNAUTHORIZED',
+        'this dashboard needs its access token: add ?token=... to the address or send Authorization: Bearer ...',
+      );
     }
     if (req.method === 'POST') {
       const m = /^\/api\/alerts\/([A-Za-z0-9_.:@|-]{1,128})\/ack$/.exec(p);
-      if (!m) return json(res, 404, { error: 'REEFD_DASHBOARD_NOT_FOUND', message: `no POST route ${p}` });
-      if (!/^application\/json\b/i.test(req.headers['content-type'] ?? '')) {
-        return json(res, 415, {
-          error: 'REEFD_DASHBOARD_JSON_ONLY',
-          message: 'send the acknowledgement as application/json',
-        });
-      }
-      const origin = req.headers.origin;
-      if (origin !== undefined && origin !== 'null' && new URL(origin).host !== req.headers.host) {
-        return json(res, 403, {
-          error: 'REEFD_DASHBOARD_CROSS_ORIGIN',
-          message: 'acknowledgements are accepted from the dashboard page only',
-        });
-      }
-      const id = decodeURIComponent(m[1] as string);
-      if (!history.alert(id))
-        return json(res, 404, {
-          error: 'REEFD_DASHBOARD_NO_ALERT',
-          message: `no alert ${id} in the last 48 h`,
-        });
-      let by = 'dashboard';
-      try {
-        const text = await readBody(req, 4096);
-        const body = text ? (JSON.parse(text) as { by?: unknown }) : {};
-        if (typeof body.by === 'string' && body.by.trim()) by = body.by.trim().slice(0, 64);
-      } catch (err) {
-        const status = (err as { status?: number }).status ?? 400;
-        return json(res, status, {
-          error: 'REEFD_DASHBOARD_BAD_BODY',
-          message: 'the body must be JSON like {"by": "name"} under 4 kB',
-        });
-      }
-      await opts.onAck?.(id, by);
-      const entry = history.acknowledge(id, by, now()) as AlertEntry;
-      hub.send('ack', alertView(entry));
-      return json(res, 200, { ok: true, alert: alertView(entry) });
+      if (!m) return fail(res, 404, 'REEFD_DASHBOARD_NOT_FOUND', `no POST route ${p}`);
+      return acknowledge(req, res, decodeURIComponent(m[1] as string));
     }
     if (req.method !== 'GET' && req.method !== 'HEAD')
-      return json(res, 405, { error: 'REEFD_DASHBOARD_METHOD', message: 'GET or POST only' });
+      return fail(res, 405, 'REEFD_DASHBOARD_METHOD', 'GET or POST only');
     switch (p) {
       case '/readyz': {
         const ok = listening && (opts.ready ? await opts.ready() : true);
@@ -252,17 +279,20 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
       case '/metrics':
         if (!opts.metrics) return send(res, 404, 'no metrics registered\n', 'text/plain; charset=utf-8');
         return send(res, 200, await opts.metrics(), 'text/plain; version=0.0.4; charset=utf-8');
+      case '/openapi.json':
+        return json(res, 200, api);
       case '/api/site':
         return json(res, 200, site);
+      case '/api/history':
+        return historyBody(url, res);
       case '/api/records':
-        return json(res, 200, {
-          latest_t: history.latestMs ? new Date(history.latestMs).toISOString() : null,
-          records: history.records(),
-        });
+        return records(url, res);
       case '/api/alerts':
-        return json(res, 200, { alerts: history.alerts().map(alertView) });
-      case '/api/health':
-        return json(res, 200, { sensors: await health() });
+        return json(res, 200, { alerts: book.list() });
+      case '/api/sensors':
+        return json(res, 200, await sensorsBody());
+      case '/api/fieldlog':
+        return json(res, 200, await fieldLog.get());
       case '/api/events':
         hub.add(res);
         return;
@@ -277,14 +307,13 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
       res.end(req.method === 'HEAD' ? undefined : f.body);
       return;
     }
-    json(res, 404, { error: 'REEFD_DASHBOARD_NOT_FOUND', message: `nothing at ${p}` });
+    fail(res, 404, 'REEFD_DASHBOARD_NOT_FOUND', `nothing at ${p}`);
   };
 
   const server = createServer((req, res) => {
     handle(req, res).catch((err: unknown) => {
       opts.logger.error({ err, url: req.url }, 'dashboard request failed');
-      if (!res.headersSent)
-        json(res, 500, { error: 'REEFD_DASHBOARD_INTERNAL', message: 'internal error; see the daemon log' });
+      if (!res.headersSent) fail(res, 500, 'REEFD_DASHBOARD_INTERNAL', 'internal error; see the daemon log');
       else res.end();
     });
   });
@@ -293,29 +322,36 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
   listening = true;
   const urlHost = host.includes(':') ? `[${host}]` : host;
   const url = `http://${urlHost}:${port}`;
-  if (opts.port !== undefined && opts.port !== 0 && port !== opts.port) {
+  if (opts.port !== undefined && opts.port !== 0 && port !== opts.port)
     opts.logger.warn({ wanted: opts.port, port }, 'dashboard port was taken; bound the next free one');
-  }
   opts.logger.info({ url }, 'dashboard listening');
+  const saveTimer = log
+    ? setInterval(() => void log.save().catch(() => undefined), opts.saveEveryMs ?? 10_000)
+    : undefined;
+  saveTimer?.unref();
+
+  const save = async (): Promise<void> => {
+    await log?.save();
+  };
 
   return {
     url,
     port,
     history,
-    publish(records) {
-      if (records.length === 0) return;
-      history.add(records);
-      hub.send('records', records);
-      for (const r of records) {
-        const entry = r.type === 'alert' ? history.alert(alertIdOf(r)) : undefined;
-        if (entry) hub.send('alert', alertView(entry));
-      }
-    },
+    publish: ingest,
     notify(message) {
-      hub.send('notice', { ...message, t: new Date(now()).toISOString() });
+      hub.send('notice', { ...message, t: new Date(wall()).toISOString() });
     },
+    save,
     async close() {
       listening = false;
+      unsubscribe?.();
+      offAck?.();
+      clearInterval(saveTimer);
+      if (log) {
+        log.append(history.openBuckets());
+        await log.save().catch(() => undefined);
+      }
       hub.close();
       server.closeAllConnections();
       await new Promise<void>((resolve) => server.close(() => resolve()));

@@ -12,5 +12,6 @@ export const NOTIFY_ERRORS = Object.freeze({
   REEFD_NOTIFY_EMPTY_GROUP: 'internal: a message without alerts',
   REEFD_NOTIFY_UNKNOWN_ALERT: 'no alert with that id: list them with reefd alerts list',
   REEFD_NOTIFY_AMBIGUOUS_ID: 'an id prefix matches several alerts: give more of the id',
+  REEFD_NOTIFY_ALERT_CLEARED: 'the alert has cleared: only a raised alert can be acknowledged',
 });
 export type NotifyErrorCode = keyof typeof NOTIFY_ERRORS;

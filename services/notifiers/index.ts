@@ -5,6 +5,7 @@ export {
   type NotifierOptions,
   type NotifierStatus,
   type AckResult,
+  type AckEvent,
   type Clock,
   type Timers,
 } from './notifier.js';
@@ -29,5 +30,7 @@ export {
   type Episode,
   type OutboxState,
   type AckRecord,
+  type EpisodeAck,
 } from './outbox-state.js';
+export { watchAcks, type AckWatch } from './ack-watch.js';
 export { NOTIFY_ERRORS, type NotifyErrorCode } from './errors.js';

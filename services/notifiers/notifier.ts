@@ -22,6 +22,7 @@ import {
   applyOutboxRecord,
   loadOutboxState,
   readNewAcks,
+  type AckRecord,
   type Episode,
   type OutboxItem,
   type OutboxRecord,
@@ -66,8 +67,16 @@ export interface NotifierOptions {
 }
 
 export type AckResult =
-  | { ok: true; id: string; by: string; already: boolean }
-  | { ok: false; code: 'REEFD_NOTIFY_UNKNOWN_ALERT'; message: string };
+  | { ok: true; id: string; by: string; already: boolean; comment?: string }
+  | { ok: false; code: 'REEFD_NOTIFY_UNKNOWN_ALERT' | 'REEFD_NOTIFY_ALERT_CLEARED'; message: string };
+
+/** An acknowledgement that took effect, from whichever path wrote it (this process, the CLI, the HTTP API). */
+export interface AckEvent {
+  id: string;
+  by: string;
+  atMs: number;
+  comment?: string;
+}
 
 export interface NotifierStatus {
   readonly pending: Readonly<Record<string, number>>;
@@ -79,8 +88,15 @@ export interface Notifier {
   stop(): Promise<void>;
   /** Queues an alert record durably (resolves after fsync) and schedules a pass. */
   enqueue(alert: AlertRecord): Promise<void>;
-  /** Acknowledges an episode by id: stops its reminders. */
-  ack(id: string, by: string): Promise<AckResult>;
+  /**
+   * Acknowledges a raised episode by id, by a named person with an optional comment: stops its reminders.
+   * A cleared episode cannot be acknowledged (REEFD_NOTIFY_ALERT_CLEARED): there is nothing left to act on.
+   */
+  ack(id: string, by: string, comment?: string): Promise<AckResult>;
+  /** Reads acknowledgements other processes appended (the CLI) now, instead of at the next pass. */
+  syncAcks(): Promise<void>;
+  /** Called with every acknowledgement that takes effect, whoever wrote it; returns the unsubscribe. */
+  onAck(fn: (ack: AckEvent) => void): () => void;
   /** Runs one dispatch pass now (the timer calls this; tests call it directly). */
   tick(): Promise<void>;
   status(): NotifierStatus;
@@ -149,6 +165,24 @@ export function createNotifier(o: NotifierOptions): Notifier {
   let timer: unknown = null;
   let running: Promise<void> | null = null;
   const chs = new Map<string, ChannelState>();
+  const ackListeners = new Set<(ack: AckEvent) => void>();
+  const announce = (applied: readonly AckRecord[]): void => {
+    for (const r of applied) {
+      const ev: AckEvent = {
+        id: r.id,
+        by: r.by,
+        atMs: r.at,
+        ...(r.comment !== undefined ? { comment: r.comment } : {}),
+      };
+      for (const fn of ackListeners) fn(ev);
+    }
+  };
+  /** Folds acks appended by other writers into the state and tells the listeners. */
+  const readAcks = async (): Promise<void> => {
+    const r = await readNewAcks(o.dir, st, acksOffset);
+    acksOffset = r.end;
+    announce(r.applied);
+  };
   const rateOf = (c: Channel) => c.rateLimit ?? defaultRate;
   for (const c of o.channels)
     chs.set(c.id, { attempts: 0, retryAtMs: 0, tokens: rateOf(c).maxMessages, tokensAtMs: clock.now() });
@@ -317,9 +351,9 @@ export function createNotifier(o: NotifierOptions): Notifier {
       ]);
       if (running === null) schedule();
     },
-    async ack(id, by) {
+    async ack(id, by, comment) {
       if (!started) throw new Error('REEFD_NOTIFY_NOT_STARTED: call start() before ack()');
-      acksOffset = await readNewAcks(o.dir, st, acksOffset);
+      await readAcks();
       const ep = st.episodes.get(id);
       if (ep === undefined) {
         return {
@@ -328,16 +362,34 @@ export function createNotifier(o: NotifierOptions): Notifier {
           message: `no alert with id ${id}; list them with "reefd alerts list"`,
         };
       }
-      if (ep.ack !== undefined) return { ok: true, id, by: ep.ack.by, already: true };
-      const rec = { op: 'ack' as const, id, by, at: clock.now() };
+      if (ep.ack !== undefined) {
+        const c = ep.ack.comment;
+        return { ok: true, id, by: ep.ack.by, already: true, ...(c !== undefined ? { comment: c } : {}) };
+      }
+      if (ep.cleared) {
+        return {
+          ok: false,
+          code: 'REEFD_NOTIFY_ALERT_CLEARED',
+          message: `alert ${id} has cleared; only a raised alert can be acknowledged`,
+        };
+      }
+      const text = comment?.trim();
+      const rec: AckRecord = { op: 'ack', id, by, at: clock.now(), ...(text ? { comment: text } : {}) };
       await acks.append([rec]);
-      applyAck(st, rec);
-      return { ok: true, id, by, already: false };
+      if (applyAck(st, rec)) announce([rec]);
+      return { ok: true, id, by, already: false, ...(text ? { comment: text } : {}) };
+    },
+    async syncAcks() {
+      if (started) await readAcks();
+    },
+    onAck(fn) {
+      ackListeners.add(fn);
+      return () => void ackListeners.delete(fn);
     },
     tick() {
       if (running !== null) return running;
       const pass = async (): Promise<void> => {
-        acksOffset = await readNewAcks(o.dir, st, acksOffset);
+        await readAcks();
         await queueReminders(clock.now());
         await Promise.all(o.channels.map((c) => dispatch(c)));
         await maybeCompact(clock.now());

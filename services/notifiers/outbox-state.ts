@@ -30,9 +30,16 @@ export interface Episode {
   /** The latest record of the episode. */
   last: AlertRecord;
   cleared: boolean;
-  ack?: { by: string; atMs: number };
+  ack?: EpisodeAck;
   /** Last time a notification (raise or reminder) was queued, ms. */
   lastNotifiedMs: number;
+}
+
+/** Who acknowledged an episode, when (wall clock, ms), and what they said. */
+export interface EpisodeAck {
+  by: string;
+  atMs: number;
+  comment?: string;
 }
 
 export interface OutboxState {
@@ -51,6 +58,8 @@ export interface AckRecord {
   id: string;
   by: string;
   at: number;
+  /** What the person saw or did (optional, free text). */
+  comment?: string;
 }
 
 export const emptyOutboxState = (): OutboxState => ({ seq: 0, items: new Map(), episodes: new Map() });
@@ -98,11 +107,14 @@ export function applyOutboxRecord(st: OutboxState, r: OutboxRecord): void {
   }
 }
 
-/** Applies an acknowledgement; returns false when the id is unknown. The first ack of an episode stands. */
+/**
+ * Applies an acknowledgement; returns false when the id is unknown or the episode was already acknowledged
+ * (the first ack of an episode stands).
+ */
 export function applyAck(st: OutboxState, r: AckRecord): boolean {
   const ep = st.episodes.get(r.id);
-  if (ep === undefined) return false;
-  ep.ack ??= { by: r.by, atMs: r.at };
+  if (ep === undefined || ep.ack !== undefined) return false;
+  ep.ack = { by: r.by, atMs: r.at, ...(r.comment !== undefined ? { comment: r.comment } : {}) };
   return true;
 }
 
@@ -112,7 +124,13 @@ function isOutboxRecord(x: unknown): x is OutboxRecord {
 }
 function isAckRecord(x: unknown): x is AckRecord {
   const r = x as Partial<AckRecord> | null;
-  return r?.op === 'ack' && typeof r.id === 'string' && typeof r.by === 'string' && typeof r.at === 'number';
+  return (
+    r?.op === 'ack' &&
+    typeof r.id === 'string' &&
+    typeof r.by === 'string' &&
+    typeof r.at === 'number' &&
+    (r.comment === undefined || typeof r.comment === 'string')
+  );
 }
 
 /** Reads both journals of `dir`; returns the state and the acks file end offset (for incremental reads). */
@@ -125,11 +143,16 @@ export async function loadOutboxState(dir: string): Promise<{ state: OutboxState
   return { state: st, acksEnd: acks.end };
 }
 
-/** Reads acks appended after `offset` into `st`; returns the new offset. */
-export async function readNewAcks(dir: string, st: OutboxState, offset: number): Promise<number> {
+/** Reads acks appended after `offset` into `st`; returns the new offset and the acks that took effect. */
+export async function readNewAcks(
+  dir: string,
+  st: OutboxState,
+  offset: number,
+): Promise<{ end: number; applied: AckRecord[] }> {
   const acks = await readJournal(join(dir, ACKS_FILE), offset);
-  for (const r of acks.records) if (isAckRecord(r)) applyAck(st, r);
-  return acks.end;
+  const applied: AckRecord[] = [];
+  for (const r of acks.records) if (isAckRecord(r) && applyAck(st, r)) applied.push(r);
+  return { end: acks.end, applied };
 }
 
 /** Appends one ack record, fsynced (the CLI's path; the notifier holds its own Journal on the same file). */

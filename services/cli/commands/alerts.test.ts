@@ -52,7 +52,7 @@ describe('reefd alerts list | ack', () => {
     const l = io();
     expect(await run(['list', '--data', data], l)).toBe(0);
     expect(l.out).toBe(
-      `${a.id}  ${a.t}  critical low_oxygen crest oxygen.o2_mg_l value 1.7  raised\nqueued: ui 3\n`,
+      `${a.id}  ${a.t}  critical low_oxygen crest oxygen.o2_mg_l value 1.7 mg L-1  raised\nqueued: ui 3\n`,
     );
     const all = io();
     await run(['list', '--data', data, '--all', '--json'], all);
@@ -66,11 +66,45 @@ describe('reefd alerts list | ack', () => {
     expect(await run(['ack', a.id, '--data', data, '--by', 'ben'], again)).toBe(0);
     expect(again.out).toMatch(/already acknowledged by ana/);
 
+    // A cleared alert is not offered for acknowledgement, from any path.
+    const cleared = io({ USER: 'ana' });
+    expect(await run(['ack', b.id, '--data', data], cleared)).toBe(1);
+    expect(cleared.err).toMatch(/REEFD_NOTIFY_ALERT_CLEARED/);
+    expect((await loadOutboxState(alertsStateDir(data))).state.episodes.get(b.id)?.ack).toBeUndefined();
+
     const bad = io();
     expect(await run(['ack', 'ffffffff', '--data', data], bad)).toBe(1);
     expect(bad.err).toMatch(/REEFD_NOTIFY_UNKNOWN_ALERT/);
     expect(await run(['list'], io())).toBe(2);
     expect(await run(['frob', '--data', data], io())).toBe(2);
+  });
+
+  it('acknowledges with a comment by a named person, and asks for a name when there is none', async () => {
+    const data = await mkdtemp(join(tmpdir(), 'reefd-cli-alerts-'));
+    const n = createNotifier({
+      dir: alertsStateDir(data),
+      site: 'demo-reef',
+      clock: manualClock(),
+      timers: idleTimers,
+      channels: [createDashboardChannel('ui', () => undefined)],
+    });
+    await n.start();
+    const a = alert({ rule: 'low_oxygen', station: 'lagoon', metric: 'oxygen.o2_mg_l', value: 1.4 });
+    await n.enqueue(a);
+    await n.stop();
+    const anonymous = io();
+    expect(await run(['ack', a.id, '--data', data], anonymous)).toBe(2);
+    expect(anonymous.err).toMatch(/--by NAME/);
+    const k = io();
+    expect(
+      await run(['ack', a.id, '--data', data, '--by', 'Mika', '--comment', 'night dive at 05:00'], k),
+    ).toBe(0);
+    const ep = (await loadOutboxState(alertsStateDir(data))).state.episodes.get(a.id);
+    expect(ep?.ack).toMatchObject({ by: 'Mika', comment: 'night dive at 05:00' });
+    const l = io();
+    await run(['list', '--data', data], l);
+    expect(l.out).toContain('acked by Mika');
+    expect(l.out).toContain('"night dive at 05:00"');
   });
 
   it('a running notifier picks up an ack written by the CLI and stops reminding', async () => {

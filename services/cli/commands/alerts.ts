@@ -1,32 +1,38 @@
-// `reefd alerts list --data DIR [--all] [--json]` and `reefd alerts ack ID --data DIR [--by NAME]`: read and
-// acknowledge alerts in the notifier's state files (DIR/alerts/outbox.jsonl and acks.jsonl). An ack is an
-// fsynced append to acks.jsonl; a running daemon picks it up on its next pass (within 30 s) and stops reminding.
+// `reefd alerts list --data DIR [--all] [--json]` and `reefd alerts ack ID --data DIR [--by NAME] [--comment TEXT]`:
+// read and acknowledge alerts in the notifier's state files (DIR/alerts/outbox.jsonl and acks.jsonl). An ack is
+// an fsynced append to acks.jsonl; a running daemon sees it within a second or two (its dashboard shows it) and
+// stops reminding. The dashboard and its HTTP API write the same journal, so every path shows one state.
 import { parseArgs } from 'node:util';
 import { alertsStateDir, appendAck, loadOutboxState, type Episode } from '../../notifiers/index.js';
+import { alertUnit } from '../../dashboard/alert-book.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
 
 const HELP = `Usage: reefd alerts list --data DIR [--all] [--json]
-       reefd alerts ack ID --data DIR [--by NAME]
+       reefd alerts ack ID --data DIR [--by NAME] [--comment TEXT]
 
 list   shows the alerts raised and not yet cleared (--all: also the cleared ones kept in the state),
        with their acknowledgement and the messages still queued per channel.
-ack    acknowledges an alert by its id (or a unique prefix of at least 4 characters): reminders for
-       it stop. The clear is still notified when it comes.
+ack    acknowledges a raised alert by its id (or a unique prefix of at least 4 characters): reminders
+       for it stop, and the dashboard shows who acknowledged it and why. The clear is still notified
+       when it comes. A cleared alert cannot be acknowledged.
 
 Options:
-  --data DIR   the daemon's data folder (required)
-  --by NAME    who acknowledges (default: $USER, else "cli")
-  --all        list cleared alerts too
-  --json       print the list as JSON
+  --data DIR      the daemon's data folder (required)
+  --by NAME       who acknowledges (default: $USER; required when $USER is not set)
+  --comment TEXT  what you saw or did (shown with the acknowledgement)
+  --all           list cleared alerts too
+  --json          print the list as JSON
 `;
 
 function describe(e: Episode): string {
   const a = e.raised ?? e.last;
   const where = a.sensor === undefined ? a.station : `${a.station}/${a.sensor}`;
   const what = a.metric ?? a.fault ?? '';
-  const value = a.value === null ? '' : ` value ${a.value}`;
+  const unit = alertUnit(a).unit;
+  const value = a.value === null ? '' : ` value ${a.value}${unit && unit !== '1' ? ` ${unit}` : ''}`;
   const state = e.cleared ? `cleared ${e.last.t}` : 'raised';
-  const ack = e.ack ? ` acked by ${e.ack.by} ${new Date(e.ack.atMs).toISOString()}` : '';
+  const said = e.ack?.comment !== undefined ? ` "${e.ack.comment}"` : '';
+  const ack = e.ack ? ` acked by ${e.ack.by} ${new Date(e.ack.atMs).toISOString()}${said}` : '';
   return `${e.id}  ${a.t}  ${a.severity.padEnd(8)} ${a.rule} ${where} ${what}${value}  ${state}${ack}`;
 }
 
@@ -52,6 +58,7 @@ export const run: CommandRun = async (args, io) => {
       options: {
         data: { type: 'string' },
         by: { type: 'string' },
+        comment: { type: 'string' },
         all: { type: 'boolean', default: false },
         json: { type: 'boolean', default: false },
         help: { type: 'boolean', short: 'h', default: false },
@@ -112,9 +119,21 @@ export const run: CommandRun = async (args, io) => {
     );
     return EXIT_OK;
   }
-  const by = values.by ?? io.env.USER ?? 'cli';
+  if (ep.cleared) {
+    io.stderr(
+      `reefd alerts ack: REEFD_NOTIFY_ALERT_CLEARED: ${ep.id} cleared at ${ep.last.t}; only a raised alert can be acknowledged\n`,
+    );
+    return EXIT_FAILURE;
+  }
+  // An acknowledgement names a person: the page and the log show who took the alert on.
+  const by = (values.by ?? io.env.USER ?? '').trim();
+  if (by === '') {
+    io.stderr('reefd alerts ack: say who acknowledges with --by NAME\n');
+    return EXIT_USAGE;
+  }
+  const comment = values.comment?.trim();
   // The ack carries wall-clock time: it is an operator's action, not an event of the data.
-  await appendAck(dir, { op: 'ack', id: ep.id, by, at: Date.now() });
+  await appendAck(dir, { op: 'ack', id: ep.id, by, at: Date.now(), ...(comment ? { comment } : {}) });
   io.stdout(`acknowledged ${ep.id} (${(ep.raised ?? ep.last).rule} at ${ep.last.station}) by ${by}\n`);
   return EXIT_OK;
 };

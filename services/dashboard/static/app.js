@@ -1,500 +1,335 @@
-// reefd dashboard: loads the site, the last 48 h of derived records, alerts and sensor health, then follows
-// the daemon's server-sent events. Plain modules, no framework, no build step.
-import { fluxPlot, linePlot } from './charts.js';
-import { age, dateTimeUtc, el, fmt, freshness, METRICS, timeUtc } from './format.js';
-import { drawMap, paintStation } from './map.js';
+// @ts-check
+// reefd dashboard: loads the site, the recent history, the alerts and the sensors, follows the daemon's
+// server-sent events, and asks /api/records for any other range the person looks at. Plain modules, no
+// framework, no build step; the logic lives in DOM-free modules (format, sun, verdicts, series).
+import { byId } from './dom.js';
+import { siteClock } from './format.js';
+import { drawMap } from './map.js';
+import { viewRange } from './series.js';
+import { RecordStore } from './store.js';
+import { computeReef, renderAlerts, renderClock, renderVerdicts } from './view-top.js';
+import { renderMast, renderMetabolism, renderTonight } from './view-metabolism.js';
+import { renderSensors } from './view-sensors.js';
+import { PRESETS_H, renderRangeControls, renderStation, renderStationChips } from './view-station.js';
+
+/** @typedef {import('./types.js').SiteInfo} SiteInfo */
+/** @typedef {import('./types.js').AlertView} AlertView */
+/** @typedef {import('./types.js').SensorsBody} SensorsBody */
+/** @typedef {import('./types.js').FieldLog} FieldLog */
+/** @typedef {import('./types.js').HistoryBody} HistoryBody */
+/** @typedef {import('./types.js').Rec} Rec */
+/** @typedef {{update(data: any, next: any): boolean, destroy(): void}} PlotHandle */
+/** @typedef {'records' | 'alerts' | 'sensors' | 'view' | 'station' | 'clock'} Change */
+
+/**
+ * @typedef {{
+ *   site: SiteInfo, clock: import('./format.js').SiteClock, store: RecordStore, alerts: Map<string, AlertView>,
+ *   sensors: SensorsBody | null, fieldLog: FieldLog, selected: {station: string, transect: string},
+ *   view: {presetH: number | null, fromMs: number, toMs: number}, lastPresetH: number,
+ *   plots: Map<string, PlotHandle>, map: ReturnType<typeof drawMap> | null, narrow: boolean,
+ *   focusSensor: string | null, fetched: Map<string, {fromMs: number, toMs: number}>,
+ *   nowMs(): number, api(path: string, init?: RequestInit): Promise<unknown>, changed(what: Change): void,
+ *   selectStation(id: string, scroll: boolean): void, selectTransect(id: string): void,
+ *   setRange(fromMs: number, toMs: number): void, setPreset(h: number): void
+ * }} App
+ */
 
 const token = new URL(location.href).searchParams.get('token');
+/** @param {string} path */
 const withToken = (path) =>
   token ? `${path}${path.includes('?') ? '&' : '?'}token=${encodeURIComponent(token)}` : path;
-const headers = token ? { authorization: `Bearer ${token}` } : {};
-const api = async (path, init = {}) => {
-  const res = await fetch(path, { ...init, headers: { ...headers, ...(init.headers ?? {}) } });
-  if (!res.ok) throw new Error(`${path}: HTTP ${res.status}`);
-  return res.json();
-};
 
-const state = {
-  site: null,
-  series: new Map(), // `${type}|${station or transect}` -> records sorted by time
-  alerts: new Map(),
-  health: [],
-  latestMs: 0,
-  mapGroups: {},
-  plots: new Map(),
-  dirty: false,
-};
+/**
+ * @param {string} path
+ * @param {RequestInit} [init]
+ */
+async function api(path, init = {}) {
+  const res = await fetch(withToken(path), init);
+  const body = await res.json().catch(() => ({}));
+  if (!res.ok)
+    throw new Error(/** @type {{message?: string}} */ (body).message ?? `${path}: HTTP ${res.status}`);
+  return body;
+}
 
-const WINDOW_MS = 48 * 3600_000;
-const whereOf = (r) => (r.type === 'flux' ? r.transect : (r.station ?? ''));
+/** @type {Set<Change>} */
+const dirty = new Set();
+let frame = 0;
+/** @type {App} */
+let app;
 
-function addRecords(records) {
-  for (const r of records) {
-    const tMs = Date.parse(r.t);
-    if (!Number.isFinite(tMs)) continue;
-    if (tMs > state.latestMs) state.latestMs = tMs;
-    if (r.type === 'alert') continue;
-    const key = `${r.type}|${whereOf(r)}`;
-    let list = state.series.get(key);
-    if (!list) state.series.set(key, (list = []));
-    if (list.length && Date.parse(list[list.length - 1].t) > tMs) {
-      list.push(r);
-      list.sort((a, b) => Date.parse(a.t) - Date.parse(b.t));
-    } else list.push(r);
+function render() {
+  frame = 0;
+  const what = new Set(dirty);
+  dirty.clear();
+  const reef = computeReef(app);
+  renderClock(app);
+  renderVerdicts(app, reef);
+  if (what.has('alerts')) renderAlerts(app);
+  renderStationChips(app, reef.byStation);
+  if (what.has('records') || what.has('view') || what.has('station') || what.has('sensors')) {
+    renderRangeControls(app);
+    renderStation(app, reef);
+    renderMetabolism(app);
+    renderTonight(app);
   }
-  const cutoff = state.latestMs - WINDOW_MS;
-  for (const list of state.series.values()) {
-    let n = 0;
-    while (n < list.length && Date.parse(list[n].t) < cutoff) n++;
-    if (n) list.splice(0, n);
+  if (what.has('sensors')) {
+    renderSensors(app);
+    renderMast(app);
   }
 }
 
-const refNow = () => (Math.abs(Date.now() - state.latestMs) < 2 * 3600_000 ? Date.now() : state.latestMs);
-const last = (type, where) => {
-  const l = state.series.get(`${type}|${where}`);
-  return l && l.length ? l[l.length - 1] : undefined;
-};
-
-function metricSeries(m, station) {
-  const list = state.series.get(`${m.type}|${station}`) ?? [];
-  const xs = [];
-  const ys = [];
-  for (const r of list) {
-    const v = r[m.key];
-    xs.push(Date.parse(r.t) / 1000);
-    ys.push(typeof v === 'number' && Number.isFinite(v) ? v : null);
-  }
-  return [xs, ys];
-}
-
-function activeFaults(station) {
-  return [...state.alerts.values()].filter((a) => a.station === station && a.state === 'raised');
-}
-
-function stationStatus(s) {
-  let lastMs = -Infinity;
-  let qc = 9;
-  for (const type of ['carbonate', 'oxygen', 'waves', 'current']) {
-    const r = last(type, s.id);
-    if (!r) continue;
-    lastMs = Math.max(lastMs, Date.parse(r.t));
-    const f = typeof r.flag === 'number' ? r.flag : 1;
-    qc = qc === 9 ? f : Math.max(qc === 2 ? 1 : qc, f === 2 ? 1 : f);
-  }
-  const raised = activeFaults(s.id);
-  if (raised.length && qc !== 9) qc = Math.max(qc, raised.some((a) => a.class === 'fault') ? 3 : qc);
-  const h = state.health.filter((x) => x.station === s.id && x.last_seen);
-  for (const x of h) lastMs = Math.max(lastMs, Date.parse(x.last_seen));
-  // A station that reports but has no derived series (a weather mast) is "not rated", not missing.
-  if (qc === 9 && h.length) qc = 2;
-  return { lastMs, qc, ageMs: refNow() - lastMs };
-}
-
-function headlineValue(s) {
-  for (const [type, key, dp, unit] of [
-    ['oxygen', 'o2_mg_l', 1, 'mg/L O₂'],
-    ['carbonate', 'pco2_uatm', 0, 'µatm'],
-    ['waves', 'hm0_m', 2, 'm Hm0'],
-    ['current', 'speed_m_s', 2, 'm/s'],
-  ]) {
-    const r = last(type, s.id);
-    if (r && typeof r[key] === 'number') return `${fmt(r[key], dp)} ${unit}`;
-  }
-  return '';
-}
-
-// ------------------------------------------------------------------------------------------ overview
-function renderOverview() {
-  const list = document.getElementById('station-list');
-  list.replaceChildren();
-  for (const s of state.site.stations) {
-    const st = stationStatus(s);
-    const fresh = Number.isFinite(st.lastMs) ? freshness(st.ageMs) : 'stale';
-    paintStation(state.mapGroups[s.id], { fresh, qc: st.qc, value: headlineValue(s) });
-    list.append(
-      el(
-        'li',
-        { 'data-station': s.id, 'data-fresh': fresh },
-        el('span', { class: `badge ${fresh}` }),
-        el(
-          'span',
-          {},
-          el('strong', { text: s.label }),
-          el('span', {
-            class: `qc qc-${st.qc}`,
-            text: st.qc === 9 ? 'no data' : st.qc === 2 ? 'raw only' : `QC ${st.qc}`,
-          }),
-        ),
-        el('span', { class: 'age', text: Number.isFinite(st.lastMs) ? age(st.ageMs) : 'never' }),
-      ),
-    );
-  }
-  renderSiteNow();
-  const live = document.getElementById('live-text');
-  if (document.getElementById('live').dataset.state === 'live')
-    live.textContent = `live · data to ${dateTimeUtc(new Date(state.latestMs).toISOString())} UTC`;
-}
-
-/** Extremes across the site right now: the numbers a person on the boat asks for first. */
-function renderSiteNow() {
-  const pick = (type, key, better) => {
-    let best;
-    for (const s of state.site.stations) {
-      const r = last(type, s.id);
-      const v = r?.[key];
-      if (typeof v === 'number' && (best === undefined || better(v, best.v))) best = { v, s };
-    }
-    return best;
-  };
-  const lo = (a, b) => a < b;
-  const hi = (a, b) => a > b;
-  const items = [
-    ['Lowest O₂', pick('oxygen', 'o2_mg_l', lo), 2, 'mg/L', (v) => v < 2],
-    ['Lowest Ω arag', pick('carbonate', 'omega_ar', lo), 2, '', (v) => v < 3],
-    ['Highest pCO₂', pick('carbonate', 'pco2_uatm', hi), 0, 'µatm', () => false],
-    ['Biggest waves', pick('waves', 'hm0_m', hi), 2, 'm Hm0', () => false],
-  ];
-  document
-    .getElementById('site-now')
-    .replaceChildren(
-      el('h3', { text: 'Now across the site' }),
-      ...items.map(([k, b, dp, unit, bad]) =>
-        el(
-          'div',
-          { class: `tile${b && bad(b.v) ? ' alarm' : ''}`, 'data-now': k },
-          el('div', { class: 'k', text: k }),
-          el('div', { class: 'v', text: b ? `${fmt(b.v, dp)} ${unit}` : '—' }),
-          el('div', { class: 'at', text: b ? b.s.label : '' }),
-        ),
-      ),
-    );
-}
-
-// -------------------------------------------------------------------------------------------- alerts
-const RULE_NAMES = {
-  low_oxygen: 'Low oxygen',
-  low_omega_ar: 'Low aragonite saturation',
-  stale: 'Sensor silent',
-  flatline: 'Flat line',
-  range: 'Out of range',
-  spike: 'Spike',
-  battery: 'Low battery',
-};
-
-function renderAlerts() {
-  const ul = document.getElementById('alert-list');
-  const items = [...state.alerts.values()].sort((a, b) => {
-    const open = (x) => (x.state === 'raised' && !x.ack ? 0 : 1);
-    return open(a) - open(b) || Date.parse(b.t) - Date.parse(a.t);
-  });
-  const open = items.filter((a) => a.state === 'raised' && !a.ack).length;
-  const count = document.getElementById('alert-count');
-  count.textContent = String(open);
-  count.classList.toggle('zero', open === 0);
-  ul.replaceChildren();
-  if (items.length === 0) ul.append(el('li', { class: 'empty', text: 'No alerts in the last 48 h.' }));
-  for (const a of items) {
-    const name = RULE_NAMES[a.rule] ?? RULE_NAMES[a.fault] ?? a.rule;
-    const value =
-      a.value !== null && a.value !== undefined
-        ? ` · ${fmt(a.value, 2)}${a.limit !== null ? ` (limit ${fmt(a.limit, 2)})` : ''}`
-        : '';
-    const btn = el('button', {
-      type: 'button',
-      'data-ack': a.id,
-      text: a.ack ? `Acknowledged by ${a.ack.by}` : 'Acknowledge',
-    });
-    if (a.ack) btn.disabled = true;
-    btn.addEventListener('click', () => acknowledge(a.id, btn));
-    ul.append(
-      el(
-        'li',
-        { class: `alert ${a.class} ${a.state}${a.ack ? ' acked' : ''}`, 'data-alert-id': a.id },
-        el(
-          'div',
-          {},
-          el('span', { class: 'what', text: name }),
-          ' ',
-          el('span', { class: 'state', text: a.state }),
-        ),
-        btn,
-        el('div', {
-          class: 'where',
-          text: `${a.station ?? ''}${a.sensor ? ` · ${a.sensor}` : ''}${value} · ${dateTimeUtc(a.raised_t ?? a.t)} UTC`,
-        }),
-      ),
-    );
-  }
-}
-
-async function acknowledge(id, btn) {
-  btn.disabled = true;
-  btn.textContent = 'Acknowledging…';
+/**
+ * Fetches the records of the range shown for the selected station and transect, once per range.
+ * @param {string} key 'station:<id>' or 'transect:<id>'
+ * @param {string} query
+ * @param {{fromMs: number, toMs: number}} [range] default the range shown
+ * @param {boolean} [quiet] say nothing in the range's status line (a table's own fetch)
+ */
+async function ensureRange(key, query, range = viewRange(app.view, app.nowMs()), quiet = false) {
+  const r = range;
+  const have = app.fetched.get(key);
+  if (have && have.fromMs <= r.fromMs && have.toMs >= Math.min(r.toMs, app.nowMs())) return;
+  const status = quiet ? document.createElement('p') : byId('range-status');
+  status.textContent = 'Loading the records of this range…';
+  let cursor = '';
+  let n = 0;
+  let source = '';
   try {
-    const r = await api(withToken(`/api/alerts/${encodeURIComponent(id)}/ack`), {
-      method: 'POST',
-      headers: { 'content-type': 'application/json' },
-      body: JSON.stringify({ by: localStorage.getItem('reefd.name') || 'dashboard' }),
-    });
-    state.alerts.set(r.alert.id, r.alert);
-    renderAlerts();
+    for (let page = 0; page < 20; page++) {
+      const body = /** @type {{records: Rec[], next_cursor: string | null, source: string}} */ (
+        await api(
+          `/api/records?${query}&from=${new Date(r.fromMs).toISOString()}&to=${new Date(r.toMs).toISOString()}&limit=5000${cursor ? `&cursor=${encodeURIComponent(cursor)}` : ''}`,
+        )
+      );
+      app.store.add(body.records);
+      n += body.records.length;
+      source = body.source;
+      if (!body.next_cursor) break;
+      cursor = body.next_cursor;
+    }
+    app.fetched.set(
+      key,
+      have && have.toMs >= r.fromMs && have.fromMs <= r.toMs
+        ? { fromMs: Math.min(have.fromMs, r.fromMs), toMs: Math.max(have.toMs, r.toMs) }
+        : { fromMs: r.fromMs, toMs: r.toMs },
+    );
+    status.textContent = `${n.toLocaleString('en')} records from ${source}`;
+    app.changed('records');
   } catch (err) {
-    btn.disabled = false;
-    btn.textContent = 'Retry acknowledge';
-    console.error(err);
+    status.textContent = `Could not load this range: ${/** @type {Error} */ (err).message}`;
   }
 }
 
-// -------------------------------------------------------------------------------------------- fluxes
-function fluxData(id) {
-  const list = state.series.get(`flux|${id}`) ?? [];
-  const cols = [[], [], [], [], [], [], []];
-  for (const r of list) {
-    const ok = r.valid === true;
-    const n = ok && typeof r.ncp_mmol_m2_h === 'number' ? r.ncp_mmol_m2_h : null;
-    const c = ok && typeof r.nec_mmol_m2_h === 'number' ? r.nec_mmol_m2_h : null;
-    const sn = r.ncp_sigma_mmol_m2_h ?? 0;
-    const sc = r.nec_sigma_mmol_m2_h ?? 0;
-    cols[0].push(Date.parse(r.t) / 1000);
-    cols[1].push(n);
-    cols[2].push(n === null ? null : n - sn);
-    cols[3].push(n === null ? null : n + sn);
-    cols[4].push(c);
-    cols[5].push(c === null ? null : c - sc);
-    cols[6].push(c === null ? null : c + sc);
-  }
-  return cols;
-}
-
-function renderFluxes() {
-  const box = document.getElementById('flux-list');
-  for (const t of state.site.transects) {
-    let card = box.querySelector(`[data-transect="${t.id}"]`);
-    if (!card) {
-      card = el(
-        'div',
-        { class: 'flux', 'data-transect': t.id },
-        el('div', { class: 'flux-head' }, el('h3', { text: `${t.label}` }), el('span', { class: 'valid' })),
-        el('div', { class: 'nums' }),
-        el('div', { class: 'plot' }),
-      );
-      box.append(card);
-    }
-    const r = last('flux', t.id);
-    const v = card.querySelector('.valid');
-    v.className = `valid ${r?.valid ? 'yes' : 'no'}`;
-    v.textContent = r ? (r.valid ? 'valid' : 'not valid') : 'no data';
-    const num = (k, val, sigma, unit, dp) =>
-      el(
-        'div',
-        { class: 'num', 'data-field': k },
-        el('span', { class: 'k', text: k }),
-        el(
-          'span',
-          { class: 'v' },
-          fmt(val, dp),
-          sigma !== undefined ? el('small', { text: ` ±${fmt(sigma, 1)}` }) : null,
-          el('small', { text: ` ${unit}` }),
-        ),
-      );
-    card
-      .querySelector('.nums')
-      .replaceChildren(
-        num('NCP', r?.ncp_mmol_m2_h, r?.ncp_sigma_mmol_m2_h, 'mmol m⁻² h⁻¹', 1),
-        num('NEC', r?.nec_mmol_m2_h, r?.nec_sigma_mmol_m2_h, 'mmol m⁻² h⁻¹', 1),
-        num('Flow', r?.u_m_s, undefined, 'm/s', 3),
-        num('Residence', r?.residence_min, undefined, 'min', 0),
-      );
-    const data = fluxData(t.id);
-    const key = `flux|${t.id}`;
-    const plot = state.plots.get(key);
-    if (plot) plot.setData(data);
-    else if (data[0].length) state.plots.set(key, fluxPlot(card.querySelector('.plot'), data));
-  }
-}
-
-// ------------------------------------------------------------------------------------------ stations
-function stationMetrics(s) {
-  const kinds = new Set(s.sensors.map((x) => x.kind));
-  return METRICS.filter((m) => {
-    if ((state.series.get(`${m.type}|${s.id}`) ?? []).length) return true;
-    if (m.type === 'carbonate') return kinds.has('pco2');
-    if (m.type === 'oxygen') return kinds.has('oxygen');
-    if (m.type === 'waves') return kinds.has('pressure');
-    if (m.type === 'current') return kinds.has('adcp');
-    return false;
-  });
-}
-
-function renderStations() {
-  const box = document.getElementById('station-cards');
-  for (const s of state.site.stations) {
-    const metrics = stationMetrics(s);
-    if (metrics.length === 0) continue;
-    let card = box.querySelector(`[data-station="${s.id}"]`);
-    if (!card) {
-      card = el(
-        'article',
-        { class: 'card', 'data-station': s.id },
-        el('div', { class: 'card-head' }, el('h3', { text: s.label }), el('span', { class: 'age' })),
-        el('div', { class: 'tiles' }),
-        el('div', { class: 'plots' }),
-      );
-      box.append(card);
-    }
-    const st = stationStatus(s);
-    card.querySelector('.age').textContent = Number.isFinite(st.lastMs)
-      ? `${timeUtc(new Date(st.lastMs).toISOString())} UTC · ${age(st.ageMs)}`
-      : 'no data yet';
-    const tiles = card.querySelector('.tiles');
-    tiles.replaceChildren(
-      ...metrics.map((m) => {
-        const r = last(m.type, s.id);
-        const v = r?.[m.key];
-        const alarm = m.alarmBelow !== undefined && typeof v === 'number' && v < m.alarmBelow;
-        return el(
-          'div',
-          { class: `tile${alarm ? ' alarm' : ''}`, 'data-metric': m.key },
-          el('div', { class: 'k', text: `${m.label}${m.unit ? ` · ${m.unit}` : ''}` }),
-          el('div', { class: 'v', text: fmt(v, m.dp) }),
-        );
-      }),
+function ensureRanges() {
+  void ensureRange(`station:${app.selected.station}`, `station=${encodeURIComponent(app.selected.station)}`);
+  if (app.selected.transect)
+    void ensureRange(
+      `transect:${app.selected.transect}`,
+      `transect=${encodeURIComponent(app.selected.transect)}&type=flux`,
     );
-    const plots = card.querySelector('.plots');
-    for (const m of metrics) {
-      const data = metricSeries(m, s.id);
-      if (data[0].length === 0) continue;
-      const key = `${s.id}|${m.key}`;
-      const p = state.plots.get(key);
-      if (p) p.setData(data);
-      else {
-        const holder = el('div', { class: 'plot', 'data-plot': m.key });
-        plots.append(
-          el('p', { class: 'plot-label', text: `${m.label}${m.unit ? ` (${m.unit})` : ''}` }),
-          holder,
-        );
-        state.plots.set(key, linePlot(holder, m, data, 104));
-      }
-    }
-  }
+  // The daily budgets table lists the last fortnight whatever range the plots show.
+  const now = app.nowMs();
+  for (const t of app.site.transects)
+    void ensureRange(
+      `daily:${t.id}`,
+      `transect=${encodeURIComponent(t.id)}&type=daily`,
+      {
+        fromMs: now - 15 * 86_400_000,
+        toMs: now + 60_000,
+      },
+      true,
+    );
 }
 
-// ------------------------------------------------------------------------------------------- health
-function renderHealth() {
-  const body = document.getElementById('health-rows');
-  body.replaceChildren(
-    ...state.health.map((h) => {
-      const seen = h.last_seen
-        ? `${dateTimeUtc(h.last_seen)} · ${age(refNow() - Date.parse(h.last_seen))}`
-        : '—';
-      const bat =
-        typeof h.battery_v === 'number'
-          ? el('span', {
-              class: h.battery_v < 11.5 ? 'battery-low' : '',
-              text: `${h.battery_v.toFixed(2)} V`,
-            })
-          : '—';
-      const flags = h.flags?.length
-        ? h.flags.map((f) => el('span', { class: 'chip', text: f }))
-        : [el('span', { class: 'chip none', text: 'ok' })];
-      return el(
-        'tr',
-        { 'data-sensor': h.sensor },
-        el('td', { text: h.station }),
-        el('td', { text: h.sensor }),
-        el('td', { text: h.kind ?? '' }),
-        el('td', { class: 'num-cell', text: seen }),
-        el('td', { class: 'num-cell' }, bat),
-        el('td', {}, ...flags),
-      );
-    }),
-  );
+/**
+ * True for the records whose whole series the page keeps: the station and transect shown, and the site-wide
+ * series the panels read (light for the night, forecasts, daily budgets).
+ * @param {Rec} r
+ */
+function keepSeries(r) {
+  if (!app) return true;
+  if (r.type === 'light' || r.type === 'forecast' || r.type === 'daily') return true;
+  return r.station === app.selected.station || r.transect === app.selected.transect;
 }
 
-// ------------------------------------------------------------------------------------------- wiring
-function renderAll() {
-  renderOverview();
-  renderAlerts();
-  renderFluxes();
-  renderStations();
-  renderHealth();
+/**
+ * The dashboard's recent history of one place, for its plots (the ranges beyond come from /api/records).
+ * @param {string} query
+ */
+async function loadPlace(query) {
+  const body = /** @type {HistoryBody} */ (await api(`/api/history?part=records&${query}`));
+  app.store.add(/** @type {Rec[]} */ (body.records));
+  app.changed('records');
 }
 
-function schedule() {
-  if (state.dirty) return;
-  state.dirty = true;
-  requestAnimationFrame(() => {
-    state.dirty = false;
-    renderOverview();
-    renderFluxes();
-    renderStations();
-  });
-}
-
-async function refreshHealth() {
+async function refreshSensors() {
   try {
-    state.health = (await api(withToken('/api/health'))).sensors;
-    renderHealth();
+    app.sensors = /** @type {SensorsBody} */ (await api('/api/sensors'));
+    app.changed('sensors');
   } catch (err) {
     console.error(err);
   }
 }
 
 function connect() {
-  const live = document.getElementById('live');
-  const text = document.getElementById('live-text');
+  const live = byId('live');
   const es = new EventSource(withToken('/api/events'));
   es.addEventListener('open', () => {
     live.dataset.state = 'live';
-    renderOverview();
+    live.textContent = 'live';
   });
   es.addEventListener('error', () => {
     live.dataset.state = 'down';
-    text.textContent = 'reconnecting…';
+    live.textContent = 'reconnecting…';
   });
   es.addEventListener('records', (e) => {
-    addRecords(JSON.parse(e.data));
-    schedule();
+    app.store.add(JSON.parse(/** @type {MessageEvent} */ (e).data));
+    app.changed('records');
   });
-  const onAlert = (e) => {
-    const a = JSON.parse(e.data);
-    state.alerts.set(a.id, a);
-    renderAlerts();
-    refreshHealth();
-  };
-  es.addEventListener('alert', onAlert);
-  es.addEventListener('ack', onAlert);
+  let sensorsTimer = 0;
+  es.addEventListener('alert', (e) => {
+    const a = /** @type {AlertView} */ (JSON.parse(/** @type {MessageEvent} */ (e).data));
+    app.alerts.set(a.id, a);
+    app.changed('alerts');
+    // A fault changes a sensor's state: read the sensors again (once for a burst of alerts).
+    clearTimeout(sensorsTimer);
+    sensorsTimer = setTimeout(() => void refreshSensors(), 300);
+  });
   es.addEventListener('notice', (e) => {
-    const n = JSON.parse(e.data);
-    const box = document.getElementById('notice');
+    const n = JSON.parse(/** @type {MessageEvent} */ (e).data);
+    const box = byId('notice');
     box.hidden = false;
-    box.textContent = `${n.title}${n.body ? ` — ${n.body}` : ''}`;
+    box.textContent = `${n.title}${n.body ? ` — ${n.body.split('\n')[0]}` : ''}`;
   });
 }
 
 async function start() {
-  state.site = await api(withToken('/api/site'));
-  document.getElementById('site-name').textContent = state.site.site;
-  document.title = `reefd · ${state.site.site}`;
-  state.mapGroups = drawMap(document.getElementById('map'), state.site);
-  const [records, alerts, health] = await Promise.all([
-    api(withToken('/api/records')),
-    api(withToken('/api/alerts')),
-    api(withToken('/api/health')),
+  const site = /** @type {SiteInfo} */ (await api('/api/site'));
+  const [history, alerts, sensors, fieldLog] = await Promise.all([
+    /** @type {Promise<HistoryBody>} */ (api('/api/history?part=latest')),
+    /** @type {Promise<{alerts: AlertView[]}>} */ (api('/api/alerts')),
+    /** @type {Promise<SensorsBody>} */ (api('/api/sensors')),
+    /** @type {Promise<FieldLog>} */ (api('/api/fieldlog')),
   ]);
-  addRecords(records.records);
-  for (const a of alerts.alerts) state.alerts.set(a.id, a);
-  state.health = health.sensors;
-  renderAll();
+  // Whole series for the station and transect shown (and the small site-wide ones); the newest of the rest.
+  const store = new RecordStore(20_000, (r) => keepSeries(r));
+  store.add(/** @type {Rec[]} */ (history.latest));
+  const narrow = matchMedia('(max-width: 720px)').matches;
+  app = {
+    site,
+    clock: siteClock(site.timezone),
+    store,
+    alerts: new Map(alerts.alerts.map((a) => [a.id, a])),
+    sensors,
+    fieldLog,
+    selected: { station: site.stations[0]?.id ?? '', transect: site.transects[0]?.id ?? '' },
+    view: { presetH: 24, fromMs: 0, toMs: 0 },
+    lastPresetH: 24,
+    plots: new Map(),
+    map: null,
+    narrow,
+    focusSensor: null,
+    fetched: new Map(),
+    nowMs() {
+      // The wall clock, or the data's own time when it is far from it (a replayed or stopped site).
+      const now = Date.now();
+      return store.latestMs > 0 && Math.abs(now - store.latestMs) > 2 * 3_600_000 ? store.latestMs : now;
+    },
+    api,
+    changed(what) {
+      dirty.add(what);
+      if (!frame) frame = requestAnimationFrame(render);
+    },
+    selectStation(id, scroll) {
+      if (app.selected.station !== id) {
+        app.selected.station = id;
+        app.store.prune();
+        app.changed('station');
+        void loadPlace(`station=${encodeURIComponent(id)}`);
+        ensureRanges();
+      }
+      if (scroll) byId('stations').scrollIntoView({ block: 'start' });
+    },
+    selectTransect(id) {
+      app.selected.transect = id;
+      app.store.prune();
+      app.changed('station');
+      void loadPlace(`transect=${encodeURIComponent(id)}`);
+      ensureRanges();
+    },
+    setRange(fromMs, toMs) {
+      app.view = { presetH: null, fromMs, toMs };
+      app.changed('view');
+      ensureRanges();
+    },
+    setPreset(h) {
+      app.view = { presetH: h, fromMs: 0, toMs: 0 };
+      app.lastPresetH = h;
+      app.changed('view');
+      ensureRanges();
+    },
+  };
+  const fromHash = /station=([^&]+)/.exec(location.hash)?.[1];
+  const reef = computeReef(app);
+  app.selected.station =
+    fromHash && site.stations.some((s) => s.id === fromHash)
+      ? fromHash
+      : (reef.station ?? app.selected.station);
+  byId('site-name').textContent = site.site;
+  document.title = `${site.site} · reefd`;
+  const mapNode = /** @type {SVGSVGElement} */ (/** @type {unknown} */ (byId('map')));
+  app.map = drawMap(mapNode, site, (id) => app.selectStation(id, false), narrow);
+  wireControls();
+  await Promise.all([
+    loadPlace(`station=${encodeURIComponent(app.selected.station)}`),
+    app.selected.transect ? loadPlace(`transect=${encodeURIComponent(app.selected.transect)}`) : undefined,
+    loadPlace('type=light,forecast,daily'),
+  ]);
+  for (const w of /** @type {Change[]} */ (['alerts', 'sensors', 'records', 'station'])) dirty.add(w);
+  render();
   connect();
-  setInterval(refreshHealth, 30_000);
-  setInterval(renderOverview, 60_000);
+  ensureRanges();
+  setInterval(() => app.changed('clock'), 30_000);
+  setInterval(() => void refreshSensors(), 30_000);
   document.body.dataset.ready = 'true';
 }
 
-start().catch((err) => {
-  document.getElementById('live-text').textContent = `failed to load: ${err.message}`;
-  document.getElementById('live').dataset.state = 'down';
+function wireControls() {
+  const range = byId('range');
+  for (const h of PRESETS_H) {
+    const b = document.createElement('button');
+    b.type = 'button';
+    b.dataset.preset = String(h);
+    b.textContent = h < 48 ? `${h} h` : `${h / 24} d`;
+    b.addEventListener('click', () => app.setPreset(h));
+    range.insertBefore(b, byId('range-later'));
+  }
+  const shift = (/** @type {number} */ f) => {
+    const r = viewRange(app.view, app.nowMs());
+    const w = r.toMs - r.fromMs;
+    const from = Math.min(r.fromMs + f * w, app.nowMs() + 60_000 - w);
+    app.setRange(from, from + w);
+  };
+  byId('range-earlier').addEventListener('click', () => shift(-0.5));
+  byId('range-later').addEventListener('click', () => shift(0.5));
+  byId('reef-go').addEventListener('click', (e) => {
+    e.preventDefault();
+    const id = /** @type {HTMLElement} */ (e.currentTarget).dataset.station;
+    if (id) app.selectStation(id, true);
+  });
+  byId('inst-go').addEventListener('click', (e) => {
+    e.preventDefault();
+    app.focusSensor = /** @type {HTMLElement} */ (e.currentTarget).dataset.sensor || null;
+    if (!app.focusSensor) byId('sensors').scrollIntoView({ block: 'start' });
+    app.changed('sensors');
+  });
+}
+
+start().catch((/** @type {Error} */ err) => {
+  const live = document.getElementById('live');
+  if (live) {
+    live.textContent = `failed to load: ${err.message}`;
+    live.dataset.state = 'down';
+  }
   console.error(err);
 });

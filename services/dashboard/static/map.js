@@ -1,19 +1,21 @@
-// The site schematic: stations placed by their lat/lon on a drawing of our own (open sea, reef platform,
-// crest line, lagoon and channel, when the site has stations in those roles), with freshness as the ring
-// colour and the QC state as the fill.
+// @ts-check
+// The site schematic: stations placed by their positions on a drawing of our own (open sea, reef platform,
+// crest line, lagoon and channel where the site has stations in those roles). Each station's disc is coloured
+// by the reef's condition there and its ring by the state of its instruments; a click selects the station.
+import { svg } from './dom.js';
 
-const NS = 'http://www.w3.org/2000/svg';
+/** @typedef {import('./types.js').SiteInfo} SiteInfo */
+/** @typedef {import('./types.js').SiteStation} SiteStation */
+/** @typedef {import('./verdicts.js').Level} Level */
+
 const W = 640;
-const H = 380;
-const PAD = 46;
+const H = 300;
+const PAD = 50;
 
-function svg(tag, attrs = {}, text) {
-  const e = document.createElementNS(NS, tag);
-  for (const [k, v] of Object.entries(attrs)) e.setAttribute(k, String(v));
-  if (text !== undefined) e.textContent = text;
-  return e;
-}
-
+/**
+ * @param {string} id
+ * @param {string} label
+ */
 export function roleOf(id, label = '') {
   const s = `${id} ${label}`.toLowerCase();
   for (const r of ['fore', 'crest', 'back', 'flat', 'lagoon', 'channel', 'mast', 'weather'])
@@ -21,14 +23,18 @@ export function roleOf(id, label = '') {
   return 'other';
 }
 
-/** Projects positions into the view box, equal metres per pixel on both axes. */
+/**
+ * Projects positions into the view box, equal metres per pixel on both axes.
+ * @param {SiteStation[]} stations
+ * @returns {(p: {lat: number, lon: number} | null) => {x: number, y: number} | null}
+ */
 export function projection(stations) {
-  const pts = stations.filter((s) => s.position);
+  const pts = /** @type {{lat: number, lon: number}[]} */ (stations.map((s) => s.position).filter(Boolean));
   if (pts.length === 0) return () => null;
-  const lat0 = pts.reduce((a, s) => a + s.position.lat, 0) / pts.length;
+  const lat0 = pts.reduce((a, p) => a + p.lat, 0) / pts.length;
   const k = Math.cos((lat0 * Math.PI) / 180);
-  const xs = pts.map((s) => s.position.lon * k);
-  const ys = pts.map((s) => s.position.lat);
+  const xs = pts.map((p) => p.lon * k);
+  const ys = pts.map((p) => p.lat);
   const [x0, x1, y0, y1] = [Math.min(...xs), Math.max(...xs), Math.min(...ys), Math.max(...ys)];
   const scale = Math.min((W - 2 * PAD) / Math.max(x1 - x0, 1e-9), (H - 2 * PAD) / Math.max(y1 - y0, 1e-9));
   const ox = (W - (x1 - x0) * scale) / 2;
@@ -36,122 +42,144 @@ export function projection(stations) {
   return (p) => (p ? { x: ox + (p.lon * k - x0) * scale, y: H - (oy + (p.lat - y0) * scale) } : null);
 }
 
-export function drawMap(node, site) {
+/**
+ * Draws the schematic; returns each station's group and the function that colours them.
+ * @param {SVGSVGElement} node
+ * @param {SiteInfo} site
+ * @param {(id: string) => void} onPick
+ * @param {boolean} narrow a phone: larger type, as the drawing is scaled down
+ */
+export function drawMap(node, site, onPick, narrow) {
   node.setAttribute('viewBox', `0 0 ${W} ${H}`);
-  node.replaceChildren();
-  const defs = svg('defs');
-  const marker = svg('marker', {
-    id: 'arrow',
-    viewBox: '0 0 10 10',
-    refX: 8,
-    refY: 5,
-    markerWidth: 7,
-    markerHeight: 7,
-    orient: 'auto-start-reverse',
-  });
-  marker.append(svg('path', { d: 'M0,0 L10,5 L0,10 z', fill: '#00717f' }));
-  defs.append(marker);
-  node.append(defs, svg('rect', { class: 'ocean', x: 0, y: 0, width: W, height: H }));
+  node.replaceChildren(svg('rect', { class: 'ocean', x: 0, y: 0, width: W, height: H }));
   const proj = projection(site.stations);
+  /** @type {Record<string, {x: number, y: number}>} */
   const at = {};
   for (const s of site.stations) {
     const p = proj(s.position);
     if (p) at[roleOf(s.id, s.label)] = p;
   }
-  if (at.crest && (at.back || at.flat)) {
-    const west = Math.min(...Object.values(at).map((p) => p.x)) - 34;
-    const crestX = at.crest.x + 14;
-    const reef = svg('path', {
-      class: 'reef',
-      d: `M${west - 20},${18} L${crestX},${18} Q${crestX + 16},${H / 2} ${crestX},${H - 18} L${west - 20},${H - 18} z`,
-    });
-    node.append(reef);
-    const backX = (at.back ?? at.flat).x - 14;
-    const chan = at.channel;
-    const lagoon = svg('path', {
-      class: 'lagoon',
-      d: `M${west},${44} L${backX},${44} Q${backX + 10},${H / 2} ${backX},${H - 60} L${west},${H - 60} z`,
-    });
-    node.append(lagoon);
-    if (chan)
+  const crest = at.crest;
+  const inner = at.back ?? at.flat;
+  if (crest && inner) {
+    const west = Math.min(...Object.values(at).map((p) => p.x)) - 40;
+    node.append(
+      svg('path', {
+        class: 'reef',
+        d: `M${west - 30},14 L${crest.x + 16},14 Q${crest.x + 34},${H / 2} ${crest.x + 16},${H - 14} L${west - 30},${H - 14} z`,
+      }),
+      svg('path', {
+        class: 'lagoon',
+        d: `M${west - 10},36 L${inner.x - 16},36 Q${inner.x - 4},${H / 2} ${inner.x - 16},${H - 48} L${west - 10},${H - 48} z`,
+      }),
+      svg('path', {
+        class: 'crestline',
+        d: `M${crest.x + 8},22 Q${crest.x + 24},${H / 2} ${crest.x + 8},${H - 22}`,
+      }),
+    );
+    if (at.channel)
       node.append(
         svg('rect', {
           class: 'ocean',
-          x: chan.x - 16,
-          y: chan.y - 6,
-          width: 32,
-          height: H - chan.y + 6,
+          x: at.channel.x - 14,
+          y: at.channel.y - 4,
+          width: 28,
+          height: H - at.channel.y + 4,
           rx: 6,
         }),
       );
     node.append(
-      svg('path', {
-        class: 'crestline',
-        d: `M${at.crest.x + 6},${26} Q${at.crest.x + 22},${H / 2} ${at.crest.x + 6},${H - 26}`,
-      }),
-    );
-    const y = at.crest.y + 70;
-    const bx = (at.back ?? at.flat).x;
-    node.append(svg('path', { class: 'flow', d: `M${at.crest.x - 6},${y} L${bx + 6},${y}` }));
-    node.append(
-      svg(
-        'text',
-        { class: 'tag', x: (at.crest.x + bx) / 2, y: y + 18, 'text-anchor': 'middle' },
-        'wave-driven flow',
-      ),
-    );
-    if (chan)
-      node.append(
-        svg('path', {
-          class: 'flow',
-          d: `M${chan.x + 40},${chan.y - 70} Q${chan.x + 44},${chan.y - 20} ${chan.x + 40},${chan.y + 10}`,
-        }),
-      );
-    node.append(
-      svg(
-        'text',
-        { class: 'tag', x: W - 16, y: H - 16, 'text-anchor': 'end' },
-        'open sea (waves from the east)',
-      ),
-    );
-    node.append(
-      svg('text', { class: 'tag', x: at.crest.x - 12, y: H - 30, 'text-anchor': 'end' }, 'reef flat'),
-    );
-    node.append(
-      svg('text', { class: 'tag', x: (west + bx) / 2, y: H - 76, 'text-anchor': 'middle' }, 'lagoon'),
+      svg('text', { class: 'tag', x: W - 12, y: H - 12, 'text-anchor': 'end' }, 'open sea'),
+      svg('text', { class: 'tag', x: west + 6, y: H - 56, 'text-anchor': 'start' }, 'lagoon'),
     );
   }
+  /** @type {Record<string, SVGGElement>} */
   const groups = {};
-  // Labels centred on their station, alternating above and below along x so neighbours do not collide.
   const placed = site.stations
     .map((s) => ({ s, p: proj(s.position) }))
-    .filter((x) => x.p)
-    .sort((a, b) => a.p.x - b.p.x);
-  let above = true;
-  let prevX = -Infinity;
+    .filter((x) => x.p !== null)
+    .sort((a, b) => /** @type {{x: number}} */ (a.p).x - /** @type {{x: number}} */ (b.p).x);
+  // Labels go where they overlap neither a marker nor another label: above, below, then further out with a
+  // leader line (estimated text widths; the font is larger on a phone, where the drawing is scaled down).
+  const fontPx = narrow ? 26 : 17;
+  /** @type {{x: number, y: number, w: number, h: number}[]} */
+  const taken = placed.map(({ p }) => ({
+    x: /** @type {{x: number}} */ (p).x - 14,
+    y: /** @type {{y: number}} */ (p).y - 14,
+    w: 28,
+    h: 28,
+  }));
+  const hits = (/** @type {{x: number, y: number, w: number, h: number}} */ b) =>
+    b.x < 2 ||
+    b.x + b.w > W - 2 ||
+    b.y < 2 ||
+    b.y + b.h > H - 2 ||
+    taken.some((t) => b.x < t.x + t.w && t.x < b.x + b.w && b.y < t.y + t.h && t.y < b.y + b.h);
   for (const { s, p } of placed) {
-    above = p.x - prevX < 110 ? !above : p.y > 60;
-    prevX = p.x;
-    const g = svg('g', { class: 'station', 'data-station': s.id, transform: `translate(${p.x},${p.y})` });
-    g.append(svg('circle', { class: 'ring', r: 11 }), svg('circle', { class: 'core', r: 5.5 }));
+    const q = /** @type {{x: number, y: number}} */ (p);
+    const g = /** @type {SVGGElement} */ (
+      svg('g', {
+        class: 'station',
+        'data-station': s.id,
+        transform: `translate(${q.x},${q.y})`,
+        tabindex: 0,
+        role: 'button',
+      })
+    );
     const name = s.label.replace(/\s*\(.*\)$/, '');
-    const x = Math.min(Math.max(0, W - 60 - p.x), Math.max(0, 60 - p.x));
-    g.append(svg('text', { x, y: above ? -32 : 28, 'text-anchor': 'middle' }, name));
-    g.append(svg('text', { class: 'val', x, y: above ? -18 : 42, 'text-anchor': 'middle' }, ''));
-    g.append(svg('title', {}, s.label));
+    const w = name.length * fontPx * 0.58;
+    const h = fontPx;
+    let spot = { dx: 0, dy: -18, box: { x: q.x - w / 2, y: q.y - 18 - h, w, h } };
+    search: for (const ring of [0, 1, 2, 3, 4]) {
+      for (const side of [-1, 1]) {
+        for (const shift of [0, -0.6, 0.6, -1.1, 1.1]) {
+          const dy = side < 0 ? -18 - ring * (h + 4) : 18 + h * 0.8 + ring * (h + 4);
+          const dx = shift * w;
+          const box = { x: q.x + dx - w / 2, y: q.y + dy - h * 0.8, w, h };
+          if (!hits(box)) {
+            spot = { dx, dy, box };
+            break search;
+          }
+        }
+      }
+    }
+    taken.push(spot.box);
+    if (Math.abs(spot.dy) > 18 + h || spot.dx !== 0)
+      g.append(
+        svg('line', {
+          class: 'leader',
+          x1: 0,
+          y1: 0,
+          x2: spot.dx,
+          y2: spot.dy + (spot.dy < 0 ? 2 : -h * 0.8),
+        }),
+      );
+    g.append(
+      svg('circle', { class: 'ring', r: 13 }),
+      svg('circle', { class: 'core', r: 8 }),
+      svg('text', { x: spot.dx, y: spot.dy, 'text-anchor': 'middle', 'font-size': fontPx }, name),
+      svg('title', {}, s.label),
+    );
+    g.addEventListener('click', () => onPick(s.id));
+    g.addEventListener('keydown', (e) => {
+      if (e.key === 'Enter' || e.key === ' ') onPick(s.id);
+    });
     node.append(g);
     groups[s.id] = g;
   }
-  return groups;
-}
-
-const FRESH = { ok: '#1b7b3a', late: '#a85600', stale: '#b0221b' };
-const QC = { 1: '#1b7b3a', 2: '#8a969c', 3: '#a85600', 4: '#b0221b', 9: '#b0221b' };
-
-export function paintStation(g, { fresh, qc, value }) {
-  if (!g) return;
-  g.querySelector('circle.ring').setAttribute('stroke', FRESH[fresh] ?? '#8a969c');
-  g.querySelector('circle.core').setAttribute('fill', QC[qc] ?? '#8a969c');
-  g.querySelector('text.val').textContent = value ?? '';
-  g.setAttribute('data-fresh', fresh);
+  return {
+    /**
+     * @param {string} id
+     * @param {Level} reef
+     * @param {string} instruments worst sensor state at the station
+     * @param {boolean} selected
+     */
+    paint(id, reef, instruments, selected) {
+      const g = groups[id];
+      if (!g) return;
+      g.dataset.reef = reef;
+      g.dataset.instruments = instruments;
+      g.classList.toggle('selected', selected);
+    },
+  };
 }
