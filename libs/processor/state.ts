@@ -38,6 +38,8 @@ export const STATION_VARS = [
   'hm0ss', // sea-swell Hm0 of a burst, m
   'depthDone', // the same depth, stamped when its burst completed (what an ensemble may use)
   'hm0ssDone',
+  'burstCentre', // centre time (ms) of the burst of each depthDone sample, stamped with it
+  'adcpDepth', // water depth from an ADCP's own pressure at its ensemble time, m
   'east', // depth-averaged current, m/s
   'north',
 ] as const;

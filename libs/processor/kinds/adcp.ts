@@ -1,21 +1,24 @@
-// ADCP: the depth-averaged current of each ensemble (docs/methods/currents.md 5.5-5.6), with the depth of the
-// station's pressure logger once its burst is complete, a `current` record per ensemble, and the east and north
-// series of the flux windows.
+// ADCP: the depth-averaged current of each ensemble (docs/methods/currents.md 5.5-5.6), with the depth from the
+// ADCP's own pressure, else from the station's pressure logger (adcp-depth.ts), a `current` record per ensemble,
+// and the east and north series of the flux windows.
 import type { AdcpMessage, CurrentRecord } from '../../contract/index.js';
 import { processEnsemble, type AdcpEnsemble, type AdcpSensorConfig } from '../../currents/index.js';
 import { densityEos80 } from '../../seawater/index.js';
 import { baroAt, ctdAt, series, worst, type DeriveContext } from '../derive.js';
 import { nearest } from '../series.js';
+import { depthDifferenceM, loggerDepthAt } from './adcp-depth.js';
 import { atSampleTime, defineKind, type SensorConfigOf } from './types.js';
 
 const HOUR = 3_600_000;
+/** Logger and ADCP depths differing by more than this give 3 (docs/methods/qc.md 7.2 test 9), m. */
+const DEPTH_MISMATCH_M = 0.05;
 
 export const adcp = defineKind({
   kind: 'adcp',
   order: 4,
   qcVariables: [],
-  writes: { station: ['east', 'north'], site: [] },
-  reads: { station: ['depthDone', 'hm0ssDone', 'temp', 'sal'], site: ['baro'] },
+  writes: { station: ['east', 'north', 'adcpDepth'], site: [] },
+  reads: { station: ['depthDone', 'burstCentre', 'adcpDepth', 'hm0ssDone', 'temp', 'sal'], site: ['baro'] },
   completeMs: atSampleTime,
   derive(m, io) {
     if (io.sensorConfig === undefined) return;
@@ -24,6 +27,7 @@ export const adcp = defineKind({
     const tilt = r.record.reason === 'tilt' ? 4 : 1;
     const speed = r.record.speed_m_s;
     io.alert('current.speed_m_s', speed === null ? Number.NaN : speed, Math.max(r.flag, tilt));
+    if (r.ownDepthM !== null) io.put('adcpDepth', m.tMs, r.ownDepthM, r.flag);
     if (r.eastMS !== null && r.northMS !== null) {
       io.put('east', m.tMs, r.eastMS, r.flag);
       io.put('north', m.tMs, r.northMS, r.flag);
@@ -65,9 +69,17 @@ export function deriveCurrent(
   ctx: DeriveContext,
   m: AdcpMessage,
   s: SensorConfigOf<'adcp'>,
-): { record: CurrentRecord; flag: number; eastMS: number | null; northMS: number | null } {
-  // Depth from the station's pressure logger within the last hour, else the ADCP's own pressure (the lib).
-  const depth = nearest(series(ctx, m.station, 'depthDone'), m.tMs, HOUR, ctx.asOfMs);
+): {
+  record: CurrentRecord;
+  flag: number;
+  eastMS: number | null;
+  northMS: number | null;
+  ownDepthM: number | null;
+} {
+  // The ADCP's own pressure gives the depth at the ensemble's time (the library uses it when no station depth
+  // is passed); only without it does the logger's depth stand in.
+  const ownPressure = m.pres_dbar !== undefined && Number.isFinite(m.pres_dbar);
+  const depth = ownPressure ? undefined : loggerDepthAt(ctx, m.station, m.tMs);
   const hm0 = nearest(series(ctx, m.station, 'hm0ssDone'), m.tMs, HOUR, ctx.asOfMs);
   const ctd = ctdAt(ctx, m.station, m.tMs);
   const baro = baroAt(ctx, m.tMs);
@@ -75,7 +87,7 @@ export function deriveCurrent(
     reefAxisDeg: ctx.config.reef_axis_deg,
     patmDbar: baro.hpa * 0.01,
     gMS2: ctx.gMS2,
-    ...(depth ? { depthM: depth.value } : {}),
+    ...(depth ? { depthM: depth.depthM } : {}),
     ...(hm0 ? { hm0SsM: hm0.value } : {}),
     ...(ctd ? { rhoKgM3: densityEos80(ctd.sal.value, ctd.temp.value) } : {}),
   });
@@ -99,9 +111,11 @@ export function deriveCurrent(
       flag: r.flag,
       reason: r.reason,
     };
-    return { record, flag: r.flag, eastMS: null, northMS: null };
+    return { record, flag: r.flag, eastMS: null, northMS: null, ownDepthM: null };
   }
-  const flag = worst(r.flag, depth ? depth.flag : 1);
+  const diffM = ownPressure ? depthDifferenceM(ctx, m.station, m.tMs) : undefined;
+  const mismatch = diffM !== undefined && Math.abs(diffM) > DEPTH_MISMATCH_M;
+  const flag = worst(r.flag, depth ? depth.flag : 1, mismatch ? 3 : 1);
   const record: CurrentRecord = {
     ...base,
     east_m_s: r.eastMS,
@@ -117,5 +131,7 @@ export function deriveCurrent(
     speed_sigma_m_s: r.sigmaMS,
     flag,
   };
-  return { record, flag, eastMS: r.eastMS, northMS: r.northMS };
+  if (diffM !== undefined) record.depth_diff_m = diffM;
+  const ownDepthM = r.depthSource === 'adcp' ? r.depthM : null;
+  return { record, flag, eastMS: r.eastMS, northMS: r.northMS, ownDepthM };
 }

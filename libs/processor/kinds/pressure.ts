@@ -14,7 +14,7 @@ export const pressure = defineKind({
   kind: 'pressure',
   order: 2,
   qcVariables: ['depth_m'],
-  writes: { station: ['depth', 'hm0ss', 'depthDone', 'hm0ssDone'], site: [] },
+  writes: { station: ['depth', 'hm0ss', 'depthDone', 'hm0ssDone', 'burstCentre'], site: [] },
   reads: { station: ['temp', 'sal'], site: ['baro'] },
   completeMs: burstCompleteMs,
   derive(m, io) {
@@ -29,7 +29,10 @@ export const pressure = defineKind({
     if (r.hm0SsM !== null) io.put('hm0ss', tC, r.hm0SsM, f);
     // Stamped at completion too: an ensemble may use a burst only once the burst is complete.
     const done = burstCompleteMs(m);
-    if (r.depthM !== null) io.put('depthDone', done, r.depthM, f);
+    if (r.depthM !== null) {
+      io.put('depthDone', done, r.depthM, f);
+      io.put('burstCentre', done, tC, f);
+    }
     if (r.hm0SsM !== null) io.put('hm0ssDone', done, r.hm0SsM, f);
     r.record.flag = f;
     io.emit(r.record);
