@@ -5,12 +5,26 @@ import type { ReefdConfig } from '../contract/index.js';
 import type { CarbonateOptions } from '../carbonate/index.js';
 import { gravity } from '../seawater/index.js';
 import { interpolate, localMean, nearest, type Pick, type Series } from './series.js';
-import type { ProcessorState, StationVar } from './state.js';
+import type { ProcessorState, SiteVar, StationVar } from './state.js';
 
 const MIN = 60_000;
 const HOUR = 3_600_000;
 /** Standard atmosphere, hPa. */
 export const STD_BARO_HPA = 1013.25;
+
+/** A series a derivation read: a station's or the site's (faults.ts maps it to the sensors that write it). */
+export type InputRef = { station: string; v: StationVar } | { station: null; v: SiteVar };
+
+/**
+ * The inputs of the message being derived: every lookup below notes the series it took a value from, so the
+ * record knows the sensors it was built from (docs/methods/faults.md 12.7). `healthy` says whether the writers
+ * of a series are free of invalidating faults at a time: a lookup with a fallback (the standard barometer, the
+ * default density) takes the fallback instead of a faulty sensor.
+ */
+export interface InputTracker {
+  used: InputRef[];
+  healthy(ref: InputRef, tMs: number): boolean;
+}
 
 export interface DeriveContext {
   /**
@@ -22,11 +36,19 @@ export interface DeriveContext {
   state: ProcessorState;
   carbonateOptions: CarbonateOptions;
   gMS2: number;
+  inputs: InputTracker;
 }
 
-export function makeContext(config: ReefdConfig, state: ProcessorState): DeriveContext {
+const ALWAYS_HEALTHY = (): boolean => true;
+
+export function makeContext(
+  config: ReefdConfig,
+  state: ProcessorState,
+  healthy: InputTracker['healthy'] = ALWAYS_HEALTHY,
+): DeriveContext {
   return {
     asOfMs: Infinity,
+    inputs: { used: [], healthy },
     config,
     state,
     carbonateOptions: {
@@ -37,6 +59,11 @@ export function makeContext(config: ReefdConfig, state: ProcessorState): DeriveC
   };
 }
 
+/** Notes that the message's records are built from the series `ref` (see InputTracker). */
+export function use(ctx: DeriveContext, ref: InputRef): void {
+  ctx.inputs.used.push(ref);
+}
+
 export function series(ctx: DeriveContext, station: string, v: StationVar): Series {
   const st = ctx.state.stations[station];
   if (st === undefined)
@@ -44,12 +71,21 @@ export function series(ctx: DeriveContext, station: string, v: StationVar): Seri
   return st[v];
 }
 
-/** Temperature and salinity of the station's CTD at tMs (+-ctd_average_min mean, else nearest within the limit). */
+/**
+ * Temperature and salinity of the station's CTD at tMs (+-ctd_average_min mean, else nearest within the limit).
+ * `optional`: the caller has a fallback without a CTD, so a CTD with a fault in force gives undefined.
+ */
 export function ctdAt(
   ctx: DeriveContext,
   station: string,
   tMs: number,
+  optional = false,
 ): { temp: Pick; sal: Pick } | undefined {
+  if (
+    optional &&
+    !(ctx.inputs.healthy({ station, v: 'temp' }, tMs) && ctx.inputs.healthy({ station, v: 'sal' }, tMs))
+  )
+    return undefined;
   const p = ctx.config.processing;
   const temp = localMean(
     series(ctx, station, 'temp'),
@@ -65,16 +101,28 @@ export function ctdAt(
     p.ctd_match_min * MIN,
     ctx.asOfMs,
   );
-  return temp && sal ? { temp, sal } : undefined;
+  if (!temp || !sal) return undefined;
+  use(ctx, { station, v: 'temp' });
+  use(ctx, { station, v: 'sal' });
+  return { temp, sal };
 }
 
-/** Barometric pressure at tMs, hPa, interpolated; after a gap over baro_max_gap_h the standard value, flag 3. */
+/**
+ * Barometric pressure at tMs, hPa, interpolated; after a gap over baro_max_gap_h, or while the barometer has a
+ * fault in force, the standard value, flag 3.
+ */
 export function baroAt(
   ctx: DeriveContext,
   tMs: number,
 ): { hpa: number; flag: number; source: 'met' | 'default' } {
-  const pick = interpolate(ctx.state.site.baro, tMs, ctx.config.processing.baro_max_gap_h * HOUR, ctx.asOfMs);
-  if (pick) return { hpa: pick.value, flag: pick.flag, source: 'met' };
+  const ref: InputRef = { station: null, v: 'baro' };
+  const pick = ctx.inputs.healthy(ref, tMs)
+    ? interpolate(ctx.state.site.baro, tMs, ctx.config.processing.baro_max_gap_h * HOUR, ctx.asOfMs)
+    : undefined;
+  if (pick) {
+    use(ctx, ref);
+    return { hpa: pick.value, flag: pick.flag, source: 'met' };
+  }
   return { hpa: ctx.config.processing.default_baro_hpa, flag: 3, source: 'default' };
 }
 
@@ -97,6 +145,7 @@ export function taFor(
     const pick = nearest(s, tMs, maxAge);
     if (pick && pick.tMs <= tMs) {
       const sSal = nearest(series(ctx, station, 'sampleSal'), pick.tMs, 0);
+      use(ctx, { station, v: 'sampleTa' });
       // Carry the bottle TA to the present salinity (TA is conservative with S; Friis et al. 2003).
       const ta = sSal ? (pick.value * salinity) / sSal.value : pick.value;
       return { ta, source: 'sample' };

@@ -1,31 +1,49 @@
 // Derives one message through its kind's module (kinds/): binds the message to a KindIO, checks the battery
-// (every kind), runs the module's `derive`, and notes the sensor's health from what it produced.
+// (every kind), runs the module's `derive`, and notes the sensor's health from what it produced. Fault
+// propagation (docs/methods/faults.md 12.7) happens here, the same for every kind: a record built from a sensor
+// with an invalidating fault in force at the message's time (its own, or one it read through the derive.ts
+// lookups) is flagged 4 and names the faults (`invalid_reasons`), and the alert engine sees its values as 4.
+// The series keep the values' own QC flags: the flux windows judge their inputs' faults themselves (flux.ts).
 import type { DerivedRecord, Kind, SensorConfig, SensorMessage } from '../contract/index.js';
 import type { DeriveContext } from './derive.js';
+import type { FaultWiring } from './faults.js';
 import { kindModules, type KindIO, type KindModule } from './kinds/index.js';
 import type { Observer } from './observe.js';
-import { capCount, insert } from './series.js';
-import { sensorStateOf } from './sensors.js';
+import { capCount, insert, lowerBound, type Series } from './series.js';
+import { sensorKey, sensorStateOf } from './sensors.js';
 import type { ProcessorState, SensorState, SiteVar, StationVar } from './state.js';
 
 /** Bound on remembered samples per series, whatever the sensor's rate. */
 const MAX_SERIES_SAMPLES = 4096;
+
+type PutRef = NonNullable<SensorState['lastPuts']>[number];
 
 /** The KindIO of one message: every effect of a kind's derive goes through these methods. */
 class MessageIO implements KindIO<Kind> {
   readonly ctx: DeriveContext;
   readonly sensorConfig: SensorConfig | undefined;
   readonly sensorState: SensorState;
+  /** What this message wrote to the series (kept for a late spike verdict, see SensorState.lastPuts). */
+  readonly puts: PutRef[] = [];
   readonly #m: SensorMessage;
   readonly #rxMs: number;
   readonly #out: DerivedRecord[];
   readonly #observer: Observer;
   readonly #state: ProcessorState;
+  readonly #faults: FaultWiring | undefined;
 
-  constructor(ctx: DeriveContext, observer: Observer, m: SensorMessage, rxMs: number, out: DerivedRecord[]) {
+  constructor(
+    ctx: DeriveContext,
+    observer: Observer,
+    faults: FaultWiring | undefined,
+    m: SensorMessage,
+    rxMs: number,
+    out: DerivedRecord[],
+  ) {
     this.ctx = ctx;
     this.#state = ctx.state;
     this.#observer = observer;
+    this.#faults = faults;
     this.#m = m;
     this.#rxMs = rxMs;
     this.#out = out;
@@ -34,8 +52,40 @@ class MessageIO implements KindIO<Kind> {
     this.sensorState = sensorStateOf(ctx.state, m);
   }
 
+  /** The sensors this message's records are built from so far: its own and the writers of what it read. */
+  inputKeys(): Set<string> {
+    const keys = new Set<string>([sensorKey(this.#m)]);
+    if (this.#faults === undefined) return keys;
+    for (const ref of this.ctx.inputs.used) for (const k of this.#faults.writers(ref)) keys.add(k);
+    return keys;
+  }
+
+  /** The invalidating faults in force among the inputs at the message's time (docs/methods/faults.md 12.7). */
+  faultReasons(): string[] {
+    return this.#faults === undefined ? [] : this.#faults.faultsAt(this.inputKeys(), this.#m.tMs);
+  }
+
+  #faultFlag(flag: number): number {
+    return flag < 4 && this.faultReasons().length > 0 ? 4 : flag;
+  }
+
+  /**
+   * The value's own flag (QC and `flagIn`) goes back to the kind, for its records and series: a sensor's fault
+   * is not a failed value, and lookups of later messages must still find its samples (a record built from them
+   * is flagged 4 in `emit`). The alert engine sees the fault: no threshold acts on a faulty sensor's values.
+   */
   qc(metric: string, variable: string, value: number, flagIn = 1): number {
-    return this.#observer.qc(this.#m, metric, variable, value, this.#rxMs, this.#out, flagIn);
+    const m = this.#m;
+    const v = this.#observer.qc(m, metric, variable, value, this.#rxMs, this.#out, this.#faultFlag(flagIn));
+    if (v.previousFailedMs !== undefined) this.#markPreviousFailed(v.previousFailedMs);
+    return Math.max(v.qcFlag, flagIn);
+  }
+
+  /** The supply voltage: QC and the battery rules, outside the fault propagation (it never invalidates data). */
+  battery(volts: number): void {
+    const m = this.#m;
+    this.#observer.qc(m, `${m.kind}.battery_v`, 'battery_v', volts, this.#rxMs, this.#out, 1, false);
+    this.#faults?.onBattery(m, volts);
   }
 
   alert(metric: string, value: number, flag: number): number {
@@ -43,11 +93,17 @@ class MessageIO implements KindIO<Kind> {
   }
 
   emit(record: DerivedRecord): void {
+    const reasons = this.faultReasons();
+    if (reasons.length > 0) {
+      const r = record as { flag?: number; invalid_reasons?: string };
+      r.flag = Math.max(r.flag ?? 1, 4);
+      r.invalid_reasons = reasons.join(',');
+    }
     this.#out.push(record);
   }
 
   observe(record: DerivedRecord, flag: number): void {
-    this.#observer.record(record, this.#m.sensor, this.#m.tMs, flag, this.#out);
+    this.#observer.record(record, this.#m.sensor, this.#m.tMs, this.#faultFlag(flag), this.#out);
   }
 
   put(v: StationVar, tMs: number, value: number, flag: number): void {
@@ -55,6 +111,7 @@ class MessageIO implements KindIO<Kind> {
     if (s === undefined || !Number.isFinite(value)) return;
     insert(s, tMs, value, flag);
     capCount(s, MAX_SERIES_SAMPLES);
+    this.puts.push({ at: 's', v, t: tMs });
   }
 
   putSite(v: SiteVar, tMs: number, value: number | undefined, flag: number): void {
@@ -62,6 +119,27 @@ class MessageIO implements KindIO<Kind> {
     const s = this.#state.site[v];
     insert(s, tMs, value, flag);
     capCount(s, MAX_SERIES_SAMPLES);
+    this.puts.push({ at: 'x', v, t: tMs });
+  }
+
+  /**
+   * The spike test judges a value only when the next one arrives: when it fails the previous value, the samples
+   * that value's message stored are marked 4, so no window mean uses them (the records sent with it stand).
+   */
+  #markPreviousFailed(atMs: number): void {
+    const st = this.sensorState;
+    const puts = st.lastPuts;
+    if (puts === undefined || st.lastPutsMs !== atMs) return;
+    for (const p of puts) {
+      const s: Series | undefined =
+        p.at === 's'
+          ? this.#state.stations[this.#m.station]?.[p.v as StationVar]
+          : this.#state.site[p.v as SiteVar];
+      if (s === undefined) continue;
+      const i = lowerBound(s, p.t);
+      if (s.t[i] === p.t) s.f[i] = 4;
+    }
+    st.lastPuts = [];
   }
 }
 
@@ -74,6 +152,7 @@ export function moduleOf(m: SensorMessage): KindModule<Kind> {
 export function deriveMessage(
   ctx: DeriveContext,
   observer: Observer,
+  faults: FaultWiring | undefined,
   m: SensorMessage,
   rxMs: number,
   out: DerivedRecord[],
@@ -82,11 +161,19 @@ export function deriveMessage(
   const from = out.length;
   if (state.firstDerivedMs === undefined || m.tMs < state.firstDerivedMs) state.firstDerivedMs = m.tMs;
   ctx.asOfMs = m.tMs;
-  const io = new MessageIO(ctx, observer, m, rxMs, out);
-  if (m.battery_v !== undefined) io.qc(`${m.kind}.battery_v`, 'battery_v', m.battery_v);
+  ctx.inputs.used = [];
+  faults?.onMessage(m);
+  const io = new MessageIO(ctx, observer, faults, m, rxMs, out);
+  if (m.battery_v !== undefined) io.battery(m.battery_v);
   moduleOf(m).derive(m, io);
-  if (m.battery_v !== undefined) io.sensorState.batteryV = m.battery_v;
-  io.sensorState.lastFlag = worstRecordFlag(out, from);
+  const st = io.sensorState;
+  if (m.battery_v !== undefined) st.batteryV = m.battery_v;
+  st.lastFlag = worstRecordFlag(out, from);
+  // Only a message in the sensor's time order can be the "previous sample" of the next one's QC.
+  if (st.lastPutsMs === undefined || m.tMs > st.lastPutsMs) {
+    st.lastPuts = io.puts;
+    st.lastPutsMs = m.tMs;
+  }
 }
 
 /** The worst flag among the records (not alerts) of out[from..], 1 when none has one. */

@@ -230,12 +230,31 @@ function fluxRecord(
   return rec;
 }
 
+/**
+ * The causes, among a transect's input sensors, that make a window over [fromMs, toMs) invalid (faults in force
+ * and failed samples, docs/methods/faults.md 12.7), e.g. `input_fault:back/co2-back/flatline`.
+ */
+export type InputReasons = (transect: string, fromMs: number, toMs: number) => string[];
+
+/**
+ * A window whose input sensors had a fault or a failed sample is not valid (docs/contract-v1.md, E3): flag 4 (a
+ * missing window keeps 9), those reasons first, then the window's own.
+ */
+function invalidate(rec: FlaggedFluxRecord, reasons: readonly string[]): void {
+  if (reasons.length === 0) return;
+  rec.valid = false;
+  if (rec.flag < 4) rec.flag = 4;
+  const own = rec.invalid_reasons ? rec.invalid_reasons.split(',') : [];
+  rec.invalid_reasons = [...reasons, ...own.filter((x) => !reasons.includes(x))].join(',');
+}
+
 /** The flux records of every transect for the window ending at endMs. */
 export function fluxAt(
   config: ReefdConfig,
   state: ProcessorState,
   endMs: number,
   params: Map<string, TransectParams>,
+  inputReasons: InputReasons = () => [],
 ): FlaggedFluxRecord[] {
   const W = config.processing.window_min * MIN;
   const out: FlaggedFluxRecord[] = [];
@@ -247,7 +266,9 @@ export function fluxAt(
     const t = new Date(endMs - W / 2).toISOString();
     const results = (state.transects[id] ??= {});
     if (!cur.window) {
-      out.push(missingFluxRecord(config.site, t, id, cur.missing));
+      const rec = missingFluxRecord(config.site, t, id, cur.missing);
+      invalidate(rec, inputReasons(id, startMs, endMs));
+      out.push(rec);
       continue;
     }
     const prev = transectWindow(state, tr, startMs - W, startMs).window;
@@ -256,7 +277,10 @@ export function fluxAt(
     // The storage form of the next window's inverse needs this one's result (kept for two windows).
     results[String(endMs)] = r;
     for (const k of Object.keys(results)) if (Number(k) < endMs - 2 * W) delete results[k];
-    out.push(fluxRecord(config.site, t, id, tr, r));
+    const rec = fluxRecord(config.site, t, id, tr, r);
+    // The storage term read the previous window's means too.
+    invalidate(rec, inputReasons(id, r.notes.includes('no_storage') ? startMs : startMs - W, endMs));
+    out.push(rec);
   }
   return out;
 }

@@ -5,7 +5,9 @@ export {
   type Processor,
   type PushResult,
   type PushStatus,
+  type ProcessorOptions,
   type SensorHealthRow,
 } from './processor.js';
+export type { FaultExclusion } from './faults.js';
 export { STATE_VERSION, type ProcessorState, type ProcessorCounters } from './state.js';
 export { checkAgainstConfig, messageFromArchiveLine, type ArchiveInput } from './intake.js';

@@ -6,6 +6,7 @@ import type { DerivedRecord, ReefdConfig, SensorMessage } from '../contract/inde
 import { createAlertEngine, type AlertEngine, type EngineSnapshot } from '../alerts/index.js';
 import { makeContext } from './derive.js';
 import { deriveMessage, moduleOf } from './dispatch.js';
+import { createFaultWiring, type FaultExclusion, type FaultWiring } from './faults.js';
 import { alertRecord, createObserver, type Observer } from './observe.js';
 import { hold, takeDue } from './order.js';
 import { isDuplicate, sensorHealth, type SensorHealthRow } from './sensors.js';
@@ -42,6 +43,15 @@ export interface Processor {
 }
 
 export type { SensorHealthRow };
+
+export interface ProcessorOptions {
+  /**
+   * Spans the field logbook excludes (docs/contract-v1.md, E2 `logbook_file`): the sensors they name are faulty
+   * (`logbook_exclusion`) over each span, so their data are flagged 4 and no flux window over them is valid.
+   * Given at every start (live, replay and restart alike); applying one again changes nothing.
+   */
+  exclusions?: readonly FaultExclusion[];
+}
 
 /** The state to start from: a checkpoint of this version, or a cold start (STATE_VERSION in state.ts). */
 function startState(config: ReefdConfig, restored: ProcessorState | undefined): ProcessorState {
@@ -95,13 +105,34 @@ function screen(
   return undefined;
 }
 
-export function createProcessor(config: ReefdConfig, restored?: ProcessorState): Processor {
+/** The fault wiring and the derive context whose lookups skip faulty optional inputs (faults.ts). */
+function startFaults(
+  config: ReefdConfig,
+  state: ProcessorState,
+  alerts: AlertEngine,
+  options: ProcessorOptions,
+) {
+  const faults: FaultWiring = createFaultWiring(config, state, alerts.rules);
+  for (const x of options.exclusions ?? []) faults.exclude(x);
+  const ctx = makeContext(
+    config,
+    state,
+    (ref, tMs) => faults.faultsAt(faults.writers(ref), tMs).length === 0,
+  );
+  return { faults, ctx };
+}
+
+export function createProcessor(
+  config: ReefdConfig,
+  restored?: ProcessorState,
+  options: ProcessorOptions = {},
+): Processor {
   const state = startState(config, restored);
   const alerts = startAlerts(config, state);
   const times = processorTimes(config);
-  const ctx = makeContext(config, state);
-  const observer = createObserver(state, alerts);
-  const windows = createWindows(config, state, times, alerts, observer);
+  const { faults, ctx } = startFaults(config, state, alerts, options);
+  const observer = createObserver(state, alerts, faults);
+  const windows = createWindows(config, state, times, alerts, observer, faults);
 
   const count = (records: readonly DerivedRecord[]): void => {
     for (const r of records) state.counters.records[r.type] = (state.counters.records[r.type] ?? 0) + 1;
@@ -109,7 +140,7 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
   const watermark = () => (state.maxEventMs > 0 ? state.maxEventMs - times.latenessMs : 0);
   /** Derives the held messages up to untilMs, in event-time order. */
   const release = (untilMs: number, out: DerivedRecord[]): void => {
-    for (const h of takeDue(state, untilMs)) deriveMessage(ctx, observer, h.message, h.rxMs, out);
+    for (const h of takeDue(state, untilMs)) deriveMessage(ctx, observer, faults, h.message, h.rxMs, out);
   };
 
   /** A message past the intake rules: derived now if late, else held; then the hold and the windows move. */
@@ -121,7 +152,7 @@ export function createProcessor(config: ReefdConfig, restored?: ProcessorState):
     if (late) {
       // Past the watermark: its windows are closed; derived now, counted late (QC judges its order).
       state.counters.late++;
-      deriveMessage(ctx, observer, m, rxMs, out);
+      deriveMessage(ctx, observer, faults, m, rxMs, out);
     } else {
       // Held in event-time order for reorder_min, then derived (reorder_min 0: at once); with
       // reorder_min = lateness_min the records do not depend on the delivery order at all.

@@ -1,8 +1,8 @@
 // The processor's records on two simulated days of the demo reef (deploy/demo/ornen-reef.yaml, libs/simulator
-// with its scripted faults) compared with a digest of what the processor gave before the per-kind registry
-// (testdata/demo-2d.digest.json, generated from main at the registry's branch point). Only `light` records
-// (one per PAR sample) are new; every other record, its order, the counters and the checkpoint's shape are
-// unchanged.
+// with its scripted faults) compared with a digest (testdata/demo-2d.digest.json) first generated from main at
+// the per-kind registry's branch point and regenerated since only where a change of the records was intended:
+// each such commit says why the records changed (git log of the digest). `light` records (one per PAR sample)
+// are left out; every other record, its order, the counters and the checkpoint's shape must match.
 //
 // Regenerate (only when a change of the records is intended, and say why in the commit):
 //   REEFD_WRITE_DIGEST=1 npx vitest run libs/processor/replay-equivalence.test.ts

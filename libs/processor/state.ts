@@ -1,5 +1,6 @@
 // The processor's state: plain JSON data, so a checkpoint is JSON.stringify and a restart resumes the windows.
 import type { SensorMessage } from '../contract/index.js';
+import { createFaultState, type FaultState } from '../qc/index.js';
 import type { Series } from './series.js';
 import { createSeries } from './series.js';
 
@@ -18,6 +19,14 @@ export interface SensorState {
   batteryV?: number;
   /** Worst QARTOD flag among the last message's values and records. */
   lastFlag?: number;
+  /** Sample times (ms) of the sensor's values that failed QC (flag 4), recent ones (faults.ts). */
+  failedMs?: number[];
+  /**
+   * What the sensor's last derived message wrote to the series (`s`tation or si`t`e, variable, time) and that
+   * message's time: a spike verdict that arrives one sample late marks those samples 4 (dispatch.ts).
+   */
+  lastPuts?: { at: 's' | 'x'; v: string; t: number }[];
+  lastPutsMs?: number;
 }
 
 /**
@@ -79,6 +88,8 @@ export interface ProcessorState {
   qc: Record<string, unknown>;
   /** Alert engine snapshot (libs/alerts). */
   alerts: unknown;
+  /** Sensor-fault state (libs/qc sensor-faults.ts, docs/methods/faults.md 12.7), plain data. */
+  faults: FaultState;
   counters: ProcessorCounters;
 }
 
@@ -97,6 +108,7 @@ export function createState(stationIds: readonly string[]): ProcessorState {
     transects: {},
     qc: {},
     alerts: undefined,
+    faults: createFaultState(),
     counters: {
       accepted: 0,
       duplicates: 0,
@@ -114,8 +126,8 @@ export function emptyStation(): Record<StationVar, Series> {
 }
 
 /**
- * Completes a restored state for the configuration: a station added since the checkpoint, and a series added
- * to STATION_VARS or SITE_VARS since, start empty. So a new series needs no STATE_VERSION bump; a change of
+ * Completes a restored state for the configuration: a station added since the checkpoint, a series added to
+ * STATION_VARS or SITE_VARS since, and a fault state absent from an older checkpoint, start empty. So a new series needs no STATE_VERSION bump; a change of
  * what an existing key holds does.
  */
 export function completeState(state: ProcessorState, stationIds: readonly string[]): void {
@@ -124,4 +136,6 @@ export function completeState(state: ProcessorState, stationIds: readonly string
     for (const v of STATION_VARS) st[v] ??= createSeries();
   }
   for (const v of SITE_VARS) state.site[v] ??= createSeries();
+  // A checkpoint from before the fault state starts it empty: faults re-open on the data.
+  state.faults ??= createFaultState();
 }

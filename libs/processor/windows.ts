@@ -3,6 +3,7 @@
 import type { DerivedRecord, ReefdConfig } from '../contract/index.js';
 import type { AlertEngine } from '../alerts/index.js';
 import type { TransectParams } from '../metabolism/index.js';
+import { windowInputs, type FaultWiring } from './faults.js';
 import { fluxAt, transectParams } from './flux.js';
 import { alertRecord, type Observer } from './observe.js';
 import { pruneBefore, type Series } from './series.js';
@@ -47,10 +48,15 @@ export function createWindows(
   times: ProcessorTimes,
   alerts: AlertEngine,
   observer: Observer,
+  faults: FaultWiring,
 ): Windows {
   const params = new Map<string, TransectParams>(
     Object.entries(config.transects).map(([id, tr]) => [id, transectParams(config, tr)]),
   );
+  // The sensors each transect's windows read, and the faults and failed samples among them over a span.
+  const inputs = new Map(Object.entries(config.transects).map(([id, tr]) => [id, windowInputs(faults, tr)]));
+  const inputReasons = (id: string, fromMs: number, toMs: number): string[] =>
+    faults.reasonsDuring(inputs.get(id) ?? [], fromMs, toMs);
   const hasTransects = params.size > 0;
   // Pruning walks every series of every station, so it runs when the watermark enters a new minute, not on
   // every message: the horizons are hours longer than anything a derivation reads, so when the old samples
@@ -59,7 +65,7 @@ export function createWindows(
 
   function tick(endMs: number, out: DerivedRecord[]): void {
     if (!hasTransects) return;
-    for (const r of fluxAt(config, state, endMs, params)) {
+    for (const r of fluxAt(config, state, endMs, params, inputReasons)) {
       out.push(r);
       observer.record(r, undefined, Date.parse(r.t), r.flag, out);
     }
@@ -67,6 +73,9 @@ export function createWindows(
 
   return {
     advance(watermarkMs, out) {
+      // Faults first (a sensor gone silent is stale from its first missed message): the windows closing now
+      // see every fault the watermark has revealed.
+      faults.advance(watermarkMs);
       const cadence = times.cadenceMs;
       if (state.lastTickMs < 0) {
         // The cadence grid starts at the earliest message derived (not the first to arrive), so the windows

@@ -5,7 +5,7 @@
 // the ensemble is never available when the ensemble is derived). The comparison of the two depths is made only
 // where it means something: at earlier ensembles of the ADCP that lie between the centres of two finished
 // bursts, where the logger's depth is an interpolation, not an extrapolation or a stale value.
-import { series, worst, type DeriveContext } from '../derive.js';
+import { series, use, worst, type DeriveContext } from '../derive.js';
 import { lowerBound, type Series } from '../series.js';
 
 const MIN = 60_000;
@@ -75,6 +75,7 @@ export function loggerDepthAt(
   const b = finishedBursts(ctx, station, until - MAX_BURST_AGE_MS, until, 2);
   const last = b[b.length - 1];
   if (last === undefined) return undefined;
+  use(ctx, { station, v: 'depthDone' });
   const prev = b.length === 2 ? (b[0] as Burst) : undefined;
   if (
     prev === undefined ||
@@ -89,9 +90,12 @@ export function loggerDepthAt(
 /**
  * The ADCP's own depth minus the logger's, m: the mean over the ADCP's earlier ensembles (`adcpDepth`) that lie
  * between the centres of the last two bursts finished by the ensemble's time, where the logger's depth is
- * interpolated. Undefined when there is no such ensemble (no logger, no own pressure, a gap).
+ * interpolated. Undefined when there is no such ensemble (no logger, no own pressure, a gap) or the logger has a
+ * fault in force.
  */
 export function depthDifferenceM(ctx: DeriveContext, station: string, tMs: number): number | undefined {
+  // A logger with a fault in force compares nothing (its own fault is flagged where it is used).
+  if (!ctx.inputs.healthy({ station, v: 'depthDone' }, tMs)) return undefined;
   const until = Math.min(tMs, ctx.asOfMs);
   const b = finishedBursts(ctx, station, until - 2 * MAX_BURST_AGE_MS, until, 2);
   if (b.length < 2) return undefined;

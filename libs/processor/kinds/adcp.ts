@@ -4,7 +4,7 @@
 import type { AdcpMessage, CurrentRecord } from '../../contract/index.js';
 import { processEnsemble, type AdcpEnsemble, type AdcpSensorConfig } from '../../currents/index.js';
 import { densityEos80 } from '../../seawater/index.js';
-import { baroAt, ctdAt, series, worst, type DeriveContext } from '../derive.js';
+import { baroAt, ctdAt, series, use, worst, type DeriveContext } from '../derive.js';
 import { nearest } from '../series.js';
 import { depthDifferenceM, loggerDepthAt } from './adcp-depth.js';
 import { atSampleTime, defineKind, type SensorConfigOf } from './types.js';
@@ -65,6 +65,15 @@ function headOf(s: SensorConfigOf<'adcp'>): AdcpSensorConfig {
   };
 }
 
+/** Sea-swell Hm0 of the last finished burst within the hour, for the side-lobe limit (optional: none is fine). */
+function waveHeightAt(ctx: DeriveContext, station: string, tMs: number) {
+  const ref = { station, v: 'hm0ssDone' } as const;
+  if (!ctx.inputs.healthy(ref, tMs)) return undefined;
+  const hm0 = nearest(series(ctx, station, 'hm0ssDone'), tMs, HOUR, ctx.asOfMs);
+  if (hm0) use(ctx, ref);
+  return hm0;
+}
+
 export function deriveCurrent(
   ctx: DeriveContext,
   m: AdcpMessage,
@@ -80,8 +89,8 @@ export function deriveCurrent(
   // is passed); only without it does the logger's depth stand in.
   const ownPressure = m.pres_dbar !== undefined && Number.isFinite(m.pres_dbar);
   const depth = ownPressure ? undefined : loggerDepthAt(ctx, m.station, m.tMs);
-  const hm0 = nearest(series(ctx, m.station, 'hm0ssDone'), m.tMs, HOUR, ctx.asOfMs);
-  const ctd = ctdAt(ctx, m.station, m.tMs);
+  const hm0 = waveHeightAt(ctx, m.station, m.tMs);
+  const ctd = ctdAt(ctx, m.station, m.tMs, true);
   const baro = baroAt(ctx, m.tMs);
   const r = processEnsemble(ensembleOf(m), headOf(s), {
     reefAxisDeg: ctx.config.reef_axis_deg,

@@ -74,7 +74,7 @@ export function deriveWaves(ctx: DeriveContext, m: PressureMessage, heightM: num
   const n = m.p_dbar.length;
   const tCentre = m.tMs + (n / (2 * m.fs_hz)) * 1000;
   const baro = baroAt(ctx, tCentre);
-  const ctd = ctdAt(ctx, m.station, tCentre);
+  const ctd = ctdAt(ctx, m.station, tCentre, true);
   // Without a CTD, seawater of S 35 at the logger's temperature (or 27 degC) stands in, flagged 3.
   const rho = ctd ? densityEos80(ctd.sal.value, ctd.temp.value) : densityEos80(35, m.temp_c ?? 27);
   const p = Float64Array.from(m.p_dbar, (x) => (x === null ? Number.NaN : x));
