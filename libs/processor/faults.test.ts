@@ -4,6 +4,7 @@
 // passes again, and the state survives a checkpoint.
 import { describe, expect, it } from 'vitest';
 import type { DerivedRecord } from '../contract/index.js';
+import { exclusionsOf } from './faults.js';
 import type { ProcessorState } from './state.js';
 import {
   deploymentMessages,
@@ -213,8 +214,20 @@ describe('the logbook hook (faultsExternal)', () => {
   const from = T0 + 3 * HOUR;
   const to = T0 + 4 * HOUR;
   const messages = deploymentMessages(HOURS, {});
-  const { records } = runDeployment(messages, {
-    exclusions: [{ station: 'back', sensor: 'o2', fromMs: from, toMs: to, note: 'optode cleaned' }],
+  const exclusions = exclusionsOf([
+    { t: '2026-03-01T03:00:00Z', station: 'back', sensor: 'o2', event: 'cleaning', text: 'optode wiped' },
+    {
+      t: '2026-03-01T03:00:00Z',
+      station: 'back',
+      sensor: 'o2',
+      event: 'cleaning',
+      exclude_from: new Date(from).toISOString(),
+      exclude_to: new Date(to).toISOString(),
+    },
+  ]);
+  const { records, processor } = runDeployment(messages, { exclusions });
+  it('takes the entries with an exclusion span from the logbook', () => {
+    expect(exclusions).toEqual([{ station: 'back', sensor: 'o2', fromMs: from, toMs: to, note: 'cleaning' }]);
   });
   it('flags the records of the excluded sensor 4 and invalidates the windows over the span, no longer', () => {
     const ox = records.filter((r) => r.type === 'oxygen' && r.station === 'back');
@@ -228,6 +241,14 @@ describe('the logbook hook (faultsExternal)', () => {
       expect(f.valid, f.t).toBe(!overlaps);
       if (overlaps) expect(reasons(f)).toEqual(['input_fault:back/o2/logbook_exclusion']);
     }
+  });
+  it('applies a station-wide exclusion to every sensor of the station, once however often it is given', () => {
+    const x = { station: 'crest', fromMs: from, toMs: to };
+    const p = runDeployment(messages.slice(0, 10), { exclusions: [x, x] }).processor;
+    const keys = Object.keys(p.snapshot().faults.sensors).filter((k) => k.startsWith('crest/'));
+    expect(keys.sort()).toEqual(['crest/co2', 'crest/ctd', 'crest/o2', 'crest/p1']);
+    for (const k of keys) expect(p.snapshot().faults.sensors[k]?.episodes.length).toBe(1);
+    expect(processor.snapshot().faults.sensors['crest/ctd']?.episodes ?? []).toEqual([]);
   });
 });
 

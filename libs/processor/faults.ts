@@ -4,7 +4,7 @@
 // invalidating fault in force at its time is flagged 4 and says why (`invalid_reasons`); a flux window is
 // invalid while any of its input sensors has such a fault or failed a sample in the window.
 // Everything lives in the processor state (plain JSON: the checkpoint).
-import type { ReefdConfig, SensorMessage, TransectConfig } from '../contract/index.js';
+import type { LogbookEntry, ReefdConfig, SensorMessage, TransectConfig } from '../contract/index.js';
 import type { ResolvedRules } from '../alerts/index.js';
 import {
   activeFaults,
@@ -185,6 +185,27 @@ export function createFaultWiring(
       return [...out].sort();
     },
   };
+}
+
+/**
+ * The exclusions of field-logbook entries (docs/contract-v1.md 3.4): every entry with `exclude_from` and
+ * `exclude_to` excludes its station, or its one sensor, over [exclude_from, exclude_to). The note is the event
+ * and its text, for the fault's episode.
+ */
+export function exclusionsOf(entries: readonly LogbookEntry[]): FaultExclusion[] {
+  const out: FaultExclusion[] = [];
+  for (const e of entries) {
+    if (e.exclude_from === undefined || e.exclude_to === undefined) continue;
+    const x: FaultExclusion = {
+      station: e.station,
+      fromMs: Date.parse(e.exclude_from),
+      toMs: Date.parse(e.exclude_to),
+      note: e.text === undefined ? e.event : `${e.event}: ${e.text}`,
+    };
+    if (e.sensor !== undefined) x.sensor = e.sensor;
+    out.push(x);
+  }
+  return out;
 }
 
 /** The sensors a transect window reads (docs/methods/metabolism.md 6.1): both stations, the current, the mast. */

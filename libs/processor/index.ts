@@ -8,6 +8,6 @@ export {
   type ProcessorOptions,
   type SensorHealthRow,
 } from './processor.js';
-export type { FaultExclusion } from './faults.js';
+export { exclusionsOf, type FaultExclusion } from './faults.js';
 export { STATE_VERSION, type ProcessorState, type ProcessorCounters } from './state.js';
 export { checkAgainstConfig, messageFromArchiveLine, type ArchiveInput } from './intake.js';
