@@ -57,6 +57,7 @@ export {
 } from './brent.js';
 export {
   inverseNecSigma,
+  inverseNecSigmaSplit,
   inverseResidual,
   solveInverseNec,
   type InverseInput,

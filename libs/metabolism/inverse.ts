@@ -267,3 +267,47 @@ export function inverseNecSigma(
   }
   return { sigmaUmolM2S: Math.sqrt(sum), parts };
 }
+
+/** The same input without its previous window: the steady form of docs/methods/metabolism.md 6.4. */
+function steadyForm(x: InverseInput): InverseInput {
+  const { previous: _previous, ...steady } = x;
+  return steady;
+}
+
+/**
+ * First-order sigma of the inverse NEC from errors of two kinds (docs/methods/uncertainty.md 9.2):
+ * - `systematic`: errors the same in every window (calibrations, TA from salinity, PQ, the transfer velocity,
+ *   geometry, the shared constants). In the storage form the previous window carries the same error, and the
+ *   response to an error that persists is the steady form's (the storage term of a constant error is zero), so
+ *   their partials come from the steady form. Perturbing the current window alone would read as a change over
+ *   one window and be amplified by (1/(2 dt) + U/L)/(U/L), twice or more on a slow flat.
+ * - `random`: errors of this window's means alone (their standard errors), with the partials of the form used.
+ * The two sums add in quadrature. Returns the total and each part.
+ */
+export function inverseNecSigmaSplit(
+  x: InverseInput,
+  necUmolM2S: number,
+  dgdN: number,
+  systematic: Partial<Record<InverseSigmaKey, number>>,
+  random: Partial<Record<InverseSigmaKey, number>>,
+): {
+  sigmaUmolM2S: number;
+  systematic: Partial<Record<InverseSigmaKey, number>>;
+  random: Partial<Record<InverseSigmaKey, number>>;
+} {
+  let steady = x;
+  let dgdNSteady = dgdN;
+  if (x.previous !== undefined) {
+    steady = steadyForm(x);
+    const dn = 0.01 / UMOL_M2_S_TO_MMOL_M2_H;
+    dgdNSteady =
+      (inverseResidual(steady, necUmolM2S + dn) - inverseResidual(steady, necUmolM2S - dn)) / (2 * dn);
+  }
+  const sys = inverseNecSigma(steady, necUmolM2S, dgdNSteady, systematic);
+  const rnd = inverseNecSigma(x, necUmolM2S, dgdN, random);
+  return {
+    sigmaUmolM2S: Math.hypot(sys.sigmaUmolM2S, rnd.sigmaUmolM2S),
+    systematic: sys.parts,
+    random: rnd.parts,
+  };
+}

@@ -6,6 +6,7 @@ import {
   computeTransectFlux,
   forwardDownstream,
   inverseNecSigma,
+  inverseNecSigmaSplit,
   makeTransectParams,
   solveInverseNec,
   type InverseInput,
@@ -237,6 +238,94 @@ describe('uncertainty (docs/methods/uncertainty.md 9.2)', () => {
     const k1 = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { dpK1: 0.0075 }).sigmaUmolM2S;
     const pB = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { downPco2Uatm: 2 }).sigmaUmolM2S;
     expect(k1).toBeLessThan(0.2 * pB);
+  });
+
+  it('an error that persists from window to window moves the storage-form NEC as the steady form says', () => {
+    // A chain of windows 30 min apart on a steady slab (NEC 7, NCP 20 mmol m-2 h-1, U 0.05 m/s, L 400 m): each
+    // window's inverse starts its storage form from the previous one's solution, as the processor chains them.
+    const c = solveCarbonate({ salinity: 35, tempC: 27, taUmolKg: 2300, pco2Uatm: 400 });
+    if (!c.ok) throw new Error(c.reason);
+    const f = forwardDownstream({
+      up: { tempC: 27, salinity: 35, o2UmolKg: 200, taUmolKg: 2300, dicUmolKg: c.dicUmolKg },
+      ncpMmolM2H: 20,
+      necMmolM2H: 7,
+      pq: 1,
+      uMS: 0.05,
+      depthM: 1,
+      lengthM: 400,
+    });
+    if (!f.ok) throw new Error('forward failed');
+    const base: InverseInput = {
+      upTempC: 27,
+      upSalinity: 35,
+      upPco2Uatm: 400,
+      upTaUmolKg: 2300,
+      downTempC: 27,
+      downSalinity: 35,
+      downPco2Uatm: f.pco2Uatm,
+      o2StorageUmolKgS: 0,
+      o2DiffUmolKg: f.o2UmolKg - 200,
+      fasO2UmolM2S: 0,
+      ncpOffsetUmolM2S: 0,
+      pq: 1,
+      fasCo2UmolM2S: 0,
+      uMS: 0.05,
+      depthM: 1,
+      rhoKgM3: f.rhoKgM3,
+      lengthM: 400,
+      baroHpa: 1013.25,
+    };
+    const o = { bracketMmolM2H: 100, maxDoublings: 3, tolMmolM2H: 1e-7 };
+    /** The last window of a 40-window chain whose every window carries the shift. */
+    const chain = (shift: Partial<InverseInput>) => {
+      let previous: InverseInput['previous'];
+      let last: { x: InverseInput; r: Extract<ReturnType<typeof solveInverseNec>, { ok: true }> } | undefined;
+      for (let k = 0; k < 40; k++) {
+        const x: InverseInput = { ...base, ...shift, ...(previous ? { previous } : {}) };
+        const r = solveInverseNec(x, o);
+        if (!r.ok) throw new Error(r.reason);
+        previous = {
+          dtS: 1800,
+          upTaUmolKg: x.upTaUmolKg,
+          upDicUmolKg: r.upDicUmolKg,
+          upSalinity: 35,
+          downTaUmolKg: r.downTaUmolKg,
+          downDicUmolKg: r.downDicUmolKg,
+          downSalinity: 35,
+        };
+        last = { x, r };
+      }
+      return last!;
+    };
+    const { x, r } = chain({});
+    expect(x.previous).toBeDefined();
+    for (const [key, s] of [
+      ['downPco2Uatm', 2],
+      ['upPco2Uatm', 2],
+      ['dpK1', 0.0075],
+      ['downTempC', 0.01],
+    ] as const) {
+      // brute force: the same error in every window of the chain
+      const plus = chain({ [key]: (base[key] ?? 0) + s }).r.necUmolM2S;
+      const minus = chain({ [key]: (base[key] ?? 0) - s }).r.necUmolM2S;
+      const brute = Math.abs(plus - minus) / 2;
+      const split = inverseNecSigmaSplit(x, r.necUmolM2S, r.dgdN, { [key]: s }, {}).sigmaUmolM2S;
+      expect(Math.abs(split - brute), key).toBeLessThan(0.02 * brute + 1e-6);
+    }
+    // The partial of the storage form alone takes such an error for a change between two windows: for the
+    // downstream pCO2 it is (1/(2 dt) + U/L)/(U/L) = 3.2 times too large here, and the shared constants no
+    // longer cancel.
+    for (const [key, s] of [
+      ['downPco2Uatm', 2],
+      ['dpK1', 0.0075],
+    ] as const) {
+      const oneWindow = inverseNecSigma(x, r.necUmolM2S, r.dgdN, { [key]: s }).sigmaUmolM2S;
+      const split = inverseNecSigmaSplit(x, r.necUmolM2S, r.dgdN, { [key]: s }, {}).sigmaUmolM2S;
+      expect(oneWindow, key).toBeGreaterThan(2 * split);
+    }
+    // The random part keeps the storage form's partial: an error of this window's mean alone.
+    const rnd = inverseNecSigmaSplit(x, r.necUmolM2S, r.dgdN, {}, { downPco2Uatm: 1 }).sigmaUmolM2S;
+    expect(rnd).toBeCloseTo(inverseNecSigma(x, r.necUmolM2S, r.dgdN, { downPco2Uatm: 1 }).sigmaUmolM2S, 12);
   });
 
   it('computeTransectFlux reports a finite inverse NEC sigma that grows with the pCO2 uncertainty', () => {

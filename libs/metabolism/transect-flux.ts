@@ -15,7 +15,7 @@ import {
 } from './budget.js';
 import { DEFAULT_CONSTANT_SIGMAS, densityKgM3 } from './chem.js';
 import { alongBearingMS, angleOffBearingDeg, defaultCurrentSigmaMS } from './geometry.js';
-import { inverseNecSigma, solveInverseNec, type InverseInput } from './inverse.js';
+import { inverseNecSigmaSplit, solveInverseNec, type InverseInput } from './inverse.js';
 import { hasGradientTa, ncpCFromDic, taBudget, taSigma, type BudgetContext } from './nec-ta.js';
 import type {
   FluxResult,
@@ -150,7 +150,10 @@ export function computeTransectFlux(
   let ncp: number | null = null;
   let sigmaNcp: number | null = null;
   let stFrac: number | null = null;
-  let sigmaNcpO2Only = 0;
+  // The O2-only part of sigma(NCP) that the inverse NEC inherits, split into what persists from window to
+  // window (the optodes' inter-calibration, the exchange term) and what does not (the means' standard errors).
+  let sigmaNcpO2Sys = 0;
+  let sigmaNcpO2Rand = 0;
   if (o2Flag >= 4) {
     addReason(o2Flag === 9 ? 'input_missing' : 'input_qc_failed');
     flag = worst(flag, o2Flag);
@@ -167,6 +170,9 @@ export function computeTransectFlux(
       const sigmaSt = hasPrev ? Math.hypot(semNow, semPrev) / dtS : 0;
       const sigmaDeq = 0.5 * Math.hypot(sigO2(up), sigO2(down));
       const sigmaFas = Math.hypot(as.fasO2UmolM2S * params.sigmaKRel, as.kO2MS * rho * sigmaDeq);
+      // docs/methods/uncertainty.md 9.2: the station difference has the sensors' inter-calibration and the
+      // random standard errors of the two window means.
+      const semDC = Math.hypot(up.semO2UmolKg ?? 0, down.semO2UmolKg ?? 0);
       const base = {
         rhoKgM3: rho,
         depthM: h,
@@ -176,7 +182,7 @@ export function computeTransectFlux(
         storage: stO2,
         advection: adO2,
         sigmaStorage: sigmaSt,
-        sigmaDC: Math.hypot(sigO2(up), sigO2(down)),
+        sigmaDC: Math.hypot(sigO2(up), sigO2(down), semDC),
         sigmaAirSeaUmolM2S: sigmaFas,
       };
       sigmaNcp = fluxSigmaUmolM2S({
@@ -185,7 +191,13 @@ export function computeTransectFlux(
         sigmaLengthM: params.sigmaLengthM,
         sigmaDepthM: sigmaH,
       });
-      sigmaNcpO2Only = fluxSigmaUmolM2S({ ...base, sigmaUMS: 0, sigmaLengthM: 0, sigmaDepthM: 0 });
+      const o2Only = { ...base, sigmaUMS: 0, sigmaLengthM: 0, sigmaDepthM: 0 };
+      sigmaNcpO2Sys = fluxSigmaUmolM2S({
+        ...o2Only,
+        sigmaStorage: 0,
+        sigmaDC: Math.hypot(sigO2(up), sigO2(down)),
+      });
+      sigmaNcpO2Rand = fluxSigmaUmolM2S({ ...o2Only, sigmaDC: semDC, sigmaAirSeaUmolM2S: 0 });
     }
   }
   if (physFlag >= 4) addReason(physFlag === 9 ? 'input_missing' : 'input_qc_failed');
@@ -289,28 +301,41 @@ export function computeTransectFlux(
         if (wantSigma) {
           const sigmaDeqCo2 = 0.5 * Math.hypot(sigPco2(up, up.pco2Uatm), sigPco2(down, down.pco2Uatm));
           const fas = as.fasCo2UmolM2S ?? 0;
-          sigmaNec = inverseNecSigma(x, r.necUmolM2S, r.dgdN, {
-            upPco2Uatm: sigPco2(up, up.pco2Uatm),
-            downPco2Uatm: sigPco2(down, down.pco2Uatm),
-            upTaUmolKg: taSigma(up, params.sigmaTaFromSalinityUmolKg),
-            upTempC: up.sigmaTempC ?? 0.01,
-            downTempC: down.sigmaTempC ?? 0.01,
-            upSalinity: up.sigmaSalinity ?? 0.02,
-            downSalinity: down.sigmaSalinity ?? 0.02,
-            ncpOffsetUmolM2S: sigmaNcpO2Only,
-            pq: params.sigmaPq,
-            fasCo2UmolM2S: Math.hypot(fas * params.sigmaKRel, as.kCo2MS * rho * as.k0MolKgAtm * sigmaDeqCo2),
-            uMS: sigmaU,
-            depthM: sigmaH,
-            lengthM: params.sigmaLengthM,
-            // Constants shared by both stations (Orr et al. 2018 via libs/carbonate): they largely cancel.
-            dpK0: DEFAULT_CONSTANT_SIGMAS.pK0,
-            dpK1: DEFAULT_CONSTANT_SIGMAS.pK1,
-            dpK2: DEFAULT_CONSTANT_SIGMAS.pK2,
-            dpKB: DEFAULT_CONSTANT_SIGMAS.pKB,
-            dpKW: DEFAULT_CONSTANT_SIGMAS.pKW,
-            dBtRel: DEFAULT_CONSTANT_SIGMAS.btRel,
-          }).sigmaUmolM2S;
+          sigmaNec = inverseNecSigmaSplit(
+            x,
+            r.necUmolM2S,
+            r.dgdN,
+            {
+              upPco2Uatm: sigPco2(up, up.pco2Uatm),
+              downPco2Uatm: sigPco2(down, down.pco2Uatm),
+              upTaUmolKg: taSigma(up, params.sigmaTaFromSalinityUmolKg),
+              upTempC: up.sigmaTempC ?? 0.01,
+              downTempC: down.sigmaTempC ?? 0.01,
+              upSalinity: up.sigmaSalinity ?? 0.02,
+              downSalinity: down.sigmaSalinity ?? 0.02,
+              ncpOffsetUmolM2S: sigmaNcpO2Sys,
+              pq: params.sigmaPq,
+              fasCo2UmolM2S: Math.hypot(
+                fas * params.sigmaKRel,
+                as.kCo2MS * rho * as.k0MolKgAtm * sigmaDeqCo2,
+              ),
+              uMS: sigmaU,
+              depthM: sigmaH,
+              lengthM: params.sigmaLengthM,
+              // Constants shared by both stations (Orr et al. 2018 via libs/carbonate): they largely cancel.
+              dpK0: DEFAULT_CONSTANT_SIGMAS.pK0,
+              dpK1: DEFAULT_CONSTANT_SIGMAS.pK1,
+              dpK2: DEFAULT_CONSTANT_SIGMAS.pK2,
+              dpKB: DEFAULT_CONSTANT_SIGMAS.pKB,
+              dpKW: DEFAULT_CONSTANT_SIGMAS.pKW,
+              dBtRel: DEFAULT_CONSTANT_SIGMAS.btRel,
+            },
+            {
+              upPco2Uatm: up.semPco2Uatm ?? 0,
+              downPco2Uatm: down.semPco2Uatm ?? 0,
+              ncpOffsetUmolM2S: sigmaNcpO2Rand,
+            },
+          ).sigmaUmolM2S;
         }
       } else {
         notes.push(r.code === 'REEFD_METABOLISM_NEC_NO_ROOT' ? 'nec_no_root' : 'nec_carbonate_failed');

@@ -3,6 +3,7 @@
 import type { Kind, ReefdConfig, SensorConfig } from '../contract/index.js';
 import { adcpEnsemble, type AdcpSetup } from './adcp.js';
 import { synthesizeBurst } from './burst.js';
+import { drawCalibration, measuredCurrent, type SensorCalibration } from './calibration-errors.js';
 import { density, o2MgL, speciate } from './chemistry.js';
 import {
   failingBatteryV,
@@ -32,6 +33,13 @@ export interface SimulateOptions {
   faults?: boolean;
   /** IANA zone of the local days of the `daily` truth (default: the configuration's `timezone`, else UTC). */
   timeZone?: string;
+  /**
+   * Seed of the sensors' noise, timing offsets and calibration errors (default `seed`): runs with one `seed` and
+   * different noise seeds are replicates of one reef.
+   */
+  noiseSeed?: number;
+  /** Give each sensor a calibration error drawn from the typical accuracies (calibration-errors.ts). */
+  calibrationErrors?: boolean;
 }
 
 export interface SimMessage {
@@ -67,6 +75,8 @@ interface SensorRun extends SensorRef {
   seq: number;
   adcp?: AdcpSetup;
   frozen: number | undefined;
+  /** Calibration errors (absent: a perfect sensor). */
+  cal?: SensorCalibration;
 }
 
 /** The first local solar 03:00 at least 12 h into the run, if the run reaches 3 h past it. */
@@ -81,6 +91,7 @@ function lagoonEventCentre(startMs: number, durationMs: number, lonDeg: number):
 export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator<SimEvent> {
   const layout = siteLayout(config);
   const root = createRng(opts.seed);
+  const noiseRoot = opts.noiseSeed === undefined ? root : createRng(opts.noiseSeed);
   const withFaults = opts.faults ?? true;
 
   const model = new ReefModel(layout, root.fork('model'), {
@@ -94,7 +105,7 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
     const role = layout.roleOf.get(station) ?? 'flat';
     for (const [sensor, sc] of Object.entries(st.sensors)) {
       if (!sc.enabled) continue;
-      const rng = root.fork(`sensor/${station}/${sensor}`);
+      const rng = noiseRoot.fork(`sensor/${station}/${sensor}`);
       const offsetMs = Math.floor(rng.next() * 50) * 1000;
       const run: SensorRun = {
         station,
@@ -107,6 +118,7 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
         seq: 0,
         frozen: undefined,
       };
+      if (opts.calibrationErrors === true) run.cal = drawCalibration(sc.kind, rng.fork('calibration'));
       if (sc.kind === 'adcp') {
         const deep = role === 'channel' || role === 'fore';
         run.adcp = {
@@ -242,16 +254,17 @@ function buildMessage(
   const base = { v: 1 as const, t: iso(t), seq: s.seq++ };
   const n = () => s.rng.normal();
   const rho = density(w);
+  const cal = s.cal;
+  const gain = 1 + (cal?.gain ?? 0);
   switch (s.config.kind) {
-    case 'ctd':
-      return {
-        topic,
-        tMs: t,
-        payload: { ...base, temp_c: r(w.tempC + 0.002 * n(), 4), sal: r(w.sal + 0.003 * n(), 4) },
-      };
+    case 'ctd': {
+      const tempC = w.tempC + (cal?.offset ?? 0) + 0.002 * n();
+      const sal = w.sal + (cal?.offset2 ?? 0) + 0.003 * n();
+      return { topic, tMs: t, payload: { ...base, temp_c: r(tempC, 4), sal: r(sal, 4) } };
+    }
     case 'oxygen': {
       const tempC = r(w.tempC + 0.01 * n(), 3);
-      const umolL = (w.o2UmolKg * rho) / 1000 + 0.8 * n();
+      const umolL = (gain * w.o2UmolKg * rho) / 1000 + 0.8 * n();
       const payload: Record<string, unknown> = { ...base, temp_c: tempC };
       if (s.config.sal_setting !== undefined) {
         // The optode computes with its own salinity setting (combined fit of Garcia & Gordon 1992), so it
@@ -259,7 +272,7 @@ function buildMessage(
         const factor = optodeSalinityFactor(w.sal, s.config.sal_setting, tempC);
         payload.o2_umol_l = r(Math.max(0, umolL / factor), 2);
       } else if (s.role === 'back') {
-        payload.o2_mg_l = r(Math.max(0, o2MgL(w.o2UmolKg, rho) + 0.025 * n()), 3);
+        payload.o2_mg_l = r(Math.max(0, gain * o2MgL(w.o2UmolKg, rho) + 0.025 * n()), 3);
       } else payload.o2_umol_l = r(Math.max(0, umolL), 2);
       return { topic, tMs: t, payload };
     }
@@ -269,7 +282,7 @@ function buildMessage(
         tMs: t,
         payload: {
           ...base,
-          pco2_uatm: r(speciate(w).pco2Uatm + 1.5 * n(), 1),
+          pco2_uatm: r(gain * speciate(w).pco2Uatm + 1.5 * n(), 1),
           temp_c: r(w.tempC + 0.02 * n(), 3),
         },
       };
@@ -315,7 +328,7 @@ function buildMessage(
         {
           fsHz,
           samples,
-          depthM: st.depthM,
+          depthM: st.depthM + (cal?.offset ?? 0),
           depthRateMS: 0,
           sensorHeightM: s.config.height_m,
           hm0SsM: st.hrmsSsM * Math.SQRT2,
@@ -336,7 +349,8 @@ function buildMessage(
     }
     case 'adcp': {
       const setup = s.adcp as AdcpSetup;
-      const e = adcpEnsemble(setup, st.depthM, st.eastMS, st.northMS, st.hrmsSsM * Math.SQRT2, s.rng);
+      const [east, north] = cal ? measuredCurrent(cal, st.eastMS, st.northMS) : [st.eastMS, st.northMS];
+      const e = adcpEnsemble(setup, st.depthM, east, north, st.hrmsSsM * Math.SQRT2, s.rng);
       const dbar = snap.baroHpa / 100 + (rho * 9.80665 * (st.depthM - setup.heightM)) / 1e4;
       return {
         topic,
