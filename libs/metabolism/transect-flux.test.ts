@@ -122,6 +122,28 @@ describe('validity (docs/methods/metabolism.md 6.6)', () => {
     expect(old.storageFractionO2).toBeNull();
   });
 
+  it('with the next window, the storage term is centred and the steadiness test does not apply', () => {
+    // O2 peaks at this window: 195/205 before, 200/210 now, 195/205 after. Centred: St = 0, the budget is
+    // advection alone; backward: St = 5/600, storage dominates.
+    const prev = win({ tCentreMs: T0 - 600_000, up: st(195), down: st(205) });
+    const next = win({ tCentreMs: T0 + 600_000, up: st(195), down: st(205) });
+    const r = computeTransectFlux(win(), prev, params, { next });
+    expect(r.notes).toContain('storage_centred');
+    expect(r.storageFractionO2).toBeCloseTo(0, 12);
+    expect(r.valid).toBe(true);
+    expect(r.ncpMmolM2H).toBeCloseTo(r.rhoKgM3 * 0.05 * (10 / 400) * 3.6, 10);
+    // A steep rise through the window: centred St = 10/1200 still dominates, yet the window is valid.
+    const rise = computeTransectFlux(win(), prev, params, { next: { ...next, up: st(205), down: st(215) } });
+    expect(rise.storageFractionO2 as number).toBeGreaterThan(0.5);
+    expect(rise.invalidReasons).toEqual([]);
+    // A next window further than maxPreviousGapMin away is not used.
+    const far = computeTransectFlux(win(), prev, params, {
+      next: { ...next, tCentreMs: T0 + 3 * 3_600_000 },
+    });
+    expect(far.notes).not.toContain('storage_centred');
+    expect(far.invalidReasons).toContain('storage_dominates');
+  });
+
   it('QC-failed or missing inputs give null values and the reason', () => {
     const bad = computeTransectFlux(win({ up: st(200, { o2Flag: 4 }) }), undefined, params);
     expect(bad.ncpMmolM2H).toBeNull();

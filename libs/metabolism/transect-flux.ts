@@ -10,12 +10,12 @@ import {
   benthicFluxUmolM2S,
   fluxSigmaUmolM2S,
   storageFraction,
-  storageRate,
   UMOL_M2_S_TO_MMOL_M2_H,
 } from './budget.js';
 import { DEFAULT_CONSTANT_SIGMAS, densityKgM3 } from './chem.js';
 import { alongBearingMS, angleOffBearingDeg, defaultCurrentSigmaMS } from './geometry.js';
 import { inverseNecSigmaSplit, solveInverseNec, type InverseInput } from './inverse.js';
+import { o2Storage } from './storage.js';
 import { hasGradientTa, ncpCFromDic, taBudget, taSigma, type BudgetContext } from './nec-ta.js';
 import type {
   FluxResult,
@@ -30,6 +30,11 @@ import type {
 export interface ComputeFluxOptions {
   /** The result of the previous window: its inverse solution starts the storage form of the inverse. */
   previousResult?: FluxResult;
+  /**
+   * The next window (starting where this one ends): with it and a previous window the O2 storage term is the
+   * centred difference (storage.ts, note `storage_centred`). The inverse's carbon storage stays backward.
+   */
+  next?: TransectWindow;
   /** Skip the uncertainty propagation (sigmas null) for speed. Default true (propagate). */
   uncertainty?: boolean;
 }
@@ -144,7 +149,17 @@ export function computeTransectFlux(
   if (current.windMS !== undefined && current.baroHpa === undefined) flag = worst(flag, 3);
 
   // O2 budget -> NCP.
-  const stO2 = pU && pD ? storageRate(up.o2UmolKg, down.o2UmolKg, pU.o2UmolKg, pD.o2UmolKg, dtS) : 0;
+  const nx = options.next;
+  const dtNextS = nx ? (nx.tCentreMs - current.tCentreMs) / 1000 : Number.NaN;
+  const useNext = nx !== undefined && hasPrev && dtNextS > 0 && dtNextS <= params.maxPreviousGapMin * 60;
+  const storage = o2Storage(
+    { up, down },
+    pU && pD ? { up: pU, down: pD } : undefined,
+    dtS,
+    useNext ? { pair: { up: nx.up, down: nx.down }, dtS: dtNextS } : undefined,
+  );
+  if (storage.form === 'centred') notes.push('storage_centred');
+  const stO2 = storage.rate;
   const dO2 = down.o2UmolKg - up.o2UmolKg;
   const adO2 = advectionRate(u, up.o2UmolKg, down.o2UmolKg, L);
   let ncp: number | null = null;
@@ -162,12 +177,13 @@ export function computeTransectFlux(
     flag = worst(flag, o2Flag);
     if (hasPrev) {
       stFrac = storageFraction(stO2, adO2);
-      if (stFrac > params.maxStorageFraction) addReason('storage_dominates');
+      // The steadiness test guards against the backward difference's error (storage.ts); a centred storage
+      // term is second-order accurate where the concentration turns, and its window is not judged by it
+      // (docs/methods/metabolism.md 6.6).
+      if (stFrac > params.maxStorageFraction && storage.form !== 'centred') addReason('storage_dominates');
     }
     if (wantSigma) {
-      const semNow = 0.5 * Math.hypot(up.semO2UmolKg ?? 0, down.semO2UmolKg ?? 0);
-      const semPrev = pU && pD ? 0.5 * Math.hypot(pU.semO2UmolKg ?? 0, pD.semO2UmolKg ?? 0) : 0;
-      const sigmaSt = hasPrev ? Math.hypot(semNow, semPrev) / dtS : 0;
+      const sigmaSt = storage.sigma;
       const sigmaDeq = 0.5 * Math.hypot(sigO2(up), sigO2(down));
       const sigmaFas = Math.hypot(as.fasO2UmolM2S * params.sigmaKRel, as.kO2MS * rho * sigmaDeq);
       // docs/methods/uncertainty.md 9.2: the station difference has the sensors' inter-calibration and the

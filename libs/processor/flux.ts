@@ -248,39 +248,46 @@ function invalidate(rec: FlaggedFluxRecord, reasons: readonly string[]): void {
   rec.invalid_reasons = [...reasons, ...own.filter((x) => !reasons.includes(x))].join(',');
 }
 
-/** The flux records of every transect for the window ending at endMs. */
-export function fluxAt(
+/**
+ * The flux record of one transect for the window ending at endMs, or undefined when none of its stations has
+ * data in it. `withNext`: the window is computed a window late, with the next window's means for a centred O2
+ * storage term where they exist (docs/methods/metabolism.md 6.1; storage-hold.ts).
+ */
+export function transectFluxAt(
   config: ReefdConfig,
   state: ProcessorState,
+  id: string,
   endMs: number,
-  params: Map<string, TransectParams>,
+  p: TransectParams,
   inputReasons: InputReasons = () => [],
-): FlaggedFluxRecord[] {
+  withNext = false,
+): FlaggedFluxRecord | undefined {
+  const tr = config.transects[id] as TransectConfig;
   const W = config.processing.window_min * MIN;
-  const out: FlaggedFluxRecord[] = [];
-  for (const [id, tr] of Object.entries(config.transects)) {
-    const startMs = endMs - W;
-    if (!hasData(state, tr, startMs, endMs)) continue;
-    const p = params.get(id) as TransectParams;
-    const cur = transectWindow(state, tr, startMs, endMs);
-    const t = new Date(endMs - W / 2).toISOString();
-    const results = (state.transects[id] ??= {});
-    if (!cur.window) {
-      const rec = missingFluxRecord(config.site, t, id, cur.missing);
-      invalidate(rec, inputReasons(id, startMs, endMs));
-      out.push(rec);
-      continue;
-    }
-    const prev = transectWindow(state, tr, startMs - W, startMs).window;
-    const prevResult = results[String(startMs)] as FluxResult | undefined;
-    const r = computeTransectFlux(cur.window, prev, p, prevResult ? { previousResult: prevResult } : {});
-    // The storage form of the next window's inverse needs this one's result (kept for two windows).
-    results[String(endMs)] = r;
-    for (const k of Object.keys(results)) if (Number(k) < endMs - 2 * W) delete results[k];
-    const rec = fluxRecord(config.site, t, id, tr, r);
-    // The storage term read the previous window's means too.
-    invalidate(rec, inputReasons(id, r.notes.includes('no_storage') ? startMs : startMs - W, endMs));
-    out.push(rec);
+  const startMs = endMs - W;
+  if (!hasData(state, tr, startMs, endMs)) return undefined;
+  const cur = transectWindow(state, tr, startMs, endMs);
+  const t = new Date(endMs - W / 2).toISOString();
+  const results = (state.transects[id] ??= {});
+  if (!cur.window) {
+    const rec = missingFluxRecord(config.site, t, id, cur.missing);
+    invalidate(rec, inputReasons(id, startMs, endMs));
+    return rec;
   }
-  return out;
+  const prev = transectWindow(state, tr, startMs - W, startMs).window;
+  const next = withNext ? transectWindow(state, tr, endMs, endMs + W).window : undefined;
+  const prevResult = results[String(startMs)] as FluxResult | undefined;
+  const r = computeTransectFlux(cur.window, prev, p, {
+    ...(prevResult ? { previousResult: prevResult } : {}),
+    ...(next ? { next } : {}),
+  });
+  // The storage form of the next window's inverse needs this one's result (kept for three windows: a window
+  // computed a window late still finds its previous one's).
+  results[String(endMs)] = r;
+  for (const k of Object.keys(results)) if (Number(k) < endMs - 3 * W) delete results[k];
+  const rec = fluxRecord(config.site, t, id, tr, r);
+  // The storage term read the previous window's means too, and the next one's when centred.
+  const from = r.notes.includes('no_storage') ? startMs : startMs - W;
+  invalidate(rec, inputReasons(id, from, r.notes.includes('storage_centred') ? endMs + W : endMs));
+  return rec;
 }

@@ -176,6 +176,7 @@ export function createProcessor(
       const out: DerivedRecord[] = [];
       release(Infinity, out);
       if (state.maxEventMs > 0) windows.advance(state.maxEventMs, out);
+      windows.flush(out);
       count(out);
       return out;
     },

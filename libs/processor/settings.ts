@@ -31,8 +31,9 @@ export function processorTimes(config: ReefdConfig): ProcessorTimes {
   const windowMs = p.window_min * MIN;
   const latenessMs = p.lateness_min * MIN;
   const windowDelayMs = p.window_delay_min * MIN;
-  // Two windows (storage), the lateness, and the CTD match distance, with a margin.
-  const horizonMs = 2 * windowMs + latenessMs + windowDelayMs + p.ctd_match_min * MIN + HOUR;
+  // Three windows (the previous one for storage, the next one for a window held for a centred storage term),
+  // the lateness, and the CTD match distance, with a margin.
+  const horizonMs = 3 * windowMs + latenessMs + windowDelayMs + p.ctd_match_min * MIN + HOUR;
   return {
     windowMs,
     cadenceMs: p.cadence_min * MIN,

@@ -84,6 +84,8 @@ export interface ProcessorState {
   held: { message: SensorMessage; rxMs: number }[];
   /** Recent flux results per transect, keyed by window end (ms): the storage form of the inverse needs them. */
   transects: Record<string, Record<string, unknown>>;
+  /** Flux windows waiting for the next window, for a centred storage term (storage-hold.ts). */
+  heldWindows: { transect: string; endMs: number }[];
   /** QC state per `station/sensor/variable` (libs/qc state objects, plain data). */
   qc: Record<string, unknown>;
   /** Alert engine snapshot (libs/alerts). */
@@ -106,6 +108,7 @@ export function createState(stationIds: readonly string[]): ProcessorState {
     site,
     held: [],
     transects: {},
+    heldWindows: [],
     qc: {},
     alerts: undefined,
     faults: createFaultState(),
@@ -138,4 +141,5 @@ export function completeState(state: ProcessorState, stationIds: readonly string
   for (const v of SITE_VARS) state.site[v] ??= createSeries();
   // A checkpoint from before the fault state starts it empty: faults re-open on the data.
   state.faults ??= createFaultState();
+  state.heldWindows ??= [];
 }

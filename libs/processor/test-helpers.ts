@@ -63,6 +63,19 @@ export interface Script {
   crestTempSpike?: { atMs: number; offset: number };
   /** Bottle samples at the back reef at these times. */
   bottlesAt?: number[];
+  /**
+   * O2 at both stations swings together, amplitude (umol/L) and period (h): the transect's mean O2 changes in
+   * time (storage) while its gradient, and so the advection, stays.
+   */
+  o2Swing?: { amplitudeUmolL: number; periodH: number };
+  /** Light air (0.3 m/s): the air-sea exchange is negligible, so NCP is the budget's storage and advection. */
+  calm?: boolean;
+}
+
+/** The swing's O2 at time t, umol/L (0 without one). */
+export function o2SwingAt(t: number, script: Script): number {
+  const w = script.o2Swing;
+  return w === undefined ? 0 : w.amplitudeUmolL * Math.sin((2 * Math.PI * (t - T0)) / (w.periodH * HOUR));
 }
 
 const within = (t: number, span: [number, number] | undefined): boolean =>
@@ -110,7 +123,8 @@ export function deploymentMessages(hours: number, script: Script = {}, seed = 1)
     const tide = 0.2 * Math.sin((2 * Math.PI * (t - T0)) / (12.42 * HOUR));
     let baro = round(BARO_HPA + 0.3 * Math.sin((2 * Math.PI * (t - T0)) / (12 * HOUR)) + 0.05 * n(), 2);
     if (within(t, script.freezeBaro)) baro = frozenBaro ??= baro;
-    out.push(msg('mast/met/met', { t: iso, wind_m_s: round(5 + 0.3 * n(), 2), baro_hpa: baro }));
+    const wind = round(Math.abs((script.calm === true ? 0.3 : 5) + 0.3 * n()), 2);
+    out.push(msg('mast/met/met', { t: iso, wind_m_s: wind, baro_hpa: baro }));
     for (const st of ['crest', 'back']) {
       if (st === 'crest' && within(t, script.silenceCrestCtd)) continue;
       const spike = st === 'crest' && script.crestTempSpike?.atMs === t ? script.crestTempSpike.offset : 0;
@@ -123,8 +137,11 @@ export function deploymentMessages(hours: number, script: Script = {}, seed = 1)
       );
     }
     const o2Off = rampOffset(t, script.crestO2OffsetUmolL);
-    out.push(msg('crest/oxygen/o2', { t: iso, o2_umol_l: round(205 + o2Off + 0.4 * n(), 2), temp_c: T }));
-    out.push(msg('back/oxygen/o2', { t: iso, o2_umol_l: round(215 + 0.4 * n(), 2), temp_c: T }));
+    const swing = o2SwingAt(t, script);
+    out.push(
+      msg('crest/oxygen/o2', { t: iso, o2_umol_l: round(205 + swing + o2Off + 0.4 * n(), 2), temp_c: T }),
+    );
+    out.push(msg('back/oxygen/o2', { t: iso, o2_umol_l: round(215 + swing + 0.4 * n(), 2), temp_c: T }));
     if ((t - T0) % (10 * MIN) === 0) {
       out.push(msg('crest/pco2/co2', { t: iso, pco2_uatm: round(420 + 1.5 * n(), 1) }));
       let back = round(405 + 1.5 * n(), 1);

@@ -4,11 +4,12 @@ import type { DerivedRecord, ReefdConfig } from '../contract/index.js';
 import type { AlertEngine } from '../alerts/index.js';
 import type { TransectParams } from '../metabolism/index.js';
 import { windowInputs, type FaultWiring } from './faults.js';
-import { fluxAt, transectParams } from './flux.js';
+import { transectFluxAt, transectParams, type FlaggedFluxRecord } from './flux.js';
 import { alertRecord, type Observer } from './observe.js';
 import { pruneBefore, type Series } from './series.js';
 import type { ProcessorTimes } from './settings.js';
 import type { ProcessorState, SiteVar, StationVar } from './state.js';
+import { holdWindow, takeHeldWindows, waitsForCentred } from './storage-hold.js';
 
 const MIN = 60_000;
 const HOUR = 3_600_000;
@@ -18,6 +19,8 @@ const MAX_TICK_WALK_MS = 48 * HOUR;
 export interface Windows {
   /** Computes what the watermark's move makes due; records and alerts go to `out`. */
   advance(watermarkMs: number, out: DerivedRecord[]): void;
+  /** Computes the windows still held for a centred storage term with what there is (end of a replay). */
+  flush(out: DerivedRecord[]): void;
 }
 
 /**
@@ -63,11 +66,26 @@ export function createWindows(
   // go changes no record. (Not in the checkpoint: after a restart the first advance prunes.)
   let lastPruneStep = -1;
 
+  const emit = (r: FlaggedFluxRecord | undefined, out: DerivedRecord[]): void => {
+    if (r === undefined) return;
+    out.push(r);
+    observer.record(r, undefined, Date.parse(r.t), r.flag, out);
+  };
+  const compute = (id: string, endMs: number, withNext: boolean) =>
+    transectFluxAt(config, state, id, endMs, params.get(id) as TransectParams, inputReasons, withNext);
+
+  /**
+   * The windows ending at endMs, after the held windows whose next window ends there (their centred storage
+   * term can be computed now, and the inverse of the window a window later starts from their result).
+   */
   function tick(endMs: number, out: DerivedRecord[]): void {
     if (!hasTransects) return;
-    for (const r of fluxAt(config, state, endMs, params, inputReasons)) {
-      out.push(r);
-      observer.record(r, undefined, Date.parse(r.t), r.flag, out);
+    for (const w of takeHeldWindows(state, endMs - times.windowMs))
+      emit(compute(w.transect, w.endMs, true), out);
+    for (const id of params.keys()) {
+      const r = compute(id, endMs, false);
+      if (r !== undefined && waitsForCentred(r)) holdWindow(state, { transect: id, endMs });
+      else emit(r, out);
     }
   }
 
@@ -96,6 +114,9 @@ export function createWindows(
         prune(state, times, watermarkMs);
       }
       for (const a of alerts.advance(watermarkMs)) out.push(alertRecord(a));
+    },
+    flush(out) {
+      for (const w of takeHeldWindows(state, Infinity)) emit(compute(w.transect, w.endMs, true), out);
     },
   };
 }
