@@ -4,6 +4,7 @@
 // passes again, and the state survives a checkpoint.
 import { describe, expect, it } from 'vitest';
 import type { DerivedRecord } from '../contract/index.js';
+import { recordToLine } from '../lineproto/index.js';
 import { exclusionsOf } from './faults.js';
 import type { ProcessorState } from './state.js';
 import {
@@ -123,6 +124,30 @@ describe('a frozen pCO2 sensor (repeats its last reading bit for bit)', () => {
     expect([...before, ...after].map((r) => JSON.stringify(r))).toEqual(
       records.map((r) => JSON.stringify(r)),
     );
+  });
+});
+
+describe('the reason of every invalid window, in every output', () => {
+  const { records } = run({
+    freezeBackPco2: [T0 + 6 * HOUR, T0 + 9 * HOUR],
+    silenceCrestCtd: [T0 + 2 * HOUR, T0 + 3 * HOUR],
+  });
+  // The vocabulary: the validity tests of docs/methods/metabolism.md 6.6 and the input faults of faults.md 12.7.
+  const REASON =
+    /^(speed_below_min|reverse_flow|angle_off_transect|residence_above_max|depth_below_min|storage_dominates|input_qc_failed|input_missing|input_fault:[\w.-]+\/[\w.-]+\/(stale|flatline|range|spike|logbook_exclusion)|input_qc_failed:[\w.-]+\/[\w.-]+)$/;
+  it('is named in invalid_reasons exactly when the window is not valid', () => {
+    const f = fluxes(records);
+    expect(f.filter((r) => !r.valid).length).toBeGreaterThan(25);
+    for (const r of f) {
+      expect(reasons(r).length > 0, r.t).toBe(!r.valid);
+      for (const x of reasons(r)) expect(x).toMatch(REASON);
+    }
+  });
+  it('reaches the database line and the JSON record alike', () => {
+    const r = fluxes(records).find((x) => reasons(x).includes('input_fault:back/co2/flatline'))!;
+    const line = recordToLine(r, 'v2');
+    expect(line.ok && line.line).toContain('invalid_reasons="input_fault:back/co2/flatline');
+    expect(JSON.parse(JSON.stringify(r)).invalid_reasons).toBe(r.invalid_reasons);
   });
 });
 
