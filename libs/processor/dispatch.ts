@@ -31,6 +31,8 @@ class MessageIO implements KindIO<Kind> {
   readonly #observer: Observer;
   readonly #state: ProcessorState;
   readonly #faults: FaultWiring | undefined;
+  #reasons: string[] | undefined;
+  #reasonsAt = -1;
 
   constructor(
     ctx: DeriveContext,
@@ -62,7 +64,15 @@ class MessageIO implements KindIO<Kind> {
 
   /** The invalidating faults in force among the inputs at the message's time (docs/methods/faults.md 12.7). */
   faultReasons(): string[] {
-    return this.#faults === undefined ? [] : this.#faults.faultsAt(this.inputKeys(), this.#m.tMs);
+    if (this.#faults === undefined) return [];
+    // Asked at every QC, emit, observe and put: computed again only when the derivation read something new or
+    // a QC result went to the fault state.
+    const n = this.ctx.inputs.used.length;
+    if (this.#reasons === undefined || this.#reasonsAt !== n) {
+      this.#reasons = this.#faults.faultsAt(this.inputKeys(), this.#m.tMs);
+      this.#reasonsAt = n;
+    }
+    return this.#reasons;
   }
 
   #faultFlag(flag: number): number {
@@ -77,6 +87,7 @@ class MessageIO implements KindIO<Kind> {
   qc(metric: string, variable: string, value: number, flagIn = 1): number {
     const m = this.#m;
     const v = this.#observer.qc(m, metric, variable, value, this.#rxMs, this.#out, this.#faultFlag(flagIn));
+    this.#reasons = undefined; // the QC result may have opened or ended a fault
     if (v.previousFailedMs !== undefined) this.#markPreviousFailed(v.previousFailedMs);
     return Math.max(v.qcFlag, flagIn);
   }
