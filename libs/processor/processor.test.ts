@@ -265,3 +265,41 @@ describe('intake rules', () => {
     expect(p.counters()).toMatchObject({ duplicates: 2, clockFaults: 1, late: 1 });
   });
 });
+
+describe('a logger that restarts its seq counter', () => {
+  const ctdAt = (minute: number, seq: number) =>
+    msg('crest/ctd/ctd', { t: new Date(T0 + minute * MIN).toISOString(), temp_c: 27, sal: 35, seq });
+
+  it('keeps the messages after a reboot, counts the reboot once, still drops true repeats', () => {
+    const p = createProcessor(config);
+    for (let i = 0; i < 40; i++) expect(p.push(ctdAt(i, i), T0 + i * MIN).status).toBe('ok');
+    // The logger reboots at minute 40: seq starts at 0 again, numbers it sent before its reboot.
+    const first = p.push(ctdAt(40, 0), T0 + 40 * MIN);
+    expect(first.status).toBe('ok');
+    expect(first.seqRestart).toBe(true);
+    for (let i = 1; i < 30; i++) {
+      const r = p.push(ctdAt(40 + i, i), T0 + (40 + i) * MIN);
+      expect(r.status).toBe('ok');
+      expect(r.seqRestart).toBeUndefined();
+    }
+    expect(p.push(ctdAt(45, 5), T0 + 70 * MIN).status).toBe('duplicate');
+    expect(p.counters()).toMatchObject({ accepted: 70, duplicates: 1, sensorReboots: 1 });
+  });
+
+  it('takes a late message with a lower seq for a late message, not a reboot', () => {
+    const p = createProcessor(config);
+    p.push(ctdAt(10, 10), T0 + 10 * MIN);
+    const late = p.push(ctdAt(5, 5), T0 + 10 * MIN);
+    expect(late.status).toBe('ok');
+    expect(late.seqRestart).toBeUndefined();
+    expect(p.counters().sensorReboots).toBeUndefined();
+  });
+
+  it('takes a 16-bit counter passing 65535 for a wrap, not a reboot', () => {
+    const p = createProcessor(config);
+    p.push(ctdAt(1, 65535), T0 + MIN);
+    const next = p.push(ctdAt(2, 0), T0 + 2 * MIN);
+    expect(next.status).toBe('ok');
+    expect(next.seqRestart).toBeUndefined();
+  });
+});

@@ -9,7 +9,7 @@ import { deriveMessage, moduleOf } from './dispatch.js';
 import { createFaultWiring, type FaultExclusion, type FaultWiring } from './faults.js';
 import { alertRecord, createObserver, type Observer } from './observe.js';
 import { hold, takeDue } from './order.js';
-import { isDuplicate, sensorHealth, type SensorHealthRow } from './sensors.js';
+import { intake, sensorHealth, type SensorHealthRow } from './sensors.js';
 import { processorTimes } from './settings.js';
 import { completeState, createState, STATE_VERSION, type ProcessorState } from './state.js';
 import { createWindows } from './windows.js';
@@ -24,6 +24,8 @@ export interface PushResult {
   records: DerivedRecord[];
   /** The message arrived after the watermark had passed its time. */
   late: boolean;
+  /** The sensor's `seq` started again on this message (a logger reboot); the message is kept. */
+  seqRestart?: boolean;
 }
 
 export interface Processor {
@@ -78,7 +80,8 @@ function startAlerts(config: ReefdConfig, state: ProcessorState): AlertEngine {
 
 /**
  * The intake rules before a message is accepted: a disabled sensor, a clock running ahead, a duplicate.
- * Returns the status of a refused message (counted; a clock fault feeds the alert engine), or undefined.
+ * Returns the status of a refused message (counted; a clock fault feeds the alert engine), `reboot` for an
+ * accepted message on which the sensor's seq started again, or undefined.
  */
 function screen(
   config: ReefdConfig,
@@ -87,7 +90,7 @@ function screen(
   m: SensorMessage,
   rxMs: number,
   out: DerivedRecord[],
-): Exclude<PushStatus, 'ok'> | undefined {
+): Exclude<PushStatus, 'ok'> | 'reboot' | undefined {
   if (config.stations[m.station]?.sensors[m.sensor]?.enabled === false) {
     state.counters.disabledSensor++;
     return 'disabled';
@@ -98,9 +101,14 @@ function screen(
     observer.alert(m, `${m.kind}.clock`, Number.NaN, 4, out);
     return 'clock_fault';
   }
-  if (isDuplicate(state, m)) {
+  const seen = intake(state, m);
+  if (seen === 'duplicate') {
     state.counters.duplicates++;
     return 'duplicate';
+  }
+  if (seen === 'reboot') {
+    state.counters.sensorReboots = (state.counters.sensorReboots ?? 0) + 1;
+    return 'reboot';
   }
   return undefined;
 }
@@ -167,10 +175,13 @@ export function createProcessor(
     push(m, rxMs) {
       const out: DerivedRecord[] = [];
       const refused = screen(config, state, observer, m, rxMs, out);
-      if (refused !== undefined) return { status: refused, records: out, late: false };
+      if (refused !== undefined && refused !== 'reboot')
+        return { status: refused, records: out, late: false };
       const late = accept(m, rxMs, out);
       count(out);
-      return { status: 'ok', records: out, late };
+      return refused === 'reboot'
+        ? { status: 'ok', records: out, late, seqRestart: true }
+        : { status: 'ok', records: out, late };
     },
     drain() {
       const out: DerivedRecord[] = [];

@@ -1,5 +1,5 @@
 // Per-sensor bookkeeping (state.sensors, keyed `station/sensor`): duplicate detection by time and sequence
-// number, last seen, battery and the worst flag of the last message, for the health table.
+// number, logger reboots (a seq that starts again), last seen, battery and the worst flag of the last message, for the health table.
 import type { ReefdConfig, SensorMessage } from '../contract/index.js';
 import type { ProcessorState, SensorState } from './state.js';
 
@@ -28,19 +28,43 @@ export function sensorStateOf(state: ProcessorState, m: SensorMessage): SensorSt
   return s;
 }
 
-/** True for a message already seen (same time or same seq as a recent one); otherwise notes it. */
-export function isDuplicate(state: ProcessorState, m: SensorMessage): boolean {
+/** A counter that passed the top of 16 or 32 bits and started at 0 again. */
+function wrapped(lastSeq: number, seq: number): boolean {
+  return seq < 16 && [0xffff, 0xffffffff].some((top) => lastSeq <= top && lastSeq > top - 16);
+}
+
+/**
+ * Intake bookkeeping per sensor: a message with the time, or the `seq`, of a recent one is a repeat. A
+ * `seq` below the sensor's last on a newer sample is a logger that restarted its counter (a reboot): the
+ * message is new data, kept and counted, and the remembered numbers start again. A wrap of a 16- or
+ * 32-bit counter is not a reboot. Notes every message that is not a repeat.
+ */
+export function intake(state: ProcessorState, m: SensorMessage): 'new' | 'duplicate' | 'reboot' {
   const s = sensorStateOf(state, m);
-  if (s.recentT.includes(m.tMs) || (m.seq !== undefined && s.recentSeq.includes(m.seq))) return true;
+  if (s.recentT.includes(m.tMs)) return 'duplicate';
+  let verdict: 'new' | 'reboot' = 'new';
+  if (m.seq !== undefined && s.lastSeq !== undefined && m.seq < s.lastSeq && m.tMs > s.lastTMs) {
+    if (!wrapped(s.lastSeq, m.seq)) verdict = 'reboot';
+    s.recentSeq = [];
+  }
+  if (verdict === 'new' && m.seq !== undefined && s.recentSeq.includes(m.seq)) return 'duplicate';
   s.recentT.push(m.tMs);
   if (s.recentT.length > RECENT_IDS) s.recentT.shift();
   if (m.seq !== undefined) {
     s.recentSeq.push(m.seq);
     if (s.recentSeq.length > RECENT_IDS) s.recentSeq.shift();
   }
-  if (m.tMs > s.lastTMs) s.lastTMs = m.tMs;
+  if (m.tMs > s.lastTMs) {
+    s.lastTMs = m.tMs;
+    if (m.seq !== undefined) s.lastSeq = m.seq;
+  }
   s.count++;
-  return false;
+  return verdict;
+}
+
+/** True for a message already seen (same time or same seq as a recent one); otherwise notes it. */
+export function isDuplicate(state: ProcessorState, m: SensorMessage): boolean {
+  return intake(state, m) === 'duplicate';
 }
 
 /** Last seen, battery and last flag of every sensor that has reported. */

@@ -12,6 +12,8 @@ export interface SensorState {
   /** Recent sample times and sequence numbers, bounded, for duplicate detection. */
   recentT: number[];
   recentSeq: number[];
+  /** `seq` of the newest sample (by time), to recognise a counter that started again. */
+  lastSeq?: number;
   /** Last pH solution of a pCO2 sensor: the warm start of the next solve. */
   lastPh?: number;
   count: number;
@@ -66,6 +68,8 @@ export interface ProcessorCounters {
   clockFaults: number;
   unknownSensor: number;
   disabledSensor: number;
+  /** Messages whose `seq` started again (logger reboots); their data is kept. Absent until the first. */
+  sensorReboots?: number;
   records: Record<string, number>;
 }
 
