@@ -284,7 +284,12 @@ export const configSchema = z
         fsync_ms: z.int().min(0).max(10_000).default(200),
       })
       .prefault({}),
-    data_dir: z.string().default('./reefd-data'),
+    /**
+     * Checkpoint, archive, spools, output ledgers, alert outbox. No default here: it depends on where reefd
+     * runs (services/config/load.ts resolveDataDir: systemd's StateDirectory, else `reefd-data` beside the
+     * configuration file).
+     */
+    data_dir: z.string().min(1).optional(),
     alerts: alertsConfigSchema.optional(),
     notify: notifyConfigSchema.optional(),
     http: z

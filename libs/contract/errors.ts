@@ -12,6 +12,10 @@ export const ERROR_CATALOGUE = {
   REEFD_INPUT_MISSING: 'An input file or folder named on the command line does not exist.',
   REEFD_SINK_UNAVAILABLE:
     'An output (database, Kafka) is not reachable; records are spooled on disk and retried.',
+  REEFD_SINK_AUTH:
+    'An output refused the credentials or does not know the database (HTTP 401/403/404); records are spooled and retried: fix the token or create the database.',
+  REEFD_NO_SOURCE:
+    'The configuration has no `sources` section, so `reefd run` would receive nothing; add sources.mqtt or sources.kafka.',
   REEFD_SOURCE_UNAVAILABLE: 'The broker or Kafka source is not reachable; reefd keeps retrying with backoff.',
   REEFD_DISK_FULL: 'The data folder has no space left; free space there. Nothing already written is lost.',
   REEFD_SPOOL_NEAR_LIMIT:

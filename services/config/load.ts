@@ -9,6 +9,25 @@ import {
   type SecretRef,
 } from '../../libs/contract/index.js';
 
+/** The data folder when the configuration names none and systemd gives no StateDirectory. */
+export const DEFAULT_DATA_DIR = 'reefd-data';
+
+/**
+ * The data folder, absolute: `data_dir` (relative to the configuration's folder); else the first folder of
+ * systemd's `$STATE_DIRECTORY` (the shipped unit's `StateDirectory=reefd`, /var/lib/reefd: writable under
+ * its sandbox, unlike the configuration's folder); else `reefd-data` beside the configuration file.
+ */
+export function resolveDataDir(
+  config: Pick<ReefdConfig, 'data_dir'>,
+  baseDir: string,
+  env: Readonly<Record<string, string | undefined>>,
+): string {
+  if (config.data_dir !== undefined) return path.resolve(baseDir, config.data_dir);
+  const state = env.STATE_DIRECTORY?.split(':')[0];
+  if (state !== undefined && state !== '') return path.resolve(state);
+  return path.resolve(baseDir, DEFAULT_DATA_DIR);
+}
+
 export async function loadConfigFile(file: string): Promise<ConfigParse> {
   let text: string;
   try {

@@ -1,44 +1,35 @@
-// Processor checkpoints: the state as JSON, written atomically (temp file, fsync, rename, fsync of the folder),
-// so a crash leaves either the old or the new checkpoint, never half of one.
-import { mkdir, open, readFile, rename } from 'node:fs/promises';
-import path from 'node:path';
+// Processor checkpoints: the state and the stream it covers (cursor.ts) as JSON, written atomically (temp file,
+// fsync, rename, fsync of the folder), so a crash leaves either the old or the new checkpoint, never half.
+import { readFile, rename } from 'node:fs/promises';
 import { ReefdError } from '../../libs/contract/index.js';
 import type { ProcessorState } from '../../libs/processor/index.js';
+import { writeFileAtomic } from '../sinks/atomic-file.js';
+import { parseStream, type StreamState } from './cursor.js';
 
-/**
- * Replaces `file` with `text` so that a crash leaves the old or the new content, never a mix: a temp file
- * (mode 0600), fsync, rename, fsync of the folder. Shared by the checkpoint and the dashboard history.
- */
-export async function writeFileAtomic(file: string, text: string): Promise<void> {
-  await mkdir(path.dirname(file), { recursive: true });
-  const tmp = `${file}.tmp-${process.pid}`;
-  const fh = await open(tmp, 'w', 0o600);
-  try {
-    await fh.writeFile(text);
-    await fh.sync();
-  } finally {
-    await fh.close();
-  }
-  await rename(tmp, file);
-  const dir = await open(path.dirname(file), 'r');
-  try {
-    await dir.sync();
-  } finally {
-    await dir.close();
-  }
+export { writeFileAtomic };
+
+export async function writeCheckpoint(
+  file: string,
+  state: ProcessorState,
+  stream: StreamState,
+): Promise<void> {
+  await writeFileAtomic(file, JSON.stringify({ savedAt: new Date().toISOString(), stream, state }));
 }
 
-export async function writeCheckpoint(file: string, state: ProcessorState): Promise<void> {
-  await writeFileAtomic(file, JSON.stringify({ savedAt: new Date().toISOString(), state }));
+export interface CheckpointRead {
+  state?: ProcessorState;
+  /** The stream the state covers; absent for a checkpoint of an earlier version. */
+  stream?: StreamState;
+  /** Receive time an earlier version's checkpoint covered (lines from it on are fed again). */
+  legacyRxMs?: number;
+  warning?: ReefdError;
 }
 
 /**
  * Reads a checkpoint. A missing file is a cold start (undefined); an unreadable one is moved aside as
  * `<file>.corrupt-<time>` and also gives a cold start, with a REEFD_CHECKPOINT_CORRUPT warning for the log.
  */
-export async function readCheckpoint(
-  file: string,
-): Promise<{ state?: ProcessorState; warning?: ReefdError }> {
+export async function readCheckpoint(file: string): Promise<CheckpointRead> {
   let text: string;
   try {
     text = await readFile(file, 'utf8');
@@ -47,9 +38,13 @@ export async function readCheckpoint(
     throw err;
   }
   try {
-    const parsed = JSON.parse(text) as { state?: ProcessorState };
-    if (parsed.state === undefined || typeof parsed.state !== 'object') throw new Error('no state');
-    return { state: parsed.state };
+    const parsed = JSON.parse(text) as { state?: ProcessorState & { lastRxMs?: unknown }; stream?: unknown };
+    if (parsed.state === undefined || typeof parsed.state !== 'object' || parsed.state === null)
+      throw new Error('no state');
+    const stream = parseStream(parsed.stream);
+    if (stream !== undefined) return { state: parsed.state, stream };
+    const legacy = parsed.state.lastRxMs;
+    return typeof legacy === 'number' ? { state: parsed.state, legacyRxMs: legacy } : { state: parsed.state };
   } catch (err) {
     const aside = `${file}.corrupt-${Date.now()}`;
     await rename(file, aside);

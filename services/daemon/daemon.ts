@@ -1,41 +1,25 @@
-// The daemon: wires sources, archive, processor, sinks, dashboard and notifier, checkpoints the processor,
-// and shuts down in order on SIGTERM (stop intake, flush, checkpoint) within 10 s.
+// The daemon: a list of start-up steps called in order, each returning what it made and registering how to
+// close it (lifecycle.ts). A start that fails at any step closes what it already started and throws; a stop
+// closes everything in reverse: systemd told first, sources stopped, the intake drained, archive and
+// outputs flushed, the last checkpoint written, then outputs, archive, notifier and clients closed, within
+// 10 s. Records and operational alerts reach the dashboard and the notifier through one bus.
 import { mkdir } from 'node:fs/promises';
-import path from 'node:path';
-import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
+import { ReefdError, type ReefdConfig } from '../../libs/contract/index.js';
 import type { Processor } from '../../libs/processor/index.js';
-import { createArchiveWriter, type RawArchiveWriter } from '../archive/index.js';
 import type { Logger } from '../log/logger.js';
-import { notifyConfigSchema } from '../../libs/alerts/index.js';
-import {
-  alertsStateDir,
-  channelsFromConfig,
-  createNotifier,
-  notifierOptionsFromConfig,
-  type NotificationMessage,
-  type Notifier,
-} from '../notifiers/index.js';
-import type { DeadLetterSink, RecordSink, Source } from '../pipeline/types.js';
-import mqtt from 'mqtt';
-import {
-  createDeadLetterSink,
-  kafkaClient,
-  kafkaPublisher,
-  mqttPublisher,
-  tlsOptions,
-  type TopicPublisher,
-} from '../sinks/index.js';
-import { createKafkaSource, createMqttSource } from '../sources/index.js';
-import { edgeFromConfig } from '../scaleout/edge-from-config.js';
-import { readCheckpoint, writeCheckpoint } from './checkpoint.js';
+import type { NotificationMessage, Notifier } from '../notifiers/index.js';
+import type { Source } from '../pipeline/types.js';
+import { buildArchive, buildCheckpointer, buildPipeline, buildState } from './build-core.js';
+import { buildClients, buildNotifier, buildOutputs, buildSources, buildSystemd } from './build-io.js';
+import { createBus, type Bus, type RecordBus } from './bus.js';
+import type { StartContext } from './context.js';
+import { resolveDataDir } from '../config/load.js';
+import { Lifecycle } from './lifecycle.js';
 import { createMetrics, type DaemonMetrics } from './metrics.js';
-import { createPipeline, type Pipeline } from './pipeline.js';
-import { createOutputs, resolveSasl, secretResolver, tlsFiles } from './outputs.js';
-import { replayArchiveTail } from './resume.js';
-import { createSystemdNotifier } from './systemd.js';
+import { secretResolver } from './outputs.js';
+import type { Pipeline } from './pipeline.js';
 
-/** The checkpoint: the processor state plus the receive time of the last message it covers. */
-type Checkpointed = ReturnType<Processor['snapshot']> & { lastRxMs?: number };
+export type { RecordBus } from './bus.js';
 
 export interface DaemonOptions {
   config: ReefdConfig;
@@ -45,10 +29,9 @@ export interface DaemonOptions {
   env: Readonly<Record<string, string | undefined>>;
   /** MQTT protocol version for the source (5 for Mosquitto; the embedded demo broker speaks 4). */
   mqttProtocolVersion?: 4 | 5;
-  /** Extra record consumers (the dashboard). */
-  onRecords?: (records: readonly DerivedRecord[]) => void;
   checkpointEveryMs?: number;
   metrics?: DaemonMetrics;
+  clock?: () => number;
 }
 
 export interface Daemon {
@@ -56,8 +39,10 @@ export interface Daemon {
   readonly pipeline: Pipeline;
   readonly metrics: DaemonMetrics;
   readonly notifier: Notifier;
-  /** Where the notifier's dashboard channel shows its notices (set once the dashboard is up). */
-  setNoticeSink(sink: (m: NotificationMessage) => void): void;
+  /** Every batch of live records and every operational alert (dashboard, notifier subscribe here). */
+  readonly bus: RecordBus;
+  /** Notices of the notifier's dashboard channel (the dashboard's banner). */
+  readonly notices: Bus<NotificationMessage>;
   readonly dataDir: string;
   ready(): boolean;
   /** Everything the HTTP layer shows at /readyz. */
@@ -66,343 +51,93 @@ export interface Daemon {
   stop(reason?: string): Promise<void>;
 }
 
+/** Budget for a stop (the command's own hard limit is 10 s). */
+const STOP_DEADLINE_MS = 9000;
+
 export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const { config, logger } = o;
-  const dataDir = path.resolve(o.baseDir, config.data_dir);
+  if (
+    config.sources === undefined ||
+    (config.sources.mqtt === undefined && config.sources.kafka === undefined)
+  )
+    throw new ReefdError(
+      'REEFD_NO_SOURCE',
+      'the configuration has no sources: add sources.mqtt or sources.kafka (reefd replay needs none)',
+    );
+  const dataDir = resolveDataDir(config, o.baseDir, o.env);
   await mkdir(dataDir, { recursive: true });
-  const secret = secretResolver({ env: o.env, baseDir: o.baseDir });
-  const metrics = o.metrics ?? createMetrics();
-  const checkpointFile = path.join(dataDir, 'checkpoint.json');
-
-  const sasl = (x: Parameters<typeof resolveSasl>[1]) => resolveSasl({ env: o.env, baseDir: o.baseDir }, x);
-
-  /** A second MQTT client on the source broker (dead letters, notifications), never the intake's own. */
-  async function auxMqtt(m: NonNullable<NonNullable<ReefdConfig['sources']>['mqtt']>, role: string) {
-    const password = await secret(m.password);
-    return mqtt.connect(m.url, {
-      clientId: `${m.client_id}-${role}`,
-      protocolVersion: o.mqttProtocolVersion ?? 5,
-      ...(m.username !== undefined ? { username: m.username } : {}),
-      ...(password !== undefined ? { password } : {}),
-      ...(tlsOptions(tlsFiles(o.baseDir, m.tls)) as Record<string, unknown>),
-    });
-  }
-
-  // 1. The processor, resumed from its checkpoint.
-  const cp = await readCheckpoint(checkpointFile);
-  if (cp.warning) logger.warn({ code: cp.warning.code }, cp.warning.message);
-  const saved = cp.state as Checkpointed | undefined;
-  // Edge mode (config `bridge`): accepted messages are forwarded to Kafka; see deploy/SCALING.md.
-  const { bridge, processor } = await edgeFromConfig({
-    config,
-    saved,
-    dataDir,
-    logger,
-    secret,
-    tls: (t) => tlsFiles(o.baseDir, t),
-  });
-
-  // 2. The raw archive, and the lines it holds that the checkpoint has not seen (a crash after the last
-  //    checkpoint): they are fed to the processor again so the windows resume where they were.
-  const archiveDir = path.resolve(o.baseDir, config.archive.dir ?? path.join(dataDir, 'archive'));
-  const archive: RawArchiveWriter = await createArchiveWriter({
-    dir: archiveDir,
-    fsyncMs: config.archive.fsync_ms,
-    retentionDays: config.archive.retention_days,
-    clock: Date.now,
-    logger,
-  });
-
-  // 3. Outputs.
-  const sinks: RecordSink[] = await createOutputs({
+  const life = new Lifecycle(logger);
+  const onBusError = (err: unknown) => logger.error({ err }, 'a record bus subscriber failed');
+  const ctx: StartContext = {
     config,
     baseDir: o.baseDir,
     dataDir,
-    env: o.env,
     logger,
-    onSpoolNearLimit: (sink, bytes, max) => spoolNear(sink, bytes, max),
-  });
-  const out = config.outputs;
-  // Dead letters: always a file; optionally an MQTT topic (a client of its own on the source broker) and a
-  // Kafka topic (a producer on the output or source cluster).
-  const dl = out.dead_letter;
-  const closers: (() => Promise<unknown>)[] = [];
-  let dlMqtt: { publisher: TopicPublisher; topic: string } | undefined;
-  if (dl?.mqtt_topic && config.sources?.mqtt) {
-    const client = await auxMqtt(config.sources.mqtt, 'deadletter');
-    client.on('error', (err) => logger.warn({ err: err.message }, 'dead-letter mqtt client error'));
-    closers.push(() => client.endAsync());
-    dlMqtt = { publisher: mqttPublisher(client), topic: dl.mqtt_topic };
-  }
-  let dlKafka: { publisher: TopicPublisher; topic: string } | undefined;
-  const kc = out.kafka ?? config.sources?.kafka;
-  if (dl?.kafka_topic && kc) {
-    const producer = kafkaClient({
-      brokers: kc.brokers,
-      clientId: `${kc.client_id}-deadletter`,
-      tls: tlsFiles(o.baseDir, kc.tls),
-      sasl: await sasl(kc.sasl),
-      logger,
-    }).producer();
-    await producer
-      .connect()
-      .catch((err: unknown) =>
-        logger.warn({ err: (err as Error).message }, 'dead-letter kafka producer not connected yet'),
-      );
-    closers.push(() => producer.disconnect());
-    dlKafka = { publisher: kafkaPublisher(producer), topic: dl.kafka_topic };
-  }
-  const deadLetter: DeadLetterSink = await createDeadLetterSink({
-    path: path.resolve(o.baseDir, dl?.path ?? path.join(dataDir, 'dead-letter.ndjson')),
-    ...(dlMqtt ? { mqtt: dlMqtt } : {}),
-    ...(dlKafka ? { kafka: dlKafka } : {}),
-    maxPerMin: dl?.max_per_min ?? 600,
-    clock: Date.now,
-    logger,
-  });
-
-  // 4. Alert delivery: a durable outbox in the data folder. Without a `notify:` section the default is one
-  //    dashboard channel, so `reefd alerts list|ack` always has an outbox to read.
-  const notifyConfig = config.notify ?? notifyConfigSchema.parse({});
-  let noticeSink: ((m: NotificationMessage) => void) | undefined;
-  let notifyClient: mqtt.MqttClient | undefined;
-  const wantsMqtt = Object.values(notifyConfig.channels).some((c) => c.enabled && c.type === 'mqtt');
-  if (wantsMqtt && config.sources?.mqtt) {
-    notifyClient = await auxMqtt(config.sources.mqtt, 'notify');
-    notifyClient.on('error', (err) => logger.warn({ err: err.message }, 'notification mqtt client error'));
-  }
-  const channels = await channelsFromConfig(notifyConfig, {
-    site: config.site,
     env: o.env,
-    ...(notifyClient ? { mqtt: notifyClient } : {}),
-    dashboard: (m) => noticeSink?.(m),
-  });
-  const notifier: Notifier = createNotifier({
-    dir: alertsStateDir(dataDir),
-    site: config.site,
-    channels,
-    ...notifierOptionsFromConfig(notifyConfig),
-    onError: (err, channelId) =>
-      logger.warn({ channel: channelId, err: (err as Error).message }, 'notification failed; retrying'),
-  });
-  await notifier.start();
-  const enqueue = (r: DerivedRecord) =>
-    notifier
-      .enqueue(r as never)
-      .catch((err: unknown) =>
-        logger.error(
-          { err: (err as Error).message, rule: (r as { rule?: string }).rule },
-          'alert not queued for notification',
-        ),
-      );
-
-  function spoolNear(sink: string, bytes: number, max: number) {
-    logger.warn(
-      { sink, spoolBytes: bytes, maxBytes: max, code: 'REEFD_SPOOL_NEAR_LIMIT' },
-      'spool near its bound',
+    secret: secretResolver({ env: o.env, baseDir: o.baseDir }),
+    metrics: o.metrics ?? createMetrics(),
+    bus: createBus(onBusError),
+    notices: createBus(onBusError),
+    life,
+    clock: o.clock ?? Date.now,
+    mqttProtocolVersion: o.mqttProtocolVersion ?? 5,
+  };
+  try {
+    const clients = await buildClients(ctx);
+    const notifier = await buildNotifier(ctx, clients);
+    const state = await buildState(ctx);
+    const archive = await buildArchive(ctx);
+    const outputs = await buildOutputs(ctx, clients, state.stream.epoch);
+    const pipeline = await buildPipeline(ctx, state, archive, outputs);
+    const { checkpoint } = buildCheckpointer(
+      ctx,
+      state,
+      pipeline,
+      archive.writer,
+      outputs,
+      o.checkpointEveryMs ?? 30_000,
     );
-    const alert = operationalAlert('spool_near_limit', bytes, max, sink);
-    o.onRecords?.([alert]);
-    void enqueue(alert);
-  }
+    // Step 8 (issue 13): the site's wall-clock dead-man (`site_silent`) goes here, between the checkpointer
+    // and the sources: it watches what the sources push and raises on the bus.
+    const sources: Source[] = await buildSources(ctx, (input) => void pipeline.handle(input));
+    buildSystemd(ctx);
+    logger.info({ parts: life.names(), dataDir, epoch: state.stream.epoch }, 'reefd started');
 
-  function operationalAlert(rule: string, value: number, limit: number, sensor?: string): DerivedRecord {
+    let stopping: Promise<void> | undefined;
     return {
-      type: 'alert',
-      site: config.site,
-      t: new Date().toISOString(),
-      rule: `reefd.${rule}`,
-      class: 'fault',
-      state: 'raised',
-      value,
-      limit,
-      ...(sensor !== undefined ? { sensor } : {}),
-      severity: 'critical',
-      id: `reefd.${rule}.${Date.now()}`,
-    } as DerivedRecord;
-  }
-
-  let diskFullSince = 0;
-  const pipeline = createPipeline({
-    config,
-    processor,
-    archive,
-    sinks,
-    deadLetter,
-    metrics,
-    logger,
-    onRecords: (records) => {
-      o.onRecords?.(records);
-      for (const r of records) if (r.type === 'alert') void enqueue(r);
-    },
-    onArchiveError: (err) => {
-      if ((err as { code?: string }).code === 'REEFD_DISK_FULL' && Date.now() - diskFullSince > 10 * 60_000) {
-        diskFullSince = Date.now();
-        const a = operationalAlert('disk_full', 0, 0);
-        o.onRecords?.([a]);
-        void enqueue(a);
-      }
-    },
-  });
-
-  const resumed = await replayArchiveTail(archiveDir, saved?.lastRxMs, config, processor);
-  pipeline.rememberArchived(resumed.keys);
-  if (resumed.lines > 0) {
-    logger.info(
-      { lines: resumed.lines, records: resumed.records.length },
-      'resumed the windows from the archive tail',
-    );
-    for (const s of sinks) s.write(resumed.records);
-  }
-  let lastRxMs = resumed.lastRxMs;
-
-  // 5. Sources.
-  const sources: Source[] = [];
-  const src = config.sources;
-  if (src?.mqtt) {
-    const m = src.mqtt;
-    sources.push(
-      createMqttSource({
-        url: m.url,
-        clientId: m.client_id,
-        username: m.username,
-        password: await secret(m.password),
-        tls: tlsFiles(o.baseDir, m.tls),
-        cleanStart: m.clean_start,
-        sessionExpiryS: m.session_expiry_s,
-        topicPrefix: config.topic_prefix,
-        site: config.site,
-        logger,
-        ...(o.mqttProtocolVersion !== undefined ? { protocolVersion: o.mqttProtocolVersion } : {}),
+      processor: state.processor,
+      pipeline,
+      metrics: ctx.metrics,
+      notifier,
+      bus: ctx.bus,
+      notices: ctx.notices,
+      dataDir,
+      ready: () => sources.every((s) => s.connected()),
+      status: () => ({
+        sources: Object.fromEntries(sources.map((s) => [s.name, s.connected()])),
+        sinks: Object.fromEntries(outputs.sinks.map((s) => [s.name, s.stats()])),
+        watermark: new Date(state.processor.watermarkMs()).toISOString(),
+        pipeline: pipeline.stats(),
+        stream: {
+          epoch: state.stream.epoch,
+          nextPos: state.stream.nextPos,
+          lines: state.stream.cursor.lines,
+        },
+        ...(state.bridge ? { bridge: state.bridge.stats() } : {}),
       }),
-    );
+      checkpoint: () => checkpoint(),
+      stop(reason = 'stop') {
+        stopping ??= (async () => {
+          logger.info({ reason }, 'stopping: intake first, then flush and checkpoint');
+          await life.closeAll(STOP_DEADLINE_MS);
+          logger.info({ stats: pipeline.stats() }, 'stopped');
+        })();
+        return stopping;
+      },
+    };
+  } catch (err) {
+    logger.error({ err, parts: life.names() }, 'start failed; stopping what was started');
+    await life.closeAll(5000);
+    throw err;
   }
-  if (src?.kafka) {
-    const k = src.kafka;
-    sources.push(
-      createKafkaSource({
-        brokers: k.brokers,
-        clientId: k.client_id,
-        groupId: k.group_id,
-        topic: k.topic,
-        topicPrefix: config.topic_prefix,
-        tls: tlsFiles(o.baseDir, k.tls),
-        sasl: await sasl(k.sasl),
-        logger,
-      }),
-    );
-  }
-
-  const push = (input: Parameters<Pipeline['handle']>[0]) => {
-    if (lastRxMs === undefined || input.rxMs > lastRxMs) lastRxMs = input.rxMs;
-    void pipeline.handle(input);
-  };
-  for (const s of sources) await s.start(push);
-
-  const systemd = createSystemdNotifier(process.env);
-  let lastBeat = Date.now();
-  const beat = setInterval(() => (lastBeat = Date.now()), 1000);
-  beat.unref();
-  systemd.startWatchdog(() => Date.now() - lastBeat < 10_000);
-  systemd.ready();
-
-  async function checkpoint(settleMs = 20_000): Promise<void> {
-    // The state and the receive time it covers are taken first; then everything they cover is made durable
-    // before the checkpoint may claim it: the archive lines (the cursor counts appended lines), the bridge
-    // (edge mode: at the broker or in its disk spool) and the records the sinks still hold in memory
-    // (delivered or spooled). Without the sinks' flush a kill -9 just after a checkpoint lost the records of
-    // covered messages, since resume does not feed those again (fault case a, kill after a checkpoint).
-    // If the sinks do not settle within settleMs (a hung or very slow database), the previous checkpoint
-    // stays: resume then feeds more lines again, never fewer.
-    const covered = lastRxMs;
-    const state: Checkpointed = processor.snapshot();
-    await archive.flush();
-    await bridge?.flush();
-    let timer: NodeJS.Timeout | undefined;
-    const settled = await Promise.race([
-      Promise.all(sinks.map((s) => s.flush())).then(() => true),
-      new Promise<boolean>((r) => (timer = setTimeout(() => r(false), settleMs))),
-    ]);
-    clearTimeout(timer);
-    if (!settled) {
-      logger.warn(
-        { code: 'REEFD_CHECKPOINT_DEFERRED' },
-        'sinks did not settle in time; checkpoint kept as it was',
-      );
-      return;
-    }
-    if (covered !== undefined) state.lastRxMs = covered;
-    await writeCheckpoint(checkpointFile, state);
-  }
-  const cpTimer = setInterval(() => {
-    checkpoint().catch((err: unknown) => logger.error({ err: (err as Error).message }, 'checkpoint failed'));
-  }, o.checkpointEveryMs ?? 30_000);
-  cpTimer.unref();
-  const spoolTimer = setInterval(() => {
-    for (const s of sinks) metrics.spoolBytes.set({ sink: s.name }, s.stats().spoolBytes ?? 0);
-  }, 5000);
-  spoolTimer.unref();
-
-  let stopping: Promise<void> | undefined;
-  async function stop(reason = 'stop'): Promise<void> {
-    stopping ??= (async () => {
-      logger.info({ reason }, 'stopping: intake first, then flush and checkpoint');
-      systemd.stopping();
-      clearInterval(cpTimer);
-      clearInterval(spoolTimer);
-      clearInterval(beat);
-      await Promise.allSettled(sources.map((s) => s.stop()));
-      const deadline = new Promise<void>((r) => setTimeout(r, 7000).unref());
-      await Promise.race([
-        Promise.allSettled([
-          archive.flush(),
-          ...sinks.map((s) => s.flush()),
-          deadLetter.flush(),
-          bridge?.flush(),
-        ]),
-        deadline,
-      ]);
-      try {
-        // The sinks had their flush above: a second chance of 1 s keeps the exit within 10 s.
-        await checkpoint(1000);
-      } catch (err) {
-        logger.error({ err: (err as Error).message }, 'final checkpoint failed');
-      }
-      await Promise.race([
-        Promise.allSettled([
-          ...sinks.map((s) => s.close()),
-          bridge?.close(),
-          deadLetter.close(),
-          archive.close(),
-          notifier.stop(),
-          notifyClient?.endAsync(),
-        ]),
-        deadline,
-      ]);
-      systemd.close();
-      logger.info({ stats: pipeline.stats() }, 'stopped');
-    })();
-    return stopping;
-  }
-
-  return {
-    processor,
-    pipeline,
-    metrics,
-    notifier,
-    setNoticeSink: (sink) => {
-      noticeSink = sink;
-    },
-    dataDir,
-    ready: () => sources.every((s) => s.connected()),
-    status: () => ({
-      sources: Object.fromEntries(sources.map((s) => [s.name, s.connected()])),
-      sinks: Object.fromEntries(sinks.map((s) => [s.name, s.stats()])),
-      watermark: new Date(processor.watermarkMs()).toISOString(),
-      pipeline: pipeline.stats(),
-      ...(bridge ? { bridge: bridge.stats() } : {}),
-    }),
-    checkpoint,
-    stop,
-  };
 }

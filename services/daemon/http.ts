@@ -2,7 +2,7 @@
 // dashboard's history saved incrementally in the data folder so a restart shows the last 48 h at once.
 import { rm } from 'node:fs/promises';
 import path from 'node:path';
-import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
+import type { ReefdConfig } from '../../libs/contract/index.js';
 import { resolveSecret } from '../config/load.js';
 import { createDashboardServer, recordStoreQuery, type DashboardServer } from '../dashboard/index.js';
 import type { Logger } from '../log/logger.js';
@@ -12,7 +12,6 @@ import type { Daemon } from './daemon.js';
 
 export interface HttpFront {
   url: string;
-  publish(records: readonly DerivedRecord[]): void;
   close(): Promise<void>;
 }
 
@@ -27,22 +26,18 @@ export interface HttpOptions {
   tryNextPorts: boolean;
 }
 
-type RecordListener = (records: readonly DerivedRecord[]) => void;
-
 export async function startHttp(o: HttpOptions): Promise<HttpFront> {
   const token = o.config.http.token ? await resolveSecret(o.config.http.token, o.env, o.baseDir) : undefined;
   // The one-file history of earlier versions, rewritten whole every minute: replaced by dashboard-history/.
   await rm(path.join(o.daemon.dataDir, 'dashboard-history.ndjson'), { force: true });
-  // Until the daemon offers its record bus (daemon.bus.subscribe), `publish` below is the bus.
-  const listeners = new Set<RecordListener>();
   // The durable record history behind /api/records (services/records), kept as long as the raw archive.
-  // Until the daemon writes it as one of its outputs, the HTTP front appends what the bus delivers.
+  // Until the daemon writes it as one of its outputs, the HTTP front appends what the record bus delivers.
   const store = await createRecordStore({
     dir: recordsDir(o.daemon.dataDir),
     retentionDays: o.config.archive.retention_days,
     clock: Date.now,
   });
-  listeners.add((records) => {
+  const offStore = o.daemon.bus.subscribe((records) => {
     store
       .append(records)
       .catch((err: unknown) => o.logger.warn({ err }, 'records not kept for /api/records'));
@@ -55,10 +50,7 @@ export async function startHttp(o: HttpOptions): Promise<HttpFront> {
     ...(token !== undefined ? { token } : {}),
     config: o.config,
     baseDir: o.baseDir,
-    subscribe: (fn) => {
-      listeners.add(fn);
-      return () => void listeners.delete(fn);
-    },
+    subscribe: (fn) => o.daemon.bus.subscribe(fn),
     activeAlerts: () => o.daemon.processor.activeAlerts(),
     health: () => o.daemon.processor.sensorHealth(),
     acks: o.daemon.notifier,
@@ -73,16 +65,16 @@ export async function startHttp(o: HttpOptions): Promise<HttpFront> {
   const acks = watchAcks(alertsStateDir(o.daemon.dataDir), () => void o.daemon.notifier.syncAcks(), {
     onError: (err) => o.logger.debug({ err }, 'no watch on the acknowledgement journal; read every 30 s'),
   });
-  o.daemon.setNoticeSink((m) => {
+  // The notifier's dashboard channel: its notices on the page's banner, until the page closes.
+  const offNotices = o.daemon.notices.subscribe((m) => {
     const worst = m.alerts.some((a) => a.severity === 'critical') ? 'critical' : m.alerts[0]?.severity;
     server.notify({ title: m.subject, body: m.text, ...(worst !== undefined ? { severity: worst } : {}) });
   });
   return {
     url: server.url,
-    publish: (records) => {
-      for (const fn of listeners) fn(records);
-    },
     close: async () => {
+      offStore();
+      offNotices();
       acks.close();
       clearInterval(maintain);
       await server.close();

@@ -16,6 +16,18 @@ export interface OutputContext {
   env: Readonly<Record<string, string | undefined>>;
   logger: Logger;
   onSpoolNearLimit?: (sink: string, bytes: number, maxBytes: number) => void;
+  /** An output refused the credentials (true) or took a batch again (false). */
+  onAuth?: (sink: string, failing: boolean, err?: Error) => void;
+  /**
+   * The daemon's record stream: each output keeps a delivery ledger under `<dataDir>/outputs/` and writes
+   * each stream position once (services/pipeline/types.ts). Absent for shore members (at least once).
+   */
+  stream?: { epoch: string };
+}
+
+/** The delivery ledger of one output. */
+export function ledgerFile(dataDir: string, output: string): string {
+  return path.join(dataDir, 'outputs', `${output}.json`);
 }
 
 /** TLS file names of the configuration, resolved against the configuration's folder. */
@@ -49,9 +61,35 @@ export async function resolveSasl(
 export async function createOutputs(c: OutputContext): Promise<RecordSink[]> {
   const secret = secretResolver(c);
   const sinks: RecordSink[] = [];
+  const ledger = (name: string) =>
+    c.stream === undefined ? {} : { ledger: { file: ledgerFile(c.dataDir, name), epoch: c.stream.epoch } };
+  // Built one after the other: a failure closes what is already open and the start fails cleanly.
+  try {
+    await build(c, sinks, ledger, secret);
+  } catch (err) {
+    await Promise.allSettled(sinks.map((s) => s.close()));
+    throw err;
+  }
+  return sinks;
+}
+
+async function build(
+  c: OutputContext,
+  sinks: RecordSink[],
+  ledger: (name: string) => { ledger?: { file: string; epoch: string } },
+  secret: ReturnType<typeof secretResolver>,
+): Promise<void> {
   const out = c.config.outputs;
-  if (out.ndjson)
-    sinks.push(await createNdjsonSink({ name: 'ndjson', path: path.resolve(c.baseDir, out.ndjson.path) }));
+  if (out.ndjson) {
+    const l = ledger('ndjson').ledger;
+    sinks.push(
+      await createNdjsonSink({
+        name: 'ndjson',
+        path: path.resolve(c.baseDir, out.ndjson.path),
+        ...(l !== undefined ? { ledger: { ...l, logger: c.logger } } : {}),
+      }),
+    );
+  }
   if (out.influx) {
     const i = out.influx;
     sinks.push(
@@ -73,6 +111,8 @@ export async function createOutputs(c: OutputContext): Promise<RecordSink[]> {
         stringFields: i.string_fields,
         logger: c.logger,
         onNearLimit: (s) => c.onSpoolNearLimit?.('influx', s.spoolBytes, s.maxBytes),
+        onAuth: (failing, err) => c.onAuth?.('influx', failing, err),
+        ...ledger('influx'),
       }),
     );
   }
@@ -88,8 +128,8 @@ export async function createOutputs(c: OutputContext): Promise<RecordSink[]> {
         spoolDir: path.join(c.dataDir, 'spool', 'kafka'),
         spoolMaxMb: k.spool_max_mb,
         logger: c.logger,
+        ...ledger('kafka'),
       }),
     );
   }
-  return sinks;
 }

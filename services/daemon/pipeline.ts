@@ -1,30 +1,44 @@
-// The intake: source -> validate -> archive -> processor -> sinks, one message at a time, in arrival order.
-// The processor sees messages in exactly the order the archive records them, so a replay of the archive
-// reproduces the live records.
-import { createHash } from 'node:crypto';
-import {
-  archiveLine,
-  parseMessage,
-  type DerivedRecord,
-  type ReefdConfig,
-} from '../../libs/contract/index.js';
-import { checkAgainstConfig, type Processor } from '../../libs/processor/index.js';
+// The intake, in the order of the picture in DEVELOPERS.md:
+//   decode and parse once -> validate -> archive (durable) -> processor -> sinks and bus -> acknowledge.
+// A message reaches the processor only once its archive line is fsync'd, and messages reach it in the order
+// of their lines in the archive, so a restart that feeds the archive tail again (resume.ts) repeats exactly
+// what the live run did: the same records, numbered with the same stream positions (cursor.ts), which the
+// sinks use to skip what they already hold. The processor is one async call (ProcessorStep), so it may run
+// elsewhere (a worker fed by a bounded queue) without changing this order.
+import type { DerivedRecord, ReefdConfig, SensorMessage } from '../../libs/contract/index.js';
+import type { PushResult } from '../../libs/processor/index.js';
 import type { Logger } from '../log/logger.js';
 import type { ArchiveWriter, DeadLetterSink, RawInput, RecordSink } from '../pipeline/types.js';
+import type { RecordBus } from './bus.js';
+import { advance, type StreamState } from './cursor.js';
+import { archiveLineOf, decode, redeliveryKey, type Decoded } from './decode.js';
 import type { DaemonMetrics } from './metrics.js';
+import { operationalAlert } from './operational.js';
+
+export { redeliveryKey, archivedKey } from './decode.js';
+
+/** The processor as the pipeline calls it: one message in, its result out, one call at a time. */
+export interface ProcessorStep {
+  push(message: SensorMessage, rxMs: number): Promise<PushResult>;
+}
 
 export interface PipelineOptions {
   config: ReefdConfig;
-  processor: Processor;
-  archive?: ArchiveWriter;
+  step: ProcessorStep;
+  archive: ArchiveWriter;
   sinks: readonly RecordSink[];
+  /** The stream the checkpoint covers; the pipeline moves its cursor and positions forward. */
+  stream: StreamState;
   deadLetter?: DeadLetterSink;
   metrics?: DaemonMetrics;
   logger?: Logger;
-  /** Called with every batch of records (dashboard, notifier). Must not throw. */
-  onRecords?: (records: readonly DerivedRecord[]) => void;
+  /** Live records and operational alerts go here (dashboard, notifier); resumed records do not. */
+  bus?: RecordBus;
   /** Called when the archive refuses a write (disk full): the message is not acknowledged. */
   onArchiveError?: (err: Error) => void;
+  /** Archive attempts on a full disk before the message is left to the broker (default 125, ~10 min). */
+  archiveRetries?: number;
+  clock?: () => number;
 }
 
 export interface PipelineStats {
@@ -36,12 +50,21 @@ export interface PipelineStats {
   archiveErrors: number;
   /** Redeliveries of messages already archived: acknowledged, not archived or processed again. */
   redeliveries: number;
+  /** Messages whose `seq` started again (logger reboots). */
+  sensorReboots: number;
+  processorErrors: number;
 }
 
 export interface Pipeline {
   handle(input: RawInput): Promise<void>;
-  /** Marks messages as already archived (by redeliveryKey), e.g. the archive tail read at a restart. */
+  /** One archive line read back at a restart: through the processor to the sinks (not the bus). */
+  deliverArchived(message: SensorMessage | undefined, rxMs: number): Promise<void>;
+  /** Marks messages as already archived (by redelivery key), e.g. the archive tail read at a restart. */
   rememberArchived(keys: Iterable<string>): void;
+  /** Runs `take` between two processor steps, so processor state and stream cursor agree (checkpoints). */
+  atRest<T>(take: () => T): Promise<T>;
+  /** Resolves once every message handed to handle() so far is processed or given up. */
+  drain(): Promise<void>;
   stats(): PipelineStats;
 }
 
@@ -49,26 +72,19 @@ const MAX_DEAD_LETTER_PAYLOAD = 4096;
 /** How many recent messages are remembered to recognise redeliveries (a broker resends its in-flight window). */
 const REDELIVERY_MEMORY = 50_000;
 
-/**
- * The identity of a received message: its topic and a digest of its payload. The payload is compared as
- * canonical JSON when it is JSON, so a message read back from the archive (stored parsed) has the same key.
- */
-export function redeliveryKey(topic: string, payload: Uint8Array | string, parsed?: unknown): string {
-  let canonical: string;
-  if (parsed !== undefined) canonical = typeof parsed === 'string' ? parsed : JSON.stringify(parsed);
-  else {
-    const text = typeof payload === 'string' ? payload : decoder.decode(payload);
-    try {
-      canonical = JSON.stringify(JSON.parse(text));
-    } catch {
-      canonical = text;
-    }
-  }
-  return `${topic}\u0000${createHash('sha1').update(canonical).digest('base64')}`;
+interface Remembered {
+  /** True once the message's line is durable; false when archiving it was given up. */
+  durable: Promise<boolean>;
 }
-/** Archive retries on a full disk before the message is left to the broker's redelivery (~10 min). */
-const ARCHIVE_RETRIES = 125;
-const decoder = new TextDecoder('utf-8', { fatal: false });
+
+/** A message whose line is durable, waiting for the processor. */
+interface Ready {
+  d: Decoded;
+  input: RawInput;
+  rxMs: number;
+  settle: () => void;
+  endTimer: (() => void) | undefined;
+}
 
 export function createPipeline(o: PipelineOptions): Pipeline {
   const stats: PipelineStats = {
@@ -79,101 +95,213 @@ export function createPipeline(o: PipelineOptions): Pipeline {
     recordsByType: {},
     archiveErrors: 0,
     redeliveries: 0,
+    sensorReboots: 0,
+    processorErrors: 0,
   };
-  const prefix = o.config.topic_prefix;
-  // Recently archived messages by content, oldest first (bounded): see handle().
-  const recent = new Map<string, Promise<void>>();
-  const remember = (key: string, p: Promise<void>) => {
+  const clock = o.clock ?? Date.now;
+  const retries = o.archiveRetries ?? 125;
+  const recent = new Map<string, Remembered>();
+  const remember = (key: string, r: Remembered) => {
     recent.delete(key);
-    recent.set(key, p);
+    recent.set(key, r);
     if (recent.size > REDELIVERY_MEMORY) recent.delete(recent.keys().next().value as string);
   };
+  // Receive times in the archive never go backwards (cursor.ts): a line is stamped at least the last one.
+  let lastRxMs = o.stream.cursor.rxMs ?? Number.NEGATIVE_INFINITY;
+  let pending = 0;
+  const drained: (() => void)[] = [];
+  const ready: Ready[] = [];
+  const rests: (() => void)[] = [];
+  let running = false;
 
-  return {
-    rememberArchived: (keys) => {
-      for (const k of keys) remember(k, Promise.resolve());
-    },
-    stats: () => structuredClone(stats),
-    async handle(input) {
-      // A redelivery of a message already archived (the broker resends what it had not seen acknowledged,
-      // e.g. after its own restart) is acknowledged once the first copy is durable, and neither archived
-      // nor processed again: the archive holds every message once.
-      // Only a delivery the source marks as repeated is compared: a sensor (or a flood) sending the same
-      // bytes twice sent two messages, and the archive keeps both.
-      const key = redeliveryKey(input.topic, input.payload);
-      const earlier = input.redelivered ? recent.get(key) : undefined;
-      if (earlier !== undefined) {
-        stats.redeliveries++;
-        await earlier.catch(() => undefined);
-        input.ack();
-        return;
-      }
-      const end = o.metrics?.processSeconds.startTimer();
-      stats.received++;
-      const parsed = parseMessage(input.topic, input.payload, prefix);
-      let reason: string | undefined;
-      if (!parsed.ok) reason = parsed.reason;
-      else reason = checkAgainstConfig(o.config, parsed.message);
-      const kind = parsed.ok ? parsed.message.kind : (parsed.parts?.kind ?? 'unknown');
-      o.metrics?.messagesIn.inc({ kind });
+  function countRecords(records: readonly DerivedRecord[]): void {
+    for (const r of records) {
+      stats.recordsByType[r.type] = (stats.recordsByType[r.type] ?? 0) + 1;
+      o.metrics?.recordsOut.inc({ type: r.type });
+    }
+  }
 
-      const text = decoder.decode(input.payload);
-      const rxIso = new Date(input.rxMs).toISOString();
-      // Archive first: the broker's acknowledgement waits for the fsync (append resolves after it).
-      const line = o.archive ? archiveLine(input.topic, rxIso, text, reason) : '';
-      let archived = o.archive ? o.archive.append(line, input.rxMs) : Promise.resolve();
-      remember(key, archived);
+  /** Processor and sinks for one archived line, live or resumed; returns the records. */
+  async function derive(message: SensorMessage | undefined, rxMs: number): Promise<PushResult | undefined> {
+    advance(o.stream.cursor, rxMs);
+    if (message === undefined) return undefined;
+    let r: PushResult;
+    try {
+      r = await o.step.push(message, rxMs);
+    } catch (err) {
+      // A defect in a derivation must not stop the intake: the message is archived, a replay can derive it.
+      stats.processorErrors++;
+      o.logger?.error(
+        { err, topic: `${message.station}/${message.sensor}` },
+        'processor failed on a message',
+      );
+      return undefined;
+    }
+    if (r.records.length > 0) {
+      const first = o.stream.nextPos;
+      o.stream.nextPos += r.records.length;
+      countRecords(r.records);
+      for (const s of o.sinks) s.write(r.records, first);
+    }
+    return r;
+  }
 
-      let records: DerivedRecord[] = [];
-      if (reason !== undefined || !parsed.ok) {
-        const code = reason ?? 'invalid';
-        stats.rejected++;
-        const short = code.split(':')[0] ?? code;
-        stats.rejectsByReason[short] = (stats.rejectsByReason[short] ?? 0) + 1;
-        o.metrics?.rejects.inc({ reason: short });
-        o.deadLetter?.write({
-          topic: input.topic,
-          rxMs: input.rxMs,
-          reason: code,
-          payload: text.length > MAX_DEAD_LETTER_PAYLOAD ? text.slice(0, MAX_DEAD_LETTER_PAYLOAD) : text,
-        });
-      } else {
-        stats.accepted++;
-        const r = o.processor.push(parsed.message, input.rxMs);
-        if (r.status === 'duplicate') o.metrics?.duplicates.inc();
-        if (r.late) o.metrics?.late.inc();
-        o.metrics?.lagSeconds.set((input.rxMs - parsed.message.tMs) / 1000);
-        records = r.records;
+  async function processLive(item: Ready): Promise<void> {
+    const { d, input, rxMs } = item;
+    const accepted = d.reason === undefined && d.parse.ok ? d.parse.message : undefined;
+    if (accepted === undefined) deadLetter(d, rxMs);
+    const r = await derive(accepted, rxMs);
+    if (accepted !== undefined && r !== undefined) {
+      if (r.status === 'duplicate') o.metrics?.duplicates.inc();
+      if (r.late) o.metrics?.late.inc();
+      o.metrics?.lagSeconds.set((rxMs - accepted.tMs) / 1000);
+      if (r.records.length > 0) o.bus?.publish(r.records);
+      if (r.seqRestart === true) sensorRebooted(accepted);
+    }
+    item.endTimer?.();
+    input.ack();
+    item.settle();
+  }
+
+  function sensorRebooted(m: SensorMessage): void {
+    stats.sensorReboots++;
+    o.logger?.warn(
+      { station: m.station, sensor: m.sensor, seq: m.seq, code: 'REEFD_SENSOR_REBOOT' },
+      'sensor seq started again (logger reboot); its data is kept',
+    );
+    o.bus?.publish([
+      operationalAlert({
+        site: o.config.site,
+        rule: 'sensor_reboot',
+        value: m.seq ?? null,
+        limit: null,
+        station: m.station,
+        sensor: m.sensor,
+        nowMs: clock(),
+      }),
+    ]);
+  }
+
+  function deadLetter(d: Decoded, rxMs: number): void {
+    const code = d.reason ?? 'invalid';
+    stats.rejected++;
+    const short = code.split(':')[0] ?? code;
+    stats.rejectsByReason[short] = (stats.rejectsByReason[short] ?? 0) + 1;
+    o.metrics?.rejects.inc({ reason: short });
+    o.deadLetter?.write({
+      topic: d.topic,
+      rxMs,
+      reason: code,
+      payload: d.text.length > MAX_DEAD_LETTER_PAYLOAD ? d.text.slice(0, MAX_DEAD_LETTER_PAYLOAD) : d.text,
+    });
+  }
+
+  /** The processing loop: one message at a time, in archive order; checkpoints slip in between. */
+  async function run(): Promise<void> {
+    if (running) return;
+    running = true;
+    try {
+      for (;;) {
+        for (const rest of rests.splice(0)) rest();
+        const item = ready.shift();
+        if (item === undefined) break;
+        await processLive(item);
       }
-      if (records.length > 0) {
-        for (const r of records) {
-          stats.recordsByType[r.type] = (stats.recordsByType[r.type] ?? 0) + 1;
-          o.metrics?.recordsOut.inc({ type: r.type });
-        }
-        for (const s of o.sinks) s.write(records);
-        o.onRecords?.(records);
-      }
-      end?.();
-      // A full disk is retried (the broker does not redeliver an unacknowledged message on the same
-      // connection, so giving up would leave it out of the archive until a reconnect). The messages waiting
-      // here are bounded by the source's in-flight window (MQTT Receive Maximum).
-      for (let attempt = 0; ; attempt++) {
-        try {
-          await archived;
-          break;
-        } catch (err) {
+    } finally {
+      running = false;
+    }
+  }
+
+  function archive(d: Decoded, input: RawInput, settle: () => void, durable: (ok: boolean) => void): void {
+    const endTimer = o.metrics?.processSeconds.startTimer();
+    let attempt = 0;
+    const tryAppend = (): void => {
+      const rxMs = Math.max(input.rxMs, lastRxMs);
+      lastRxMs = rxMs;
+      o.archive.append(archiveLineOf(d, new Date(rxMs).toISOString()), rxMs).then(
+        () => {
+          // Appends resolve in file order, so `ready` is in archive order.
+          durable(true);
+          ready.push({ d, input, rxMs, settle, endTimer });
+          void run();
+        },
+        (err: unknown) => {
           stats.archiveErrors++;
           if (attempt === 0)
             o.logger?.error({ err }, 'archive write failed; the message stays unacknowledged at the broker');
           o.onArchiveError?.(err as Error);
-          const code = (err as { code?: string }).code;
-          if (code !== 'REEFD_DISK_FULL' || attempt >= ARCHIVE_RETRIES || !o.archive) return;
-          await new Promise((r) => setTimeout(r, Math.min(5000, 250 * 2 ** attempt)));
-          archived = o.archive.append(line, input.rxMs);
-          remember(key, archived);
-        }
+          // A full disk is retried (the broker does not redeliver an unacknowledged message on the same
+          // connection, so giving up would leave it out of the archive until a reconnect). The messages
+          // waiting here are bounded by the source's in-flight window (MQTT Receive Maximum).
+          if ((err as { code?: string }).code !== 'REEFD_DISK_FULL' || attempt >= retries) {
+            durable(false);
+            settle();
+            return;
+          }
+          const waitMs = Math.min(5000, 250 * 2 ** attempt++);
+          setTimeout(tryAppend, waitMs);
+        },
+      );
+    };
+    tryAppend();
+  }
+
+  return {
+    rememberArchived: (keys) => {
+      for (const k of keys) remember(k, { durable: Promise.resolve(true) });
+    },
+    stats: () => structuredClone(stats),
+    async handle(input) {
+      const d = decode(input.topic, input.payload, o.config);
+      const key = redeliveryKey(input.topic, d.canonical);
+      // A redelivery of a message already archived (the broker resends what it had not seen acknowledged,
+      // e.g. after its own restart) is acknowledged once the first copy is durable, and neither archived
+      // nor processed again. If the first copy never became durable, this one is archived as new.
+      // Only a delivery the source marks as repeated is compared: a sensor (or a flood) sending the same
+      // bytes twice sent two messages, and the archive keeps both.
+      const earlier = input.redelivered === true ? recent.get(key) : undefined;
+      if (earlier !== undefined && (await earlier.durable)) {
+        stats.redeliveries++;
+        input.ack();
+        return;
       }
-      input.ack();
+      stats.received++;
+      o.metrics?.messagesIn.inc({ kind: d.kind });
+      if (d.reason === undefined) stats.accepted++;
+      pending++;
+      let markDurable: (ok: boolean) => void = () => undefined;
+      remember(key, { durable: new Promise<boolean>((r) => (markDurable = r)) });
+      await new Promise<void>((settled) => {
+        archive(
+          d,
+          input,
+          () => {
+            settled();
+            if (--pending === 0) for (const w of drained.splice(0)) w();
+          },
+          markDurable,
+        );
+      });
+    },
+    async deliverArchived(message, rxMs) {
+      if (rxMs > lastRxMs) lastRxMs = rxMs;
+      await derive(message, rxMs);
+    },
+    atRest(take) {
+      if (!running) return Promise.resolve(take());
+      return new Promise((resolve, reject) =>
+        rests.push(() => {
+          try {
+            resolve(take());
+          } catch (err) {
+            reject(err as Error);
+          }
+        }),
+      );
+    },
+    drain() {
+      if (pending === 0) return Promise.resolve();
+      return new Promise<void>((r) => drained.push(r));
     },
   };
 }

@@ -130,8 +130,9 @@ interface ChannelState {
   tokensAtMs: number;
 }
 
+// Unref'd: the notifier never keeps a process alive by itself (a daemon whose start failed must exit).
 const realTimers: Timers = {
-  set: (fn, ms) => setTimeout(fn, ms),
+  set: (fn, ms) => setTimeout(fn, ms).unref(),
   clear: (h) => clearTimeout(h as ReturnType<typeof setTimeout>),
 };
 

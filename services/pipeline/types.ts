@@ -1,5 +1,6 @@
 // The interfaces between the daemon's parts. Data flows one way:
-// source -> validate -> archive -> processor -> sinks. Nothing downstream calls back upstream.
+// source -> decode and validate -> archive (durable) -> processor -> sinks -> acknowledgement.
+// Nothing downstream calls back upstream.
 import type { DerivedRecord } from '../../libs/contract/index.js';
 
 /** One message as a source received it, before validation. */
@@ -10,8 +11,8 @@ export interface RawInput {
   /** Receive time, ms since the epoch (wall clock of the receiving host). */
   rxMs: number;
   /**
-   * Called once the message is durably in the raw archive (and, for Kafka, once the derived records are
-   * handed to the sinks): an MQTT source sends PUBACK then; a Kafka source marks the offset committable.
+   * Called once the message is durably in the raw archive and its derived records are handed to the
+   * sinks: an MQTT source sends PUBACK then; a Kafka source marks the offset committable.
    */
   ack(): void;
   /** The source says this is a redelivery (MQTT DUP flag): it may already be in the archive. */
@@ -42,6 +43,8 @@ export interface SinkStats {
   /** Records waiting in memory or in the disk spool. */
   pending: number;
   spoolBytes?: number;
+  /** Records not written again because the destination already held their stream position. */
+  skipped?: number;
   lastError?: string;
 }
 
@@ -49,11 +52,21 @@ export interface SinkStats {
  * A destination for derived records. Every sink passes the shared contract suite
  * (test/integration/sink-contract.ts): order kept per series, nothing lost across close/reopen,
  * idempotent on the same series and timestamp.
+ *
+ * Positions: the daemon numbers the records of a site's stream (the n-th record the processor produced
+ * since the stream began, see services/daemon/cursor.ts). The numbers depend only on the raw archive, so a
+ * restart that derives the archive tail again gives each record the number it had. A sink that is told
+ * the numbers keeps, with the destination or beside it, the highest one it holds and skips a record at or
+ * below it: records are written once across crashes. Without numbers (replay to stdout, shore members) a
+ * sink writes everything it is given.
  */
 export interface RecordSink {
   readonly name: string;
-  /** Accepts records; never throws for a remote outage (the sink spools and retries). */
-  write(records: readonly DerivedRecord[]): void;
+  /**
+   * Accepts records; never throws for a remote outage (the sink spools and retries). `firstPos` is the
+   * stream position of records[0]; records[i] has position firstPos + i.
+   */
+  write(records: readonly DerivedRecord[], firstPos?: number): void;
   /** Resolves when everything accepted so far is durable at the destination or in the spool. */
   flush(): Promise<void>;
   close(): Promise<void>;

@@ -1,8 +1,10 @@
 // A small HTTP(S) POST on node:http/https, so TLS files from the configuration (ca/cert/key, verify) apply
-// without a separate agent library. Statuses are classified here: 5xx, 408 and 429 are retriable, other
-// 4xx are refusals of the data (never retried).
+// without a separate agent library. Statuses are classified here: 5xx, 408 and 429 are retriable; 401, 403
+// and 404 (credentials refused, database or bucket missing) are retriable with an alert (REEFD_SINK_AUTH):
+// a rotated token or a database not yet created must not lose data; other 4xx are refusals of the data
+// (never retried).
 import { readFileSync } from 'node:fs';
-import { request as httpRequest, type IncomingHttpHeaders } from 'node:http';
+import { request as plainRequest, type IncomingHttpHeaders } from 'node:http';
 import { request as httpsRequest, type RequestOptions } from 'node:https';
 import { ReefdError } from '../../libs/contract/index.js';
 
@@ -33,19 +35,43 @@ export function tlsOptions(
   return o;
 }
 
-export function httpPost(
+/**
+ * True when a failed request may still have been applied: the body may have reached the server but no
+ * answer came back (a timeout, a connection reset). A refused connection or a status answer is not.
+ */
+export function mayHaveLanded(err: unknown): boolean {
+  const code = (err as { code?: unknown } | null)?.code;
+  if (err instanceof ReefdError) return false;
+  return !(
+    code === 'ECONNREFUSED' ||
+    code === 'ENOTFOUND' ||
+    code === 'EAI_AGAIN' ||
+    code === 'EHOSTUNREACH'
+  );
+}
+
+export interface HttpOptions {
+  timeoutMs: number;
+  tls?: ReturnType<typeof tlsOptions>;
+  /** Keep at most this much of the answer (default 4 kB: error bodies are for the log only). */
+  maxBodyBytes?: number;
+}
+
+function httpRequest(
+  method: 'GET' | 'POST',
   url: URL,
-  body: Buffer,
+  body: Buffer | undefined,
   headers: Record<string, string>,
-  opts: { timeoutMs: number; tls?: ReturnType<typeof tlsOptions> },
+  opts: HttpOptions,
 ): Promise<HttpResponse> {
-  const request = url.protocol === 'https:' ? httpsRequest : httpRequest;
+  const request = url.protocol === 'https:' ? httpsRequest : plainRequest;
+  const keep = opts.maxBodyBytes ?? 4096;
   return new Promise((resolve, reject) => {
     const req = request(
       url,
       {
-        method: 'POST',
-        headers: { ...headers, 'content-length': String(body.length) },
+        method,
+        headers: body === undefined ? headers : { ...headers, 'content-length': String(body.length) },
         timeout: opts.timeoutMs,
         ...(url.protocol === 'https:' ? (opts.tls ?? {}) : {}),
       },
@@ -53,15 +79,14 @@ export function httpPost(
         const chunks: Buffer[] = [];
         let size = 0;
         res.on('data', (c: Buffer) => {
-          // Error bodies are for the log only: keep the first 4 kB.
-          if (size < 4096) chunks.push(c);
+          if (size < keep) chunks.push(c);
           size += c.length;
         });
         res.on('end', () =>
           resolve({
             status: res.statusCode ?? 0,
             headers: res.headers,
-            body: Buffer.concat(chunks).toString('utf8').slice(0, 4096),
+            body: Buffer.concat(chunks).subarray(0, keep).toString('utf8'),
           }),
         );
         res.on('error', reject);
@@ -75,9 +100,33 @@ export function httpPost(
   });
 }
 
-/** Throws for a non-2xx answer: retriable for 5xx/408/429 (with Retry-After), a refusal otherwise. */
+export function httpPost(
+  url: URL,
+  body: Buffer,
+  headers: Record<string, string>,
+  opts: HttpOptions,
+): Promise<HttpResponse> {
+  return httpRequest('POST', url, body, headers, opts);
+}
+
+export function httpGetText(
+  url: URL,
+  headers: Record<string, string>,
+  opts: HttpOptions,
+): Promise<HttpResponse> {
+  return httpRequest('GET', url, undefined, headers, opts);
+}
+
+/** Throws for a non-2xx answer: retriable for 5xx/408/429 (with Retry-After) and 401/403/404, a refusal otherwise. */
 export function checkStatus(res: HttpResponse, what: string): void {
   if (res.status >= 200 && res.status < 300) return;
+  if (res.status === 401 || res.status === 403 || res.status === 404) {
+    throw new ReefdError(
+      'REEFD_SINK_AUTH',
+      `${what} answered HTTP ${res.status} (${res.status === 404 ? 'no such database or bucket' : 'credentials refused'}): ${res.body.slice(0, 200)}`,
+      { retriable: true, detail: { status: res.status, body: res.body.slice(0, 500) } },
+    );
+  }
   const retriable = res.status >= 500 || res.status === 408 || res.status === 429;
   const ra = Number(res.headers['retry-after']);
   const detail: Record<string, unknown> = { status: res.status, body: res.body.slice(0, 500) };

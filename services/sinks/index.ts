@@ -2,7 +2,7 @@
 export { createInfluxSink, type InfluxSink, type InfluxSinkOptions } from './influx-sink.js';
 export {
   createKafkaSink,
-  recordKey,
+  kafkaKey,
   kafkaClient,
   orderedKafkaSender,
   type KafkaSinkOptions,

@@ -6,18 +6,27 @@
 // its own, which would fight the disk spool, and it only speaks v2. One small writer gives both APIs, an
 // exact "this batch is in the database" moment, and order (one batch in flight, spooled-sink.ts).
 //
-// Idempotence: a point is identified by measurement, tag set and timestamp; writing it again overwrites it
-// in InfluxDB. VictoriaMetrics keeps both copies unless it runs with -dedup.minScrapeInterval (1ms is
-// enough for reefd's ms timestamps), which a deployment must set for replays to duplicate nothing; even
-// then it keeps one of the copies, not necessarily the last (measured on 1.79), so a replay with changed
-// values does not reliably replace old ones there: delete the time range first.
+// Exactly once across crashes (records with stream positions, as the daemon writes them): each spooled line
+// carries its position; a delivery ledger beside the spool (delivery-ledger.ts) holds the highest position
+// the database confirmed, and lines at or below it are not sent again. The one batch a crash (or a lost
+// answer) leaves unknown is checked against the database before it goes again (vm-presence.ts): InfluxDB
+// overwrites a point written twice (same measurement, tag set and timestamp), so there nothing is asked;
+// VictoriaMetrics keeps every copy, so there the batch's points are looked up and the ones it holds are
+// left out.
+//
+// Replays (`reefd replay` loaded into a database) are another matter: VictoriaMetrics keeps both copies
+// unless it runs with -dedup.minScrapeInterval (1ms is enough for reefd's ms timestamps); even then it keeps
+// one of the copies, not necessarily the last (measured on 1.79), so a replay with changed values does not
+// reliably replace old ones there: delete the time range first.
 import { gzip as gzipCb } from 'node:zlib';
 import { promisify } from 'node:util';
 import { recordToLine } from '../../libs/lineproto/index.js';
 import type { Logger } from '../log/logger.js';
-import { checkStatus, httpPost, tlsOptions, type TlsFiles } from './http.js';
+import { DeliveryLedger, splitPosition, withPosition } from './delivery-ledger.js';
+import { checkStatus, httpPost, mayHaveLanded, tlsOptions, type TlsFiles } from './http.js';
 import type { Sleep } from './retry.js';
 import { createSpooledSink, type SpooledSink } from './spooled-sink.js';
+import { keepsCopies, presentPoints, type PresenceTarget } from './vm-presence.js';
 
 const gzip = promisify(gzipCb);
 
@@ -50,6 +59,13 @@ export interface InfluxSinkOptions {
   random?: () => number;
   sleep?: Sleep;
   onNearLimit?: (s: { spoolBytes: number; maxBytes: number }) => void;
+  /** Credentials refused (true) and accepted again (false): the daemon raises and clears an alert. */
+  onAuth?: (failing: boolean, err?: Error) => void;
+  /**
+   * The delivery ledger (the daemon's outputs): its file and the stream's epoch. Without it the sink writes
+   * every record it is given (replay, shore members).
+   */
+  ledger?: { file: string; epoch: string };
   /** close() waits up to this long for the spool to drain (default 5 s). */
   closeDrainMs?: number;
 }
@@ -81,23 +97,30 @@ export async function createInfluxSink(o: InfluxSinkOptions): Promise<InfluxSink
     headers.authorization = `Basic ${Buffer.from(`${o.username}:${o.password ?? ''}`).toString('base64')}`;
   }
   const name = o.name ?? `influx-${o.api}`;
-  const send = async (lines: readonly string[]): Promise<void> => {
+  const timeoutMs = o.timeoutMs ?? 10_000;
+  const post = async (lines: readonly string[]): Promise<void> => {
     let body = Buffer.from(lines.join('\n') + '\n', 'utf8');
     const h = { ...headers };
     if ((o.gzip ?? true) && body.length > 1024) {
       body = await gzip(body);
       h['content-encoding'] = 'gzip';
     }
-    const res = await httpPost(url, body, h, { timeoutMs: o.timeoutMs ?? 10_000, tls });
+    const res = await httpPost(url, body, h, { timeoutMs, tls });
     checkStatus(res, name);
   };
+  const ledger =
+    o.ledger === undefined ? undefined : await DeliveryLedger.open(o.ledger.file, o.ledger.epoch);
+  const guard =
+    ledger === undefined
+      ? undefined
+      : new OnceGuard(ledger, { baseUrl: o.url, headers, tls, timeoutMs }, o.batchSize, o.logger, name);
   return createSpooledSink({
     name,
-    encode: (r) => {
+    encode: (r, pos) => {
       const e = recordToLine(r, o.api, { stringFields: o.stringFields ?? true });
-      return e.ok ? { ok: true, entry: e.line } : e;
+      return e.ok ? { ok: true, entry: ledger === undefined ? e.line : withPosition(pos, e.line) } : e;
     },
-    send,
+    send: guard === undefined ? post : (entries) => guard.send(entries, post),
     batchSize: o.batchSize,
     flushMs: o.flushMs,
     logger: o.logger,
@@ -106,8 +129,84 @@ export async function createInfluxSink(o: InfluxSinkOptions): Promise<InfluxSink
     random: o.random,
     sleep: o.sleep,
     onNearLimit: o.onNearLimit,
+    onAuth: o.onAuth,
     closeDrainMs: o.closeDrainMs,
     spoolDir: o.spoolDir,
     spoolMaxBytes: o.spoolMaxMb * 1024 * 1024,
+    onClose: async () => {
+      await ledger?.close();
+    },
   });
+}
+
+/**
+ * Sends each stream position once: lines the ledger says the database holds are left out, and while a
+ * batch's fate is unknown (after a crash, or a request that may have landed without an answer) the next
+ * lines are looked up in the database first, for up to one batch.
+ */
+class OnceGuard {
+  readonly #ledger: DeliveryLedger;
+  readonly #target: PresenceTarget;
+  readonly #batchSize: number;
+  readonly #logger: Logger;
+  readonly #name: string;
+  /** Lines still to look up before sending (the size of the batch whose fate is unknown). */
+  #unknown: number;
+  #copies: boolean | undefined;
+
+  constructor(
+    ledger: DeliveryLedger,
+    target: PresenceTarget,
+    batchSize: number,
+    logger: Logger,
+    name: string,
+  ) {
+    this.#ledger = ledger;
+    this.#target = target;
+    this.#batchSize = batchSize;
+    this.#logger = logger;
+    this.#name = name;
+    this.#unknown = ledger.uncleanStart ? batchSize : 0;
+  }
+
+  async send(entries: readonly string[], post: (lines: readonly string[]) => Promise<void>) {
+    const hwm = this.#ledger.hwm();
+    let top = -1;
+    let todo: { pos: number | undefined; body: string }[] = [];
+    for (const e of entries) {
+      const x = splitPosition(e);
+      if (x.pos !== undefined) top = Math.max(top, x.pos);
+      if (x.pos === undefined || x.pos > hwm) todo.push(x);
+    }
+    let skipped = entries.length - todo.length;
+    if (this.#unknown > 0 && todo.length > 0) {
+      const held = await this.#held(todo.map((x) => x.body));
+      this.#unknown = held.some((h) => !h) ? 0 : Math.max(0, this.#unknown - todo.length);
+      const before = todo.length;
+      todo = todo.filter((_, i) => !held[i]);
+      if (before > todo.length) {
+        this.#logger.info(
+          { sink: this.#name, held: before - todo.length },
+          'database already held part of the batch in flight at the last stop; not sent again',
+        );
+      }
+      skipped += before - todo.length;
+    }
+    if (todo.length > 0) {
+      try {
+        await post(todo.map((x) => x.body));
+      } catch (err) {
+        if (mayHaveLanded(err)) this.#unknown = this.#batchSize;
+        throw err;
+      }
+    }
+    if (top >= 0) await this.#ledger.delivered(new Map([[0, top]]));
+    return { skipped };
+  }
+
+  async #held(lines: readonly string[]): Promise<boolean[]> {
+    this.#copies ??= await keepsCopies(this.#target);
+    if (!this.#copies) return lines.map(() => false);
+    return presentPoints(this.#target, lines);
+  }
 }

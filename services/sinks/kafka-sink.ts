@@ -2,10 +2,19 @@
 // record's JSON. The producer is idempotent with acks = -1 (all in-sync replicas) and one request in flight,
 // so kafkajs' own retries neither duplicate nor reorder within a partition. Outages longer than those
 // retries go to the disk spool (spooled-sink.ts) and are replayed in order.
-// A replay duplicates messages on the topic (Kafka is a log); a consumer that keeps the last value per
-// key and record time `t` sees the same state, the same rule as the database's overwrite.
+//
+// Exactly once across crashes (records with stream positions, as the daemon writes them): every message
+// carries headers `reefd-epoch`, `reefd-pos` (its stream position) and `reefd-key` (the record's identity).
+// Before its first send, and again after a send whose fate is unknown, the sink reads the end of each
+// partition back (kafka-tail.ts) and learns the highest position of its stream each one holds; a record
+// at or below that position in its partition is not sent again. A delivery ledger beside the spool
+// (delivery-ledger.ts) keeps the same marks as a lower bound, for a partition whose end other producers
+// have pushed beyond the part read back.
+// A replay (`reefd replay` loaded into Kafka) does duplicate messages on the topic (Kafka is a log); a
+// consumer that keeps the last value per `reefd-key` sees the same state, the database's overwrite rule.
 import {
   Kafka,
+  Partitioners,
   logLevel,
   type CompressionTypes,
   type ICustomPartitioner,
@@ -17,6 +26,8 @@ import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
 import { tlsOptions, type TlsFiles } from './http.js';
 import type { Sleep } from './retry.js';
+import { DeliveryLedger, splitPosition, withPosition } from './delivery-ledger.js';
+import { readPartitionTails, type PartitionTails } from './kafka-tail.js';
 import { createSpooledSink, type SpooledSink } from './spooled-sink.js';
 
 export interface KafkaSinkOptions {
@@ -38,9 +49,17 @@ export interface KafkaSinkOptions {
   sleep?: Sleep;
   /** close() waits up to this long for the spool to drain (default 5 s). */
   closeDrainMs?: number;
+  /**
+   * The delivery ledger (the daemon's outputs): its file and the stream's epoch. Without it the sink writes
+   * every record it is given (replay, shore members).
+   */
+  ledger?: { file: string; epoch: string };
+  /** How far back each partition is read for the stream's last position (default 10,000 messages). */
+  tailScan?: number;
 }
 
-export function recordKey(r: DerivedRecord): string {
+/** The Kafka message key: the station (or transect), so one place's records stay in one partition, in order. */
+export function kafkaKey(r: DerivedRecord): string {
   return r.type === 'flux' ? `${r.site}/${r.transect}` : `${r.site}/${r.station ?? '-'}`;
 }
 
@@ -101,7 +120,11 @@ export function orderedKafkaSender(
     compression?: CompressionTypes;
     createPartitioner?: ICustomPartitioner;
   },
-): { send: (entries: readonly string[]) => Promise<void>; disconnect: () => Promise<void> } {
+): {
+  send: (entries: readonly string[]) => Promise<void>;
+  sendMessages: (messages: Message[]) => Promise<void>;
+  disconnect: () => Promise<void>;
+} {
   const producer: Producer = client.producer({
     idempotent: true,
     maxInFlightRequests: 1,
@@ -110,40 +133,55 @@ export function orderedKafkaSender(
     retry: { retries: 5, initialRetryTime: 300, maxRetryTime: 10_000 },
   });
   let connected = false;
-  return {
-    send: async (entries) => {
-      try {
-        if (!connected) {
-          await producer.connect();
-          connected = true;
-        }
-        await producer.send({
-          topic: o.topic,
-          acks: -1,
-          ...(o.compression !== undefined ? { compression: o.compression } : {}),
-          messages: entries.map(o.toMessage),
-        });
-      } catch (err) {
-        throw toSinkError(err, o.topic);
+  const sendMessages = async (messages: Message[]): Promise<void> => {
+    try {
+      if (!connected) {
+        await producer.connect();
+        connected = true;
       }
-    },
+      await producer.send({
+        topic: o.topic,
+        acks: -1,
+        ...(o.compression !== undefined ? { compression: o.compression } : {}),
+        messages,
+      });
+    } catch (err) {
+      throw toSinkError(err, o.topic);
+    }
+  };
+  return {
+    send: (entries) => sendMessages(entries.map(o.toMessage)),
+    sendMessages,
     disconnect: () => producer.disconnect(),
   };
 }
 
 export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink> {
-  const { send, disconnect } = orderedKafkaSender(kafkaClient(o), {
+  const client = kafkaClient(o);
+  const ledger =
+    o.ledger === undefined ? undefined : await DeliveryLedger.open(o.ledger.file, o.ledger.epoch);
+  const sender = orderedKafkaSender(client, {
     topic: o.topic,
     toMessage: (e) => {
       const [key, value] = JSON.parse(e) as [string, string];
       return { key, value };
     },
   });
+  const once =
+    ledger === undefined
+      ? undefined
+      : new KafkaOnce(client, ledger, o.topic, o.tailScan ?? 10_000, o.logger, sender.sendMessages);
   return createSpooledSink({
     name: o.name ?? 'kafka',
-    // One spool entry: [key, value JSON]; JSON.stringify never emits a raw newline.
-    encode: (r) => ({ ok: true, entry: JSON.stringify([recordKey(r), JSON.stringify(r)]) }),
-    send,
+    // One spool entry: [key, value JSON] (and, with a ledger, the record's identity), behind its position.
+    encode: (r, pos) =>
+      once === undefined
+        ? { ok: true, entry: JSON.stringify([kafkaKey(r), JSON.stringify(r)]) }
+        : {
+            ok: true,
+            entry: withPosition(pos, JSON.stringify([kafkaKey(r), JSON.stringify(r), recordId(r)])),
+          },
+    send: once === undefined ? sender.send : (entries) => once.send(entries),
     batchSize: o.batchSize ?? 500,
     flushMs: o.flushMs ?? 200,
     logger: o.logger,
@@ -152,6 +190,120 @@ export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink>
     closeDrainMs: o.closeDrainMs,
     spoolDir: o.spoolDir,
     spoolMaxBytes: o.spoolMaxMb * 1024 * 1024,
-    onClose: () => disconnect(),
+    onClose: async () => {
+      await sender.disconnect();
+      await ledger?.close();
+    },
   });
+}
+
+/** The record's identity for the `reefd-key` header: type, site, time and where it belongs. */
+function recordId(r: DerivedRecord): string {
+  const x = r as Record<string, unknown>;
+  return [r.type, r.site, r.t, x.station ?? x.transect ?? '', x.sensor ?? '', x.rule ?? ''].join('|');
+}
+
+/** Sends each stream position once per partition (see the header of this file). */
+class KafkaOnce {
+  readonly #client: Kafka;
+  readonly #ledger: DeliveryLedger;
+  readonly #topic: string;
+  readonly #scan: number;
+  readonly #logger: Logger;
+  readonly #sendMessages: (messages: Message[]) => Promise<void>;
+  /** partition -> highest position there; undefined until read back from the topic. */
+  #hwm: Map<number, number> | undefined;
+  #partitions = 0;
+  readonly #partitioner = Partitioners.DefaultPartitioner();
+
+  constructor(
+    client: Kafka,
+    ledger: DeliveryLedger,
+    topic: string,
+    scan: number,
+    logger: Logger,
+    sendMessages: (messages: Message[]) => Promise<void>,
+  ) {
+    this.#client = client;
+    this.#ledger = ledger;
+    this.#topic = topic;
+    this.#scan = scan;
+    this.#logger = logger;
+    this.#sendMessages = sendMessages;
+  }
+
+  async #learn(): Promise<Map<number, number>> {
+    let tail: PartitionTails;
+    try {
+      tail = await readPartitionTails(this.#client, this.#topic, this.#ledger.epoch, this.#scan);
+    } catch (err) {
+      throw toSinkError(err, this.#topic);
+    }
+    const hwm = new Map<number, number>();
+    for (let p = 0; p < tail.partitions; p++) {
+      hwm.set(p, Math.max(tail.hwm.get(p) ?? -1, this.#ledger.hwm(p)));
+    }
+    this.#partitions = tail.partitions;
+    this.#logger.debug(
+      { topic: this.#topic, hwm: Object.fromEntries(hwm) },
+      'kafka: stream positions read back',
+    );
+    return hwm;
+  }
+
+  #partitionOf(key: string): number {
+    return this.#partitioner({
+      topic: this.#topic,
+      partitionMetadata: Array.from({ length: this.#partitions }, (_, i) => ({
+        partitionId: i,
+        leader: 0,
+        replicas: [],
+        isr: [],
+        partitionErrorCode: 0,
+      })),
+      message: { key, value: null },
+    });
+  }
+
+  async send(entries: readonly string[]): Promise<{ skipped: number }> {
+    this.#hwm ??= await this.#learn();
+    const hwm = this.#hwm;
+    const messages: Message[] = [];
+    const top = new Map<number, number>();
+    let skipped = 0;
+    for (const e of entries) {
+      const { pos, body } = splitPosition(e);
+      const [key, value, id] = JSON.parse(body) as [string, string, string?];
+      const partition = this.#partitionOf(key);
+      if (pos !== undefined) {
+        if (pos <= (hwm.get(partition) ?? -1)) {
+          skipped++;
+          continue;
+        }
+        top.set(partition, Math.max(top.get(partition) ?? -1, pos));
+      }
+      messages.push({
+        key,
+        value,
+        partition,
+        headers: {
+          'reefd-epoch': this.#ledger.epoch,
+          ...(pos !== undefined ? { 'reefd-pos': String(pos) } : {}),
+          ...(id !== undefined ? { 'reefd-key': id } : {}),
+        },
+      });
+    }
+    if (messages.length > 0) {
+      try {
+        await this.#sendMessages(messages);
+      } catch (err) {
+        // Part of the batch may be in some partitions: read the ends again before the next attempt.
+        this.#hwm = undefined;
+        throw err;
+      }
+    }
+    for (const [p, pos] of top) if (pos > (hwm.get(p) ?? -1)) hwm.set(p, pos);
+    await this.#ledger.delivered(top);
+    return { skipped };
+  }
 }

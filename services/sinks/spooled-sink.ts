@@ -2,9 +2,15 @@
 // queued in memory (bounded); a single pump sends batches, one in flight at a time, so the destination
 // receives entries in the order they were written. A batch that fails with a retriable error goes to the
 // disk spool, and while the spool is not empty every new entry goes behind it. The spool drains oldest
-// first with backoff + jitter (retry.ts). Refusals (4xx other than 408/429, or a destination's own
-// "non-retriable" error) drop the batch with an error log: retrying data the destination refuses would
-// block everything behind it forever. Programming errors are never retried.
+// first with backoff + jitter (retry.ts). Credentials refused or a database that does not exist (HTTP 401,
+// 403, 404) are an outage the operator must fix, not a verdict on the data: the batch is spooled and
+// retried, and `onAuth` tells the daemon (an operational alert) until a send succeeds again. Refusals of
+// the data (other 4xx, or a destination's own "non-retriable" error) drop the batch with an error log:
+// retrying data the destination refuses would block everything behind it forever. Programming errors are
+// never retried.
+//
+// Entries carry the record's stream position (`encode` gets it); the destination's `send` skips what the
+// destination already holds (kafka-sink.ts, influx-sink.ts) and says how many it skipped.
 import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { RecordSink, SinkStats } from '../pipeline/types.js';
 import type { Logger } from '../log/logger.js';
@@ -15,10 +21,13 @@ export type Encoded = { ok: true; entry: string } | { ok: false; reason: string 
 
 export interface SpooledSinkOptions {
   name: string;
-  /** One record to one entry without a newline, or the reason it has none. */
-  encode: (r: DerivedRecord) => Encoded;
-  /** Delivers a batch; throws a ReefdError('REEFD_SINK_UNAVAILABLE', retriable) for outages. */
-  send: (entries: readonly string[]) => Promise<void>;
+  /** One record (and its stream position, when known) to one entry without a newline, or the reason it has none. */
+  encode: (r: DerivedRecord, pos: number | undefined) => Encoded;
+  /**
+   * Delivers a batch; throws a ReefdError('REEFD_SINK_UNAVAILABLE', retriable) for outages and
+   * ('REEFD_SINK_AUTH', retriable) for refused credentials. May skip entries the destination already has.
+   */
+  send: (entries: readonly string[]) => Promise<void | { skipped: number }>;
   batchSize: number;
   flushMs: number;
   logger: Logger;
@@ -29,6 +38,8 @@ export interface SpooledSinkOptions {
   sleep?: Sleep | undefined;
   /** Called once each time the spool passes 80 % of its bound (and again after it fell below 70 %). */
   onNearLimit?: ((s: { spoolBytes: number; maxBytes: number }) => void) | undefined;
+  /** Called when the destination starts refusing the credentials (true) and when it takes a batch again (false). */
+  onAuth?: ((failing: boolean, err?: Error) => void) | undefined;
   onClose?: (() => Promise<void>) | undefined;
   /** close() waits up to this long for the spool to drain (default 5 s; 0 = not at all). */
   closeDrainMs?: number | undefined;
@@ -37,6 +48,11 @@ export interface SpooledSinkOptions {
 /** The destination answered and refused the data: retrying cannot help. */
 export function isRefusal(err: unknown): boolean {
   return err instanceof ReefdError && err.code === 'REEFD_SINK_UNAVAILABLE' && !err.retriable;
+}
+
+/** Credentials refused, or the database/bucket missing: spooled and retried, with an alert. */
+export function isAuthFailure(err: unknown): boolean {
+  return err instanceof ReefdError && err.code === 'REEFD_SINK_AUTH';
 }
 
 function isProgrammingError(err: unknown): boolean {
@@ -59,7 +75,8 @@ export class SpooledSink implements RecordSink {
   #abort = new AbortController();
   #pump: Promise<void> | undefined;
   #nearSignalled = false;
-  #stats: SinkStats = { written: 0, failed: 0, pending: 0 };
+  #authFailing = false;
+  #stats: SinkStats = { written: 0, failed: 0, pending: 0, skipped: 0 };
 
   constructor(o: SpooledSinkOptions, spool: Spool) {
     this.#o = o;
@@ -76,7 +93,7 @@ export class SpooledSink implements RecordSink {
     });
   }
 
-  write(records: readonly DerivedRecord[]): void {
+  write(records: readonly DerivedRecord[], firstPos?: number): void {
     if (this.#closing) {
       this.#stats.failed += records.length;
       this.#o.logger.error(
@@ -85,8 +102,9 @@ export class SpooledSink implements RecordSink {
       );
       return;
     }
-    for (const r of records) {
-      const enc = this.#o.encode(r);
+    for (let i = 0; i < records.length; i++) {
+      const r = records[i] as DerivedRecord;
+      const enc = this.#o.encode(r, firstPos === undefined ? undefined : firstPos + i);
       if (!enc.ok) {
         this.#stats.failed++;
         this.#o.logger.warn(
@@ -204,8 +222,7 @@ export class SpooledSink implements RecordSink {
   async #sendFromMemory(): Promise<void> {
     const batch = this.#mem.splice(0, this.#o.batchSize);
     try {
-      await this.#o.send(batch);
-      this.#stats.written += batch.length;
+      this.#delivered(batch.length, await this.#o.send(batch));
       this.#settle(batch.length);
     } catch (err) {
       if (isRefusal(err) || isProgrammingError(err)) {
@@ -214,8 +231,9 @@ export class SpooledSink implements RecordSink {
         return;
       }
       this.#stats.lastError = (err as Error).message;
+      this.#authTrouble(err);
       this.#o.logger.warn(
-        { sink: this.name, err: (err as Error).message },
+        { sink: this.name, err: (err as Error).message, code: (err as { code?: string }).code },
         'destination unreachable; spooling to disk',
       );
       this.#mem.unshift(...batch);
@@ -269,7 +287,7 @@ export class SpooledSink implements RecordSink {
     const backoff = this.#o.backoff ?? { baseMs: 250, maxMs: 30_000 };
     const sleep = this.#o.sleep ?? realSleep;
     try {
-      await retry(() => this.#o.send(batch), {
+      const result = await retry(() => this.#o.send(batch), {
         ...backoff,
         random: this.#o.random ?? Math.random,
         maxAttempts: Infinity,
@@ -290,6 +308,7 @@ export class SpooledSink implements RecordSink {
         },
         onRetry: (err, attempt, delayMs) => {
           this.#stats.lastError = (err as Error).message;
+          this.#authTrouble(err);
           if (attempt % 10 === 0)
             this.#o.logger.warn(
               { sink: this.name, attempt, delayMs, err: (err as Error).message },
@@ -297,7 +316,7 @@ export class SpooledSink implements RecordSink {
             );
         },
       });
-      this.#stats.written += batch.length;
+      this.#delivered(batch.length, result);
       await this.#spool.commit(batch.length);
       this.#checkNear();
     } catch (err) {
@@ -305,6 +324,27 @@ export class SpooledSink implements RecordSink {
       this.#refused(err, batch.length);
       await this.#spool.commit(batch.length);
     }
+  }
+
+  #delivered(n: number, result: void | { skipped: number }): void {
+    const skipped = result?.skipped ?? 0;
+    this.#stats.written += n - skipped;
+    (this.#stats.skipped as number) += skipped;
+    if (this.#authFailing) {
+      this.#authFailing = false;
+      this.#o.logger.info({ sink: this.name }, 'destination takes the credentials again');
+      this.#o.onAuth?.(false);
+    }
+  }
+
+  #authTrouble(err: unknown): void {
+    if (!isAuthFailure(err) || this.#authFailing) return;
+    this.#authFailing = true;
+    this.#o.logger.error(
+      { sink: this.name, err: (err as Error).message, code: 'REEFD_SINK_AUTH' },
+      'destination refuses the credentials or does not know the database; records are spooled and retried',
+    );
+    this.#o.onAuth?.(true, err as Error);
   }
 
   #refused(err: unknown, n: number): void {

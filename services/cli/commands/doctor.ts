@@ -4,7 +4,7 @@ import { access, constants, mkdir, statfs } from 'node:fs/promises';
 import net from 'node:net';
 import path from 'node:path';
 import { formatProblem, type ReefdConfig, type SecretRef } from '../../../libs/contract/index.js';
-import { loadConfigFile, resolveSecret } from '../../config/load.js';
+import { loadConfigFile, resolveDataDir, resolveSecret } from '../../config/load.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
 import { parseCommand } from '../args.js';
 
@@ -82,7 +82,15 @@ async function checks(config: ReefdConfig, io: CliIo, base: string, timeoutMs: n
       out.push({ name: `secret ${name}`, status: 'fail', detail: (err as Error).message });
     }
   };
-  const dataDir = path.resolve(base, config.data_dir);
+  if (config.sources?.mqtt === undefined && config.sources?.kafka === undefined) {
+    out.push({
+      name: 'sources',
+      status: 'fail',
+      detail:
+        'none configured: reefd run refuses to start (REEFD_NO_SOURCE); add sources.mqtt or sources.kafka',
+    });
+  }
+  const dataDir = resolveDataDir(config, base, io.env);
   try {
     await mkdir(dataDir, { recursive: true });
     await access(dataDir, constants.W_OK);
@@ -99,6 +107,20 @@ async function checks(config: ReefdConfig, io: CliIo, base: string, timeoutMs: n
       status: 'fail',
       detail: `${dataDir}: ${(err as Error).message}; create it and give the reefd user write access`,
     });
+  }
+  const ndjson = config.outputs.ndjson;
+  if (ndjson) {
+    const folder = path.dirname(path.resolve(base, ndjson.path));
+    try {
+      await access(folder, constants.W_OK);
+      out.push({ name: 'ndjson output', status: 'ok', detail: `${folder} is writable` });
+    } catch (err) {
+      out.push({
+        name: 'ndjson output',
+        status: 'fail',
+        detail: `${folder}: ${(err as Error).message}; write the records under the data folder (an absolute path) or give the reefd user write access`,
+      });
+    }
   }
   const mqtt = config.sources?.mqtt;
   if (mqtt) {

@@ -1,7 +1,7 @@
 // `reefd run [--config FILE]`: the daemon. Without a configuration: the built-in demo (embedded broker,
 // simulated fictional reef, local data folder, dashboard on http://127.0.0.1:8080 or the next free port).
 import path from 'node:path';
-import type { DerivedRecord, ReefdConfig } from '../../../libs/contract/index.js';
+import type { ReefdConfig } from '../../../libs/contract/index.js';
 import { formatProblem } from '../../../libs/contract/index.js';
 import { loadConfigFile } from '../../config/load.js';
 import { startDaemon, type Daemon } from '../../daemon/daemon.js';
@@ -88,8 +88,15 @@ export const run: CommandRun = async (args, io) => {
     baseDir = process.cwd();
   }
 
-  let http: HttpFront | undefined;
-  const pending: DerivedRecord[][] = [];
+  if (config.sources?.mqtt === undefined && config.sources?.kafka === undefined) {
+    io.stderr(
+      `reefd run: REEFD_NO_SOURCE: ${values.config} has no sources, so the daemon would receive nothing; ` +
+        'add sources.mqtt (a broker URL) or sources.kafka (brokers and topic). reefd replay needs none.\n',
+    );
+    return EXIT_USAGE;
+  }
+
+  let http: HttpFront;
   let daemon: Daemon;
   try {
     daemon = await startDaemon({
@@ -98,17 +105,12 @@ export const run: CommandRun = async (args, io) => {
       logger,
       env: io.env,
       ...(demo ? { mqttProtocolVersion: 4 as const } : {}),
-      onRecords: (records) => {
-        if (http) http.publish(records);
-        else pending.push([...records]);
-      },
     });
   } catch (err) {
-    logger.fatal(
-      { err: (err as Error).message, code: (err as { code?: string }).code },
-      'reefd could not start',
-    );
+    // startDaemon has closed whatever it had started: returning lets the process exit.
+    logger.fatal({ err, code: (err as { code?: string }).code }, 'reefd could not start');
     await demo?.broker.close();
+    await flushLogger(logger);
     return EXIT_FAILURE;
   }
   try {
@@ -122,12 +124,12 @@ export const run: CommandRun = async (args, io) => {
       tryNextPorts: demo !== undefined || port === undefined,
     });
   } catch (err) {
-    logger.fatal({ err: (err as Error).message }, 'reefd could not open its HTTP port');
+    logger.fatal({ err }, 'reefd could not open its HTTP port');
     await daemon.stop('http failed');
     await demo?.broker.close();
+    await flushLogger(logger);
     return EXIT_FAILURE;
   }
-  for (const batch of pending.splice(0)) http.publish(batch);
   logger.info({ url: http.url }, 'dashboard listening');
   if (demo) io.stderr(`\nreefd demo: open ${http.url} in a browser (Ctrl-C to stop)\n\n`);
 

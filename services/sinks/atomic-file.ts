@@ -1,0 +1,35 @@
+// One atomic file write for the services: a crash leaves the old or the new content, never a mix.
+import { mkdir, open, readFile, rename } from 'node:fs/promises';
+import path from 'node:path';
+
+/**
+ * Replaces `file` with `text`: a temp file (mode 0600), fsync, rename, fsync of the folder. Used for the
+ * checkpoint, the dashboard history and the outputs' delivery ledgers.
+ */
+export async function writeFileAtomic(file: string, text: string): Promise<void> {
+  await mkdir(path.dirname(file), { recursive: true });
+  const tmp = `${file}.tmp-${process.pid}`;
+  const fh = await open(tmp, 'w', 0o600);
+  try {
+    await fh.writeFile(text);
+    await fh.sync();
+  } finally {
+    await fh.close();
+  }
+  await rename(tmp, file);
+  const dir = await open(path.dirname(file), 'r');
+  try {
+    await dir.sync();
+  } finally {
+    await dir.close();
+  }
+}
+
+/** The JSON content of `file`, or undefined when it is missing or unreadable (a ledger is rebuilt then). */
+export async function readJsonFile(file: string): Promise<unknown> {
+  try {
+    return JSON.parse(await readFile(file, 'utf8')) as unknown;
+  } catch {
+    return undefined;
+  }
+}
