@@ -193,8 +193,12 @@ export function buildCheckpointer(
   }, everyMs);
   timer.unref();
   const spoolTimer = setInterval(() => {
-    for (const s of outputs.sinks) ctx.metrics.spoolBytes.set({ sink: s.name }, s.stats().spoolBytes ?? 0);
-  }, 5000);
+    for (const s of outputs.sinks) {
+      const st = s.stats();
+      ctx.metrics.spoolBytes.set({ sink: s.name }, st.spoolBytes ?? 0);
+      ctx.metrics.outputSkipped.set({ sink: s.name }, st.skipped ?? 0);
+    }
+  }, 1000);
   spoolTimer.unref();
   ctx.life.add('checkpointer', undefined, async () => {
     clearInterval(timer);

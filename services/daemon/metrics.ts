@@ -8,6 +8,7 @@ export interface DaemonMetrics {
   recordsOut: Counter<'type'>;
   sinkErrors: Counter<'sink'>;
   spoolBytes: Gauge<'sink'>;
+  outputSkipped: Gauge<'sink'>;
   lagSeconds: Gauge;
   processSeconds: Histogram;
   late: Counter;
@@ -47,6 +48,12 @@ export function createMetrics(withDefaults = true): DaemonMetrics {
     spoolBytes: new Gauge({
       name: 'reefd_spool_bytes',
       help: 'Bytes waiting in a sink spool',
+      labelNames: ['sink'],
+      registers: r,
+    }),
+    outputSkipped: new Gauge({
+      name: 'reefd_output_skipped_records',
+      help: 'Records an output did not write again because it already held their stream position (since start)',
       labelNames: ['sink'],
       registers: r,
     }),

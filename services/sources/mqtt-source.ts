@@ -10,7 +10,10 @@
 // acknowledged completes at once for mqtt.js (which moves on) and is written when ack() is called. The
 // number held is bounded by the MQTT 5 Receive Maximum we announce, which the broker honours.
 // A PUBACK held when the connection drops is discarded (message ids belong to one connection); the broker
-// redelivers those messages on reconnect, and the pipeline's duplicate detection (seq) sees the copy.
+// redelivers those messages on reconnect. A broker that restarted from its persistence file sends them
+// without the DUP flag, so the source remembers what it was holding (topic and payload digest) and marks
+// the first identical message on a later connection as a redelivery; the pipeline then archives it once.
+import { createHash } from 'node:crypto';
 import mqtt, { type IClientOptions, type IPublishPacket, type MqttClient, type Packet } from 'mqtt';
 import type { RawInput, Source } from '../pipeline/types.js';
 import type { Logger } from '../log/logger.js';
@@ -56,7 +59,17 @@ export interface MqttSource extends Source {
 interface Held {
   acked: boolean;
   send: (() => void) | undefined;
+  topic: string;
+  payload: Buffer;
 }
+
+/** Digest of a message for recognising it after a reconnect. */
+function digest(topic: string, payload: Buffer): string {
+  return `${topic}\u0000${createHash('sha1').update(payload).digest('base64')}`;
+}
+
+/** How long voided messages are watched for after the connection dropped. */
+const REDELIVERY_WATCH_MS = 10 * 60_000;
 
 type SendPacket = (packet: Packet, cb?: (err?: Error) => void, ...rest: unknown[]) => void;
 
@@ -65,6 +78,9 @@ class MqttIntake implements MqttSource {
   readonly #o: MqttSourceOptions;
   #client: MqttClient | undefined;
   #held = new Map<number, Held>();
+  /** Messages whose PUBACK a dropped connection voided: digest -> copies expected. */
+  #voided = new Map<string, number>();
+  #voidedUntilMs = 0;
   #generation = 0;
   #stopping = false;
   #attempt = 0;
@@ -124,9 +140,23 @@ class MqttIntake implements MqttSource {
       if (this.#stopping) return; // not pushed, not acknowledged: the broker keeps it
       const gen = this.#generation;
       const id = packet.messageId;
+      const now = (o.clock ?? Date.now)();
+      let redelivered = packet.dup;
+      if (!redelivered && this.#voided.size > 0) {
+        if (now > this.#voidedUntilMs) this.#voided.clear();
+        else {
+          const k = digest(topic, payload);
+          const n = this.#voided.get(k);
+          if (n !== undefined) {
+            redelivered = true;
+            if (n <= 1) this.#voided.delete(k);
+            else this.#voided.set(k, n - 1);
+          }
+        }
+      }
       let ack: () => void = () => undefined;
       if (packet.qos > 0 && id !== undefined) {
-        const held: Held = { acked: false, send: undefined };
+        const held: Held = { acked: false, send: undefined, topic, payload };
         this.#held.set(id, held);
         ack = () => {
           if (gen !== this.#generation || this.#held.get(id) !== held || held.acked) return;
@@ -138,14 +168,19 @@ class MqttIntake implements MqttSource {
       push({
         topic,
         payload,
-        rxMs: (o.clock ?? Date.now)(),
+        rxMs: now,
         ack,
-        ...(packet.dup ? { redelivered: true } : {}),
+        ...(redelivered ? { redelivered: true } : {}),
       });
     });
     client.on('close', () => {
       // Message ids are per connection: held PUBACKs are void now, the broker redelivers.
       this.#generation++;
+      for (const h of this.#held.values()) {
+        const k = digest(h.topic, h.payload);
+        this.#voided.set(k, (this.#voided.get(k) ?? 0) + 1);
+      }
+      if (this.#held.size > 0) this.#voidedUntilMs = (o.clock ?? Date.now)() + REDELIVERY_WATCH_MS;
       this.#held.clear();
       this.#drained?.();
       if (!this.#stopping) this.#scheduleReconnect();

@@ -1,9 +1,13 @@
 // Fault (b): the MQTT broker (a private Mosquitto with persistence, never the shared one) restarted
 // mid-stream (twice). The publisher and reefd reconnect to their persistent sessions; nothing acknowledged
-// is lost, and the database holds every oxygen record exactly once.
+// is lost, and every output holds every oxygen record exactly once: the database (VictoriaMetrics without
+// deduplication), the NDJSON file and the Kafka topic (a private broker), every copy counted.
+import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { countArchive, countVm, sleep, summary, waitFor } from './helpers/count.js';
 import { faultConfig, spawnDaemon, writeConfig } from './helpers/daemon.js';
+import { startPrivateKafka } from './helpers/kafka.js';
+import { countKafka, countNdjson, createTopic, verdict } from './helpers/outputs.js';
 import { startControlledVm, startPrivateMosquitto } from './helpers/procs.js';
 import { caseEnv } from './helpers/setup.js';
 import { connectPublisher, oxygenSeries } from './helpers/traffic.js';
@@ -12,13 +16,30 @@ const env = caseEnv('b');
 afterAll(() => env.cleanup());
 
 describe('fault b: Mosquitto restarted mid-stream', () => {
-  it('every acknowledged message reaches the archive and the database once', async () => {
-    const mosq = await startPrivateMosquitto();
+  it('every acknowledged message reaches the archive and every output once', async () => {
+    const [mosq, kafka, vm] = await Promise.all([
+      startPrivateMosquitto(),
+      startPrivateKafka(),
+      startControlledVm({ dedup: false }),
+    ]);
     env.defer(() => mosq.stop());
-    const vm = await startControlledVm({ dedup: false });
+    env.defer(() => kafka.stop());
     env.defer(() => vm.stop());
     const { prefix, site, dataDir, archiveDir } = env;
-    const cfg = writeConfig(faultConfig({ prefix, site, dataDir, mqttUrl: mosq.url, influxUrl: vm.url }));
+    const topic = `reefd-derived-${env.id}`;
+    await createTopic(kafka.broker, topic, 2);
+    const ndjson = join(dataDir, 'records.ndjson');
+    const cfg = writeConfig(
+      faultConfig({
+        prefix,
+        site,
+        dataDir,
+        mqttUrl: mosq.url,
+        influxUrl: vm.url,
+        kafka: { brokers: [kafka.broker], topic },
+        ndjsonPath: ndjson,
+      }),
+    );
     const d = await spawnDaemon(cfg);
     env.defer(() => d.kill('SIGKILL'));
     const pub = await connectPublisher(mosq.url, `pub-${env.id}`);
@@ -46,6 +67,8 @@ describe('fault b: Mosquitto restarted mid-stream', () => {
     const stopped = await d.kill('SIGTERM');
     const a = await countArchive(archiveDir, prefix);
     const db = await countVm(vm.url, 'oxygen_o2_umol_kg', site);
+    const nd = verdict(oxygenTs, await countNdjson(ndjson));
+    const kf = verdict(oxygenTs, await countKafka(kafka.broker, topic));
     const missingArchive = [...pub.acked].filter((k) => !a.byKey.has(k)).length;
     const missingDb = oxygenTs.filter((t) => !db.byTs.has(t)).length;
     summary('b (broker restart)', {
@@ -58,8 +81,12 @@ describe('fault b: Mosquitto restarted mid-stream', () => {
       'missing from archive': missingArchive,
       'oxygen expected': oxygenTs.length,
       'in db': db.byTs.size,
-      'db duplicates': db.duplicates,
-      'missing from db': missingDb,
+      'db lost': missingDb,
+      'db duplicated': db.duplicates,
+      'ndjson lost': nd.lost,
+      'ndjson duplicated': nd.duplicated,
+      'kafka lost': kf.lost,
+      'kafka duplicated': kf.duplicated,
     });
     expect(stopped.code).toBe(0);
     expect(pub.acked.size).toBe(msgs.length);
@@ -71,5 +98,7 @@ describe('fault b: Mosquitto restarted mid-stream', () => {
     expect(a.byKey.size).toBe(msgs.length);
     expect(missingDb).toBe(0);
     expect(db.duplicates).toBe(0);
+    expect(nd).toEqual({ lost: 0, duplicated: 0 });
+    expect(kf).toEqual({ lost: 0, duplicated: 0 });
   });
 });

@@ -1,10 +1,13 @@
 // Fault (c): the database down for a long stretch. Records go to the disk spool, the near-bound alert fires
 // (REEFD_SPOOL_NEAR_LIMIT) as the spool passes 80 % of spool_max_mb, and when the database returns every
-// record arrives, in the order it was produced, once.
+// record arrives, in the order it was produced, once (VictoriaMetrics without deduplication, every copy
+// counted). The NDJSON output beside it is untouched by the outage: every record once.
+import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { countArchive, countVm, sleep, summary, waitFor } from './helpers/count.js';
 import { faultConfig, spawnDaemon, writeConfig } from './helpers/daemon.js';
 import { startControlledVm, startCountingProxy, startPrivateMosquitto } from './helpers/procs.js';
+import { countNdjson, verdict } from './helpers/outputs.js';
 import { caseEnv, nonDecreasing } from './helpers/setup.js';
 import { connectPublisher, oxygenSeries } from './helpers/traffic.js';
 
@@ -24,6 +27,7 @@ describe('fault c: database down for a long stretch', () => {
     const proxy = await startCountingProxy(vm.url);
     env.defer(() => proxy.close());
     const { prefix, site, dataDir, archiveDir } = env;
+    const ndjson = join(dataDir, 'records.ndjson');
     const cfg = writeConfig(
       faultConfig({
         prefix,
@@ -32,6 +36,7 @@ describe('fault c: database down for a long stretch', () => {
         mqttUrl: mosq.url,
         influxUrl: proxy.url,
         spoolMaxMb: SPOOL_MAX_MB,
+        ndjsonPath: ndjson,
       }),
     );
     const d = await spawnDaemon(cfg);
@@ -65,6 +70,7 @@ describe('fault c: database down for a long stretch', () => {
     const a = await countArchive(archiveDir, prefix);
     const db = await countVm(vm.url, 'oxygen_o2_umol_kg', site);
     const missingDb = oxygenTs.filter((t) => !db.byTs.has(t)).length;
+    const nd = verdict(oxygenTs, await countNdjson(ndjson));
     summary('c (database down)', {
       sent: pub.sent,
       acked: pub.acked.size,
@@ -75,8 +81,10 @@ describe('fault c: database down for a long stretch', () => {
       'near-bound alert': alerted ? 'yes' : 'no',
       'oxygen expected': oxygenTs.length,
       'in db': db.byTs.size,
-      'db duplicates': db.duplicates,
-      'missing from db': missingDb,
+      'db lost': missingDb,
+      'db duplicated': db.duplicates,
+      'ndjson lost': nd.lost,
+      'ndjson duplicated': nd.duplicated,
       'replay s after return': back ? (replayMs / 1000).toFixed(1) : 'timeout',
       'arrival in order': nonDecreasing(proxy.order) ? 'yes' : 'no',
     });
@@ -88,6 +96,7 @@ describe('fault c: database down for a long stretch', () => {
     expect(spoolBytes).toBeLessThan(SPOOL_MAX_MB * 1024 * 1024);
     expect(missingDb).toBe(0);
     expect(db.duplicates).toBe(0);
+    expect(nd).toEqual({ lost: 0, duplicated: 0 });
     expect(proxy.order.length).toBe(oxygenTs.length);
     expect(nonDecreasing(proxy.order)).toBe(true);
   });

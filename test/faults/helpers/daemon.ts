@@ -19,6 +19,8 @@ export function faultConfig(o: {
   clientId?: string;
   influxUrl?: string;
   kafka?: { brokers: string[]; topic: string };
+  /** An NDJSON output at this path. */
+  ndjsonPath?: string;
   spoolMaxMb?: number;
   deadLetterPerMin?: number;
   latenessMin?: number;
@@ -48,6 +50,7 @@ export function faultConfig(o: {
           }
         : {}),
       ...(o.kafka ? { kafka: o.kafka } : {}),
+      ...(o.ndjsonPath !== undefined ? { ndjson: { path: o.ndjsonPath } } : {}),
       dead_letter: { max_per_min: o.deadLetterPerMin ?? 600 },
     },
     archive: { fsync_ms: 50 },
@@ -76,14 +79,31 @@ export interface DaemonChild {
   /** One metric summed over every label set matching `labelPart` (e.g. `kind="oxygen"`). */
   metric(name: string, labelPart?: string): Promise<number>;
   rssBytes(): Promise<number>;
+  /** Memory after a forced, settled GC (the child must run with GC_PROBE). */
+  settledMemory(timeoutMs?: number): Promise<SettledMemory>;
   kill(signal: NodeJS.Signals): Promise<{ code: number | null; signal: NodeJS.Signals | null }>;
 }
 
-export async function spawnDaemon(configFile: string, logLevel = 'warn'): Promise<DaemonChild> {
+/** Node options for a child whose memory is measured: exposed GC and the SIGUSR2 probe (gc-probe.mjs). */
+export const GC_PROBE = ['--expose-gc', '--import', join(REPO, 'test/faults/helpers/gc-probe.mjs')];
+
+export interface SettledMemory {
+  heapUsed: number;
+  external: number;
+  arrayBuffers: number;
+  rss: number;
+  rounds: number;
+}
+
+export async function spawnDaemon(
+  configFile: string,
+  logLevel = 'warn',
+  nodeArgs: readonly string[] = [],
+): Promise<DaemonChild> {
   const port = await freePort();
   const child = spawn(
     process.execPath,
-    [BIN, 'run', '--config', configFile, '--port', String(port), '--log-level', logLevel],
+    [...nodeArgs, BIN, 'run', '--config', configFile, '--port', String(port), '--log-level', logLevel],
     { cwd: REPO, stdio: ['ignore', 'ignore', 'pipe'] },
   );
   let err = '';
@@ -135,6 +155,21 @@ export async function spawnDaemon(configFile: string, logLevel = 'warn'): Promis
       const s = await readFile(`/proc/${child.pid}/status`, 'utf8');
       const kb = /VmRSS:\s+(\d+) kB/.exec(s)?.[1];
       return Number(kb) * 1024;
+    },
+    settledMemory: async (timeoutMs = 30_000) => {
+      const from = err.length;
+      child.kill('SIGUSR2');
+      const end = Date.now() + timeoutMs;
+      for (;;) {
+        const m = /reefd-gc-probe (\{.*\})\n/.exec(err.slice(from));
+        if (m?.[1] !== undefined) {
+          const v = JSON.parse(m[1]) as SettledMemory & { error?: string };
+          if (v.error !== undefined) throw new Error(v.error);
+          return v;
+        }
+        if (Date.now() > end || gone) throw new Error('the daemon did not answer the GC probe');
+        await new Promise((r) => setTimeout(r, 50));
+      }
     },
     kill: async (signal) => {
       if (!gone) child.kill(signal);

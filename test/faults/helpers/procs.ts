@@ -199,6 +199,10 @@ export interface CountingHttpProxy {
   setUp(up: boolean): void;
   /** Holds every request this long before forwarding it (a slow database). */
   setDelayMs(ms: number): void;
+  /** Answers every request with this status without reaching the target (e.g. 401); undefined: forward. */
+  setStatus(status: number | undefined): void;
+  /** Requests answered with the status set by setStatus. */
+  refused(): number;
   close(): Promise<void>;
 }
 
@@ -210,6 +214,8 @@ export async function startCountingProxy(target: string, orderOf = 'oxygen'): Pr
   const order: number[] = [];
   let up = true;
   let delayMs = 0;
+  let status: number | undefined;
+  let refused = 0;
   const server = createHttp((req, res) => {
     const chunks: Buffer[] = [];
     req.on('data', (c: Buffer) => chunks.push(c));
@@ -218,6 +224,11 @@ export async function startCountingProxy(target: string, orderOf = 'oxygen'): Pr
       if (delayMs > 0) await new Promise((r) => setTimeout(r, delayMs));
       if (!up) {
         res.writeHead(503).end('down');
+        return;
+      }
+      if (status !== undefined) {
+        refused++;
+        res.writeHead(status).end(JSON.stringify({ code: 'unauthorized', message: 'token not valid' }));
         return;
       }
       const body = Buffer.concat(chunks);
@@ -257,6 +268,10 @@ export async function startCountingProxy(target: string, orderOf = 'oxygen'): Pr
     setDelayMs: (ms) => {
       delayMs = ms;
     },
+    setStatus: (s) => {
+      status = s;
+    },
+    refused: () => refused,
     close: () => new Promise<void>((r) => server.close(() => r())),
   };
 }
