@@ -4,15 +4,28 @@
 
 import { z } from 'zod';
 import type { Kind } from '../contract/index.js';
+import { BATTERY_RANGE, implausibleLimit, unknownMetric } from './metrics.js';
 
 const ID = /^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$/; // docs/contract-v1.md section 1
 const id = z.string().regex(ID, 'ids match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');
-const metric = z
-  .string()
-  .regex(
-    /^[a-z][a-z0-9_]*\.[A-Za-z0-9_]+$/,
-    'a metric is "<kind or record type>.<field>", e.g. oxygen.o2_mg_l',
-  );
+// A metric is one of the table's (metrics.ts): a name the processor never feeds would never fire.
+const metric = z.string().superRefine((name, ctx) => {
+  const why = unknownMetric(name);
+  if (why !== undefined) ctx.addIssue({ code: 'custom', message: why });
+});
+
+/** Each limit of a rule must be a plausible value of its metric (a wrong unit is caught here). */
+function checkLimits(
+  metricName: string,
+  limits: Record<string, number | undefined>,
+  ctx: z.core.$RefinementCtx,
+): void {
+  for (const [key, value] of Object.entries(limits)) {
+    if (value === undefined) continue;
+    const why = implausibleLimit(metricName, value);
+    if (why !== undefined) ctx.addIssue({ code: 'custom', message: why, path: [key] });
+  }
+}
 const minutes = z.number().finite().min(0);
 
 export const severitySchema = z.enum(['info', 'warning', 'critical']);
@@ -30,7 +43,13 @@ const scope = {
   sensors: z.array(id).min(1).optional(),
 };
 
-function builtinThreshold(d: { below: number; clear: number; raiseAfterMin: number; severity: Severity }) {
+function builtinThreshold(d: {
+  metric: string;
+  below: number;
+  clear: number;
+  raiseAfterMin: number;
+  severity: Severity;
+}) {
   return z
     .strictObject({
       enabled: z.boolean().default(true),
@@ -43,6 +62,7 @@ function builtinThreshold(d: { below: number; clear: number; raiseAfterMin: numb
       ...scope,
     })
     .refine((r) => r.clear >= r.below, { message: 'clear must be >= below (hysteresis)', path: ['clear'] })
+    .superRefine((r, ctx) => checkLimits(d.metric, { below: r.below, clear: r.clear }, ctx))
     .prefault({});
 }
 
@@ -62,6 +82,8 @@ const userRule = z
     ...scope,
   })
   .superRefine((r, ctx) => {
+    if (unknownMetric(r.metric) === undefined)
+      checkLimits(r.metric, { below: r.below, above: r.above, clear: r.clear }, ctx);
     if ((r.below === undefined) === (r.above === undefined)) {
       ctx.addIssue({ code: 'custom', message: 'give exactly one of below or above', path: ['below'] });
       return;
@@ -100,9 +122,21 @@ export const BUILTIN_RULE_IDS = [
 export const alertsConfigSchema = z
   .strictObject({
     // Contract: oxygen.o2_mg_l below 2.0 for 10 min, cleared above 2.5 (docs/methods/alerts.md: Diaz & Rosenberg 2008).
-    low_oxygen: builtinThreshold({ below: 2.0, clear: 2.5, raiseAfterMin: 10, severity: 'critical' }),
+    low_oxygen: builtinThreshold({
+      metric: 'oxygen.o2_mg_l',
+      below: 2.0,
+      clear: 2.5,
+      raiseAfterMin: 10,
+      severity: 'critical',
+    }),
     // Contract: carbonate.omega_ar below 3.0 for 30 min; clear at 3.2 (our default; Guinotte et al. 2003).
-    low_omega_ar: builtinThreshold({ below: 3.0, clear: 3.2, raiseAfterMin: 30, severity: 'warning' }),
+    low_omega_ar: builtinThreshold({
+      metric: 'carbonate.omega_ar',
+      below: 3.0,
+      clear: 3.2,
+      raiseAfterMin: 30,
+      severity: 'warning',
+    }),
     faults: z
       .strictObject({
         stale: z
@@ -140,7 +174,18 @@ export const alertsConfigSchema = z
         battery: z
           .strictObject({
             ...faultCommon,
-            below_v: z.partialRecord(z.enum(SENSOR_KINDS), z.number().finite().positive()).default({}),
+            below_v: z
+              .partialRecord(
+                z.enum(SENSOR_KINDS),
+                z
+                  .number()
+                  .finite()
+                  .positive()
+                  .max(BATTERY_RANGE.max, {
+                    error: `a supply voltage limit above ${BATTERY_RANGE.max} V is not one a sensor logger has`,
+                  }),
+              )
+              .default({}),
             clear_margin_v: z.number().finite().min(0).default(0.3),
             raise_after_min: minutes.default(10),
             // Trend warning (rule battery_trend): hours to the cut-off under this; 0 turns it off.

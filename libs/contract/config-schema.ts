@@ -25,15 +25,25 @@ const sensorCommon = {
   enabled: z.boolean().default(true),
 };
 
+/**
+ * Sensor height above the bed, m. A reef station's pressure sensor or upward-looking ADCP sits on a frame a
+ * few tens of centimetres to a few metres up (common practice); past 10 m the number is a depth or a
+ * mistake, and the wave and current derivations would use it as given.
+ */
+const heightAboveBed = z.number().min(0).max(10, {
+  error: 'is the height above the bed, at most 10 m on a reef frame (not the water depth)',
+});
+
 export const pressureSensorSchema = z.strictObject({
   kind: z.literal('pressure'),
   ...sensorCommon,
-  height_m: z.number().min(0).max(50), // sensor height above the bed
+  height_m: heightAboveBed,
 });
 export const adcpSensorSchema = z.strictObject({
   kind: z.literal('adcp'),
   ...sensorCommon,
-  height_m: z.number().min(0).max(50),
+  /** Above the bed; a downward-looking ADCP (on a buoy or pier) may be higher, up to 100 m. */
+  height_m: z.number().min(0).max(100),
   beam_angle_deg: z.number().min(5).max(45).default(20),
   orientation: z.enum(['up', 'down']).default('up'),
   declination_deg: z.number().min(-180).max(180).default(0),
@@ -274,7 +284,7 @@ export const configSchema = z
         ndjson: z.strictObject({ path: z.string() }).optional(),
         influx: influxOutputSchema.optional(),
         kafka: kafkaOutputSchema.optional(),
-        dead_letter: deadLetterSchema.optional(),
+        dead_letter: deadLetterSchema.prefault({}),
       })
       .prefault({}),
     archive: z
@@ -290,8 +300,9 @@ export const configSchema = z
      * configuration file).
      */
     data_dir: z.string().min(1).optional(),
-    alerts: alertsConfigSchema.optional(),
-    notify: notifyConfigSchema.optional(),
+    // Sections with defaults are always present after parsing, so every default has this one home.
+    alerts: alertsConfigSchema.prefault({}),
+    notify: notifyConfigSchema.prefault({}),
     http: z
       .strictObject({
         host: z.string().default('127.0.0.1'),
@@ -366,6 +377,16 @@ export const configSchema = z
       }
     }
     for (const [sid, st] of Object.entries(cfg.stations)) {
+      for (const [name, sensor] of Object.entries(st.sensors)) {
+        if (sensor.kind === 'adcp' && sensor.orientation === 'up' && sensor.height_m > 10) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['stations', sid, 'sensors', name, 'height_m'],
+            message:
+              'is the height above the bed of an upward-looking ADCP, at most 10 m on a reef frame (not the water depth)',
+          });
+        }
+      }
       const ctds = Object.values(st.sensors).filter((s) => s.kind === 'ctd').length;
       if (ctds > 1) {
         ctx.addIssue({

@@ -135,3 +135,52 @@ describe('invalid configurations: every problem with its path and line', () => {
     expect(formatProblem({ path: 'a.b', message: 'is required', line: 4 })).toBe('a.b: is required (line 4)');
   });
 });
+
+describe('plausibility and one home for each default', () => {
+  const base = `site: s
+reef_axis_deg: 270
+stations:
+  crest:
+    sensors:
+`;
+  const problemsOf = (text: string) => {
+    const r = parseConfigText(text);
+    return r.ok ? [] : r.problems.map((p) => `${p.path}: ${p.message}`);
+  };
+
+  it('refuses a pressure sensor 50 m above the bed (a depth written as a height)', () => {
+    expect(problemsOf(`${base}      p1: { kind: pressure, height_m: 50 }\n`)).toEqual([
+      'stations.crest.sensors.p1.height_m: is the height above the bed, at most 10 m on a reef frame (not the water depth)',
+    ]);
+    expect(problemsOf(`${base}      p1: { kind: pressure, height_m: 0.4 }\n`)).toEqual([]);
+  });
+
+  it('refuses an upward-looking ADCP 30 m up, accepts a downward-looking one there', () => {
+    expect(problemsOf(`${base}      a1: { kind: adcp, height_m: 30 }\n`)).toEqual([
+      'stations.crest.sensors.a1.height_m: is the height above the bed of an upward-looking ADCP, at most 10 m on a reef frame (not the water depth)',
+    ]);
+    expect(problemsOf(`${base}      a1: { kind: adcp, height_m: 30, orientation: down }\n`)).toEqual([]);
+  });
+
+  it('refuses a low-oxygen limit in the wrong unit and a misspelt alert metric', () => {
+    const p = problemsOf(
+      `${base}      o1: { kind: oxygen }\nalerts:\n  low_oxygen: { below: 62.5, clear: 70 }\n  rules:\n    warm: { metric: ctd.temperature, above: 31 }\n`,
+    );
+    expect(p.map((x) => x.split(':')[0])).toEqual([
+      'alerts.low_oxygen.below',
+      'alerts.low_oxygen.clear',
+      'alerts.rules.warm.metric',
+    ]);
+  });
+
+  it('fills the alerts, notify and dead-letter defaults without those sections; data_dir has none here', () => {
+    const r = parseConfigText(`${base}      c1: { kind: ctd }\n`);
+    if (!r.ok) throw new Error(r.problems.map((x) => formatProblem(x)).join('\n'));
+    expect(r.config.alerts.silence_min).toBe(15);
+    expect(r.config.alerts.low_oxygen.below).toBe(2);
+    expect(Object.keys(r.config.notify.channels)).toEqual(['dashboard']);
+    expect(r.config.outputs.dead_letter.max_per_min).toBe(600);
+    // Where the data folder is depends on where reefd runs (services/config/load.ts resolveDataDir).
+    expect(r.config.data_dir).toBeUndefined();
+  });
+});

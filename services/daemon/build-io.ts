@@ -3,7 +3,6 @@
 // to close it (lifecycle.ts); none refers to a part built after it.
 import path from 'node:path';
 import mqtt from 'mqtt';
-import { notifyConfigSchema } from '../../libs/alerts/index.js';
 import type { DerivedRecord, ReefdConfig } from '../../libs/contract/index.js';
 import {
   alertsStateDir,
@@ -55,12 +54,12 @@ export async function buildClients(ctx: StartContext): Promise<Clients> {
   const out: Clients = {};
   const dl = config.outputs.dead_letter;
   const mqttSource = config.sources?.mqtt;
-  if (dl?.mqtt_topic && mqttSource) {
+  if (dl.mqtt_topic !== undefined && mqttSource) {
     const client = await auxMqtt(ctx, mqttSource, 'deadletter');
     out.deadLetterMqtt = { publisher: mqttPublisher(client), topic: dl.mqtt_topic };
   }
   const kc = config.outputs.kafka ?? config.sources?.kafka;
-  if (dl?.kafka_topic && kc) {
+  if (dl.kafka_topic !== undefined && kc) {
     const producer = kafkaClient({
       brokers: kc.brokers,
       clientId: `${kc.client_id}-deadletter`,
@@ -74,7 +73,7 @@ export async function buildClients(ctx: StartContext): Promise<Clients> {
       .catch((err: unknown) => ctx.logger.warn({ err }, 'dead-letter kafka producer not connected yet'));
     out.deadLetterKafka = { publisher: kafkaPublisher(producer), topic: dl.kafka_topic };
   }
-  const notify = config.notify ?? notifyConfigSchema.parse({});
+  const notify = config.notify;
   const wantsMqtt = Object.values(notify.channels).some((c) => c.enabled && c.type === 'mqtt');
   if (wantsMqtt && mqttSource) out.notifyMqtt = await auxMqtt(ctx, mqttSource, 'notify');
   return out;
@@ -85,7 +84,7 @@ export async function buildClients(ctx: StartContext): Promise<Clients> {
  * section the default is one dashboard channel, so `reefd alerts list|ack` always has an outbox to read.
  */
 export async function buildNotifier(ctx: StartContext, clients: Clients): Promise<Notifier> {
-  const notify = ctx.config.notify ?? notifyConfigSchema.parse({});
+  const notify = ctx.config.notify;
   const channels = await channelsFromConfig(notify, {
     site: ctx.config.site,
     env: ctx.env,
@@ -170,10 +169,10 @@ export async function buildOutputs(ctx: StartContext, clients: Clients, epoch: s
   ctx.life.add('record outputs', sinks, (s) => Promise.allSettled(s.map((x) => x.close())));
   const dl = config.outputs.dead_letter;
   const deadLetter = await createDeadLetterSink({
-    path: path.resolve(ctx.baseDir, dl?.path ?? path.join(ctx.dataDir, 'dead-letter.ndjson')),
+    path: path.resolve(ctx.baseDir, dl.path ?? path.join(ctx.dataDir, 'dead-letter.ndjson')),
     ...(clients.deadLetterMqtt ? { mqtt: clients.deadLetterMqtt } : {}),
     ...(clients.deadLetterKafka ? { kafka: clients.deadLetterKafka } : {}),
-    maxPerMin: dl?.max_per_min ?? 600,
+    maxPerMin: dl.max_per_min,
     clock: ctx.clock,
     logger,
   });

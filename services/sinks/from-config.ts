@@ -35,7 +35,7 @@ export async function influxSinkOptionsFromConfig(
 
 export async function kafkaSinkOptionsFromConfig(
   out: NonNullable<Outputs['kafka']>,
-  ctx: { dataDir: string; logger: Logger; secret: SecretResolver; spoolMaxMb?: number },
+  ctx: { dataDir: string; logger: Logger; secret: SecretResolver },
 ): Promise<KafkaSinkOptions> {
   return {
     brokers: out.brokers,
@@ -51,7 +51,7 @@ export async function kafkaSinkOptionsFromConfig(
           }
         : undefined,
     spoolDir: join(ctx.dataDir, 'spool', 'kafka'),
-    spoolMaxMb: ctx.spoolMaxMb ?? 512,
+    spoolMaxMb: out.spool_max_mb,
     logger: ctx.logger,
   };
 }

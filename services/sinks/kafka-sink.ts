@@ -22,7 +22,7 @@ import {
   type Producer,
   type SASLOptions,
 } from 'kafkajs';
-import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
+import { recordKey, ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
 import { tlsOptions, type TlsFiles } from './http.js';
 import type { Sleep } from './retry.js';
@@ -179,7 +179,7 @@ export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink>
         ? { ok: true, entry: JSON.stringify([kafkaKey(r), JSON.stringify(r)]) }
         : {
             ok: true,
-            entry: withPosition(pos, JSON.stringify([kafkaKey(r), JSON.stringify(r), recordId(r)])),
+            entry: withPosition(pos, JSON.stringify([kafkaKey(r), JSON.stringify(r), recordKey(r)])),
           },
     send: once === undefined ? sender.send : (entries) => once.send(entries),
     batchSize: o.batchSize ?? 500,
@@ -195,12 +195,6 @@ export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink>
       await ledger?.close();
     },
   });
-}
-
-/** The record's identity for the `reefd-key` header: type, site, time and where it belongs. */
-function recordId(r: DerivedRecord): string {
-  const x = r as Record<string, unknown>;
-  return [r.type, r.site, r.t, x.station ?? x.transect ?? '', x.sensor ?? '', x.rule ?? ''].join('|');
 }
 
 /** Sends each stream position once per partition (see the header of this file). */
