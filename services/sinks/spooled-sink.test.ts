@@ -27,9 +27,15 @@ interface Dest {
   fail: number;
   refuseNext: boolean;
   calls: number;
+  /** Answers this many more sends with refused credentials (HTTP 401). */
+  authFail?: number;
 }
 
-async function make(dest: Dest, waits: number[], extra: { maxMemoryLines?: number } = {}) {
+async function make(
+  dest: Dest,
+  waits: number[],
+  extra: { maxMemoryLines?: number; onAuth?: (failing: boolean) => void } = {},
+) {
   const dir = await mkdtemp(join(tmpdir(), 'reefd-spooled-'));
   dirs.push(dir);
   // Sleeps are recorded and end at once: retries run without waiting.
@@ -46,6 +52,10 @@ async function make(dest: Dest, waits: number[], extra: { maxMemoryLines?: numbe
       if (dest.fail > 0) {
         dest.fail--;
         throw new ReefdError('REEFD_SINK_UNAVAILABLE', 'HTTP 503', { retriable: true });
+      }
+      if ((dest.authFail ?? 0) > 0) {
+        dest.authFail = (dest.authFail ?? 0) - 1;
+        throw new ReefdError('REEFD_SINK_AUTH', 'HTTP 401', { retriable: true });
       }
       dest.got.push(...entries.map(Number));
     },
@@ -92,5 +102,17 @@ describe('spooled sink (injected destination and timers)', () => {
     await sink.flush();
     await sink.close();
     expect(dest.got).toEqual(Array.from({ length: 200 }, (_, i) => i));
+  });
+
+  it('spools and retries while the credentials are refused, alerts once and clears once', async () => {
+    const dest: Dest = { got: [], fail: 0, refuseNext: false, calls: 0, authFail: 3 };
+    const auth: boolean[] = [];
+    const sink = await make(dest, [], { onAuth: (f) => auth.push(f) });
+    sink.write(Array.from({ length: 25 }, (_, i) => rec(i)));
+    await sink.flush();
+    await sink.close();
+    expect(dest.got).toEqual(Array.from({ length: 25 }, (_, i) => i));
+    expect(sink.stats()).toMatchObject({ written: 25, failed: 0 });
+    expect(auth).toEqual([true, false]);
   });
 });

@@ -119,6 +119,12 @@ export async function presentPoints(t: PresenceTarget, lines: readonly string[])
     const labels = Object.entries(p.tags).map(([k, v]) => `${k}=${quoteLabel(v)}`);
     body.append('match[]', `{__name__=~"${escapeRegex(p.measurement)}_.+",${labels.join(',')}}`);
   }
+  // Points written in the last second are searchable only once VictoriaMetrics has flushed them (a restart
+  // can be that quick): ask it to flush first; an error here only means an older VictoriaMetrics.
+  await httpGetText(apiUrl(t, 'internal/force_flush'), t.headers, {
+    timeoutMs: t.timeoutMs,
+    tls: t.tls,
+  }).catch(() => undefined);
   body.set('start', String(from / 1000));
   body.set('end', String(to / 1000));
   let res;

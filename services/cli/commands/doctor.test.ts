@@ -66,4 +66,14 @@ describe('reefd doctor', () => {
   it('needs --config', async () => {
     expect(await run([], captureIo())).toBe(2);
   });
+
+  it('fails a configuration without sources (reefd run would refuse it) and an unwritable NDJSON folder', async () => {
+    const f = await config('outputs:\n  ndjson: { path: /proc/reefd-no/records.ndjson }\n');
+    const io = captureIo({});
+    const code = await run(['--config', f, '--timeout-ms', '500'], io);
+    const out = io.text().stdout;
+    expect(out).toMatch(/^FAIL {2}sources: none configured: reefd run refuses to start \(REEFD_NO_SOURCE\)/m);
+    expect(out).toMatch(/^FAIL {2}ndjson output: \/proc\/reefd-no: /m);
+    expect(code).toBe(1);
+  });
 });
