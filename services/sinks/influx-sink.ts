@@ -205,8 +205,21 @@ class OnceGuard {
   }
 
   async #held(lines: readonly string[]): Promise<boolean[]> {
-    this.#copies ??= await keepsCopies(this.#target);
-    if (!this.#copies) return lines.map(() => false);
-    return presentPoints(this.#target, lines);
+    try {
+      this.#copies ??= await keepsCopies(this.#target);
+      if (!this.#copies) return lines.map(() => false);
+      return await presentPoints(this.#target, lines);
+    } catch (err) {
+      // A write-only token cannot read back: sending beats blocking the output for good; at most the one
+      // batch in flight at the stop is written twice. An outage is retried as any send.
+      if ((err as { code?: string }).code !== 'REEFD_SINK_AUTH' && !/HTTP 4\d\d/.test((err as Error).message))
+        throw err;
+      this.#logger.warn(
+        { sink: this.#name, err },
+        'cannot read the database back; the batch in flight at the last stop may be written twice',
+      );
+      this.#copies = false;
+      return lines.map(() => false);
+    }
   }
 }
