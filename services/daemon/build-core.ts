@@ -16,6 +16,7 @@ import { tlsFiles } from './outputs.js';
 import { operationalAlert } from './operational.js';
 import { createPipeline, type Pipeline } from './pipeline.js';
 import { resumeFromArchive } from './resume.js';
+import type { SilenceWatch } from './silence.js';
 
 export interface CoreState {
   processor: Processor;
@@ -105,6 +106,7 @@ export async function buildPipeline(
   state: CoreState,
   archive: { writer: RawArchiveWriter; dir: string },
   outputs: Outputs,
+  silence: SilenceWatch,
 ): Promise<Pipeline> {
   const { config, logger } = ctx;
   let diskFullAtMs = Number.NEGATIVE_INFINITY;
@@ -119,6 +121,7 @@ export async function buildPipeline(
     logger,
     bus: ctx.bus,
     clock: ctx.clock,
+    onAccepted: (rxMs) => silence.accepted(rxMs),
     onArchiveError: (err) => {
       const now = ctx.clock();
       if ((err as { code?: string }).code !== 'REEFD_DISK_FULL' || now - diskFullAtMs < 10 * 60_000) return;

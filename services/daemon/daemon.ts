@@ -17,6 +17,7 @@ import { resolveDataDir } from '../config/load.js';
 import { Lifecycle } from './lifecycle.js';
 import { createMetrics, type DaemonMetrics } from './metrics.js';
 import { secretResolver } from './outputs.js';
+import { buildSilenceWatch } from './silence.js';
 import type { Pipeline } from './pipeline.js';
 
 export type { RecordBus } from './bus.js';
@@ -32,6 +33,8 @@ export interface DaemonOptions {
   checkpointEveryMs?: number;
   metrics?: DaemonMetrics;
   clock?: () => number;
+  /** How often the dead-man looks at the clock (default 1 s). */
+  silenceTickMs?: number;
 }
 
 export interface Daemon {
@@ -88,7 +91,9 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     const state = await buildState(ctx);
     const archive = await buildArchive(ctx);
     const outputs = await buildOutputs(ctx, clients, state.stream.epoch);
-    const pipeline = await buildPipeline(ctx, state, archive, outputs);
+    // The site's wall-clock dead-man (`site_silent`): fed by the pipeline, writes to the outputs and the bus.
+    const silence = buildSilenceWatch(ctx, outputs.sinks, { tickMs: o.silenceTickMs });
+    const pipeline = await buildPipeline(ctx, state, archive, outputs, silence);
     const { checkpoint } = buildCheckpointer(
       ctx,
       state,
@@ -97,8 +102,6 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
       outputs,
       o.checkpointEveryMs ?? 30_000,
     );
-    // Step 8 (issue 13): the site's wall-clock dead-man (`site_silent`) goes here, between the checkpointer
-    // and the sources: it watches what the sources push and raises on the bus.
     const sources: Source[] = await buildSources(ctx, (input) => void pipeline.handle(input));
     buildSystemd(ctx);
     logger.info({ parts: life.names(), dataDir, epoch: state.stream.epoch }, 'reefd started');

@@ -36,6 +36,8 @@ export interface PipelineOptions {
   bus?: RecordBus;
   /** Called when the archive refuses a write (disk full): the message is not acknowledged. */
   onArchiveError?: (err: Error) => void;
+  /** Called for every live message accepted and archived (the site's dead-man, silence.ts); never in resume. */
+  onAccepted?: (rxMs: number) => void;
   /** Archive attempts on a full disk before the message is left to the broker (default 125, ~10 min). */
   archiveRetries?: number;
   clock?: () => number;
@@ -151,6 +153,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
     const accepted = d.reason === undefined && d.parse.ok ? d.parse.message : undefined;
     if (accepted === undefined) deadLetter(d, rxMs);
     const r = await derive(accepted, rxMs);
+    if (accepted !== undefined) o.onAccepted?.(rxMs);
     if (accepted !== undefined && r !== undefined) {
       if (r.status === 'duplicate') o.metrics?.duplicates.inc();
       if (r.late) o.metrics?.late.inc();
