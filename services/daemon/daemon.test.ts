@@ -174,6 +174,7 @@ describe('the daemon with no outside service', () => {
       'raw archive',
       'record outputs',
       'dead letters',
+      'silence watch',
       'checkpointer',
     ]);
     // ... and every part closed without error.
