@@ -3,6 +3,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import type { ReefdConfig } from '../../libs/contract/index.js';
+import type { SiteSilenceState } from '../../libs/alerts/index.js';
 import type { Processor } from '../../libs/processor/index.js';
 import { createArchiveWriter, type RawArchiveWriter } from '../archive/index.js';
 import { packageRoot } from '../paths.js';
@@ -24,6 +25,18 @@ export interface CoreState {
   /** The stream the processor's state covers; the pipeline moves it forward. */
   stream: StreamState;
   checkpointFile: string;
+  /** The dead-man's state from the checkpoint, if it had one of the expected shape. */
+  savedSilence: SiteSilenceState | undefined;
+}
+
+function parseSilence(v: unknown): SiteSilenceState | undefined {
+  const s = v as Partial<SiteSilenceState> | undefined;
+  return s?.v === 1 &&
+    typeof s.site === 'string' &&
+    typeof s.lastMs === 'number' &&
+    (s.raisedAtMs === null || typeof s.raisedAtMs === 'number')
+    ? (s as SiteSilenceState)
+    : undefined;
 }
 
 function packageVersion(): string {
@@ -78,7 +91,7 @@ export async function buildState(ctx: StartContext): Promise<CoreState> {
   });
   if (bridge !== undefined) ctx.life.add('edge bridge', bridge, (b) => b.close());
   if (fresh) await writeCheckpoint(checkpointFile, processor.snapshot(), stream);
-  return { processor, bridge, stream, checkpointFile };
+  return { processor, bridge, stream, checkpointFile, savedSilence: parseSilence(cp.silence) };
 }
 
 /** Step 4: the raw archive. */
@@ -162,6 +175,7 @@ export function buildCheckpointer(
   pipeline: Pipeline,
   archive: RawArchiveWriter,
   outputs: Outputs,
+  silence: SilenceWatch,
   everyMs: number,
 ): Checkpointer {
   const { logger } = ctx;
@@ -174,6 +188,7 @@ export function buildCheckpointer(
     const taken = await pipeline.atRest(() => ({
       state: state.processor.snapshot(),
       stream: structuredClone(state.stream),
+      silence: silence.snapshot(),
     }));
     await state.bridge?.flush();
     let timer: NodeJS.Timeout | undefined;
@@ -189,7 +204,7 @@ export function buildCheckpointer(
       );
       return;
     }
-    await writeCheckpoint(state.checkpointFile, taken.state, taken.stream);
+    await writeCheckpoint(state.checkpointFile, taken.state, taken.stream, { silence: taken.silence });
   }
   const timer = setInterval(() => {
     checkpoint().catch((err: unknown) => logger.error({ err }, 'checkpoint failed'));

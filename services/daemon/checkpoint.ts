@@ -12,8 +12,10 @@ export async function writeCheckpoint(
   file: string,
   state: ProcessorState,
   stream: StreamState,
+  /** The live daemon's wall-clock state (the site's dead-man), kept beside the processor's. */
+  live?: { silence?: unknown },
 ): Promise<void> {
-  await writeFileAtomic(file, JSON.stringify({ savedAt: new Date().toISOString(), stream, state }));
+  await writeFileAtomic(file, JSON.stringify({ savedAt: new Date().toISOString(), stream, ...live, state }));
 }
 
 export interface CheckpointRead {
@@ -22,6 +24,8 @@ export interface CheckpointRead {
   stream?: StreamState;
   /** Receive time an earlier version's checkpoint covered (lines from it on are fed again). */
   legacyRxMs?: number;
+  /** The dead-man's state as saved (checked by its reader). */
+  silence?: unknown;
   warning?: ReefdError;
 }
 
@@ -38,11 +42,18 @@ export async function readCheckpoint(file: string): Promise<CheckpointRead> {
     throw err;
   }
   try {
-    const parsed = JSON.parse(text) as { state?: ProcessorState & { lastRxMs?: unknown }; stream?: unknown };
+    const parsed = JSON.parse(text) as {
+      state?: ProcessorState & { lastRxMs?: unknown };
+      stream?: unknown;
+      silence?: unknown;
+    };
     if (parsed.state === undefined || typeof parsed.state !== 'object' || parsed.state === null)
       throw new Error('no state');
     const stream = parseStream(parsed.stream);
-    if (stream !== undefined) return { state: parsed.state, stream };
+    if (stream !== undefined)
+      return parsed.silence === undefined
+        ? { state: parsed.state, stream }
+        : { state: parsed.state, stream, silence: parsed.silence };
     const legacy = parsed.state.lastRxMs;
     return typeof legacy === 'number' ? { state: parsed.state, legacyRxMs: legacy } : { state: parsed.state };
   } catch (err) {

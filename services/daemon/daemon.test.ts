@@ -142,6 +142,44 @@ describe('the daemon with no outside service', () => {
     expect(new Set(oxygen).size).toBe(7);
   });
 
+  it('keeps a raised site_silent across a restart and clears it with the first message after', async () => {
+    const folder = await mkdtemp(path.join(dir, 'silent-'));
+    await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });
+    const config = siteConfig(folder, 'alerts: { silence_min: 0.02 }\n');
+    const seen: DerivedRecord[] = [];
+    const a = await startDaemon({
+      config,
+      baseDir: folder,
+      logger: quiet(),
+      env: {},
+      mqttProtocolVersion: 4,
+    });
+    const offA = a.bus.subscribe((rs) =>
+      seen.push(...rs.filter((r) => r.type === 'alert' && r.rule === 'site_silent')),
+    );
+    await until('site_silent raised (1.2 s without a message)', () => seen.length === 1);
+    offA();
+    await a.stop('test');
+    const cp = JSON.parse(await readFile(path.join(folder, 'data', 'checkpoint.json'), 'utf8')) as {
+      silence: { raisedAtMs: number | null };
+    };
+    expect(cp.silence.raisedAtMs).not.toBeNull();
+    const b = await startDaemon({
+      config,
+      baseDir: folder,
+      logger: quiet(),
+      env: {},
+      mqttProtocolVersion: 4,
+    });
+    b.bus.subscribe((rs) => seen.push(...rs.filter((r) => r.type === 'alert' && r.rule === 'site_silent')));
+    await until('the source connected', () => b.ready());
+    await publish('hermetic', 0, 1);
+    await until('site_silent cleared', () => seen.length === 2);
+    await b.stop('test');
+    expect(seen.map((r) => (r as { state: string }).state)).toEqual(['raised', 'cleared']);
+    expect(seen[1]?.id).toBe(seen[0]?.id);
+  });
+
   it('closes what it started, in reverse, when a step fails (a broker password readable by others)', async () => {
     const folder = await mkdtemp(path.join(dir, 'bad-'));
     await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });

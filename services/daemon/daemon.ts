@@ -33,8 +33,6 @@ export interface DaemonOptions {
   checkpointEveryMs?: number;
   metrics?: DaemonMetrics;
   clock?: () => number;
-  /** How often the dead-man looks at the clock (default 1 s). */
-  silenceTickMs?: number;
 }
 
 export interface Daemon {
@@ -92,7 +90,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     const archive = await buildArchive(ctx);
     const outputs = await buildOutputs(ctx, clients, state.stream.epoch);
     // The site's wall-clock dead-man (`site_silent`): fed by the pipeline, writes to the outputs and the bus.
-    const silence = buildSilenceWatch(ctx, outputs.sinks, { tickMs: o.silenceTickMs });
+    const silence = buildSilenceWatch(ctx, outputs.sinks, state.savedSilence);
     const pipeline = await buildPipeline(ctx, state, archive, outputs, silence);
     const { checkpoint } = buildCheckpointer(
       ctx,
@@ -100,6 +98,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
       pipeline,
       archive.writer,
       outputs,
+      silence,
       o.checkpointEveryMs ?? 30_000,
     );
     const sources: Source[] = await buildSources(ctx, (input) => void pipeline.handle(input));

@@ -1,83 +1,91 @@
-// The site's dead-man (docs/contract-v1.md, alerts; docs/methods/alerts.md 8): when no message of the site
-// has been accepted for `alerts.silence_min` minutes of wall-clock time, the live daemon raises a
-// `site_silent` alert (class fault, fault `silent`); the next accepted message clears it. Every other alert
-// runs on event time and so can only move when messages arrive; this one is the only rule on the wall
-// clock, which is why it lives here and not in libs/alerts, and why a replay never raises it.
+// The site's dead-man in the live daemon: the pure state machine of libs/alerts (silence.ts: `site_silent`,
+// class fault, fault `silent`, after alerts.silence_min of wall-clock time without an accepted message,
+// cleared by the next one) driven by a timer and fed by the pipeline. Only the live daemon runs it, so a
+// replay never raises it. Its state goes into the checkpoint: a silence raised before a restart is cleared
+// by the first message after it; one not raised counts from the restart, not from before the stop.
 // The alert goes where any alert goes: the record bus (dashboard, notifier) and the record outputs. It has
 // no stream position (no archive line derives it), so each output writes it as it comes and is flushed at
 // once: a crash cannot cut it off as an uncommitted tail.
+import {
+  createSiteSilence,
+  resolveRules,
+  silenceCheck,
+  silenceNextCheckMs,
+  silenceOnMessage,
+  type AlertRecord,
+  type SiteSilenceState,
+} from '../../libs/alerts/index.js';
 import type { DerivedRecord } from '../../libs/contract/index.js';
 import type { RecordSink } from '../pipeline/types.js';
 import type { StartContext } from './context.js';
 
 export interface SilenceWatch {
-  /** A message of the site was accepted (received, valid, archived) at `rxMs`. */
+  /** A message of the site was accepted (received, valid, archived) at wall time `rxMs`. */
   accepted(rxMs: number): void;
-  /** True while the alert is raised. */
-  raised(): boolean;
-}
-
-export interface SilenceOptions {
-  /** How often the clock is looked at (default 1 s: the alert comes within a second of the limit). */
-  tickMs?: number | undefined;
+  /** The state for the checkpoint (plain JSON). */
+  snapshot(): SiteSilenceState;
 }
 
 /** Step: the dead-man, between the outputs (it writes to them) and the pipeline (which feeds it). */
 export function buildSilenceWatch(
   ctx: StartContext,
   sinks: readonly RecordSink[],
-  o: SilenceOptions = {},
+  saved: SiteSilenceState | undefined,
 ): SilenceWatch {
   const { config, logger } = ctx;
-  const limitMin = config.alerts.silence_min;
-  const limitMs = limitMin * 60_000;
-  // Silence is counted from the start: a site that never speaks after a restart is silent too.
-  let lastMs = ctx.clock();
-  let raisedAtMs: number | undefined;
+  const cfg = resolveRules(config.alerts).silence;
+  const now = ctx.clock();
+  const st: SiteSilenceState =
+    saved !== undefined && saved.site === config.site
+      ? { ...saved, lastMs: saved.raisedAtMs === null ? Math.max(saved.lastMs, now) : saved.lastMs }
+      : createSiteSilence(config.site, now);
+  let timer: NodeJS.Timeout | undefined;
 
-  const emit = (state: 'raised' | 'cleared', nowMs: number, at: number): void => {
-    const record = {
-      type: 'alert',
-      site: config.site,
-      t: new Date(nowMs).toISOString(),
-      rule: 'site_silent',
-      class: 'fault',
-      fault: 'silent',
-      state,
-      value: Math.round(((nowMs - lastMs) / 60_000) * 10) / 10,
-      limit: limitMin,
-      severity: 'critical',
-      id: `site_silent.${config.site}.${at}`,
-    } as DerivedRecord;
-    logger.warn(
-      { rule: 'site_silent', state, silentMin: record.value, limitMin },
-      state === 'raised' ? 'no message from the site' : 'the site speaks again',
-    );
-    for (const s of sinks) s.write([record]);
-    for (const s of sinks)
+  const emit = (alerts: readonly AlertRecord[]): void => {
+    if (alerts.length === 0) return;
+    // The alert engine's records are contract `alert` records (with `id` and `severity` of our own).
+    const records = alerts.map((a) => ({ ...a }) as DerivedRecord);
+    for (const r of records)
+      logger.warn(
+        { rule: r.type === 'alert' ? r.rule : undefined, state: r.type === 'alert' ? r.state : undefined },
+        r.type === 'alert' && r.state === 'raised' ? 'no message from the site' : 'the site speaks again',
+      );
+    for (const s of sinks) {
+      s.write(records);
       s.flush().catch((err: unknown) => logger.error({ err, sink: s.name }, 'flush failed'));
-    ctx.bus.publish([record]);
+    }
+    ctx.bus.publish(records);
   };
 
-  const timer = setInterval(() => {
-    const now = ctx.clock();
-    if (raisedAtMs === undefined && now - lastMs >= limitMs) {
-      raisedAtMs = now;
-      emit('raised', now, now);
-    }
-  }, o.tickMs ?? 1000);
-  timer.unref();
-  ctx.life.add('silence watch', timer, (t) => clearInterval(t));
+  const schedule = (): void => {
+    if (timer !== undefined) clearTimeout(timer);
+    timer = undefined;
+    const at = silenceNextCheckMs(st, cfg);
+    if (at === null) return;
+    timer = setTimeout(
+      () => {
+        timer = undefined;
+        emit(silenceCheck(st, cfg, ctx.clock()));
+        schedule();
+      },
+      Math.max(0, at - ctx.clock()),
+    );
+    timer.unref();
+  };
+  schedule();
+  ctx.life.add('silence watch', st, () => {
+    if (timer !== undefined) clearTimeout(timer);
+    timer = undefined;
+  });
 
   return {
     accepted(rxMs) {
-      if (raisedAtMs !== undefined) {
-        const at = raisedAtMs;
-        raisedAtMs = undefined;
-        emit('cleared', Math.max(rxMs, ctx.clock()), at);
-      }
-      if (rxMs > lastMs) lastMs = rxMs;
+      const was = st.raisedAtMs;
+      emit(silenceOnMessage(st, cfg, rxMs));
+      // While not raised the timer is left where it is: firing early it finds no silence and re-arms at the
+      // new limit (no timer work per message). After a clear there is no timer: arm one.
+      if (was !== null) schedule();
     },
-    raised: () => raisedAtMs !== undefined,
+    snapshot: () => ({ ...st }),
   };
 }
