@@ -1,5 +1,8 @@
 // The CLI front door: help, version, unknown commands, and `config check` exit codes (contract section 5).
 import { fileURLToPath } from 'node:url';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { COMMANDS, main } from './main.js';
 import { captureIo } from './testing.js';
@@ -51,6 +54,22 @@ describe('reefd config check', () => {
       'stations.crest.sensors.p1.height_m: Too small: expected number to be >=0 (line 7)',
     );
     expect(lines.every((l) => /^[\w.()-]+: .+/.test(l))).toBe(true);
+  });
+
+  it('notes that a file without sources would not run (valid for replay: exit 0)', async () => {
+    const io = captureIo();
+    expect(await main(['config', 'check', file('test/fixtures/config/minimal.yaml')], io)).toBe(0);
+    expect(io.text().stderr).toMatch(/note: no sources: reefd run refuses this file \(REEFD_NO_SOURCE\)/);
+    const dir = mkdtempSync(join(tmpdir(), 'reefd-check-'));
+    const withSource = join(dir, 'site.yaml');
+    writeFileSync(
+      withSource,
+      'site: s\nreef_axis_deg: 270\nstations: {}\nsources: { mqtt: { url: "mqtt://127.0.0.1:1" } }\n',
+    );
+    const ok = captureIo();
+    expect(await main(['config', 'check', withSource], ok)).toBe(0);
+    expect(ok.text().stderr).toBe('');
+    rmSync(dir, { recursive: true, force: true });
   });
 
   it('exits 2 for a missing file', async () => {

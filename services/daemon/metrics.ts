@@ -13,6 +13,7 @@ export interface DaemonMetrics {
   processSeconds: Histogram;
   late: Counter;
   duplicates: Counter;
+  sensorReboots: Counter<'sensor'>;
 }
 
 export function createMetrics(withDefaults = true): DaemonMetrics {
@@ -76,6 +77,12 @@ export function createMetrics(withDefaults = true): DaemonMetrics {
     duplicates: new Counter({
       name: 'reefd_duplicate_messages_total',
       help: 'Duplicates dropped',
+      registers: r,
+    }),
+    sensorReboots: new Counter({
+      name: 'reefd_sensor_reboots_total',
+      help: 'Loggers whose seq counter started again (data kept), by station/sensor',
+      labelNames: ['sensor'],
       registers: r,
     }),
   };

@@ -168,6 +168,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
 
   function sensorRebooted(m: SensorMessage): void {
     stats.sensorReboots++;
+    o.metrics?.sensorReboots.inc({ sensor: `${m.station}/${m.sensor}` });
     o.logger?.warn(
       { station: m.station, sensor: m.sensor, seq: m.seq, code: 'REEFD_SENSOR_REBOOT' },
       'sensor seq started again (logger reboot); its data is kept',

@@ -94,7 +94,7 @@ export function kafkaClient(o: {
 }
 
 /** Kafka errors as the spooled sink understands them: retriable unless kafkajs says it is not. */
-function toSinkError(err: unknown, topic: string): Error {
+function toSinkError(err: unknown, topic: string): ReefdError {
   const e = err as { name?: string; retriable?: boolean; message?: string };
   const retriable = !(e.name === 'KafkaJSProtocolError' && e.retriable === false);
   return new ReefdError(
@@ -231,7 +231,15 @@ class KafkaOnce {
     try {
       tail = await readPartitionTails(this.#client, this.#topic, this.#ledger.epoch, this.#scan);
     } catch (err) {
-      throw toSinkError(err, this.#topic);
+      const e = toSinkError(err, this.#topic);
+      if (e.retriable) throw e;
+      // Not allowed to read the topic back (ACLs for a consumer group): the ledger's marks alone, so at
+      // most the batch in flight at the last crash is written twice, rather than nothing written at all.
+      this.#logger.warn(
+        { topic: this.#topic, err },
+        'kafka: cannot read the topic back; the ledger alone says what it holds',
+      );
+      tail = { partitions: await this.#partitionCount(), hwm: new Map() };
     }
     const hwm = new Map<number, number>();
     for (let p = 0; p < tail.partitions; p++) {
@@ -243,6 +251,19 @@ class KafkaOnce {
       'kafka: stream positions read back',
     );
     return hwm;
+  }
+
+  async #partitionCount(): Promise<number> {
+    const admin = this.#client.admin();
+    try {
+      await admin.connect();
+      const meta = await admin.fetchTopicMetadata({ topics: [this.#topic] });
+      return meta.topics[0]?.partitions.length ?? 1;
+    } catch (err) {
+      throw toSinkError(err, this.#topic);
+    } finally {
+      await admin.disconnect().catch(() => undefined);
+    }
   }
 
   #partitionOf(key: string): number {

@@ -44,5 +44,11 @@ export const run: CommandRun = async (args, io) => {
     `${file}: valid: site ${c.site}, ${Object.keys(c.stations).length} stations, ${sensors} sensors, ` +
       `${Object.keys(c.transects).length} transects\n`,
   );
+  // Valid for a replay, but the daemon would receive nothing: say so now rather than at the first start.
+  if (c.sources?.mqtt === undefined && c.sources?.kafka === undefined)
+    io.stderr(
+      `${file}: note: no sources: reefd run refuses this file (REEFD_NO_SOURCE); reefd replay accepts it. ` +
+        'Add sources.mqtt or sources.kafka to run the daemon.\n',
+    );
   return EXIT_OK;
 };
