@@ -193,11 +193,21 @@ export class SpooledSink implements RecordSink {
     return this.#flushWaiters.length > 0;
   }
 
+  /** Lines in memory that should leave it now: a full batch, or any once flush_ms passed or a flush waits. */
+  #due(): boolean {
+    return (
+      this.#mem.length >= this.#o.batchSize ||
+      (this.#mem.length > 0 && (this.#flushWanted() || this.#closing || this.#timer === undefined))
+    );
+  }
+
   async #run(): Promise<void> {
     while (!(this.#closing && this.#mem.length === 0)) {
       if (!this.#spool.isEmpty()) {
-        // Outage or leftovers: new lines queue behind the spool; a flush puts them in it.
-        if (this.#mem.length > this.#memCap || this.#flushWanted() || this.#closing) await this.#spill();
+        // Outage or leftovers: new lines queue behind the spool, and go into it as soon as they would have
+        // been sent (a batch, flush_ms, a flush): during an outage the spool holds the data, not memory, so
+        // its size (and the alert near its bound) says how much waits.
+        if (this.#due()) await this.#spill();
         if (this.#closing) break;
         await this.#drainOne();
         continue;
@@ -207,10 +217,7 @@ export class SpooledSink implements RecordSink {
         await this.#spill();
         continue;
       }
-      if (
-        this.#mem.length >= this.#o.batchSize ||
-        (this.#mem.length > 0 && (this.#flushWanted() || this.#closing || this.#timer === undefined))
-      ) {
+      if (this.#due()) {
         await this.#sendFromMemory();
         continue;
       }
@@ -302,7 +309,7 @@ export class SpooledSink implements RecordSink {
           );
           while (!done && !signal?.aborted) {
             await Promise.race([slept, this.#idle()]);
-            if (this.#mem.length > this.#memCap || this.#flushWanted() || this.#closing) await this.#spill();
+            if (this.#due()) await this.#spill();
           }
           if (signal?.aborted) throw signal.reason as Error;
         },
