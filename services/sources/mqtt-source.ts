@@ -11,8 +11,10 @@
 // number held is bounded by the MQTT 5 Receive Maximum we announce, which the broker honours.
 // A PUBACK held when the connection drops is discarded (message ids belong to one connection); the broker
 // redelivers those messages on reconnect. A broker that restarted from its persistence file sends them
-// without the DUP flag, so the source remembers what it was holding (topic and payload digest) and marks
-// the first identical message on a later connection as a redelivery; the pipeline then archives it once.
+// without the DUP flag, and also resends messages whose PUBACK went out just before it stopped (it never
+// read it); so the source remembers what it was holding and what it acknowledged in the last seconds before
+// the connection dropped (topic and payload digest), and marks the first identical message on the next
+// connection as a redelivery; the pipeline then archives it once (it is already in the archive).
 import { createHash } from 'node:crypto';
 import mqtt, { type IClientOptions, type IPublishPacket, type MqttClient, type Packet } from 'mqtt';
 import type { RawInput, Source } from '../pipeline/types.js';
@@ -70,6 +72,9 @@ function digest(topic: string, payload: Buffer): string {
 
 /** How long voided messages are watched for after the connection dropped. */
 const REDELIVERY_WATCH_MS = 10 * 60_000;
+/** Acknowledged messages remembered for that: at most this many, released this recently before the drop. */
+const RECENT_ACKED = 1000;
+const RECENT_ACKED_MS = 10_000;
 
 type SendPacket = (packet: Packet, cb?: (err?: Error) => void, ...rest: unknown[]) => void;
 
@@ -81,6 +86,9 @@ class MqttIntake implements MqttSource {
   /** Messages whose PUBACK a dropped connection voided: digest -> copies expected. */
   #voided = new Map<string, number>();
   #voidedUntilMs = 0;
+  /** The last acknowledged messages (a ring), for a broker that did not read their PUBACK before a drop. */
+  #acked: ({ topic: string; payload: Buffer; atMs: number } | undefined)[] = new Array(RECENT_ACKED);
+  #ackedNext = 0;
   #generation = 0;
   #stopping = false;
   #attempt = 0;
@@ -176,12 +184,16 @@ class MqttIntake implements MqttSource {
     client.on('close', () => {
       // Message ids are per connection: held PUBACKs are void now, the broker redelivers.
       this.#generation++;
-      for (const h of this.#held.values()) {
+      const now = (o.clock ?? Date.now)();
+      const recent = this.#acked.filter((a) => a !== undefined && now - a.atMs <= RECENT_ACKED_MS);
+      for (const h of [...this.#held.values(), ...(recent as { topic: string; payload: Buffer }[])]) {
         const k = digest(h.topic, h.payload);
         this.#voided.set(k, (this.#voided.get(k) ?? 0) + 1);
       }
-      if (this.#held.size > 0) this.#voidedUntilMs = (o.clock ?? Date.now)() + REDELIVERY_WATCH_MS;
+      if (this.#voided.size > 0) this.#voidedUntilMs = now + REDELIVERY_WATCH_MS;
       this.#held.clear();
+      this.#acked = new Array(RECENT_ACKED);
+      this.#ackedNext = 0;
       this.#drained?.();
       if (!this.#stopping) this.#scheduleReconnect();
     });
@@ -223,6 +235,12 @@ class MqttIntake implements MqttSource {
   #release(id: number, held: Held): void {
     this.#held.delete(id);
     held.send?.();
+    this.#acked[this.#ackedNext] = {
+      topic: held.topic,
+      payload: held.payload,
+      atMs: (this.#o.clock ?? Date.now)(),
+    };
+    this.#ackedNext = (this.#ackedNext + 1) % RECENT_ACKED;
     if (this.#held.size === 0) this.#drained?.();
   }
 
