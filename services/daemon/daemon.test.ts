@@ -4,7 +4,7 @@
 // restart over the same folder writes no record twice; a start that fails closes what it had started and
 // a `reefd run` in a child process exits instead of hanging; `reefd run` refuses a config without sources.
 import { spawn } from 'node:child_process';
-import { chmod, mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
+import { chmod, mkdir, mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import mqtt from 'mqtt';
@@ -30,7 +30,11 @@ afterAll(async () => {
 
 const quiet = () => pino({ level: 'silent' });
 
-function siteConfig(folder: string, extra = ''): ReefdConfig {
+function siteConfig(
+  folder: string,
+  extra = '',
+  outputs = '  ndjson: { path: records.ndjson }\n',
+): ReefdConfig {
   const r = parseConfigText(`site: hermetic
 reef_axis_deg: 270
 stations:
@@ -41,8 +45,7 @@ stations:
 sources:
   mqtt: { url: "${broker.url}", client_id: "reefd-${path.basename(folder)}" }
 outputs:
-  ndjson: { path: records.ndjson }
-data_dir: data
+${outputs}data_dir: data
 notify:
   channels:
     hook: { type: webhook, url: "http://127.0.0.1:9/none", secret: { file: hook.key } }
@@ -140,6 +143,32 @@ describe('the daemon with no outside service', () => {
     const oxygen = again.filter((r) => r.type === 'oxygen').map((r) => r.t);
     expect(oxygen).toHaveLength(7);
     expect(new Set(oxygen).size).toBe(7);
+  });
+
+  it('starts with a spool left near its bound by a long database outage, and raises the alert', async () => {
+    const folder = await mkdtemp(path.join(dir, 'spool-'));
+    await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });
+    // The database is a closed port; the spool an earlier run left holds 9 kB of a 10 kB bound (90 %).
+    const config = siteConfig(
+      folder,
+      '',
+      '  ndjson: { path: records.ndjson }\n  influx: { url: "http://127.0.0.1:9", spool_max_mb: 0.01 }\n',
+    );
+    const spool = path.join(folder, 'data', 'spool', 'influx');
+    await mkdir(spool, { recursive: true });
+    const line = 'oxygen,site=hermetic,station=s1 o2_umol_kg=200 1767225600000\n';
+    await writeFile(path.join(spool, 'seg-000000000001.spool'), line.repeat(Math.ceil(9000 / line.length)));
+    const d = await startDaemon({
+      config,
+      baseDir: folder,
+      logger: quiet(),
+      env: {},
+      mqttProtocolVersion: 4,
+    });
+    await d.stop('test');
+    // Raised during the start, before anyone could subscribe: the notifier (started first) queued it.
+    const outbox = await readFile(path.join(folder, 'data', 'alerts', 'outbox.jsonl'), 'utf8');
+    expect(outbox).toContain('"rule":"reefd.spool_near_limit"');
   });
 
   it('keeps a raised site_silent across a restart and clears it with the first message after', async () => {
