@@ -1,5 +1,5 @@
-// The first stage of the intake: a payload decoded and parsed once. The one JSON value serves validation,
-// the archive line (its canonical text) and the redelivery key.
+// The first stage of the intake: a payload decoded and parsed once. The one JSON value serves validation
+// and the redelivery key; the archive splices the payload's own bytes (services/archive/line.ts).
 import { createHash } from 'node:crypto';
 import {
   MAX_PAYLOAD_BYTES,
@@ -10,13 +10,14 @@ import {
   type TopicParts,
 } from '../../libs/contract/index.js';
 import { checkAgainstConfig } from '../../libs/processor/index.js';
+import { parsedAsJson } from '../archive/line.js';
 
 export interface Decoded {
   topic: string;
   /** The payload as text (invalid UTF-8 replaced), for the dead-letter output. */
   text: string;
-  /** The archive's `msg` as JSON text: the parsed payload re-serialised, or the text when it is not JSON. */
-  msgJson: string;
+  /** The payload goes into the archive line as JSON (spliced), not as a string of its text. */
+  json: boolean;
   /** The form the redelivery key is computed from (the same from a live payload and an archive line). */
   canonical: string;
   parse: MessageParse;
@@ -49,8 +50,6 @@ export function decode(topic: string, payload: Uint8Array, config: ReefdConfig):
   } catch {
     json = false;
   }
-  const msgJson = json ? JSON.stringify(raw) : JSON.stringify(text);
-  const canonical = json && typeof raw !== 'string' ? msgJson : json ? (raw as string) : text;
   const tp = parseTopic(topic, config.topic_prefix);
   let parse: MessageParse;
   if (!tp.ok) parse = rejection(tp.reason);
@@ -60,13 +59,11 @@ export function decode(topic: string, payload: Uint8Array, config: ReefdConfig):
   else parse = validatePayload(tp.parts, raw);
   const reason = parse.ok ? checkAgainstConfig(config, parse.message) : parse.reason;
   const kind = parse.ok ? parse.message.kind : (parse.parts?.kind ?? 'unknown');
-  return { topic, text, msgJson, canonical, parse, reason, kind };
-}
-
-/** The raw archive line (contract section 2), built from the parsed payload without parsing it again. */
-export function archiveLineOf(d: Decoded, rxIso: string): string {
-  const reject = d.reason === undefined ? '' : `,"reject":${JSON.stringify(d.reason)}`;
-  return `{"topic":${JSON.stringify(d.topic)},"rx":${JSON.stringify(rxIso)},"msg":${d.msgJson}${reject}}`;
+  // As the archive will hold it: the payload's JSON value when it is spliced in, else its text.
+  const spliced = json && utf8 && parsedAsJson(parse);
+  const canonical =
+    spliced && typeof raw !== 'string' ? JSON.stringify(raw) : spliced ? (raw as string) : text;
+  return { topic, text, json: spliced, canonical, parse, reason, kind };
 }
 
 /**

@@ -6,6 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { parseConfigText, ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import { createProcessor } from '../../libs/processor/index.js';
 import type { ArchiveWriter, DeadLetter, DeadLetterSink, RawInput, RecordSink } from '../pipeline/types.js';
+import { archiveLineBytes } from '../archive/line.js';
 import { createBus } from './bus.js';
 import { newStream } from './cursor.js';
 import { archivedKey } from './decode.js';
@@ -20,11 +21,13 @@ function heldArchive() {
   const lines: string[] = [];
   const waiting: { line: string; resolve: () => void; reject: (e: Error) => void }[] = [];
   const state = { failNext: 0 };
+  const append = (line: string) =>
+    new Promise<void>((resolve, reject) => {
+      waiting.push({ line, resolve, reject });
+    });
   const archive: ArchiveWriter = {
-    append: (line) =>
-      new Promise<void>((resolve, reject) => {
-        waiting.push({ line, resolve, reject });
-      }),
+    append,
+    appendMessage: (m) => append(archiveLineBytes(m).toString('utf8')),
     flush: async () => undefined,
     close: async () => undefined,
   };

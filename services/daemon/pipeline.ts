@@ -11,7 +11,7 @@ import type { Logger } from '../log/logger.js';
 import type { ArchiveWriter, DeadLetterSink, RawInput, RecordSink } from '../pipeline/types.js';
 import type { RecordBus } from './bus.js';
 import { advance, type StreamState } from './cursor.js';
-import { archiveLineOf, decode, redeliveryKey, type Decoded } from './decode.js';
+import { decode, redeliveryKey, type Decoded } from './decode.js';
 import type { DaemonMetrics } from './metrics.js';
 import { operationalAlert } from './operational.js';
 
@@ -222,7 +222,8 @@ export function createPipeline(o: PipelineOptions): Pipeline {
     const tryAppend = (): void => {
       const rxMs = Math.max(input.rxMs, lastRxMs);
       lastRxMs = rxMs;
-      o.archive.append(archiveLineOf(d, new Date(rxMs).toISOString()), rxMs).then(
+      const line = { topic: d.topic, rxMs, payload: input.payload, json: d.json, reject: d.reason };
+      o.archive.appendMessage(line).then(
         () => {
           // Appends resolve in file order, so `ready` is in archive order.
           durable(true);

@@ -2,6 +2,7 @@
 // source -> decode and validate -> archive (durable) -> processor -> sinks -> acknowledgement.
 // Nothing downstream calls back upstream.
 import type { DerivedRecord } from '../../libs/contract/index.js';
+import type { ArchiveMessage } from '../archive/line.js';
 
 /** One message as a source received it, before validation. */
 export interface RawInput {
@@ -33,6 +34,8 @@ export interface Source {
 export interface ArchiveWriter {
   /** Appends one NDJSON line (no newline). Resolves when the line is fsync'd. */
   append(line: string, rxMs: number): Promise<void>;
+  /** Appends the line of one received message, its payload spliced in as received (services/archive/line.ts). */
+  appendMessage(m: ArchiveMessage): Promise<void>;
   flush(): Promise<void>;
   close(): Promise<void>;
 }
