@@ -48,13 +48,14 @@ export function seriesPoint(line: string): SeriesPoint | undefined {
   if (i >= line.length || !Number.isFinite(timeMs)) return undefined;
   const [measurement, ...tagParts] = splitUnescaped(key, ',');
   if (measurement === undefined || measurement === '') return undefined;
-  const tags: Record<string, string> = {};
+  const pairs: [string, string][] = [];
   for (const t of tagParts) {
     const [k, v] = splitUnescaped(t, '=');
     if (k === undefined || v === undefined) return undefined;
-    tags[unescape(k)] = unescape(v);
+    pairs.push([unescape(k), unescape(v)]);
   }
-  return { measurement: unescape(measurement), tags, timeMs };
+  // fromEntries defines own properties: a tag named __proto__ stays a tag.
+  return { measurement: unescape(measurement), tags: Object.fromEntries(pairs), timeMs };
 }
 
 const seriesId = (measurement: string, tags: Record<string, string>): string =>
