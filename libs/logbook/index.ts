@@ -3,6 +3,7 @@ export {
   buildExclusionIndex,
   checkLogbook,
   exclusionAt,
+  exclusionsDuring,
   formatLogbookEntry,
   LOGBOOK_EVENTS,
   LOGBOOK_EXCLUSION_REASON,

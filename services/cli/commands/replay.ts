@@ -6,7 +6,12 @@
 // whose time is in [from, to): the warm-up gives the windows, the storage term and the QC tests the history
 // they read, so the records in range are those of a full replay.
 import { createWriteStream, existsSync, type WriteStream } from 'node:fs';
-import { createProcessor, messageFromArchiveLine } from '../../../libs/processor/index.js';
+import {
+  createProcessor,
+  inRangeWithMargins,
+  messageFromArchiveLine,
+  rangeMargins,
+} from '../../../libs/processor/index.js';
 import {
   formatProblem,
   type DerivedRecord,
@@ -280,25 +285,19 @@ export function parseRange(from: string | undefined, to: string | undefined): Ra
 }
 
 /**
- * Which messages a range needs. Before `from`: the processor's history horizon (two windows, the window
- * delay, the lateness and the CTD match) plus 6 h for the QC tests' flat-line windows; bottles up to
- * sample_max_age_h (TA carried from the last bottle). After `to`: a window, its delay and the lateness, so
- * every window before `to` closes; reading stops a day after that in receive time.
+ * Which messages a range needs (libs/processor range.ts: the warm-up before `from` and the closing time after
+ * `to`), and when reading may stop: a day after the closing time in receive time.
  */
 export function rangeBounds(
   config: ReefdConfig,
   range: Range,
 ): { inRange: (m: SensorMessage) => boolean; stopAfterRxMs?: number } {
-  const p = config.processing;
-  const MIN = 60_000;
-  const warmMs = (2 * p.window_min + p.window_delay_min + p.lateness_min + p.ctd_match_min + 360) * MIN;
-  const sampleWarmMs = Math.max(warmMs, p.sample_max_age_h * 60 * MIN);
-  const tailMs = (p.window_min + p.window_delay_min + p.lateness_min) * MIN;
+  const margins = rangeMargins(config);
   const from = range.fromMs ?? Number.NEGATIVE_INFINITY;
   const to = range.toMs ?? Number.POSITIVE_INFINITY;
   const out: { inRange: (m: SensorMessage) => boolean; stopAfterRxMs?: number } = {
-    inRange: (m) => m.tMs >= from - (m.kind === 'sample' ? sampleWarmMs : warmMs) && m.tMs < to + tailMs,
+    inRange: inRangeWithMargins(margins, from, to),
   };
-  if (range.toMs !== undefined) out.stopAfterRxMs = range.toMs + tailMs + 24 * 60 * MIN;
+  if (range.toMs !== undefined) out.stopAfterRxMs = range.toMs + margins.tailMs + 24 * 3_600_000;
   return out;
 }
