@@ -26,6 +26,7 @@ import {
   type TopicPublisher,
 } from '../sinks/index.js';
 import { createKafkaSource, createMqttSource } from '../sources/index.js';
+import { loadFieldFiles } from '../config/field-files.js';
 import { edgeFromConfig } from '../scaleout/edge-from-config.js';
 import { readCheckpoint, writeCheckpoint } from './checkpoint.js';
 import { createMetrics, type DaemonMetrics } from './metrics.js';
@@ -96,6 +97,8 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const { bridge, processor } = await edgeFromConfig({
     config,
     saved,
+    // The calibration file and the field logbook beside the configuration, read at start-up.
+    processorOptions: (await loadFieldFiles(o.baseDir, config)).options,
     dataDir,
     logger,
     secret,

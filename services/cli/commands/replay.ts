@@ -4,8 +4,10 @@
 // replayed at their event time (services/replay/ordered.ts), so they are used like bottles that came in time.
 // A range replays the messages of [from - warm-up, to + the windows' closing time) and writes the records
 // whose time is in [from, to): the warm-up gives the windows, the storage term and the QC tests the history
-// they read, so the records in range are those of a full replay.
+// they read, so the records in range are those of a full replay. The configuration's calibration_file and
+// logbook_file (beside it) apply as they do live; the archive is only read.
 import { createWriteStream, existsSync, type WriteStream } from 'node:fs';
+import path from 'node:path';
 import {
   createProcessor,
   inRangeWithMargins,
@@ -19,6 +21,7 @@ import {
   type SensorMessage,
 } from '../../../libs/contract/index.js';
 import { readArchiveOrdered, type OrderedStats } from '../../replay/ordered.js';
+import { describeFieldFiles, loadFieldFiles, type FieldFiles } from '../../config/field-files.js';
 import { loadConfigFile } from '../../config/load.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
 import { parseCommand } from '../args.js';
@@ -54,6 +57,8 @@ export interface ReplaySummary {
   lateSamplesMoved: number;
   /** Messages outside the range (and its warm-up) that were not processed. */
   outOfRange: number;
+  /** Records built from values the calibration file corrected (`calibrated: true`). */
+  calibrated: number;
   interrupted: boolean;
   seconds: number;
 }
@@ -123,6 +128,14 @@ export const run: CommandRun = async (args, io) => {
     return EXIT_USAGE;
   }
   const bounds = rangeBounds(config, range);
+  // The calibration file and the logbook beside the configuration apply as they do live.
+  let field: FieldFiles;
+  try {
+    field = await loadFieldFiles(path.dirname(path.resolve(values.config)), config);
+  } catch (err) {
+    io.stderr(`reefd replay: ${(err as Error).message}\n`);
+    return EXIT_USAGE;
+  }
 
   let fileOut: WriteStream | undefined;
   let out: NodeJS.WritableStream = process.stdout;
@@ -131,7 +144,9 @@ export const run: CommandRun = async (args, io) => {
     out = fileOut;
   }
   const writer = new ChunkWriter(out);
-  const processor = createProcessor(config);
+  const processor = createProcessor(config, undefined, field.options);
+  const fieldLine = describeFieldFiles(field);
+  if (!quiet && fieldLine !== undefined) io.stderr(`replay: ${fieldLine}\n`);
   const summary: ReplaySummary = {
     lines: 0,
     unreadable: 0,
@@ -144,6 +159,7 @@ export const run: CommandRun = async (args, io) => {
     records: 0,
     lateSamplesMoved: 0,
     outOfRange: 0,
+    calibrated: 0,
     interrupted: false,
     seconds: 0,
   };
@@ -170,6 +186,7 @@ export const run: CommandRun = async (args, io) => {
       }
       summary.records++;
       summary.recordsByType[r.type] = (summary.recordsByType[r.type] ?? 0) + 1;
+      if (r.calibrated === true) summary.calibrated++;
       await writer.line(JSON.stringify(r));
     }
   };
@@ -252,7 +269,8 @@ export const run: CommandRun = async (args, io) => {
         `(${by(summary.rejectsByReason)}), ${summary.duplicates} duplicates, ${summary.late} late, ` +
         `${summary.lateSamplesMoved} late lab results replayed at their time` +
         `${summary.outOfRange > 0 ? `, ${summary.outOfRange} outside the range` : ''}; ` +
-        `${summary.records} records (${by(summary.recordsByType)}) in ${summary.seconds.toFixed(1)} s\n`,
+        `${summary.records} records (${by(summary.recordsByType)})` +
+        `${summary.calibrated > 0 ? `, ${summary.calibrated} calibrated` : ''} in ${summary.seconds.toFixed(1)} s\n`,
     );
   }
   return summary.interrupted ? EXIT_FAILURE : EXIT_OK;
