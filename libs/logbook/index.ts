@@ -16,4 +16,5 @@ export {
   type LogbookParse,
   type LogbookProblem,
 } from './logbook.js';
+export { logbookMarkers, type LogbookMarker, type MarkerQuery } from './markers.js';
 export { LOGBOOK_ERRORS, type LogbookErrorCode } from './errors.js';
