@@ -15,6 +15,7 @@ import { isDuplicate, sensorHealth, type SensorHealthRow } from './sensors.js';
 import { processorTimes } from './settings.js';
 import { completeState, createState, STATE_VERSION, type ProcessorState } from './state.js';
 import { withRevisions } from './revise.js';
+import { reviseScope } from './scope.js';
 import { createWindows } from './windows.js';
 
 /** A sample stamped more than this after its receive time comes from a wrong clock (QARTOD timing test). */
@@ -134,12 +135,23 @@ export function createProcessor(
 ): Processor {
   const field = createFieldHooks(config, options, kindModules);
   const core = createCore(config, restored, options, field);
-  return withRevisions(config, core, options, (from) => createCore(config, from, options, field));
+  const scope = reviseScope(config, kindModules);
+  if (scope === undefined) return withRevisions(config, core, options, undefined);
+  const scopeField = createFieldHooks(scope.config, options, kindModules);
+  return withRevisions(config, core, options, {
+    scope,
+    scratch: (from) => createCore(scope.config, from, options, scopeField),
+  });
 }
 
 /** The processor without the re-derivation layer, and its live state (revise.ts runs scratch cores). */
 export interface Core extends Processor {
   readonly state: ProcessorState;
+  /**
+   * The clock of an accepted message that is not derived here (a re-derivation's scratch core replays the
+   * messages of its scope, and only the times of the others): the hold and the windows move as they did.
+   */
+  advanceTo(eventMs: number): DerivedRecord[];
 }
 
 export function createCore(
@@ -193,6 +205,13 @@ export function createCore(
       const late = accept(m, rxMs, out);
       count(out);
       return { status: 'ok', records: out, late };
+    },
+    advanceTo(eventMs) {
+      const out: DerivedRecord[] = [];
+      if (eventMs > state.maxEventMs) state.maxEventMs = eventMs;
+      release(state.maxEventMs - times.reorderMs, out);
+      windows.advance(watermark(), out);
+      return out;
     },
     drain() {
       const out: DerivedRecord[] = [];

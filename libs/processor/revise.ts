@@ -2,25 +2,35 @@
 // holding it have closed is re-derived, and the records it changes go out again with `revision` 1, 2, ... and
 // their identity unchanged (libs/contract recordKey), so every output replaces them.
 //
-// How: the processor keeps snapshots of its state (one per hour of event time) and the messages it accepted
-// since the oldest (ring.ts), over `reviseMaxAgeMs`. A late sample is derived at once as before (later windows
-// use it) and noted; before the next other message (or at drain) a scratch processor starts from the latest
-// snapshot taken before the earliest noted sample and replays the messages since, in the order `reefd replay`
-// uses (late samples at their event time), up to the present. Its records are compared with those sent (a
+// How: the processor keeps snapshots of the part of its state a lab result can change (scope.ts: the stations
+// with bottle samplers, their transects and the met mast), one per hour of event time, and the messages it
+// accepted since the oldest (ring.ts; of messages outside the scope, only their time), over `reviseMaxAgeMs`.
+// A late sample is derived at once as before (later windows use it) and noted; before the next other message
+// (or at drain) a scratch processor of the scope starts from the latest snapshot taken before the earliest
+// noted sample and replays the messages since, in the order `reefd replay` uses (late samples at their event
+// time), up to the present. Its records are compared with those sent (a
 // hash per identity, in memory): those that differ go out as revisions. Its state (series, the flux results
 // the inverse's storage chain starts from) replaces the live one, so later windows continue from the revised ones.
 // Being a rewind, not a warm-up, the revised records are bit for bit what `reefd replay` gives for the same
 // archive, QC flags and chained states included. Pure and deterministic: the same messages in the same order
 // give the same records and revisions, live, on restart-resume and in tests.
 //
-// Bounds: the snapshots (about 0.3 MB each for the demo reef) and messages over the reach, at most
-// MAX_RING_MESSAGES; the hash table over the same span; one scratch run per batch of late samples (those
-// arriving together share it). A sample older than the reach, or from before a restart (the ring is not in
-// the checkpoint), is used from then on only and counted (lateSamplesNotRevised).
-import { recordKey, type DerivedRecord, type Kind, type ReefdConfig } from '../contract/index.js';
+// Bounds: the scope's snapshots and messages over the reach, at most MAX_RING_MESSAGES; the hash table of the
+// scope's records over the same span; one scratch run per batch of late samples (those arriving together
+// share it). A site without bottle samplers keeps nothing. A sample older than the reach, or from before a
+// restart (the ring is not in the checkpoint), is used from then on only and counted (lateSamplesNotRevised).
+import {
+  recordKey,
+  type DerivedRecord,
+  type Kind,
+  type ReefdConfig,
+  type SensorMessage,
+} from '../contract/index.js';
 import type { ProcessorOptions } from './field.js';
+import { kindModules } from './kinds/index.js';
 import type { Core, Processor } from './processor.js';
 import { MessageRing, type RingEntry } from './ring.js';
+import { adoptScoped, scopedState, type ReviseScope } from './scope.js';
 import { processorTimes } from './settings.js';
 import type { ProcessorState } from './state.js';
 
@@ -58,16 +68,16 @@ export function replayOrder(entries: readonly RingEntry[], latenessMs: number): 
   const late: RingEntry[] = [];
   const rest: RingEntry[] = [];
   for (const e of entries) {
-    const isLate = REVISING_KINDS.has(e.message.kind) && e.rxMs - e.message.tMs > latenessMs;
+    const m = e.message;
+    const isLate = m !== undefined && REVISING_KINDS.has(m.kind) && e.rxMs - e.tMs > latenessMs;
     (isLate ? late : rest).push(e);
   }
   if (late.length === 0) return rest;
-  late.sort((a, b) => a.message.tMs - b.message.tMs || a.seq - b.seq);
+  late.sort((a, b) => a.tMs - b.tMs || a.seq - b.seq);
   const out: RingEntry[] = [];
   let next = 0;
   for (const e of rest) {
-    while (next < late.length && (late[next] as RingEntry).message.tMs <= e.message.tMs)
-      out.push(late[next++] as RingEntry);
+    while (next < late.length && (late[next] as RingEntry).tMs <= e.tMs) out.push(late[next++] as RingEntry);
     out.push(e);
   }
   while (next < late.length) out.push(late[next++] as RingEntry);
@@ -81,7 +91,6 @@ class SentTable {
   #head = 0;
 
   note(r: DerivedRecord): void {
-    if (r.type === 'alert') return;
     const key = recordKey(r);
     const { revision: _revision, ...body } = r as DerivedRecord & { revision?: number };
     if (!this.#hash.has(key)) this.#queue.push({ tMs: Date.parse(r.t), key });
@@ -106,33 +115,59 @@ class SentTable {
   }
 }
 
+/** The part of the site a re-derivation replays, and a core of it started from a snapshot. */
+export interface RevisePlan {
+  scope: ReviseScope;
+  scratch: (from: ProcessorState) => Core;
+}
+
+/** A processor without re-derivation: the core as it is. */
+function plain(core: Core): Processor {
+  return {
+    push: (m, rxMs) => core.push(m, rxMs),
+    drain: () => core.drain(),
+    snapshot: () => core.snapshot(),
+    watermarkMs: () => core.watermarkMs(),
+    counters: () => core.counters(),
+    activeAlerts: () => core.activeAlerts(),
+    sensorHealth: () => core.sensorHealth(),
+  };
+}
+
 export function withRevisions(
   config: ReefdConfig,
   core: Core,
   options: ProcessorOptions,
-  scratchCore: (from: ProcessorState) => Core,
+  plan: RevisePlan | undefined,
 ): Processor {
+  const reachMs = options.reviseMaxAgeMs ?? DEFAULT_REVISE_MAX_AGE_MS;
+  // A site without bottle samplers (no scope) has nothing to re-derive and pays nothing.
+  if (plan === undefined) return plain(core);
+  // Off (reach 0): late samples are only counted.
+  const enabled = reachMs > 0;
+  const { scope, scratch: scratchOf } = plan;
   const state = core.state;
   const times = processorTimes(config);
-  const reachMs = options.reviseMaxAgeMs ?? DEFAULT_REVISE_MAX_AGE_MS;
-  const enabled = reachMs > 0;
   const samplesCarryTa = config.alkalinity.source === 'samples';
-  const transectStations = new Set(
-    Object.values(config.transects).flatMap((tr) => [tr.upstream, tr.downstream]),
-  );
   const ring = new MessageRing({
     everyMs: SNAPSHOT_EVERY_MS,
     reachMs: reachMs + SNAPSHOT_EVERY_MS,
     maxMessages: MAX_RING_MESSAGES,
   });
   const sent = new SentTable();
+  const inScope = (r: DerivedRecord): boolean => {
+    const x = r as { station?: unknown; transect?: unknown };
+    return r.type === 'flux' || r.type === 'daily'
+      ? scope.transects.has(String(x.transect))
+      : scope.stations.has(String(x.station));
+  };
 
   /** Whether a late sample can have changed records already sent (a closed window, or TA carried). */
-  const affectsSent = (station: string, tMs: number): boolean =>
-    samplesCarryTa || (transectStations.has(station) && tMs < state.lastTickMs);
+  const affectsSent = (tMs: number): boolean =>
+    samplesCarryTa || (scope.transects.size > 0 && tMs < state.lastTickMs);
 
-  function schedule(message: RingEntry['message'], rxMs: number): void {
-    if (!affectsSent(message.station, message.tMs)) return;
+  function schedule(message: SensorMessage, rxMs: number): void {
+    if (!affectsSent(message.tMs)) return;
     if (
       !enabled ||
       message.tMs < core.watermarkMs() - reachMs ||
@@ -157,10 +192,12 @@ export function withRevisions(
       return;
     }
     state.counters.lateSamplesRevised += pending.length;
-    const scratch = scratchCore(from.state);
+    const scratch = scratchOf(from.state);
     const records: DerivedRecord[] = [];
-    for (const e of replayOrder(ring.after(from), times.latenessMs))
-      records.push(...scratch.push(e.message, e.rxMs).records);
+    for (const e of replayOrder(ring.after(from), times.latenessMs)) {
+      if (e.message !== undefined) records.push(...scratch.push(e.message, e.rxMs).records);
+      else records.push(...scratch.advanceTo(e.eventMs));
+    }
     const revisions = state.reprocess.revisions;
     for (const r of records) {
       if (r.type === 'alert' || sent.same(r)) continue;
@@ -172,37 +209,28 @@ export function withRevisions(
       out.push(revised);
       state.counters.revisedRecords++;
     }
-    adopt(scratch);
+    const s = scratch.state;
+    if (s.lastTickMs === state.lastTickMs && s.maxEventMs === state.maxEventMs) adoptScoped(state, s, scope);
     // Records before the oldest snapshot can no longer be re-derived.
     const cut = core.watermarkMs() - reachMs - 2 * SNAPSHOT_EVERY_MS;
     for (const key of Object.keys(revisions)) if (!(tOfKey(key) >= cut)) delete revisions[key];
   }
 
-  /**
-   * The live run continues from the re-derived state: its series (pCO2, TA and DIC recomputed with the
-   * bottles' TA), the flux results the next windows' inverse starts from, the warm starts. The alert engine,
-   * the counters and this layer's bookkeeping stay the live run's (alerts are events already sent).
-   */
-  function adopt(scratch: Core): void {
-    const s = scratch.state;
-    if (s.lastTickMs !== state.lastTickMs || s.maxEventMs !== state.maxEventMs) return;
-    const { alerts, counters, reprocess } = state;
-    Object.assign(state, s, { alerts, counters, reprocess });
-  }
-
-  function afterPush(m: RingEntry['message'], rxMs: number, records: readonly DerivedRecord[]): void {
+  function afterPush(m: SensorMessage, rxMs: number, records: readonly DerivedRecord[]): void {
     if (!enabled) return;
-    ring.add(m, rxMs);
+    const own = scope.stations.has(m.station);
+    ring.add(own ? m : undefined, m.tMs, rxMs, kindModules[m.kind].completeMs(m as never));
     if (ring.due(state.maxEventMs)) {
-      ring.snapshot(state.maxEventMs, core.snapshot());
+      ring.snapshot(state.maxEventMs, scopedState(state, scope));
       // Records of the oldest snapshot's time, less the longest a record waits for its window to close.
       const wait = times.windowMs + times.windowDelayMs + times.latenessMs;
       sent.prune(state.maxEventMs - reachMs - 2 * SNAPSHOT_EVERY_MS - wait);
     }
-    for (const r of records) sent.note(r);
+    for (const r of records) if (r.type !== 'alert' && inScope(r)) sent.note(r);
   }
 
   return {
+    ...plain(core),
     push(m, rxMs) {
       const out: DerivedRecord[] = [];
       if (!REVISING_KINDS.has(m.kind)) revise(out);
@@ -220,10 +248,5 @@ export function withRevisions(
       out.push(...core.drain());
       return out;
     },
-    snapshot: () => core.snapshot(),
-    watermarkMs: () => core.watermarkMs(),
-    counters: () => core.counters(),
-    activeAlerts: () => core.activeAlerts(),
-    sensorHealth: () => core.sensorHealth(),
   };
 }

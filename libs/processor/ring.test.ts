@@ -20,7 +20,7 @@ function ctd(tMs: number): SensorMessage {
 /** Feeds a message every minute for `hours`, snapshotting as the processor does. */
 function feed(ring: MessageRing, hours: number): void {
   for (let t = T0; t < T0 + hours * HOUR; t += 60_000) {
-    ring.add(ctd(t), t + 250);
+    ring.add(ctd(t), t, t + 250, t);
     if (ring.due(t)) ring.snapshot(t, createState(['st']));
   }
 }
@@ -38,7 +38,7 @@ describe('message ring', () => {
     expect(ring.size).toBe(4 * 60 - 1);
     const after = ring.after(oldest!);
     expect(after.length).toBe(ring.size);
-    expect(after[0]?.message.tMs).toBe(T0 + 6 * HOUR + 60_000);
+    expect(after[0]?.message?.tMs).toBe(T0 + 6 * HOUR + 60_000);
     expect(after.every((e, i) => i === 0 || e.seq === (after[i - 1]?.seq as number) + 1)).toBe(true);
   });
 
@@ -48,8 +48,8 @@ describe('message ring', () => {
     const s = ring.snapshotBefore(T0 + 2 * HOUR + 59 * 60_000);
     expect(s?.maxEventMs).toBe(T0 + 2 * HOUR);
     const after = ring.after(s!);
-    expect(after[0]?.message.tMs).toBe(T0 + 2 * HOUR + 60_000);
-    expect(after.at(-1)?.message.tMs).toBe(T0 + 5 * HOUR - 60_000);
+    expect(after[0]?.message?.tMs).toBe(T0 + 2 * HOUR + 60_000);
+    expect(after.at(-1)?.message?.tMs).toBe(T0 + 5 * HOUR - 60_000);
   });
 
   it('holds at most maxMessages whatever the rate, dropping the oldest snapshots with them', () => {
@@ -66,10 +66,10 @@ describe('message ring', () => {
 
   it('keeps no messages before its first snapshot (nothing could replay them)', () => {
     const ring = new MessageRing({ everyMs: HOUR, reachMs: HOUR, maxMessages: 1000 });
-    ring.add(ctd(T0), T0);
+    ring.add(ctd(T0), T0, T0, T0);
     expect(ring.size).toBe(0);
     ring.snapshot(T0, createState(['st']));
-    ring.add(ctd(T0 + 60_000), T0 + 60_000);
+    ring.add(ctd(T0 + 60_000), T0 + 60_000, T0 + 60_000, T0 + 60_000);
     expect(ring.size).toBe(1);
   });
 });

@@ -1,16 +1,22 @@
 // The recent raw messages, in the order the processor accepted them, and snapshots of the processor's state
-// taken among them: what a re-derivation of late lab results rewinds to and replays (revise.ts). Held in
-// memory only, not in the checkpoint (a day of a site's messages is megabytes), so after a restart it covers
-// the time since the restart. Bounded: snapshots over the reach (one per `everyMs` of event time), the
-// messages accepted since the oldest snapshot kept, and at most `maxMessages` of them.
+// taken among them: what a re-derivation of late lab results rewinds to and replays (revise.ts). Only the
+// re-derivation's scope (scope.ts) is kept whole; of other messages, their time. Held in memory only, not in
+// the checkpoint (a day of a site's messages is megabytes), so after a restart it covers the time since the
+// restart. Bounded: snapshots over the reach (one per `everyMs` of event time), the messages accepted since
+// the oldest snapshot kept, and at most `maxMessages` of them.
 import type { SensorMessage } from '../contract/index.js';
 import type { ProcessorState } from './state.js';
 
 export interface RingEntry {
   /** Order of acceptance. */
   seq: number;
-  message: SensorMessage;
+  /** The message, or undefined for a message outside the re-derivation's scope (only its times are kept). */
+  message: SensorMessage | undefined;
+  /** The message's time (`t`), ms. */
+  tMs: number;
   rxMs: number;
+  /** When the message was complete (the processor's clock moves to it), ms. */
+  eventMs: number;
 }
 
 export interface Snapshot {
@@ -50,14 +56,14 @@ export class MessageRing {
     return this.#snapshots.length;
   }
 
-  /** Notes an accepted message. */
-  add(message: SensorMessage, rxMs: number): void {
+  /** Notes an accepted message (undefined: one outside the scope, of which only its times matter). */
+  add(message: SensorMessage | undefined, tMs: number, rxMs: number, eventMs: number): void {
     // Without a snapshot before them, messages could never be replayed: keep none until the first.
     if (this.#snapshots.length === 0) {
       this.#seq++;
       return;
     }
-    this.#entries.push({ seq: this.#seq++, message, rxMs });
+    this.#entries.push({ seq: this.#seq++, message, tMs, rxMs, eventMs });
     if (this.size > this.#o.maxMessages) this.#dropOldestSnapshot();
   }
 

@@ -4,6 +4,7 @@
 // record gives exactly the records of the same deployment with the bottles received on time (which is what
 // `reefd replay` gives for the archive). 48 h of the fictional reef's inner transect, 64 bottle pairs every
 // 40 min (TA, DIC from the reef model's truth).
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import {
   parseConfigText,
@@ -207,5 +208,43 @@ describe('late lab results re-derived live', () => {
     expect(after.length).toBeGreaterThan(1000);
     const differing = after.filter(([k, r]) => strip(got.get(k) as DerivedRecord) !== strip(r));
     expect(differing.map(([k]) => k)).toEqual([]);
+  }, 300_000);
+
+  it('on the whole demo reef (faults on), bottles at two stations: the part they can change is re-derived, the rest only clocked', () => {
+    // Bottle samplers at the flat and the back reef: the scope is those, the crest (outer transect) and the
+    // mast; the lagoon, channel and fore reef stations only move the scratch's clock.
+    const text = readFileSync('deploy/demo/ornen-reef.yaml', 'utf8')
+      .replace('co2-flat: { kind: pco2 }', 'co2-flat: { kind: pco2 }\n      bottle-flat: { kind: sample }')
+      .replace('co2-back: { kind: pco2 }', 'co2-back: { kind: pco2 }\n      bottle-back: { kind: sample }');
+    const parsedDemo = parseConfigText(text);
+    if (!parsedDemo.ok) throw new Error(JSON.stringify(parsedDemo.problems));
+    const demo = parsedDemo.config;
+    const sim = simulateMessages(demo, { startMs: START, durationMs: 30 * HOUR, seed: 12 });
+    const all = sim.messages.map((m) => {
+      const r = parseMessage(m.topic, JSON.stringify(m.payload));
+      if (!r.ok) throw new Error(r.reason);
+      return { message: r.message, sendMs: m.tMs };
+    });
+    const onTime = run(
+      demo,
+      all.map((d) => ({ message: d.message, rxMs: d.sendMs + 250 })),
+    );
+    // the lab results come 5 h after the bottles were taken
+    const late = run(
+      demo,
+      all.map((d) => ({
+        message: d.message,
+        rxMs: d.message.kind === 'sample' ? d.message.tMs + 5 * HOUR : d.sendMs + 250,
+      })),
+    );
+    const want = latest(onTime.records);
+    const got = latest(late.records);
+    expect([...got.keys()].sort()).toEqual([...want.keys()].sort());
+    const differing = [...want].filter(([k, r]) => strip(got.get(k) as DerivedRecord) !== strip(r));
+    expect(differing.map(([k]) => k)).toEqual([]);
+    const revised = late.records.filter((r) => r.revision !== undefined);
+    expect(revised.length).toBeGreaterThan(10);
+    expect(revised.every((r) => r.type === 'flux' && r.transect === 'inner')).toBe(true);
+    expect(late.counters.lateSamplesRevised).toBeGreaterThanOrEqual(8);
   }, 300_000);
 });
