@@ -12,7 +12,7 @@
 // use the TA budget. Why NEC gets 20 %: the inverse's NEC rests on the difference of the two pCO2 sensors,
 // and 31 bottles fix each sensor's offset to +-0.6 uatm (lab noise of 2 umol/kg in TA and DIC is ~3 uatm of
 // pCO2 per bottle), so the two corrected sensors keep a difference of ~0.8 uatm (1 SE): measured over three
-// seeds (8, 9, 10) the calibrated NEC RMS error was 1.08, 1.11 and 1.00 x the clean run's, NCP 1.00, 0.98, 1.01.
+// seeds (8, 9, 10) the calibrated NEC RMS error was 1.04, 1.07 and 1.00 x the clean run's, NCP 1.00, 0.99, 1.01.
 import { mkdir, mkdtemp, readFile, writeFile } from 'node:fs/promises';
 import os from 'node:os';
 import path from 'node:path';
