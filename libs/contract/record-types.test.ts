@@ -36,6 +36,7 @@ const EXTENSIONS = new Set([
   'speed_sigma_m_s',
   'ncp_sigma_mmol_m2_h',
   'nec_sigma_mmol_m2_h',
+  'nec_inverse_mmol_m2_h',
   'sensor',
 ]);
 

@@ -190,6 +190,7 @@ export const RECORD_TYPE_SPECS = {
       nec_significant: bool('|NEC| above twice its sigma'),
       ncp_sigma_mmol_m2_h: num('mmol m-2 h-1', 'standard uncertainty of NCP'),
       nec_sigma_mmol_m2_h: num('mmol m-2 h-1', 'standard uncertainty of NEC'),
+      nec_inverse_mmol_m2_h: num('mmol m-2 h-1', 'NEC by the pCO2 + O2 inverse in a TA-budget window'),
       invalid_reasons: str('why the window is not valid'),
       flag,
     },

@@ -3,6 +3,7 @@ export {
   buildExclusionIndex,
   checkLogbook,
   exclusionAt,
+  exclusionsDuring,
   formatLogbookEntry,
   LOGBOOK_EVENTS,
   LOGBOOK_EXCLUSION_REASON,
@@ -15,4 +16,5 @@ export {
   type LogbookParse,
   type LogbookProblem,
 } from './logbook.js';
+export { logbookMarkers, type LogbookMarker, type MarkerQuery } from './markers.js';
 export { LOGBOOK_ERRORS, type LogbookErrorCode } from './errors.js';

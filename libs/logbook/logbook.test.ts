@@ -6,6 +6,7 @@ import { LOGBOOK_ERRORS } from './errors.js';
 import {
   buildExclusionIndex,
   exclusionAt,
+  exclusionsDuring,
   formatLogbookEntry,
   parseLogbookText,
   type LogbookEntry,
@@ -131,6 +132,46 @@ describe('exclusionAt', () => {
             );
             expect(exclusionAt(index, 'back', 'o2-back', t) !== undefined).toBe(wantOther);
           }
+        },
+      ),
+    );
+  });
+
+  it('property: exclusionsDuring finds the exclusions overlapping a window, as a linear scan', () => {
+    const iv = fc.record({
+      from: fc.integer({ min: 0, max: 1000 }),
+      len: fc.integer({ min: 1, max: 300 }),
+      wide: fc.boolean(),
+    });
+    fc.assert(
+      fc.property(
+        fc.array(iv, { maxLength: 12 }),
+        fc.integer({ min: -100, max: 1400 }),
+        fc.integer({ min: 1, max: 120 }),
+        (ivs, start, len) => {
+          const base = ms('2026-07-01T00:00:00Z');
+          const entries: LogbookEntry[] = ivs.map((v, i) => ({
+            t: new Date(base).toISOString(),
+            station: 'back',
+            ...(v.wide ? {} : { sensor: 'ctd-back' }),
+            event: 'note',
+            text: String(i),
+            exclude_from: new Date(base + v.from * 60_000).toISOString(),
+            exclude_to: new Date(base + (v.from + v.len) * 60_000).toISOString(),
+          }));
+          const index = buildExclusionIndex(entries);
+          const a = base + start * 60_000;
+          const b = a + len * 60_000;
+          const hit = (v: { from: number; len: number }) =>
+            base + v.from * 60_000 < b && base + (v.from + v.len) * 60_000 > a;
+          const got = (sensor: string) =>
+            exclusionsDuring(index, 'back', sensor, a, b)
+              .map((e) => Number(e.text))
+              .sort((x, y) => x - y);
+          const want = (wideOnly: boolean) =>
+            ivs.flatMap((v, i) => (hit(v) && (v.wide || !wideOnly) ? [i] : []));
+          expect(got('ctd-back')).toEqual(want(false));
+          expect(got('o2-back')).toEqual(want(true));
         },
       ),
     );

@@ -152,6 +152,28 @@ export function exclusionAt(
   return findIn(index.byKey.get(station), tMs) ?? findIn(index.byKey.get(`${station}/${sensor}`), tMs);
 }
 
+/**
+ * The entries whose exclusion overlaps [fromMs, toMs) for a sensor (the station's, then the sensor's own), in
+ * order of start. A flux window with an input so excluded is not valid (docs/methods/calibration.md 13.6).
+ */
+export function exclusionsDuring(
+  index: ExclusionIndex,
+  station: string,
+  sensor: string,
+  fromMs: number,
+  toMs: number,
+): LogbookEntry[] {
+  if (index.count === 0) return [];
+  const out: LogbookEntry[] = [];
+  for (const key of [station, `${station}/${sensor}`]) {
+    for (const iv of index.byKey.get(key) ?? []) {
+      if (iv.fromMs >= toMs) break; // sorted by start
+      if (iv.toMs > fromMs) out.push(iv.entry);
+    }
+  }
+  return out;
+}
+
 /** One entry as YAML list item text (appended by `reefd logbook add`). */
 export function formatLogbookEntry(e: LogbookEntry): string {
   const lines = [`- t: ${e.t}`, `  station: ${e.station}`];

@@ -12,11 +12,11 @@ import {
   storageFraction,
   UMOL_M2_S_TO_MMOL_M2_H,
 } from './budget.js';
-import { DEFAULT_CONSTANT_SIGMAS, densityKgM3 } from './chem.js';
+import { densityKgM3 } from './chem.js';
 import { alongBearingMS, angleOffBearingDeg, defaultCurrentSigmaMS } from './geometry.js';
-import { inverseNecSigmaSplit, solveInverseNec, type InverseInput } from './inverse.js';
+import { inverseWindow } from './inverse-window.js';
 import { o2Storage } from './storage.js';
-import { hasGradientTa, ncpCFromDic, taBudget, taSigma, type BudgetContext } from './nec-ta.js';
+import { hasGradientTa, ncpCFromDic, taBudget, type BudgetContext } from './nec-ta.js';
 import type {
   FluxResult,
   InvalidReason,
@@ -37,6 +37,11 @@ export interface ComputeFluxOptions {
   next?: TransectWindow;
   /** Skip the uncertainty propagation (sigmas null) for speed. Default true (propagate). */
   uncertainty?: boolean;
+  /**
+   * Also run the pCO2 + O2 inverse where NEC comes from the TA budget (default true), so its storage form
+   * continues through bottle windows (docs/methods/metabolism.md 6.5); false restarts it after each.
+   */
+  inverseWithTa?: boolean;
 }
 
 const worst = (...flags: (QcFlag | undefined)[]): QcFlag => {
@@ -47,7 +52,6 @@ const worst = (...flags: (QcFlag | undefined)[]): QcFlag => {
 
 // Typical accuracies (docs/methods/uncertainty.md 9.3) used when a station mean carries no sigma.
 const sigO2 = (s: StationWindowMean) => s.sigmaO2UmolKg ?? 0.02 * s.o2UmolKg;
-const sigPco2 = (s: StationWindowMean, p: number) => s.sigmaPco2Uatm ?? Math.max(2, 0.01 * p);
 const sigDepth = (s: StationWindowMean) => s.sigmaDepthM ?? 0.01; // ~1 hPa barometer + 0.05 % FS logger
 
 /**
@@ -225,6 +229,7 @@ export function computeTransectFlux(
   let necMethod: FluxResult['necMethod'] = null;
   let ncpC: number | null = null;
   let inverseState: InverseState | null = null;
+  let necInverse: number | null = null;
   let necFailure: FluxResult['necFailure'] = null;
   const s0 = sMean;
   const taFlag = worst(physFlag, up.taFlag, down.taFlag);
@@ -250,112 +255,63 @@ export function computeTransectFlux(
     if (up.dicUmolKg !== undefined && down.dicUmolKg !== undefined && dicFlag < 4) {
       ncpC = ncpCFromDic(ctx, up, down, ta, as.fasCo2UmolM2S ?? 0);
     }
-  } else if (pco2Present && up.pco2Uatm !== undefined && down.pco2Uatm !== undefined && ncp !== null) {
-    necMethod = 'inverse';
-    if (pco2Flag >= 4) {
-      addReason(pco2Flag === 9 ? 'input_missing' : 'input_qc_failed');
-    } else {
-      const taA = up.taUmolKg ?? (params.taS35UmolKg * up.salinity) / 35;
-      const prevState = options.previousResult?.inverseState;
-      const usePrev = hasPrev && prevState !== null && prevState !== undefined;
-      const x: InverseInput = {
-        upTempC: up.tempC,
-        upSalinity: up.salinity,
-        upPco2Uatm: up.pco2Uatm,
-        upTaUmolKg: taA,
-        downTempC: down.tempC,
-        downSalinity: down.salinity,
-        downPco2Uatm: down.pco2Uatm,
-        o2StorageUmolKgS: stO2,
-        o2DiffUmolKg: dO2,
-        fasO2UmolM2S: as.fasO2UmolM2S,
-        ncpOffsetUmolM2S: 0,
-        pq: params.pq,
-        fasCo2UmolM2S: as.fasCo2UmolM2S ?? 0,
+  }
+  // The inverse: NEC where no TA gradient is measured; in bottle windows (NEC from TA) it runs too when asked,
+  // so the next window continues the storage form from this one instead of restarting from the steady form
+  // (docs/methods/metabolism.md 6.5).
+  const inverseApplies = pco2Present && ncp !== null;
+  const runInverse = inverseApplies && (necMethod === null || (options.inverseWithTa ?? true));
+  if (runInverse && necMethod === null) necMethod = 'inverse';
+  if (runInverse && pco2Flag >= 4) {
+    if (necMethod === 'inverse') addReason(pco2Flag === 9 ? 'input_missing' : 'input_qc_failed');
+  } else if (runInverse) {
+    const prevState = options.previousResult?.inverseState;
+    const usePrev = hasPrev && prevState !== null && prevState !== undefined;
+    const inv = inverseWindow(
+      {
+        up,
+        down,
+        tCentreMs: current.tCentreMs,
         uMS: u,
         depthM: h,
         rhoKgM3: rho,
-        lengthM: L,
-        baroHpa: current.baroHpa ?? 1013.25,
-        ...(usePrev && prevState
+        dtS,
+        o2StorageUmolKgS: stO2,
+        o2DiffUmolKg: dO2,
+        airSea: as,
+        baroHpa: current.baroHpa,
+        previous: usePrev ? prevState : undefined,
+        ...(wantSigma && necMethod === 'inverse'
           ? {
-              previous: {
-                dtS,
-                upTaUmolKg: prevState.upTaUmolKg,
-                upDicUmolKg: prevState.upDicUmolKg,
-                upSalinity: prevState.upSalinity,
-                downTaUmolKg: prevState.downTaUmolKg,
-                downDicUmolKg: prevState.downDicUmolKg,
-                downSalinity: prevState.downSalinity,
+              sigmas: {
+                uMS: sigmaU,
+                depthM: sigmaH,
+                ncpO2SysUmolM2S: sigmaNcpO2Sys,
+                ncpO2RandUmolM2S: sigmaNcpO2Rand,
               },
             }
           : {}),
-      };
-      if (!usePrev) {
+      },
+      params,
+    );
+    if (inv.ok) inverseState = inv.state;
+    if (necMethod === 'ta') {
+      // Kept beside the TA budget's NEC for comparison; the window's flag and NEC are the TA budget's.
+      if (inv.ok) necInverse = inv.necUmolM2S;
+    } else {
+      if (inv.steady) {
         notes.push('steady_form');
         flag = worst(flag, 3);
       }
-      flag = worst(flag, pco2Flag, up.taFlag);
+      flag = worst(flag, pco2Flag, up.taSource === 'sample' ? undefined : up.taFlag);
       // docs/methods/metabolism.md 6.2: a configured site xCO2 instead of the met sensor's is flagged 2.
       if (current.xco2AirPpm === undefined && current.windMS !== undefined) flag = worst(flag, 2);
-      const r = solveInverseNec(x, {
-        bracketMmolM2H: params.necBracketMmolM2H,
-        maxDoublings: params.necMaxDoublings,
-        tolMmolM2H: params.necTolMmolM2H,
-      });
-      if (r.ok) {
-        nec = r.necUmolM2S;
-        inverseState = {
-          tCentreMs: current.tCentreMs,
-          upTaUmolKg: taA,
-          upDicUmolKg: r.upDicUmolKg,
-          upSalinity: up.salinity,
-          downTaUmolKg: r.downTaUmolKg,
-          downDicUmolKg: r.downDicUmolKg,
-          downSalinity: down.salinity,
-        };
-        if (wantSigma) {
-          const sigmaDeqCo2 = 0.5 * Math.hypot(sigPco2(up, up.pco2Uatm), sigPco2(down, down.pco2Uatm));
-          const fas = as.fasCo2UmolM2S ?? 0;
-          sigmaNec = inverseNecSigmaSplit(
-            x,
-            r.necUmolM2S,
-            r.dgdN,
-            {
-              upPco2Uatm: sigPco2(up, up.pco2Uatm),
-              downPco2Uatm: sigPco2(down, down.pco2Uatm),
-              upTaUmolKg: taSigma(up, params.sigmaTaFromSalinityUmolKg),
-              upTempC: up.sigmaTempC ?? 0.01,
-              downTempC: down.sigmaTempC ?? 0.01,
-              upSalinity: up.sigmaSalinity ?? 0.02,
-              downSalinity: down.sigmaSalinity ?? 0.02,
-              ncpOffsetUmolM2S: sigmaNcpO2Sys,
-              pq: params.sigmaPq,
-              fasCo2UmolM2S: Math.hypot(
-                fas * params.sigmaKRel,
-                as.kCo2MS * rho * as.k0MolKgAtm * sigmaDeqCo2,
-              ),
-              uMS: sigmaU,
-              depthM: sigmaH,
-              lengthM: params.sigmaLengthM,
-              // Constants shared by both stations (Orr et al. 2018 via libs/carbonate): they largely cancel.
-              dpK0: DEFAULT_CONSTANT_SIGMAS.pK0,
-              dpK1: DEFAULT_CONSTANT_SIGMAS.pK1,
-              dpK2: DEFAULT_CONSTANT_SIGMAS.pK2,
-              dpKB: DEFAULT_CONSTANT_SIGMAS.pKB,
-              dpKW: DEFAULT_CONSTANT_SIGMAS.pKW,
-              dBtRel: DEFAULT_CONSTANT_SIGMAS.btRel,
-            },
-            {
-              upPco2Uatm: up.semPco2Uatm ?? 0,
-              downPco2Uatm: down.semPco2Uatm ?? 0,
-              ncpOffsetUmolM2S: sigmaNcpO2Rand,
-            },
-          ).sigmaUmolM2S;
-        }
+      if (inv.ok) {
+        nec = inv.necUmolM2S;
+        sigmaNec = inv.sigmaNecUmolM2S;
       } else {
-        notes.push(r.code === 'REEFD_METABOLISM_NEC_NO_ROOT' ? 'nec_no_root' : 'nec_carbonate_failed');
-        necFailure = { code: r.code, reason: r.reason };
+        notes.push(inv.code === 'REEFD_METABOLISM_NEC_NO_ROOT' ? 'nec_no_root' : 'nec_carbonate_failed');
+        necFailure = { code: inv.code, reason: inv.reason };
         flag = worst(flag, 4);
       }
     }
@@ -396,5 +352,6 @@ export function computeTransectFlux(
     },
     necFailure,
     inverseState,
+    necInverseMmolM2H: toMmol(necInverse),
   };
 }

@@ -218,4 +218,9 @@ export interface FluxResult {
   /** Why NEC is null although a method applied (stable code and reason), else null. */
   necFailure: { code: string; reason: string } | null;
   inverseState: InverseState | null;
+  /**
+   * In a window whose NEC comes from the TA budget, the NEC the pCO2 + O2 inverse gives for it (run there to
+   * keep its chain of states, docs/methods/metabolism.md 6.5), for comparison; null elsewhere.
+   */
+  necInverseMmolM2H: number | null;
 }

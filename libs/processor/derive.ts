@@ -4,6 +4,7 @@
 import type { ReefdConfig } from '../contract/index.js';
 import type { CarbonateOptions } from '../carbonate/index.js';
 import { gravity } from '../seawater/index.js';
+import { NO_FIELD_HOOKS, type FieldHooks } from './field.js';
 import { interpolate, localMean, nearest, type Pick, type Series } from './series.js';
 import type { ProcessorState, SiteVar, StationVar } from './state.js';
 
@@ -37,6 +38,8 @@ export interface DeriveContext {
   carbonateOptions: CarbonateOptions;
   gMS2: number;
   inputs: InputTracker;
+  /** The calibration file and the field logbook (field.ts). */
+  field: FieldHooks;
 }
 
 const ALWAYS_HEALTHY = (): boolean => true;
@@ -44,6 +47,7 @@ const ALWAYS_HEALTHY = (): boolean => true;
 export function makeContext(
   config: ReefdConfig,
   state: ProcessorState,
+  field: FieldHooks = NO_FIELD_HOOKS,
   healthy: InputTracker['healthy'] = ALWAYS_HEALTHY,
 ): DeriveContext {
   return {
@@ -51,6 +55,7 @@ export function makeContext(
     inputs: { used: [], healthy },
     config,
     state,
+    field,
     carbonateOptions: {
       carbonicConstants: config.carbonate.carbonic_constants,
       boron: config.carbonate.boron,

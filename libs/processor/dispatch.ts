@@ -4,9 +4,12 @@
 // with an invalidating fault in force at the message's time (its own, or one it read through the derive.ts
 // lookups) is flagged 4 and names the faults (`invalid_reasons`), and the alert engine sees its values as 4.
 // The series keep the values' own QC flags: the flux windows judge their inputs' faults themselves (flux.ts).
+// The calibration file acts here too (field-marks.ts): the kind derives the corrected message, and the records
+// it emits say `calibrated: true` when a correction entered them.
 import type { DerivedRecord, Kind, SensorConfig, SensorMessage } from '../contract/index.js';
 import type { DeriveContext } from './derive.js';
 import type { FaultWiring } from './faults.js';
+import { markMessage, markRecord, type MessageMarks } from './field-marks.js';
 import { kindModules, type KindIO, type KindModule } from './kinds/index.js';
 import type { Observer } from './observe.js';
 import { capCount, insert, lowerBound, type Series } from './series.js';
@@ -31,6 +34,7 @@ class MessageIO implements KindIO<Kind> {
   readonly #observer: Observer;
   readonly #state: ProcessorState;
   readonly #faults: FaultWiring | undefined;
+  readonly #marks: MessageMarks;
   #reasons: string[] | undefined;
   #reasonsAt = -1;
 
@@ -38,11 +42,13 @@ class MessageIO implements KindIO<Kind> {
     ctx: DeriveContext,
     observer: Observer,
     faults: FaultWiring | undefined,
-    m: SensorMessage,
+    marks: MessageMarks,
     rxMs: number,
     out: DerivedRecord[],
   ) {
+    const m = marks.message;
     this.ctx = ctx;
+    this.#marks = marks;
     this.#state = ctx.state;
     this.#observer = observer;
     this.#faults = faults;
@@ -104,6 +110,7 @@ class MessageIO implements KindIO<Kind> {
   }
 
   emit(record: DerivedRecord): void {
+    markRecord(this.ctx, this.#marks, record);
     const reasons = this.faultReasons();
     if (reasons.length > 0) {
       const r = record as { flag?: number; invalid_reasons?: string };
@@ -174,9 +181,10 @@ export function deriveMessage(
   ctx.asOfMs = m.tMs;
   ctx.inputs.used = [];
   faults?.onMessage(m);
-  const io = new MessageIO(ctx, observer, faults, m, rxMs, out);
+  const marks = markMessage(ctx, m);
+  const io = new MessageIO(ctx, observer, faults, marks, rxMs, out);
   if (m.battery_v !== undefined) io.battery(m.battery_v);
-  moduleOf(m).derive(m, io);
+  moduleOf(m).derive(marks.message, io);
   const st = io.sensorState;
   if (m.battery_v !== undefined) st.batteryV = m.battery_v;
   st.lastFlag = worstRecordFlag(out, from);

@@ -226,6 +226,7 @@ function fluxRecord(
     rec.fas_o2_mmol_m2_h = fin(r.airSea.fasO2MmolM2H);
     rec.fas_co2_mmol_m2_h = fin(r.airSea.fasCo2MmolM2H);
   }
+  if (r.necInverseMmolM2H !== null) rec.nec_inverse_mmol_m2_h = fin(r.necInverseMmolM2H);
   if (r.notes.length > 0) rec.notes = r.notes.join(',');
   return rec;
 }

@@ -11,3 +11,4 @@ export {
 export { exclusionsOf, type FaultExclusion } from './faults.js';
 export { STATE_VERSION, type ProcessorState, type ProcessorCounters } from './state.js';
 export { checkAgainstConfig, messageFromArchiveLine, type ArchiveInput } from './intake.js';
+export { inRangeWithMargins, rangeMargins, type RangeMargins } from './range.js';

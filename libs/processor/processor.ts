@@ -6,12 +6,16 @@ import type { DerivedRecord, ReefdConfig, SensorMessage } from '../contract/inde
 import { createAlertEngine, type AlertEngine, type EngineSnapshot } from '../alerts/index.js';
 import { makeContext } from './derive.js';
 import { deriveMessage, moduleOf } from './dispatch.js';
-import { createFaultWiring, type FaultExclusion, type FaultWiring } from './faults.js';
+import { createFaultWiring, exclusionsOf, type FaultWiring } from './faults.js';
+import { createFieldHooks, type FieldHooks, type ProcessorOptions } from './field.js';
+import { kindModules } from './kinds/index.js';
 import { alertRecord, createObserver, type Observer } from './observe.js';
 import { hold, takeDue } from './order.js';
 import { intake, sensorHealth, type SensorHealthRow } from './sensors.js';
 import { processorTimes } from './settings.js';
 import { completeState, createState, STATE_VERSION, type ProcessorState } from './state.js';
+import { withRevisions } from './revise.js';
+import { reviseScope } from './scope.js';
 import { createWindows } from './windows.js';
 
 /** A sample stamped more than this after its receive time comes from a wrong clock (QARTOD timing test). */
@@ -46,14 +50,7 @@ export interface Processor {
 
 export type { SensorHealthRow };
 
-export interface ProcessorOptions {
-  /**
-   * Spans the field logbook excludes (docs/contract-v1.md, E2 `logbook_file`): the sensors they name are faulty
-   * (`logbook_exclusion`) over each span, so their data are flagged 4 and no flux window over them is valid.
-   * Given at every start (live, replay and restart alike); applying one again changes nothing.
-   */
-  exclusions?: readonly FaultExclusion[];
-}
+export type { ProcessorOptions };
 
 /** The state to start from: a checkpoint of this version, or a cold start (STATE_VERSION in state.ts). */
 function startState(config: ReefdConfig, restored: ProcessorState | undefined): ProcessorState {
@@ -113,34 +110,70 @@ function screen(
   return undefined;
 }
 
-/** The fault wiring and the derive context whose lookups skip faulty optional inputs (faults.ts). */
+/**
+ * The fault wiring, with the field logbook's exclusions as faults, and the derive context whose lookups skip
+ * faulty optional inputs (faults.ts).
+ */
 function startFaults(
   config: ReefdConfig,
   state: ProcessorState,
   alerts: AlertEngine,
   options: ProcessorOptions,
+  field: FieldHooks,
 ) {
   const faults: FaultWiring = createFaultWiring(config, state, alerts.rules);
-  for (const x of options.exclusions ?? []) faults.exclude(x);
+  for (const x of [...exclusionsOf(options.logbook ?? []), ...(options.exclusions ?? [])]) faults.exclude(x);
   const ctx = makeContext(
     config,
     state,
+    field,
     (ref, tMs) => faults.faultsAt(faults.writers(ref), tMs).length === 0,
   );
   return { faults, ctx };
 }
 
+/**
+ * The processor of a site. `options` brings the deployment's calibration file and field logbook (read by the
+ * services) and the reach of the live re-derivation of late lab results (revise.ts).
+ */
 export function createProcessor(
   config: ReefdConfig,
   restored?: ProcessorState,
   options: ProcessorOptions = {},
 ): Processor {
+  const field = createFieldHooks(config, options, kindModules);
+  const core = createCore(config, restored, options, field);
+  const scope = reviseScope(config, kindModules);
+  if (scope === undefined) return withRevisions(config, core, options, undefined);
+  const scopeField = createFieldHooks(scope.config, options, kindModules);
+  return withRevisions(config, core, options, {
+    scope,
+    scratch: (from) => createCore(scope.config, from, options, scopeField),
+  });
+}
+
+/** The processor without the re-derivation layer, and its live state (revise.ts runs scratch cores). */
+export interface Core extends Processor {
+  readonly state: ProcessorState;
+  /**
+   * The clock of an accepted message that is not derived here (a re-derivation's scratch core replays the
+   * messages of its scope, and only the times of the others): the hold and the windows move as they did.
+   */
+  advanceTo(eventMs: number): DerivedRecord[];
+}
+
+export function createCore(
+  config: ReefdConfig,
+  restored: ProcessorState | undefined,
+  options: ProcessorOptions,
+  field: FieldHooks,
+): Core {
   const state = startState(config, restored);
   const alerts = startAlerts(config, state);
   const times = processorTimes(config);
-  const { faults, ctx } = startFaults(config, state, alerts, options);
+  const { faults, ctx } = startFaults(config, state, alerts, options, field);
   const observer = createObserver(state, alerts, faults);
-  const windows = createWindows(config, state, times, alerts, observer, faults);
+  const windows = createWindows(config, state, times, alerts, observer, faults, field);
 
   const count = (records: readonly DerivedRecord[]): void => {
     for (const r of records) state.counters.records[r.type] = (state.counters.records[r.type] ?? 0) + 1;
@@ -172,6 +205,7 @@ export function createProcessor(
   }
 
   return {
+    state,
     push(m, rxMs) {
       const out: DerivedRecord[] = [];
       const refused = screen(config, state, observer, m, rxMs, out);
@@ -182,6 +216,13 @@ export function createProcessor(
       return refused === 'reboot'
         ? { status: 'ok', records: out, late, seqRestart: true }
         : { status: 'ok', records: out, late };
+    },
+    advanceTo(eventMs) {
+      const out: DerivedRecord[] = [];
+      if (eventMs > state.maxEventMs) state.maxEventMs = eventMs;
+      release(state.maxEventMs - times.reorderMs, out);
+      windows.advance(watermark(), out);
+      return out;
     },
     drain() {
       const out: DerivedRecord[] = [];

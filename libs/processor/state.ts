@@ -1,6 +1,7 @@
 // The processor's state: plain JSON data, so a checkpoint is JSON.stringify and a restart resumes the windows.
 import type { SensorMessage } from '../contract/index.js';
 import { createFaultState, type FaultState } from '../qc/index.js';
+import { createReprocessState, type ReprocessState } from './reprocess-state.js';
 import type { Series } from './series.js';
 import { createSeries } from './series.js';
 
@@ -71,6 +72,12 @@ export interface ProcessorCounters {
   /** Messages whose `seq` started again (logger reboots); their data is kept. Absent until the first. */
   sensorReboots?: number;
   records: Record<string, number>;
+  /** Lab results that arrived after their windows closed and were re-derived (revise.ts). */
+  lateSamplesRevised: number;
+  /** Such lab results older than the live re-derivation reaches (used from then on only; replay places them). */
+  lateSamplesNotRevised: number;
+  /** Records sent again with a higher `revision` by those re-derivations. */
+  revisedRecords: number;
 }
 
 export interface ProcessorState {
@@ -97,6 +104,8 @@ export interface ProcessorState {
   /** Sensor-fault state (libs/qc sensor-faults.ts, docs/methods/faults.md 12.7), plain data. */
   faults: FaultState;
   counters: ProcessorCounters;
+  /** Calibration bookkeeping and the re-derivation of late lab results (reprocess-state.ts). */
+  reprocess: ReprocessState;
 }
 
 export function createState(stationIds: readonly string[]): ProcessorState {
@@ -124,7 +133,11 @@ export function createState(stationIds: readonly string[]): ProcessorState {
       unknownSensor: 0,
       disabledSensor: 0,
       records: {},
+      lateSamplesRevised: 0,
+      lateSamplesNotRevised: 0,
+      revisedRecords: 0,
     },
+    reprocess: createReprocessState(),
   };
 }
 
@@ -146,4 +159,8 @@ export function completeState(state: ProcessorState, stationIds: readonly string
   // A checkpoint from before the fault state starts it empty: faults re-open on the data.
   state.faults ??= createFaultState();
   state.heldWindows ??= [];
+  state.reprocess ??= createReprocessState();
+  state.counters.lateSamplesRevised ??= 0;
+  state.counters.lateSamplesNotRevised ??= 0;
+  state.counters.revisedRecords ??= 0;
 }

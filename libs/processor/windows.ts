@@ -4,6 +4,8 @@ import type { DerivedRecord, ReefdConfig } from '../contract/index.js';
 import type { AlertEngine } from '../alerts/index.js';
 import type { TransectParams } from '../metabolism/index.js';
 import { windowInputs, type FaultWiring } from './faults.js';
+import type { FieldHooks } from './field.js';
+import { markFluxRecord } from './field-marks.js';
 import { transectFluxAt, transectParams, type FlaggedFluxRecord } from './flux.js';
 import { alertRecord, type Observer } from './observe.js';
 import { pruneBefore, type Series } from './series.js';
@@ -52,6 +54,7 @@ export function createWindows(
   alerts: AlertEngine,
   observer: Observer,
   faults: FaultWiring,
+  field: FieldHooks,
 ): Windows {
   const params = new Map<string, TransectParams>(
     Object.entries(config.transects).map(([id, tr]) => [id, transectParams(config, tr)]),
@@ -68,6 +71,17 @@ export function createWindows(
 
   const emit = (r: FlaggedFluxRecord | undefined, out: DerivedRecord[]): void => {
     if (r === undefined) return;
+    // calibrated: true when an input had a correction in force over the window, the one before (storage) and,
+    // for a centred storage term, the one after.
+    const endMs = Date.parse(r.t) + times.windowMs / 2;
+    const centred = typeof r.notes === 'string' && r.notes.split(',').includes('storage_centred');
+    markFluxRecord(
+      field,
+      r,
+      endMs - times.windowMs,
+      centred ? endMs + times.windowMs : endMs,
+      times.windowMs,
+    );
     out.push(r);
     observer.record(r, undefined, Date.parse(r.t), r.flag, out);
   };

@@ -16,6 +16,7 @@ import {
 import { ReefModel, type ReefSnapshot, type WaveClimateOverride } from './model.js';
 import { optodeSalinityFactor } from './optode.js';
 import { DailyTruthAccumulator } from './daily-truth.js';
+import { applySensorError, type SensorError } from './sensor-errors.js';
 import { createRng, type Rng } from './prng.js';
 import { solarHour } from './signals.js';
 import { siteLayout, type Role } from './site.js';
@@ -40,6 +41,8 @@ export interface SimulateOptions {
   noiseSeed?: number;
   /** Give each sensor a calibration error drawn from the typical accuracies (calibration-errors.ts). */
   calibrationErrors?: boolean;
+  /** Calibration errors of some sensors, by `station/sensor` (sensor-errors.ts); the truth stays true. */
+  sensorErrors?: Readonly<Record<string, SensorError>>;
 }
 
 export interface SimMessage {
@@ -197,6 +200,9 @@ export function* simulate(config: ReefdConfig, opts: SimulateOptions): Generator
         if (faultOf(s, 'stale', t)) continue;
         const msg = buildMessage(s, snap, t, layout.site, layout.prefix);
         if (msg === undefined) continue;
+        const error = opts.sensorErrors?.[`${s.station}/${s.sensor}`];
+        if (error !== undefined)
+          applySensorError(error, `${s.station}/${s.sensor}`, s.config.kind, msg.payload, t, opts.startMs);
         const spike = faultOf(s, 'spike', t);
         if (spike && !spiked.has(spike)) {
           spiked.add(spike);

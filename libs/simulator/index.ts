@@ -2,6 +2,7 @@
 // that turns a configuration, a start time and a seed into contract messages and the truth behind them.
 export { simulate, simulateMessages, CADENCE_S } from './generate.js';
 export type { SimEvent, SimMessage, SimulateOptions } from './generate.js';
+export type { SensorError } from './sensor-errors.js';
 export type { TruthRow, StationTruth, TransectTruth, FaultTruth, EventTruth, DailyTruth } from './truth.js';
 export { createRng, type Rng } from './prng.js';
 export { crossReef, ORNEN_HYDRAULICS, FLAT_CURRENT_RANGE_M_S, CREST_CURRENT_RANGE_M_S } from './hydro.js';

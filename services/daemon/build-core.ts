@@ -9,6 +9,7 @@ import { createArchiveWriter, type RawArchiveWriter } from '../archive/index.js'
 import { packageRoot } from '../paths.js';
 import type { EdgeBridge } from '../scaleout/edge-bridge.js';
 import { edgeFromConfig } from '../scaleout/edge-from-config.js';
+import { loadFieldFiles } from '../config/field-files.js';
 import type { Outputs } from './build-io.js';
 import { readCheckpoint, writeCheckpoint } from './checkpoint.js';
 import type { StartContext } from './context.js';
@@ -64,7 +65,12 @@ export async function buildState(ctx: StartContext): Promise<CoreState> {
   const checkpointFile = path.join(ctx.dataDir, 'checkpoint.json');
   const cp = await readCheckpoint(checkpointFile);
   if (cp.warning) logger.warn({ code: cp.warning.code }, cp.warning.message);
-  const fingerprint = streamFingerprint(derivationConfig(config), packageVersion());
+  // The calibration file and the field log change records like the configuration does (read at start-up).
+  const fieldFiles = await loadFieldFiles(ctx.baseDir, config);
+  const fingerprint = streamFingerprint(
+    { config: derivationConfig(config), calibration: fieldFiles.calibration, logbook: fieldFiles.logbook },
+    packageVersion(),
+  );
   let stream = cp.stream;
   let fresh = false;
   if (stream === undefined) {
@@ -88,6 +94,7 @@ export async function buildState(ctx: StartContext): Promise<CoreState> {
     logger,
     secret: ctx.secret,
     tls: (t) => tlsFiles(ctx.baseDir, t),
+    processorOptions: fieldFiles.options,
   });
   if (bridge !== undefined) ctx.life.add('edge bridge', bridge, (b) => b.close());
   if (fresh) await writeCheckpoint(checkpointFile, processor.snapshot(), stream);

@@ -2,7 +2,12 @@
 // pipeline runs with it (deploy/SCALING.md). Without a `bridge` section the daemon is unchanged.
 import path from 'node:path';
 import type { ReefdConfig, SecretRef } from '../../libs/contract/index.js';
-import { createProcessor, type Processor, type ProcessorState } from '../../libs/processor/index.js';
+import {
+  createProcessor,
+  type Processor,
+  type ProcessorOptions,
+  type ProcessorState,
+} from '../../libs/processor/index.js';
 import type { Logger } from '../log/logger.js';
 import type { TlsFiles } from '../sinks/http.js';
 import { createBridgeProcessor } from './bridge-processor.js';
@@ -16,13 +21,16 @@ export interface EdgeSetup {
 export async function edgeFromConfig(o: {
   config: ReefdConfig;
   saved: ProcessorState | undefined;
+  /** The calibration file and the logbook (services/config/field-files.ts). */
+  processorOptions?: ProcessorOptions;
   dataDir: string;
   logger: Logger;
   secret: (ref: SecretRef | undefined) => Promise<string | undefined>;
   tls: (t: TlsFiles | undefined) => TlsFiles | undefined;
 }): Promise<EdgeSetup> {
   const b = o.config.bridge;
-  if (b === undefined) return { bridge: undefined, processor: createProcessor(o.config, o.saved) };
+  if (b === undefined)
+    return { bridge: undefined, processor: createProcessor(o.config, o.saved, o.processorOptions) };
   const k = b.kafka;
   const bridge = await createEdgeBridge({
     brokers: k.brokers,
@@ -41,7 +49,7 @@ export async function edgeFromConfig(o: {
     spoolMaxMb: k.spool_max_mb,
     logger: o.logger,
   });
-  const inner = b.derive ? createProcessor(o.config, o.saved) : undefined;
+  const inner = b.derive ? createProcessor(o.config, o.saved, o.processorOptions) : undefined;
   o.logger.info(
     { topic: k.topic, partitionBy: k.partition_by, derive: b.derive },
     'edge mode: accepted messages are forwarded to Kafka',

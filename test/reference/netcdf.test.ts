@@ -27,6 +27,7 @@ const v = JSON.parse(readFileSync(new URL('./vectors/netcdf.json', import.meta.u
   csv: Record<string, { has_rows: boolean; first_columns: string[] }>;
   csv_revised_rows: number;
   csv_revised_ncp: number;
+  csv_calibrated: Record<string, number>;
 };
 
 describe('NetCDF export read back by netCDF4/xarray and the IOOS compliance checker', () => {
@@ -58,6 +59,13 @@ describe('NetCDF export read back by netCDF4/xarray and the IOOS compliance chec
       expect(f.mismatch_count).toBe(0);
     });
   }
+
+  it('exports records built from corrected values (the fixture replays with a calibration file), marked in the CSV', () => {
+    // back reef pCO2 corrected: its carbonate records; crest optode: its oxygen records; both transects' fluxes
+    expect(v.csv_calibrated['carbonate.csv']).toBeGreaterThan(50);
+    expect(v.csv_calibrated['oxygen.csv']).toBeGreaterThan(100);
+    expect(v.csv_calibrated['flux.csv']).toBeGreaterThan(100);
+  });
 
   it('exports the latest revision of a record, once (NetCDF and CSV)', () => {
     expect(v.netcdf['ornen-reef_transect_outer.nc']?.revised_ncp).toBe(12.345);

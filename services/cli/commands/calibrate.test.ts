@@ -157,6 +157,50 @@ describe('reefd calibrate', () => {
     await expect(readFile(out, 'utf8')).rejects.toThrow();
   });
 
+  it('refits the sensors it fits, carries the other entries of the configured file over, and skips excluded readings', async () => {
+    const sub = path.join(dir, 'with-files');
+    await mkdir(sub, { recursive: true });
+    await writeFile(
+      path.join(sub, 'old-cal.yaml'),
+      [
+        '- { sensor: back/ctd-back, field: temp_c, offset: 0.01 }',
+        '- { sensor: back/co2-back, field: pco2_uatm, offset: -30 }', // stale: replaced by the refit
+        '',
+      ].join('\n'),
+    );
+    // a whole day of the back reef's optode excluded: its fit uses the other three days' bottles
+    await writeFile(
+      path.join(sub, 'log.yaml'),
+      '- { t: 2026-07-15T00:00:00Z, station: back, sensor: o2-back, event: swap, exclude_from: 2026-07-15T00:00:00Z, exclude_to: 2026-07-16T00:00:00Z }\n',
+    );
+    const subCfg = path.join(sub, 'site.yaml');
+    await writeFile(subCfg, `${LATE_CONFIG}calibration_file: old-cal.yaml\nlogbook_file: log.yaml\n`);
+    const out = path.join(sub, 'cal.yaml');
+    const io = captureIo();
+    expect(await run(['--config', subCfg, '--input', archive, '--out', out], io), io.text().stderr).toBe(0);
+    const site = parseConfigText(LATE_CONFIG);
+    if (!site.ok) throw new Error('config');
+    const r = parseCalibrationText(await readFile(out, 'utf8'), site.config);
+    if (!r.ok) throw new Error(JSON.stringify(r.problems));
+    const by = new Map(r.entries.map((e) => [e.sensor, e]));
+    expect([...by.keys()].sort()).toEqual([
+      'back/co2-back',
+      'back/ctd-back',
+      'back/o2-back',
+      'flat/co2-flat',
+      'flat/o2-flat',
+    ]);
+    expect(by.get('back/ctd-back')?.offset).toBe(0.01);
+    // fitted against the raw readings, not the stale -30 correction
+    expect(by.get('back/co2-back')?.offset).toBeGreaterThan(-13.6);
+    expect(by.get('back/co2-back')?.offset).toBeLessThan(-10.4);
+    expect(io.text().stdout).toMatch(/back\/o2-back o2_mg_l: 23 bottle\(s\) within 10 min/);
+    expect(io.text().stderr).toMatch(/wrote 5 correction\(s\) .* \(1 carried over unchanged\)/);
+    expect(await readFile(out, 'utf8')).toMatch(
+      /# carried over from old-cal\.yaml\n- sensor: back\/ctd-back/,
+    );
+  }, 120_000);
+
   it('exits 2 on usage errors', async () => {
     const cases: [string[], RegExp][] = [
       [['--config', cfg, '--input', archive], /--config, --input and --out are required/],

@@ -3,9 +3,13 @@
 // through the processor once, so the optode's O2 in umol/kg and the CTD temperature are the ones the
 // pipeline derives; each bottle is paired with the median of the sensor's readings within --match-min of
 // its time. pCO2 sensors: offset and drift against pCO2 from the bottle's TA and DIC at the sensor's
-// temperature; optodes: gain and gain drift against the bottle's o2_umol_kg. Fits ignore any
-// calibration_file already configured: they are against the raw readings.
+// temperature; optodes: gain and gain drift against the bottle's o2_umol_kg. The fits are against the raw
+// readings of the sensors fitted: the configured calibration_file's entries of pCO2 sensors and optodes are
+// left out while collecting, those of other sensors (a CTD's, the barometer's) apply, and are carried over
+// into the file written, as are the entries of sensors not refitted. Readings the logbook excludes are not
+// paired with bottles.
 import { writeFile } from 'node:fs/promises';
+import path from 'node:path';
 import {
   formatProblem,
   type DerivedRecord,
@@ -13,6 +17,7 @@ import {
   type SensorMessage,
 } from '../../../libs/contract/index.js';
 import {
+  compileCalibration,
   fitOptodeGain,
   fitPco2,
   formatCalibrationYaml,
@@ -24,7 +29,13 @@ import {
   type FitTarget,
   type Pair,
 } from '../../../libs/calibration/index.js';
-import { createProcessor, messageFromArchiveLine } from '../../../libs/processor/index.js';
+import { buildExclusionIndex, exclusionAt, type ExclusionIndex } from '../../../libs/logbook/index.js';
+import {
+  createProcessor,
+  messageFromArchiveLine,
+  type ProcessorOptions,
+} from '../../../libs/processor/index.js';
+import { loadFieldFiles, type FieldFiles } from '../../config/field-files.js';
 import { loadConfigFile } from '../../config/load.js';
 import { readArchiveOrdered } from '../../replay/ordered.js';
 import { parseCommand } from '../args.js';
@@ -93,7 +104,12 @@ function sortSeries(m: Map<string, Series>): void {
   }
 }
 
-async function collect(config: ReefdConfig, input: string): Promise<Collected> {
+async function collect(
+  config: ReefdConfig,
+  input: string,
+  options: ProcessorOptions,
+  excluded: ExclusionIndex,
+): Promise<Collected> {
   const c: Collected = {
     pco2: new Map(),
     pco2Temp: new Map(),
@@ -103,9 +119,10 @@ async function collect(config: ReefdConfig, input: string): Promise<Collected> {
     o2Field: new Map(),
     bottles: [],
   };
-  const processor = createProcessor(config);
+  const processor = createProcessor(config, undefined, options);
   const onRecords = (records: readonly DerivedRecord[]) => {
     for (const r of records) {
+      if ((r as { flag?: unknown }).flag === 4) continue; // a failed or excluded reading pairs with no bottle
       const key = `${String(r.station ?? '')}/${String((r as { sensor?: unknown }).sensor ?? '')}`;
       const tMs = Date.parse(r.t);
       if (r.type === 'oxygen' && typeof r.o2_umol_kg === 'number') push(c.o2, key, tMs, r.o2_umol_kg);
@@ -124,7 +141,8 @@ async function collect(config: ReefdConfig, input: string): Promise<Collected> {
     if (e.line === null) continue;
     const m = messageFromArchiveLine(config, e.line);
     if (!m.ok) continue;
-    note(c, m.message);
+    if (exclusionAt(excluded, m.message.station, m.message.sensor, m.message.tMs) === undefined)
+      note(c, m.message);
     onRecords(processor.push(m.message, m.rxMs).records);
   }
   onRecords(processor.drain());
@@ -311,9 +329,25 @@ export const run: CommandRun = async (args, io) => {
       return EXIT_USAGE;
     }
   }
+  let field: FieldFiles;
+  try {
+    field = await loadFieldFiles(path.dirname(path.resolve(v.config)), config);
+  } catch (err) {
+    io.stderr(`reefd calibrate: ${(err as Error).message}\n`);
+    return EXIT_USAGE;
+  }
+  const fittable = fittableSensors(config, only);
   let c: Collected;
   try {
-    c = await collect(config, v.input);
+    c = await collect(
+      config,
+      v.input,
+      {
+        calibration: compileCalibration(field.calibration.filter((e) => !fittable.has(e.sensor))),
+        logbook: field.logbook,
+      },
+      buildExclusionIndex(field.logbook),
+    );
   } catch (err) {
     io.stderr(`reefd calibrate: ${(err as Error).message}\n`);
     return (err as { code?: string }).code === 'REEFD_INPUT_MISSING' ? EXIT_USAGE : EXIT_FAILURE;
@@ -351,6 +385,11 @@ export const run: CommandRun = async (args, io) => {
       ],
     });
   }
+  // Entries of sensors not refitted stay as they were (a CTD's, a sensor without bottles this time).
+  const refit = new Set(entries.map((e) => e.entry.sensor));
+  const carried = field.calibration.filter((e) => !refit.has(e.sensor));
+  for (const e of carried)
+    entries.push({ entry: e, comments: [`carried over from ${path.basename(field.calibrationFile ?? '')}`] });
   if (refused > 0) {
     io.stderr(
       `reefd calibrate: ${refused} of ${todo.length} fit(s) refused (see above); ${v.out} not written. ` +
@@ -373,10 +412,24 @@ export const run: CommandRun = async (args, io) => {
   }
   await writeFile(v.out, yaml);
   io.stderr(
-    `calibrate: wrote ${entries.length} correction(s) to ${v.out}; name it as calibration_file in the configuration\n`,
+    `calibrate: wrote ${entries.length} correction(s) to ${v.out}` +
+      `${carried.length > 0 ? ` (${carried.length} carried over unchanged)` : ''}; ` +
+      `name it as calibration_file in the configuration\n`,
   );
   return EXIT_OK;
 };
+
+/** The pCO2 sensors and optodes a run may fit (all of them, or those given with --sensor). */
+function fittableSensors(config: ReefdConfig, only: readonly string[]): Set<string> {
+  const out = new Set<string>();
+  for (const [station, st] of Object.entries(config.stations))
+    for (const [id, sc] of Object.entries(st.sensors)) {
+      const key = `${station}/${id}`;
+      if ((sc.kind === 'pco2' || sc.kind === 'oxygen') && (only.length === 0 || only.includes(key)))
+        out.add(key);
+    }
+  return out;
+}
 
 async function loadConfig(file: string, io: CliIo): Promise<ReefdConfig | undefined> {
   try {

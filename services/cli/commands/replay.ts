@@ -4,9 +4,16 @@
 // replayed at their event time (services/replay/ordered.ts), so they are used like bottles that came in time.
 // A range replays the messages of [from - warm-up, to + the windows' closing time) and writes the records
 // whose time is in [from, to): the warm-up gives the windows, the storage term and the QC tests the history
-// they read, so the records in range are those of a full replay.
+// they read, so the records in range are those of a full replay. The configuration's calibration_file and
+// logbook_file (beside it) apply as they do live; the archive is only read.
 import { createWriteStream, existsSync, type WriteStream } from 'node:fs';
-import { createProcessor, messageFromArchiveLine } from '../../../libs/processor/index.js';
+import path from 'node:path';
+import {
+  createProcessor,
+  inRangeWithMargins,
+  messageFromArchiveLine,
+  rangeMargins,
+} from '../../../libs/processor/index.js';
 import {
   formatProblem,
   type DerivedRecord,
@@ -14,6 +21,7 @@ import {
   type SensorMessage,
 } from '../../../libs/contract/index.js';
 import { readArchiveOrdered, type OrderedStats } from '../../replay/ordered.js';
+import { describeFieldFiles, loadFieldFiles, type FieldFiles } from '../../config/field-files.js';
 import { loadConfigFile } from '../../config/load.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
 import { parseCommand } from '../args.js';
@@ -49,6 +57,8 @@ export interface ReplaySummary {
   lateSamplesMoved: number;
   /** Messages outside the range (and its warm-up) that were not processed. */
   outOfRange: number;
+  /** Records built from values the calibration file corrected (`calibrated: true`). */
+  calibrated: number;
   interrupted: boolean;
   seconds: number;
 }
@@ -118,6 +128,14 @@ export const run: CommandRun = async (args, io) => {
     return EXIT_USAGE;
   }
   const bounds = rangeBounds(config, range);
+  // The calibration file and the logbook beside the configuration apply as they do live.
+  let field: FieldFiles;
+  try {
+    field = await loadFieldFiles(path.dirname(path.resolve(values.config)), config);
+  } catch (err) {
+    io.stderr(`reefd replay: ${(err as Error).message}\n`);
+    return EXIT_USAGE;
+  }
 
   let fileOut: WriteStream | undefined;
   let out: NodeJS.WritableStream = process.stdout;
@@ -126,7 +144,9 @@ export const run: CommandRun = async (args, io) => {
     out = fileOut;
   }
   const writer = new ChunkWriter(out);
-  const processor = createProcessor(config);
+  const processor = createProcessor(config, undefined, field.options);
+  const fieldLine = describeFieldFiles(field);
+  if (!quiet && fieldLine !== undefined) io.stderr(`replay: ${fieldLine}\n`);
   const summary: ReplaySummary = {
     lines: 0,
     unreadable: 0,
@@ -139,6 +159,7 @@ export const run: CommandRun = async (args, io) => {
     records: 0,
     lateSamplesMoved: 0,
     outOfRange: 0,
+    calibrated: 0,
     interrupted: false,
     seconds: 0,
   };
@@ -165,6 +186,7 @@ export const run: CommandRun = async (args, io) => {
       }
       summary.records++;
       summary.recordsByType[r.type] = (summary.recordsByType[r.type] ?? 0) + 1;
+      if (r.calibrated === true) summary.calibrated++;
       await writer.line(JSON.stringify(r));
     }
   };
@@ -247,7 +269,8 @@ export const run: CommandRun = async (args, io) => {
         `(${by(summary.rejectsByReason)}), ${summary.duplicates} duplicates, ${summary.late} late, ` +
         `${summary.lateSamplesMoved} late lab results replayed at their time` +
         `${summary.outOfRange > 0 ? `, ${summary.outOfRange} outside the range` : ''}; ` +
-        `${summary.records} records (${by(summary.recordsByType)}) in ${summary.seconds.toFixed(1)} s\n`,
+        `${summary.records} records (${by(summary.recordsByType)})` +
+        `${summary.calibrated > 0 ? `, ${summary.calibrated} calibrated` : ''} in ${summary.seconds.toFixed(1)} s\n`,
     );
   }
   return summary.interrupted ? EXIT_FAILURE : EXIT_OK;
@@ -280,25 +303,19 @@ export function parseRange(from: string | undefined, to: string | undefined): Ra
 }
 
 /**
- * Which messages a range needs. Before `from`: the processor's history horizon (two windows, the window
- * delay, the lateness and the CTD match) plus 6 h for the QC tests' flat-line windows; bottles up to
- * sample_max_age_h (TA carried from the last bottle). After `to`: a window, its delay and the lateness, so
- * every window before `to` closes; reading stops a day after that in receive time.
+ * Which messages a range needs (libs/processor range.ts: the warm-up before `from` and the closing time after
+ * `to`), and when reading may stop: a day after the closing time in receive time.
  */
 export function rangeBounds(
   config: ReefdConfig,
   range: Range,
 ): { inRange: (m: SensorMessage) => boolean; stopAfterRxMs?: number } {
-  const p = config.processing;
-  const MIN = 60_000;
-  const warmMs = (2 * p.window_min + p.window_delay_min + p.lateness_min + p.ctd_match_min + 360) * MIN;
-  const sampleWarmMs = Math.max(warmMs, p.sample_max_age_h * 60 * MIN);
-  const tailMs = (p.window_min + p.window_delay_min + p.lateness_min) * MIN;
+  const margins = rangeMargins(config);
   const from = range.fromMs ?? Number.NEGATIVE_INFINITY;
   const to = range.toMs ?? Number.POSITIVE_INFINITY;
   const out: { inRange: (m: SensorMessage) => boolean; stopAfterRxMs?: number } = {
-    inRange: (m) => m.tMs >= from - (m.kind === 'sample' ? sampleWarmMs : warmMs) && m.tMs < to + tailMs,
+    inRange: inRangeWithMargins(margins, from, to),
   };
-  if (range.toMs !== undefined) out.stopAfterRxMs = range.toMs + tailMs + 24 * 60 * MIN;
+  if (range.toMs !== undefined) out.stopAfterRxMs = range.toMs + margins.tailMs + 24 * 3_600_000;
   return out;
 }

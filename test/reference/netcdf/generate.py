@@ -6,7 +6,8 @@ replayed and exported by reefd), then for every NetCDF file:
   - xarray opens it with CF decoding (times become datetime64, fill values NaN);
   - compliance-checker 6.1.0 runs its CF 1.8 and ACDD 1.3 suites; the counts of failed checks by priority
     (high = errors, medium = warnings, low = information) are written, with the messages of high ones.
-The CSV export is read with pandas and checked the same way for its row counts.
+The CSV export is read with pandas and checked the same way for its row counts, and for the records marked
+calibrated (the fixture's replay has a calibration file).
 Writes one JSON summary to argv[1]; test/reference/netcdf.test.ts asserts zero CF errors on it.
 """
 import json
@@ -109,6 +110,11 @@ def main(out_path):
         "csv": csv,
         "csv_revised_rows": int(len(rev)),
         "csv_revised_ncp": float(rev["ncp_mmol_m2_h"].iloc[0]),
+        # records built from corrected values (calibration file): marked in the CSV, exported like the rest
+        "csv_calibrated": {
+            name: int((pd.read_csv(os.path.join(work, "csv", name)).get("calibrated", pd.Series(dtype=object)) == True).sum())
+            for name in ("carbonate.csv", "oxygen.csv", "flux.csv")
+        },
     }
     with open(out_path, "w") as fh:
         json.dump(summary, fh, indent=1, sort_keys=True)

@@ -1,6 +1,7 @@
 // Builds the export fixture of the NetCDF reference check (test/reference/netcdf/generate.py): 12 h of the
-// fictional Ornen Reef through `reefd replay`, one flux record revised, then `reefd export` to NetCDF and
-// CSV. Writes OUT/records.ndjson, OUT/nc/*.nc, OUT/csv/*.csv and OUT/expect.json (every winning number
+// fictional Ornen Reef through `reefd replay` with a calibration file (the back reef's pCO2 sensor and the
+// crest's optode corrected, so calibrated records are exported), one flux record revised, then `reefd
+// export` to NetCDF and CSV. Writes OUT/records.ndjson, OUT/nc/*.nc, OUT/csv/*.csv and OUT/expect.json (every winning number
 // with the file and variable it must be found in). Deterministic: fixed seed, SOURCE_DATE_EPOCH.
 //   usage: tsx test/reference/netcdf/make-exports.ts OUT
 import { mkdir, readFile, writeFile } from 'node:fs/promises';
@@ -29,12 +30,23 @@ export async function makeExports(out: string): Promise<{ records: DerivedRecord
     JSON.stringify({ topic: m.topic, rx: new Date(m.tMs + 250).toISOString(), msg: m.payload }),
   );
   await writeFile(path.join(out, 'raw-2026-07-14.ndjson'), `${raw.join('\n')}\n`);
+  // The demo's configuration beside the archive, naming a calibration file.
+  const site = path.join(out, 'site.yaml');
+  await writeFile(site, `${await readFile(CONFIG, 'utf8')}\ncalibration_file: cal.yaml\n`);
+  await writeFile(
+    path.join(out, 'cal.yaml'),
+    [
+      '- { sensor: back/co2-back, field: pco2_uatm, from: 2026-07-14T00:00:00Z, offset: -12 }',
+      '- { sensor: crest/o2-crest, field: o2_umol_l, from: 2026-07-14T00:00:00Z, slope_drift_per_day: 0.015 }',
+      '',
+    ].join('\n'),
+  );
   const recFile = path.join(out, 'records.ndjson');
   const io = captureIo();
   const code = await replayRun(
     [
       '--config',
-      CONFIG,
+      site,
       '--input',
       path.join(out, 'raw-2026-07-14.ndjson'),
       '--out',
