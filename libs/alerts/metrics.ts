@@ -64,6 +64,7 @@ const RECORDS: Record<string, MetricSpec> = {
   'light.par_umol_m2_s': m('umol m-2 s-1', 0, 5000),
   'flux.ncp_mmol_m2_h': m('mmol m-2 h-1', -1000, 1000),
   'flux.nec_mmol_m2_h': m('mmol m-2 h-1', -500, 500),
+  'flux.nec_inverse_mmol_m2_h': m('mmol m-2 h-1', -500, 500),
   'flux.u_m_s': m('m s-1', -5, 5),
   'flux.depth_m': m('m', 0, 100),
   'flux.residence_min': m('min', 0, 10_000),
