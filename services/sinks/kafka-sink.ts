@@ -58,9 +58,15 @@ export interface KafkaSinkOptions {
   tailScan?: number;
 }
 
-/** The Kafka message key: the station (or transect), so one place's records stay in one partition, in order. */
+/**
+ * The Kafka message key: the place a record belongs to (its station, or its transect for budgets and daily
+ * records), so one place's records stay in one partition, in order. Read from the record's own fields, not
+ * its type, so a new record type keyed by transect needs no change here.
+ */
 export function kafkaKey(r: DerivedRecord): string {
-  return r.type === 'flux' ? `${r.site}/${r.transect}` : `${r.site}/${r.station ?? '-'}`;
+  const place =
+    (r as { station?: string; transect?: string }).station ?? (r as { transect?: string }).transect;
+  return `${r.site}/${place ?? '-'}`;
 }
 
 /** kafkajs log lines through pino, at the levels kafkajs gives them. */
