@@ -7,8 +7,8 @@
 import { appendFile } from 'node:fs/promises';
 import { parseArgs } from 'node:util';
 import pino from 'pino';
-import { loadConfigOrThrow } from '../config/load.js';
 import { createShoreMember } from './shore.js';
+import { loadShoreSites } from './shore-sites.js';
 import { createKafkaStateStore } from './kafka-state-store.js';
 import { createDirectoryStateStore } from './state-store.js';
 
@@ -39,7 +39,7 @@ const store =
   values['state-topic'] !== undefined
     ? await createKafkaStateStore({ brokers, clientId: 'reefd-shore', topic: values['state-topic'], logger })
     : createDirectoryStateStore(need(values['state-dir'], 'state-dir'));
-const sites = await Promise.all((values.site ?? []).map((f) => loadConfigOrThrow(f)));
+const { sites, processorOptions } = await loadShoreSites(values.site ?? []);
 let go: () => void = () => undefined;
 const started = values.hold ? new Promise<void>((r) => (go = r)) : Promise.resolve();
 let running = !values.hold;
@@ -50,6 +50,7 @@ process.stdin.on('data', (d: Buffer) => {
 let out: string[] = [];
 const member = createShoreMember({
   sites,
+  processorOptions,
   brokers,
   clientId: 'reefd-shore',
   groupId: need(values.group, 'group'),

@@ -9,7 +9,12 @@
 // database see each record once.
 import type { Consumer, EachBatchPayload, KafkaMessage } from 'kafkajs';
 import { parseMessage, type DerivedRecord, type ReefdConfig } from '../../libs/contract/index.js';
-import { checkAgainstConfig, createProcessor, type Processor } from '../../libs/processor/index.js';
+import {
+  checkAgainstConfig,
+  createProcessor,
+  type Processor,
+  type ProcessorOptions,
+} from '../../libs/processor/index.js';
 import type { Logger } from '../log/logger.js';
 import type { TlsFiles } from '../sinks/http.js';
 import { kafkaClient } from '../sinks/kafka-sink.js';
@@ -22,6 +27,11 @@ const PREFIX = 'reef';
 
 export interface ShoreMemberOptions {
   sites: readonly ReefdConfig[];
+  /**
+   * Each site's calibration file and field log as the processor takes them (services/config/field-files.ts),
+   * keyed by site: a shore member derives what the single daemon derives from the same files.
+   */
+  processorOptions?: ReadonlyMap<string, ProcessorOptions>;
   brokers: readonly string[];
   clientId: string;
   groupId: string;
@@ -215,7 +225,9 @@ class Member implements ShoreMember {
 
   async #restore(cfg: ReefdConfig, partition: number): Promise<SiteProc> {
     const e = await this.#o.store.load(cfg.site);
-    if (e === undefined) return { processor: createProcessor(cfg), skipBelow: undefined, partition };
+    const options = this.#o.processorOptions?.get(cfg.site);
+    if (e === undefined)
+      return { processor: createProcessor(cfg, undefined, options), skipBelow: undefined, partition };
     this.#stats.restores++;
     if (e.partition !== partition)
       this.#o.logger.warn(
@@ -223,7 +235,7 @@ class Member implements ShoreMember {
         'site state was stored for another partition (partition count changed?); duplicates are dropped by the processor',
       );
     return {
-      processor: createProcessor(cfg, e.state),
+      processor: createProcessor(cfg, e.state, options),
       skipBelow: e.partition === partition ? BigInt(e.offset) : undefined,
       partition,
     };

@@ -4,12 +4,13 @@
 import os from 'node:os';
 import path from 'node:path';
 import type { DerivedRecord, ReefdConfig } from '../../../libs/contract/index.js';
-import { loadConfigOrThrow } from '../../config/load.js';
+import type { ProcessorOptions } from '../../../libs/processor/index.js';
 import { createOutputs } from '../../daemon/outputs.js';
 import { createLogger, LOG_LEVELS } from '../../log/logger.js';
 import type { RecordSink } from '../../pipeline/types.js';
 import { createKafkaStateStore } from '../../scaleout/kafka-state-store.js';
 import { createShoreMember } from '../../scaleout/shore.js';
+import { loadShoreSites } from '../../scaleout/shore-sites.js';
 import { createDirectoryStateStore } from '../../scaleout/state-store.js';
 import { parseCommand } from '../args.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
@@ -70,8 +71,9 @@ export const run: CommandRun = async (args, io) => {
   const brokers = (v.brokers as string).split(',').map((b) => b.trim());
   const clientId = v['client-id'] ?? `reefd-shore-${os.hostname()}`;
   let sites: ReefdConfig[];
+  let processorOptions: Map<string, ProcessorOptions>;
   try {
-    sites = await Promise.all((v.site as string[]).map((f) => loadConfigOrThrow(f)));
+    ({ sites, processorOptions } = await loadShoreSites(v.site as string[]));
   } catch (err) {
     io.stderr(`reefd shore: ${(err as Error).message}\n`);
     return EXIT_USAGE;
@@ -97,6 +99,7 @@ export const run: CommandRun = async (args, io) => {
     : createDirectoryStateStore(path.resolve(v['state-dir'] as string));
   const member = createShoreMember({
     sites,
+    processorOptions,
     brokers,
     clientId,
     groupId: v.group as string,
