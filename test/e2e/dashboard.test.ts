@@ -329,7 +329,12 @@ describe('metabolism, daily budgets and tonight', () => {
   it('shows invalid windows with their reason, significance, the daily budgets and the forecast', async () => {
     const plot = page.locator('#flux-plot');
     expect(Number(await plot.getAttribute('data-invalid'))).toBeGreaterThan(0);
-    expect(await page.locator('#flux-invalid').innerText()).toMatch(/not valid \(.*dawn or dusk/);
+    // The demo's scripted spikes (one optode sample at crest, one CTD sample on the flat; libs/simulator
+    // faults.ts) make their windows invalid, each named in words with its sensor.
+    expect(await page.locator('#flux-invalid').innerText()).toMatch(
+      /not valid \(.*o2-crest at crest: (spikes|a reading failed quality control)/,
+    );
+    expect(await page.locator('#flux-invalid').innerText()).not.toMatch(/input_|qc failed:/);
     expect(await page.locator('#flux-now [data-field="NCP"] .sig').innerText()).toMatch(
       /^(clearly different from zero|not distinguishable from zero)$/,
     );
@@ -343,7 +348,7 @@ describe('metabolism, daily budgets and tonight', () => {
       if (t.includes('window not valid')) found = t;
     }
     expect(found).toMatch(
-      /window not valid: (change in the water dominates the budget \(dawn or dusk\)|an input)/,
+      /window not valid: (change in the water dominates the budget \(dawn or dusk\)|an input|[\w-]+ at [\w-]+: )/,
     );
     expect(await page.locator('#daily-body tr').count()).toBe(2);
     expect(await page.locator('#daily-body tr').first().innerText()).toMatch(

@@ -100,10 +100,11 @@ describe('reefd run over a Kafka source into InfluxDB 1.x (real services)', () =
     ).catch(async () => compareWithInflux1(INFLUX1_URL, db, live));
     expect(r.mismatches.slice(0, 5)).toEqual([]);
     expect(r.checked).toBeGreaterThan(live.length * 3);
-    // Tags per contract section 4: site plus station, or site plus transect for fluxes.
+    // Tags per docs/contract-v1.md: site plus station and sensor, or site plus transect for fluxes.
     expect(r.tagKeys.flux).toEqual(['site', 'transect']);
-    expect(r.tagKeys.oxygen).toEqual(['site', 'station']);
-    expect(r.tagKeys.waves).toEqual(['site', 'station']);
+    // Station records also carry their sensor (two optodes at one station never overwrite each other).
+    expect(r.tagKeys.oxygen).toEqual(['sensor', 'site', 'station']);
+    expect(r.tagKeys.waves).toEqual(['sensor', 'site', 'station']);
   });
 
   it('replays its own raw archive into the same NDJSON, line for line', async () => {

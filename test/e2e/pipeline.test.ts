@@ -117,7 +117,7 @@ describe('reefd run over Mosquitto (real services)', () => {
     for (const r of live) expect(r.site).toBe(sc.site);
   });
 
-  it('writes every numeric field of every record to VictoriaMetrics with the site and station/transect labels', async () => {
+  it('writes every numeric field of every record to VictoriaMetrics with the site, station/transect, sensor and rule labels', async () => {
     const r = await pollUntil(
       'all points in VictoriaMetrics',
       async () => {
@@ -129,6 +129,7 @@ describe('reefd run over Mosquitto (real services)', () => {
     ).catch(async () => compareWithVictoria(VM_URL, sc.site, live));
     expect(r.mismatches.slice(0, 5)).toEqual([]);
     expect(r.checked).toBeGreaterThan(live.length * 3);
+    // No label beyond site, station/transect, sensor and rule (matched per series above).
     expect(r.extraLabels).toEqual([]);
   });
 

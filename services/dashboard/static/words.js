@@ -99,6 +99,8 @@ export function reasonWords(codes) {
     .map((c) => {
       const m = /^input_fault:([^/]+)\/([^/]+)\/(.+)$/.exec(c);
       if (m) return `${m[2]} at ${m[1]}: ${REASON_WORDS[/** @type {string} */ (m[3])] ?? m[3]}`;
+      const q = /^input_qc_failed:([^/]+)\/(.+)$/.exec(c);
+      if (q) return `${q[2]} at ${q[1]}: a reading failed quality control`;
       return REASON_WORDS[c] ?? c.replace(/_/g, ' ');
     })
     .join('; ');

@@ -86,6 +86,10 @@ describe('words for people', () => {
     expect(reasonWords('storage_dominates,input_fault:back/co2-back/flatline')).toBe(
       'change in the water dominates the budget (dawn or dusk); co2-back at back: value frozen (flat line)',
     );
+    // A single failed reading (a spike flagged 4) names its sensor and station, not the raw code.
+    expect(reasonWords('input_qc_failed:crest/o2-crest,input_qc_failed')).toBe(
+      'o2-crest at crest: a reading failed quality control; an input failed quality control',
+    );
   });
 
   it('words the battery trend warning in hours and the site-wide silence on its own', () => {

@@ -72,9 +72,9 @@ export async function compareWithVictoria(
   const got = new Map<string, number[]>();
   const extraLabels = new Set<string>();
   for (const s of series) {
-    const { __name__: name, site: _s, station, transect, db: _db, ...rest } = s.metric;
+    const { __name__: name, site: _s, station, transect, sensor, rule, db: _db, ...rest } = s.metric;
     for (const k of Object.keys(rest)) extraLabels.add(k);
-    const who = station !== undefined ? `station=${station}` : `transect=${transect ?? ''}`;
+    const who = `${station !== undefined ? `station=${station}` : `transect=${transect ?? ''}`}|${sensor ?? ''}|${rule ?? ''}`;
     s.timestamps.forEach((ts, i) => {
       const key = `${name}|${who}|${ts}`;
       const list = got.get(key) ?? [];
@@ -85,7 +85,9 @@ export async function compareWithVictoria(
   const want = new Map<string, number[]>();
   for (const r of records) {
     const tags = recordTags(r);
-    const who = tags.transect !== undefined ? `transect=${tags.transect}` : `station=${tags.station ?? ''}`;
+    // Series labels per docs/contract-v1.md: site, station (or transect), and sensor and rule where the
+    // record has them, so two sensors of one kind at one station are two series.
+    const who = `${tags.transect !== undefined ? `transect=${tags.transect}` : `station=${tags.station ?? ''}`}|${tags.sensor ?? ''}|${tags.rule ?? ''}`;
     for (const [f, v] of numericFields(r, 'number')) {
       const key = `${r.type}_${f}|${who}|${Date.parse(r.t)}`;
       want.set(key, [...(want.get(key) ?? []), v as number]);
@@ -123,13 +125,13 @@ export async function compareWithInflux1(
       const tags = s.tags ?? {};
       for (const v of s.values) {
         const row = Object.fromEntries(s.columns.map((c, i) => [c, v[i]]));
-        const key = `${tags.site}|${tags.station ?? ''}|${tags.transect ?? ''}|${String(row.time)}`;
+        const key = `${tags.site}|${tags.station ?? ''}|${tags.transect ?? ''}|${tags.sensor ?? ''}|${String(row.time)}`;
         got.set(key, [...(got.get(key) ?? []), row]);
       }
     }
     for (const r of list) {
       const tags = recordTags(r);
-      const key = `${tags.site}|${tags.station ?? ''}|${tags.transect ?? ''}|${Date.parse(r.t)}`;
+      const key = `${tags.site}|${tags.station ?? ''}|${tags.transect ?? ''}|${tags.sensor ?? ''}|${Date.parse(r.t)}`;
       const rows = got.get(key) ?? [];
       for (const [f, v] of numericFields(r, 'bool')) {
         checked++;
