@@ -116,7 +116,7 @@ function climatology(
   const rows: { dusk: number; base: number }[] = [];
   const drops: number[] = [];
   for (const d of dusks) {
-    const base = valueAt(b, d + (T - night.duskMs), HOUR);
+    const base = valueAt(b, d + (T - night.duskMs), HOUR, T);
     if (base === undefined) continue;
     rows.push({ dusk: d, base });
     const m = blockMeans(b, d + (T - night.duskMs), d + (night.sunriseMs - night.duskMs)).v;
@@ -130,7 +130,7 @@ function climatology(
     let sum = 0;
     let n = 0;
     for (const r of rows) {
-      const v = valueAt(b, r.dusk + (t - night.duskMs), HOUR);
+      const v = valueAt(b, r.dusk + (t - night.duskMs), HOUR, T);
       if (v === undefined) continue;
       sum += v - r.base;
       n++;
@@ -159,21 +159,20 @@ function transectOffset(
   const down = s.o2[t.downstream];
   const up = s.o2[t.upstream];
   const u = s.flowU[t.id];
-  const hu = s.depth[t.upstream];
-  const hd = s.depth[t.downstream];
-  if (!down || !up || !u || !hu || !hd) return 0;
+  const hc = s.flowDepth[t.id];
+  if (!down || !up || !u || !hc) return 0;
   const spans = dusks.map((d) => [d + 2 * HOUR, d + (night.sunriseMs - night.duskMs)] as const);
   if (T - night.duskMs >= 2.5 * HOUR) spans.push([night.duskMs + 2 * HOUR, T] as const);
   const res: number[] = [];
   for (const [from, to] of spans) {
     const m = blockMeans(down, from, to);
     m.tMs.forEach((x, i) => {
-      const o = valueAt(up, x, HOUR);
-      const ux = valueAt(u, x, HOUR);
-      const h1 = valueAt(hu, x, HOUR);
-      const h2 = valueAt(hd, x, HOUR);
-      if (o === undefined || ux === undefined || h1 === undefined || h2 === undefined || !(ux > 0.01)) return;
-      const drop = (rMmolM2H * O2_MG_L_PER_MMOL_M3 * (t.lengthM / ux / 3600)) / (0.5 * (h1 + h2));
+      const o = valueAt(up, x, HOUR, T);
+      const ux = valueAt(u, x, HOUR, T);
+      const h = valueAt(hc, x, HOUR, T);
+      if (o === undefined || ux === undefined || h === undefined || !(ux > 0.01)) return;
+      // The night model's drop (night.ts): R c L / (u_c h_c).
+      const drop = (rMmolM2H * O2_MG_L_PER_MMOL_M3 * (t.lengthM / ux / 3600)) / h;
       res.push((m.v[i] as number) - (o - drop));
     });
   }
@@ -206,11 +205,8 @@ function buildModel(
   if (p.kind === 'transect') {
     const t = plan.transects.find((x) => x.id === p.transect)!;
     const flow = flowSource(s, fits, plan, t.id, T);
-    const dUp = depthPredictor(s, fits, t.upstream, T);
-    const dDown = depthPredictor(s, fits, t.downstream, T);
     const resp = respiration(s, t.id, T);
-    if (!flow || !dUp || !dDown || !resp) return persistence;
-    const meanDepthM = (x: number) => 0.5 * (dUp(x) + dDown(x));
+    if (!flow || !resp) return persistence;
     return {
       kind: 'transect',
       station: p.station,
@@ -219,7 +215,6 @@ function buildModel(
       rMmolM2H: resp.r,
       rSigmaMmolM2H: resp.sigma,
       flow,
-      meanDepthM,
       offsetMgL: transectOffset(s, t, resp.r, night, T, dusks),
     };
   }
@@ -265,10 +260,10 @@ function assimilateBox(
     const t1 = m.tMs[i] as number;
     const tm = (t0 + t1) / 2;
     const [o2s, hh, uc, dc] = [
-      valueAt(src, tm, HOUR),
-      valueAt(h, tm, HOUR),
-      valueAt(u, tm, HOUR),
-      valueAt(hc, tm, HOUR),
+      valueAt(src, tm, HOUR, T),
+      valueAt(h, tm, HOUR, T),
+      valueAt(u, tm, HOUR, T),
+      valueAt(hc, tm, HOUR, T),
     ];
     if (o2s === undefined || hh === undefined || uc === undefined || dc === undefined) continue;
     const k = box.kappa * ((Math.max(0, uc) * 3600 * dc) / hh);

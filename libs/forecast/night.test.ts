@@ -21,7 +21,7 @@ const T0 = Date.UTC(2026, 5, 10, 4);
 const END = T0 + 11 * 3.6e6;
 
 describe('tonight: the transect model', () => {
-  it('downstream = upstream - R tau/h in mg/L: 19 mmol m-2 h-1, 180 m at 5 cm/s over 1.2 m (analytic)', () => {
+  it('downstream = upstream - R L/(u_c h_c) in mg/L: 19 mmol m-2 h-1, 180 m at 5 cm/s over 1.2 m (analytic)', () => {
     const models: StationModel[] = [
       { kind: 'persistence', station: 'crest', o2NowMgL: 6.3, sigmaMgL: 0 },
       {
@@ -32,7 +32,6 @@ describe('tonight: the transect model', () => {
         rMmolM2H: 19,
         rSigmaMmolM2H: 0,
         flow: { flow: fixedFlow(0.05), currentDepthM: () => 1.2 },
-        meanDepthM: () => 1.2,
         offsetMgL: 0.02,
       },
     ];
@@ -62,7 +61,6 @@ describe('tonight: the transect model', () => {
         rMmolM2H: 20,
         rSigmaMmolM2H: 0,
         flow: { flow: fixedFlow(0.06), currentDepthM: depth },
-        meanDepthM: depth,
         offsetMgL: 0,
       },
     ];
@@ -82,7 +80,6 @@ describe('tonight: the transect model', () => {
         rMmolM2H: 19,
         rSigmaMmolM2H: rSigma,
         flow: { flow: fixedFlow(0.05, flowSd), currentDepthM: () => 1.2 },
-        meanDepthM: () => 1.2,
         offsetMgL: 0,
       },
     ];
@@ -117,7 +114,6 @@ describe('tonight: the transect model', () => {
         rMmolM2H: 19,
         rSigmaMmolM2H: 0,
         flow: { flow: fixedFlow(0.05), currentDepthM: () => 1 },
-        meanDepthM: () => 1,
         offsetMgL: 0,
       },
     ];

@@ -23,7 +23,9 @@ export interface PersistenceModel {
   driftMgL?: (tMs: number) => number;
 }
 
-/** The downstream station of a transect: upstream O2 less the respiration over the transit. */
+/** The downstream station of a transect: upstream O2 less the respiration over the transit. The water
+ * crosses the transect's volume per metre L h at the transport q = u_c h_c (continuity), so the drop is
+ * R c L / (u_c h_c) with the current station's velocity and depth. */
 export interface TransectModel {
   kind: 'transect';
   station: string;
@@ -33,8 +35,6 @@ export interface TransectModel {
   rMmolM2H: number;
   rSigmaMmolM2H: number;
   flow: FlowSource;
-  /** Predicted mean depth of the transect, m. */
-  meanDepthM: (tMs: number) => number;
   /** Observed minus modelled O2 at the issue time, mg/L: kept through the night (sensor offsets, PQ, air-sea). */
   offsetMgL: number;
 }
@@ -119,7 +119,7 @@ function runMember(
         const tauH = s.lengthM / flowAt(s.flow, m, t, minU) / 3600;
         o[i] = Math.max(
           0,
-          (up[i] as number) - (r * O2_MG_L_PER_MMOL_M3 * tauH) / s.meanDepthM(t) + s.offsetMgL,
+          (up[i] as number) - (r * O2_MG_L_PER_MMOL_M3 * tauH) / s.flow.currentDepthM(t) + s.offsetMgL,
         );
       }
     } else {
