@@ -205,9 +205,20 @@ describe('modelled flow over an ADCP gap (docs/methods/forecast.md 11.9)', () =>
     for (const f of late) {
       expect(f.valid).toBe(false);
       expect(f.flag).toBe(9);
-      expect(f.invalid_reasons).toBe('input_missing');
+      // The silent ADCP is stale by then (docs/methods/faults.md 12.7), and named.
+      expect(f.invalid_reasons!.split(',').sort()).toEqual([
+        'input_fault:flat/adcp-flat/stale',
+        'input_missing',
+      ]);
       expect(String(f.missing)).toContain('flat.current');
     }
+  });
+
+  it('a window on modelled flow is not invalidated by the silent ADCP it does not read', () => {
+    const modelled = outer.filter((f) => String(f.notes).includes('modelled_flow'));
+    expect(modelled.length).toBeGreaterThan(0);
+    for (const f of modelled) expect(String(f.invalid_reasons ?? '')).not.toContain('adcp-flat');
+    expect(modelled.some((f) => f.valid)).toBe(true);
   });
 
   it('the other transect, whose current station kept reporting, is not touched', () => {
