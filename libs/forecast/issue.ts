@@ -222,39 +222,69 @@ function buildModel(
   const depthM = depthPredictor(s, fits, p.station, T);
   const feed = flowSource(s, fits, plan, p.feed, T);
   if (!fitted || !depthM || !feed) return persistence;
-  const box = assimilateBox(s, p, fitted, night, T);
+  const tonight = assimilateBox(s, p, fitted, night, T);
   return {
     kind: 'box',
     station: p.station,
     source: p.source,
     o2NowMgL: now,
-    box,
+    box: tonight?.box ?? fitted,
     depthM,
     feed,
-    anomalous: box !== fitted,
+    anomalous: tonight !== undefined,
+    ...(tonight && tonight.growthMmolM2H2 > 0
+      ? { rGrowthMmolM2H2: tonight.growthMmolM2H2, rGrowthForH: GROWTH_FOR_H }
+      : {}),
   };
+}
+
+/** Hours over which a rising demand found tonight is carried on before it is held (one issue interval: the
+ * next forecast measures it again). */
+const GROWTH_FOR_H = 1;
+
+/** Theil-Sen line through (t, r): the median of the pairwise slopes (per hour) and the level at tMs. */
+function theilSen(
+  ts: readonly number[],
+  rs: readonly number[],
+  tMs: number,
+): { level: number; slope: number } {
+  const slopes: number[] = [];
+  for (let i = 0; i < ts.length; i++)
+    for (let j = i + 1; j < ts.length; j++)
+      if ((ts[j] as number) !== (ts[i] as number))
+        slopes.push(
+          ((rs[j] as number) - (rs[i] as number)) / (((ts[j] as number) - (ts[i] as number)) / HOUR),
+        );
+  const med = (xs: number[]) => {
+    const v = [...xs].sort((a, b) => a - b);
+    return v.length ? 0.5 * ((v[(v.length - 1) >> 1] as number) + (v[v.length >> 1] as number)) : 0;
+  };
+  const slope = med(slopes);
+  return { slope, level: med(rs.map((r, i) => r - (slope * ((ts[i] as number) - tMs)) / HOUR)) };
 }
 
 /** Tonight's own respiration of a box, from its last two dark hours (the budget solved for R with the fitted
  * exchange); when it is clearly above the fitted R (more than three of its sigmas: a bloom's decay, a calm
- * stratified night) it replaces it, with the difference as its sigma. The forecasts after dusk then follow
- * an event the history could not foresee (docs/methods/forecast.md 11.4). */
+ * stratified night) the night is anomalous and the rate now (a Theil-Sen line through the two hours, at T)
+ * replaces the fitted R, with the difference as its sigma, and a rising rate is carried on for an hour. The
+ * forecasts after dusk then follow an event the history could not foresee (docs/methods/forecast.md 11.4). */
 function assimilateBox(
   s: ForecastState,
   p: { station: string; source: string; feed: string },
   box: BoxModel,
   night: { duskMs: number },
   T: number,
-): BoxModel {
+): { box: BoxModel; growthMmolM2H2: number } | undefined {
   const from = Math.max(night.duskMs + HOUR, T - 2 * HOUR);
   const b = s.o2[p.station];
   const src = s.o2[p.source];
   const h = s.depth[p.station];
   const u = s.flowU[p.feed];
   const hc = s.flowDepth[p.feed];
-  if (!b || !src || !h || !u || !hc || T - from < HOUR) return box;
+  if (!b || !src || !h || !u || !hc || T - from < HOUR) return undefined;
   const m = blockMeans(b, from, T);
   const r: number[] = [];
+  const rt: number[] = [];
   for (let i = 1; i < m.tMs.length; i++) {
     const t0 = m.tMs[i - 1] as number;
     const t1 = m.tMs[i] as number;
@@ -270,16 +300,22 @@ function assimilateBox(
     const o2 = 0.5 * ((m.v[i - 1] as number) + (m.v[i] as number));
     const dOdt = ((m.v[i] as number) - (m.v[i - 1] as number)) / ((t1 - t0) / HOUR);
     r.push(((k * (o2s - o2) - dOdt) * hh) / O2_MG_L_PER_MMOL_M3);
+    rt.push(tm);
   }
-  if (r.length < 4) return box;
+  if (r.length < 4) return undefined;
+  const line = theilSen(rt, r, T);
   r.sort((a, c) => a - c);
   const med = 0.5 * ((r[(r.length - 1) >> 1] as number) + (r[r.length >> 1] as number));
   const sdFit = Math.sqrt(Math.max(0, box.cov[3] as number));
   const spread = 1.4826 * (r.map((x) => Math.abs(x - med)).sort((a, c) => a - c)[r.length >> 1] as number);
   const sigma = Math.max(sdFit, spread / Math.sqrt(r.length));
-  if (!(med - box.rMmolM2H > 3 * sigma)) return box;
-  const extra = ((med - box.rMmolM2H) / 2) ** 2;
-  return { ...box, rMmolM2H: med, cov: [box.cov[0] as number, 0, 0, (box.cov[3] as number) + extra] };
+  if (!(med - box.rMmolM2H > 3 * sigma)) return undefined;
+  const rNow = Math.max(med, line.level);
+  const extra = ((rNow - box.rMmolM2H) / 2) ** 2;
+  return {
+    box: { ...box, rMmolM2H: rNow, cov: [box.cov[0] as number, 0, 0, (box.cov[3] as number) + extra] },
+    growthMmolM2H2: Math.max(0, line.slope),
+  };
 }
 
 /** Offshore Hm0 now (mean of the last two hours) and the sd of ln Hm0 changes over six hours in the record. */

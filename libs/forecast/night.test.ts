@@ -144,4 +144,27 @@ describe('tonight: the one-box lagoon', () => {
     expect(lagoon.o2MinMgL).toBeCloseTo(eq + (6.5 - eq) * Math.exp(-0.5 * 11), 6);
     expect(lagoon.tMinMs).toBe(END);
   });
+
+  it('a demand found rising tonight grows for rGrowthForH hours, then holds (analytic, no exchange)', () => {
+    const box: BoxModel = { ok: true, kappa: 0, rMmolM2H: 14, cov: [0, 0, 0, 0], residualSdMgLH: 0, n: 100 };
+    const models = (growth: number): StationModel[] => [
+      { kind: 'persistence', station: 'back', o2NowMgL: 5.8, sigmaMgL: 0 },
+      {
+        kind: 'box',
+        station: 'lagoon',
+        source: 'back',
+        o2NowMgL: 6.5,
+        box,
+        depthM: () => 3.6,
+        rGrowthMmolM2H2: growth,
+        rGrowthForH: 1,
+      },
+    ];
+    const run = (g: number) =>
+      forecastNight(models(g), { issueMs: T0, endMs: END, hm0OffshoreM: 1, hm0LnSigma: 0, stepMin: 5 })[1]!;
+    // O(end) = O0 - c/h [R 11 h + g (0.5 h^2 + 10 h^2)]: the ramp's first hour, then 10 h at R + g.
+    const c = O2_MG_L_PER_MMOL_M3 / 3.6;
+    expect(run(0).o2MinMgL).toBeCloseTo(6.5 - c * 14 * 11, 9);
+    expect(run(20).o2MinMgL).toBeCloseTo(6.5 - c * (14 * 11 + 20 * 10.5), 9);
+  });
 });

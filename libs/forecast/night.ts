@@ -51,6 +51,9 @@ export interface BoxStationModel {
   feed?: FlowSource;
   /** Tonight's data replaced the fitted respiration (an anomaly; bookkeeping only). */
   anomalous?: boolean;
+  /** A demand found rising tonight (mmol O2 m-2 h-2), carried on for rGrowthForH hours after the issue. */
+  rGrowthMmolM2H2?: number;
+  rGrowthForH?: number;
 }
 
 export type StationModel = PersistenceModel | TransectModel | BoxStationModel;
@@ -135,10 +138,12 @@ function runMember(
         const h = s.depthM(tm);
         const driver = s.feed ? (flowAt(s.feed, m, tm, minU) * 3600 * s.feed.currentDepthM(tm)) / h : 1;
         const srcMid = 0.5 * ((src[i - 1] as number) + (src[i] as number));
+        const grownH = Math.min((tm - (times[0] as number)) / 3.6e6, s.rGrowthForH ?? 0);
+        const rNow = r + (s.rGrowthMmolM2H2 ?? 0) * Math.max(0, grownH);
         // Oxygen cannot go below zero: respiration stops there (the budget's linear demand does not know it).
         o[i] = Math.max(
           0,
-          stepBox(o[i - 1] as number, srcMid, kappa * driver, (r * O2_MG_L_PER_MMOL_M3) / h, dtH),
+          stepBox(o[i - 1] as number, srcMid, kappa * driver, (rNow * O2_MG_L_PER_MMOL_M3) / h, dtH),
         );
       }
     }

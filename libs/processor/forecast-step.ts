@@ -22,6 +22,8 @@ import type { Observer } from './observe.js';
 import type { ProcessorState } from './state.js';
 
 const HOUR = 3_600_000;
+/** Fewest valid bins of an ensemble the flow model is fitted on. */
+const MIN_FLOW_BINS = 3;
 
 export interface ForecastStep {
   /** Feeds the records one message produced (out[from..]) to the forecast's state. */
@@ -58,6 +60,10 @@ export function createForecastStep(
     const north = num(r, 'north_m_s');
     const depth = num(r, 'depth_m');
     if (east === undefined || north === undefined || depth === undefined) return;
+    // The flow model learns from profiles of at least MIN_FLOW_BINS bins: a depth average from fewer is
+    // mostly the near-bed and surface extrapolation (20-35 % fast in the shallow water of the fictional
+    // flat), and the model would carry that into every gap it bridges.
+    if (num(r, 'bins_used') !== undefined && (num(r, 'bins_used') as number) < MIN_FLOW_BINS) return;
     for (const t of byCurrent.get(r.station) ?? []) {
       const b = (t.bearingDeg * Math.PI) / 180;
       observeCurrent(state.forecast, t.id, tMs, east * Math.sin(b) + north * Math.cos(b), depth);
