@@ -94,7 +94,10 @@ export function createDailyStep(
       });
     },
     close(finalBeforeMs, out) {
-      for (const [id, daily] of Object.entries(state.daily)) {
+      // The configuration's transects only (a re-derivation's core holds the other transects' days too).
+      for (const id of Object.keys(config.transects)) {
+        const daily = state.daily[id];
+        if (daily === undefined) continue;
         for (const day of closeDueDays(daily, calendar, finalBeforeMs, options)) {
           const rec = toDailyRecord(config.site, id, day);
           out.push(rec as unknown as DerivedRecord);

@@ -49,6 +49,7 @@ export function createForecastStep(
   state: ProcessorState,
   plan: ForecastPlan,
   observer: Observer,
+  silent = false,
 ): ForecastStep {
   const light = siteLightSensor(config);
   const byCurrent = new Map<string, ForecastPlan['transects']>();
@@ -118,7 +119,9 @@ export function createForecastStep(
       for (let i = from; i < out.length; i++) observeOne(out[i] as DerivedRecord);
     },
     step(watermarkMs, out) {
-      for (const rec of stepForecast(state.forecast, plan, watermarkMs).records) {
+      const issued = stepForecast(state.forecast, plan, watermarkMs).records;
+      if (silent) return;
+      for (const rec of issued) {
         const r = rec as unknown as DerivedRecord;
         out.push(r);
         observer.record(r, undefined, Date.parse(rec.t), 1, out);

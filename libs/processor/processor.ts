@@ -4,7 +4,8 @@
 // derivation and the windows.
 import type { DerivedRecord, ReefdConfig, SensorMessage } from '../contract/index.js';
 import { createAlertEngine, type AlertEngine, type EngineSnapshot } from '../alerts/index.js';
-import { createDayNight } from './day-night.js';
+import { planFromConfig } from '../forecast/index.js';
+import { createDayNight, type DayNightOptions } from './day-night.js';
 import { makeContext } from './derive.js';
 import { deriveMessage, moduleOf } from './dispatch.js';
 import { createFaultWiring, exclusionsOf, type FaultWiring } from './faults.js';
@@ -147,9 +148,12 @@ export function createProcessor(
   const scope = reviseScope(config, kindModules);
   if (scope === undefined) return withRevisions(config, core, options, undefined);
   const scopeField = createFieldHooks(scope.config, options, kindModules);
+  // A scratch core follows the site's forecast plan (its flow model fits are those of the live run) and sends
+  // no forecasts: they read the whole site, and lab results do not change them.
+  const scratchNights: DayNightOptions = { plan: planFromConfig(config), scratch: true };
   return withRevisions(config, core, options, {
     scope,
-    scratch: (from) => createCore(scope.config, from, options, scopeField),
+    scratch: (from) => createCore(scope.config, from, options, scopeField, scratchNights),
   });
 }
 
@@ -168,13 +172,14 @@ export function createCore(
   restored: ProcessorState | undefined,
   options: ProcessorOptions,
   field: FieldHooks,
+  nights: DayNightOptions = {},
 ): Core {
   const state = startState(config, restored);
   const alerts = startAlerts(config, state);
   const times = processorTimes(config);
   const { faults, ctx } = startFaults(config, state, alerts, options, field);
   const observer = createObserver(state, alerts, faults);
-  const dayNight = createDayNight(config, state, observer);
+  const dayNight = createDayNight(config, state, observer, nights);
   const windows = createWindows(config, state, times, alerts, observer, faults, field, dayNight);
 
   const count = (records: readonly DerivedRecord[]): void => {
