@@ -105,8 +105,12 @@ function pastDusks(plan: ForecastPlan, duskMs: number, nights: number): number[]
   return out;
 }
 
-/** The station's mean course through past nights, aligned on dusk, relative to the value at the same time
- * after dusk as now; and the sd across nights of the drop to their minimum (docs/methods/forecast.md 11.5). */
+/** Fewest past nights for a station's course: one or two nights (an event among them) say too little. */
+const MIN_COURSE_NIGHTS = 3;
+
+/** The station's median course through past nights, aligned on dusk, relative to the value at the same time
+ * after dusk as now; and the sd across nights of the drop to their minimum (docs/methods/forecast.md 11.5).
+ * The median, so that one anomalous night among them does not set the course of the next. */
 function climatology(
   b: Blocks,
   night: { duskMs: number; sunriseMs: number },
@@ -122,20 +126,18 @@ function climatology(
     const m = blockMeans(b, d + (T - night.duskMs), d + (night.sunriseMs - night.duskMs)).v;
     if (m.length > 2) drops.push(Math.min(...m) - base);
   }
-  if (rows.length === 0) return undefined;
+  if (rows.length < MIN_COURSE_NIGHTS) return undefined;
   const cache = new Map<number, number>();
   const drift = (t: number) => {
     const hit = cache.get(t);
     if (hit !== undefined) return hit;
-    let sum = 0;
-    let n = 0;
+    const ds: number[] = [];
     for (const r of rows) {
       const v = valueAt(b, r.dusk + (t - night.duskMs), HOUR, T);
-      if (v === undefined) continue;
-      sum += v - r.base;
-      n++;
+      if (v !== undefined) ds.push(v - r.base);
     }
-    const d = n ? sum / n : 0;
+    ds.sort((x, y) => x - y);
+    const d = ds.length ? 0.5 * ((ds[(ds.length - 1) >> 1] as number) + (ds[ds.length >> 1] as number)) : 0;
     cache.set(t, d);
     return d;
   };
@@ -373,7 +375,10 @@ export function issueAt(
     members: o.members,
   });
   return raw.map((f) => {
-    const c = calibration(s.errors[f.station] ?? [], lead, o);
+    // The errors of the model in use: a station forecast by persistence until its model could be fitted
+    // starts its calibration afresh.
+    const errors = (s.errors[f.station] ?? []).filter((e) => e.model === undefined || e.model === f.kind);
+    const c = calibration(errors, lead, o);
     const halfLo = f.o2MinMgL - f.loMgL;
     const halfHi = f.hiMgL - f.o2MinMgL;
     const centre = Math.max(0, f.o2MinMgL + c.bias);

@@ -87,6 +87,7 @@ function scoreNight(s: ForecastState, o: ForecastOptions): void {
       errMgL: r4(Math.min(...m.v) - f.rawMgL),
       halfLoMgL: r4(f.halfLoMgL),
       halfHiMgL: r4(f.halfHiMgL),
+      ...(f.model !== undefined ? { model: f.model } : {}),
     });
     const keepFrom = f.issueMs - o.calibrationNights * 24 * HOUR;
     s.errors[f.station] = rows.filter((r) => r.issueMs >= keepFrom);
@@ -135,6 +136,7 @@ export function stepForecast(
           rawMgL: r4(f.rawMgL),
           halfLoMgL: r4(f.halfLoMgL),
           halfHiMgL: r4(f.halfHiMgL),
+          model: f.kind,
         });
         out.forecasts.push(f);
         out.records.push(toForecastRecord(plan.site, T, f, night.sunriseMs, lead));

@@ -229,3 +229,28 @@ describe('modelled flow over an ADCP gap (docs/methods/forecast.md 11.9)', () =>
     expect(a.map((f) => JSON.stringify(f))).toEqual(b.map((f) => JSON.stringify(f)));
   });
 });
+
+describe('the demo with its scripted faults (two days, the lagoon event on the first night)', () => {
+  const demo = simulateMessages(config, { startMs: Date.UTC(2026, 2, 1), durationMs: 48 * HOUR, seed: 7 });
+  const p = createProcessor(config);
+  const rs: DerivedRecord[] = [];
+  for (const x of demo.messages) {
+    const r = parseMessage(x.topic, JSON.stringify(x.payload));
+    if (r.ok) rs.push(...p.push(r.message, x.tMs + 250).records);
+  }
+  rs.push(...p.drain());
+  const event = demo.truth.find((t) => t.kind === 'event')!;
+
+  it('warns of the event night only: an event does not teach the next night to expect another', () => {
+    const warnings = of(rs, 'alert').filter((a) => a.rule === 'low_oxygen_expected' && a.state === 'raised');
+    expect(warnings.length).toBe(1);
+    expect(warnings[0]!.station).toBe('lagoon');
+    expect(Math.abs(Date.parse(warnings[0]!.t) - Date.parse(event.t))).toBeLessThan(3 * HOUR);
+    // The next night's lagoon forecasts stay near what the water did (above 4.5 mg/L all night).
+    const next = of(rs, 'forecast').filter(
+      (f) => f.station === 'lagoon' && Date.parse(f.t) > Date.parse(event.t) + 12 * HOUR,
+    );
+    expect(next.length).toBeGreaterThan(8);
+    for (const f of next) expect(f.o2_min_mg_l!).toBeGreaterThan(4.5);
+  });
+});
