@@ -109,6 +109,7 @@ const faultCommon = { enabled: z.boolean().default(true), ...scope };
 
 export const BUILTIN_RULE_IDS = [
   'low_oxygen',
+  'low_oxygen_expected',
   'low_omega_ar',
   'stale',
   'flatline',
@@ -129,6 +130,25 @@ export const alertsConfigSchema = z
       raiseAfterMin: 10,
       severity: 'critical',
     }),
+    // Contract: forecast.o2_min_mg_l below the low-oxygen limit. `below` and `clear` default to low_oxygen's;
+    // a forecast is one value an hour at night, so it raises at once and tolerates the hour between issues.
+    low_oxygen_expected: z
+      .strictObject({
+        enabled: z.boolean().default(true),
+        below: z.number().finite().optional(),
+        clear: z.number().finite().optional(),
+        raise_after_min: minutes.default(0),
+        clear_after_min: minutes.default(0),
+        max_gap_min: z.number().finite().positive().default(90),
+        severity: severitySchema.default('warning'),
+        ...scope,
+      })
+      .refine((r) => r.below === undefined || r.clear === undefined || r.clear >= r.below, {
+        message: 'clear must be >= below (hysteresis)',
+        path: ['clear'],
+      })
+      .superRefine((r, ctx) => checkLimits('forecast.o2_min_mg_l', { below: r.below, clear: r.clear }, ctx))
+      .prefault({}),
     // Contract: carbonate.omega_ar below 3.0 for 30 min; clear at 3.2 (our default; Guinotte et al. 2003).
     low_omega_ar: builtinThreshold({
       metric: 'carbonate.omega_ar',
@@ -207,7 +227,7 @@ export const alertsConfigSchema = z
       if (BUILTIN_RULE_IDS.includes(k)) {
         ctx.addIssue({
           code: 'custom',
-          message: `"${k}" is a built-in rule id: tune it under alerts.${k === 'low_oxygen' || k === 'low_omega_ar' ? k : `faults.${k}`} instead`,
+          message: `"${k}" is a built-in rule id: tune it under alerts.${k.startsWith('low_') ? k : `faults.${k}`} instead`,
           path: ['rules', k],
         });
       }

@@ -70,6 +70,7 @@ const RECORDS: Record<string, MetricSpec> = {
   'flux.residence_min': m('min', 0, 10_000),
   'flux.ncp_sigma_mmol_m2_h': m('mmol m-2 h-1', 0, 1000),
   'flux.nec_sigma_mmol_m2_h': m('mmol m-2 h-1', 0, 500),
+  'flux.par_umol_m2_s': m('umol m-2 s-1', 0, 5000),
   'daily.coverage': m('1', 0, 1),
   'daily.gap_filled': m('1', 0, 1),
   'daily.pmax_mmol_m2_h': m('mmol m-2 h-1', 0, 1000),

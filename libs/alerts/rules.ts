@@ -111,6 +111,13 @@ export function resolveRules(cfg: AlertsConfig): ResolvedRules {
   };
   builtin('low_oxygen', 'oxygen.o2_mg_l', cfg.low_oxygen);
   builtin('low_omega_ar', 'carbonate.omega_ar', cfg.low_omega_ar);
+  // The forecast's warning shares the low-oxygen limits unless given its own (docs/methods/alerts.md 8.4).
+  const lox = cfg.low_oxygen_expected;
+  builtin('low_oxygen_expected', 'forecast.o2_min_mg_l', {
+    ...lox,
+    below: lox.below ?? cfg.low_oxygen.below,
+    clear: lox.clear ?? Math.max(cfg.low_oxygen.clear, lox.below ?? cfg.low_oxygen.below),
+  });
 
   const bat = cfg.faults.battery;
   if (bat.enabled) {

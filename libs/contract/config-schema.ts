@@ -105,6 +105,16 @@ export const transectSchema = z.strictObject({
   min_speed_m_s: z.number().min(0).default(0.02),
   max_angle_deg: z.number().min(0).max(90).default(30),
   max_residence_min: z.number().positive().default(240),
+  /**
+   * Diffuse attenuation of PAR in the transect's water, m-1 (reefd extension): the flux windows' PAR is then
+   * the light at the bed, PAR exp(-kd h) over the window's mean depth h, for the daily light responses.
+   */
+  kd_par_per_m: z.number().min(0).max(5).optional(),
+  /**
+   * Hours after the current station's last valid ensemble during which the fitted flow model carries the
+   * budget (windows flagged 3, note `modelled_flow`); 0 turns it off (reefd extension).
+   */
+  modelled_flow_max_h: z.number().min(0).max(168).default(6),
 });
 
 const processingSchema = z

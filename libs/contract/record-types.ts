@@ -192,6 +192,7 @@ export const RECORD_TYPE_SPECS = {
       nec_sigma_mmol_m2_h: num('mmol m-2 h-1', 'standard uncertainty of NEC'),
       nec_inverse_mmol_m2_h: num('mmol m-2 h-1', 'NEC by the pCO2 + O2 inverse in a TA-budget window'),
       invalid_reasons: str('why the window is not valid'),
+      par_umol_m2_s: num('umol m-2 s-1', 'photosynthetically active radiation of the window'),
       flag,
     },
   },

@@ -90,6 +90,8 @@ export const fluxRecordSchema = z.looseObject({
   nec_significant: z.boolean(),
   /** Comma-separated causes when `valid` is false, e.g. `input_fault:back/co2/flatline`. */
   invalid_reasons: z.string().optional(),
+  /** reefd extension: the window's mean PAR (at the bed where the transect has `kd_par_per_m`). */
+  par_umol_m2_s: nn.optional(),
 });
 
 export const lightRecordSchema = z.looseObject({

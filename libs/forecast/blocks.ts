@@ -68,25 +68,33 @@ export function blockMeans(b: Blocks, fromMs = -Infinity, toMs = Infinity): { tM
   return { tMs, v };
 }
 
-/** Mean of the blocks whose centres fall in [fromMs, toMs), or undefined. */
+/** Mean of the blocks wholly inside [fromMs, toMs), or undefined: a forecast issued at toMs reads no sample
+ * after it, whenever it is computed. */
 export function meanOver(b: Blocks, fromMs: number, toMs: number): number | undefined {
-  const m = blockMeans(b, fromMs - b.blockMs / 2, toMs + b.blockMs / 2).v;
+  const m = blockMeans(b, fromMs, toMs).v;
   return m.length ? m.reduce((a, x) => a + x, 0) / m.length : undefined;
 }
 
 /** The block mean at the block holding tMs, else linear interpolation between the nearest blocks at most
- * maxGapMs apart, else undefined. */
-export function valueAt(b: Blocks, tMs: number, maxGapMs = 3 * 3_600_000): number | undefined {
+ * maxGapMs apart, else undefined; only blocks that end by beforeMs (what was known at that time). */
+export function valueAt(
+  b: Blocks,
+  tMs: number,
+  maxGapMs = 3 * 3_600_000,
+  beforeMs = Infinity,
+): number | undefined {
   const centre = (i: number) => ((b.k[i] as number) + 0.5) * b.blockMs;
+  let n = b.k.length;
+  while (n > 0 && ((b.k[n - 1] as number) + 1) * b.blockMs > beforeMs) n--;
   let lo = 0;
-  let hi = b.k.length;
+  let hi = n;
   while (lo < hi) {
     const mid = (lo + hi) >>> 1;
     if (centre(mid) < tMs) lo = mid + 1;
     else hi = mid;
   }
-  if (lo < b.k.length && centre(lo) === tMs) return b.v[lo] as number;
-  if (lo === 0 || lo === b.k.length) return undefined;
+  if (lo < n && centre(lo) === tMs) return b.v[lo] as number;
+  if (lo === 0 || lo === n) return undefined;
   const t0 = centre(lo - 1);
   const t1 = centre(lo);
   if (t1 - t0 > maxGapMs) return undefined;

@@ -61,4 +61,4 @@ export { issueAt, type CalibratedForecast, type IssueOptions } from './issue.js'
 export { calibration, studentT90 } from './calibration.js';
 export { stepForecast, DEFAULT_FORECAST_OPTIONS, type ForecastOptions, type StepResult } from './schedule.js';
 export { toForecastRecord, type ForecastRecord } from './record.js';
-export { modelledFlow, type ModelledFlow } from './modelled-flow.js';
+export { measuredFlowUntil, modelledFlow, type ModelledFlow } from './modelled-flow.js';

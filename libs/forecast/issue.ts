@@ -105,8 +105,12 @@ function pastDusks(plan: ForecastPlan, duskMs: number, nights: number): number[]
   return out;
 }
 
-/** The station's mean course through past nights, aligned on dusk, relative to the value at the same time
- * after dusk as now; and the sd across nights of the drop to their minimum (docs/methods/forecast.md 11.5). */
+/** Fewest past nights for a station's course: one or two nights (an event among them) say too little. */
+const MIN_COURSE_NIGHTS = 3;
+
+/** The station's median course through past nights, aligned on dusk, relative to the value at the same time
+ * after dusk as now; and the sd across nights of the drop to their minimum (docs/methods/forecast.md 11.5).
+ * The median, so that one anomalous night among them does not set the course of the next. */
 function climatology(
   b: Blocks,
   night: { duskMs: number; sunriseMs: number },
@@ -116,26 +120,24 @@ function climatology(
   const rows: { dusk: number; base: number }[] = [];
   const drops: number[] = [];
   for (const d of dusks) {
-    const base = valueAt(b, d + (T - night.duskMs), HOUR);
+    const base = valueAt(b, d + (T - night.duskMs), HOUR, T);
     if (base === undefined) continue;
     rows.push({ dusk: d, base });
     const m = blockMeans(b, d + (T - night.duskMs), d + (night.sunriseMs - night.duskMs)).v;
     if (m.length > 2) drops.push(Math.min(...m) - base);
   }
-  if (rows.length === 0) return undefined;
+  if (rows.length < MIN_COURSE_NIGHTS) return undefined;
   const cache = new Map<number, number>();
   const drift = (t: number) => {
     const hit = cache.get(t);
     if (hit !== undefined) return hit;
-    let sum = 0;
-    let n = 0;
+    const ds: number[] = [];
     for (const r of rows) {
-      const v = valueAt(b, r.dusk + (t - night.duskMs), HOUR);
-      if (v === undefined) continue;
-      sum += v - r.base;
-      n++;
+      const v = valueAt(b, r.dusk + (t - night.duskMs), HOUR, T);
+      if (v !== undefined) ds.push(v - r.base);
     }
-    const d = n ? sum / n : 0;
+    ds.sort((x, y) => x - y);
+    const d = ds.length ? 0.5 * ((ds[(ds.length - 1) >> 1] as number) + (ds[ds.length >> 1] as number)) : 0;
     cache.set(t, d);
     return d;
   };
@@ -159,21 +161,20 @@ function transectOffset(
   const down = s.o2[t.downstream];
   const up = s.o2[t.upstream];
   const u = s.flowU[t.id];
-  const hu = s.depth[t.upstream];
-  const hd = s.depth[t.downstream];
-  if (!down || !up || !u || !hu || !hd) return 0;
+  const hc = s.flowDepth[t.id];
+  if (!down || !up || !u || !hc) return 0;
   const spans = dusks.map((d) => [d + 2 * HOUR, d + (night.sunriseMs - night.duskMs)] as const);
   if (T - night.duskMs >= 2.5 * HOUR) spans.push([night.duskMs + 2 * HOUR, T] as const);
   const res: number[] = [];
   for (const [from, to] of spans) {
     const m = blockMeans(down, from, to);
     m.tMs.forEach((x, i) => {
-      const o = valueAt(up, x, HOUR);
-      const ux = valueAt(u, x, HOUR);
-      const h1 = valueAt(hu, x, HOUR);
-      const h2 = valueAt(hd, x, HOUR);
-      if (o === undefined || ux === undefined || h1 === undefined || h2 === undefined || !(ux > 0.01)) return;
-      const drop = (rMmolM2H * O2_MG_L_PER_MMOL_M3 * (t.lengthM / ux / 3600)) / (0.5 * (h1 + h2));
+      const o = valueAt(up, x, HOUR, T);
+      const ux = valueAt(u, x, HOUR, T);
+      const h = valueAt(hc, x, HOUR, T);
+      if (o === undefined || ux === undefined || h === undefined || !(ux > 0.01)) return;
+      // The night model's drop (night.ts): R c L / (u_c h_c).
+      const drop = (rMmolM2H * O2_MG_L_PER_MMOL_M3 * (t.lengthM / ux / 3600)) / h;
       res.push((m.v[i] as number) - (o - drop));
     });
   }
@@ -206,11 +207,8 @@ function buildModel(
   if (p.kind === 'transect') {
     const t = plan.transects.find((x) => x.id === p.transect)!;
     const flow = flowSource(s, fits, plan, t.id, T);
-    const dUp = depthPredictor(s, fits, t.upstream, T);
-    const dDown = depthPredictor(s, fits, t.downstream, T);
     const resp = respiration(s, t.id, T);
-    if (!flow || !dUp || !dDown || !resp) return persistence;
-    const meanDepthM = (x: number) => 0.5 * (dUp(x) + dDown(x));
+    if (!flow || !resp) return persistence;
     return {
       kind: 'transect',
       station: p.station,
@@ -219,7 +217,6 @@ function buildModel(
       rMmolM2H: resp.r,
       rSigmaMmolM2H: resp.sigma,
       flow,
-      meanDepthM,
       offsetMgL: transectOffset(s, t, resp.r, night, T, dusks),
     };
   }
@@ -227,64 +224,100 @@ function buildModel(
   const depthM = depthPredictor(s, fits, p.station, T);
   const feed = flowSource(s, fits, plan, p.feed, T);
   if (!fitted || !depthM || !feed) return persistence;
-  const box = assimilateBox(s, p, fitted, night, T);
+  const tonight = assimilateBox(s, p, fitted, night, T);
   return {
     kind: 'box',
     station: p.station,
     source: p.source,
     o2NowMgL: now,
-    box,
+    box: tonight?.box ?? fitted,
     depthM,
     feed,
-    anomalous: box !== fitted,
+    anomalous: tonight !== undefined,
+    ...(tonight && tonight.growthMmolM2H2 > 0
+      ? { rGrowthMmolM2H2: tonight.growthMmolM2H2, rGrowthForH: GROWTH_FOR_H }
+      : {}),
   };
+}
+
+/** Hours over which a rising demand found tonight is carried on before it is held (one issue interval: the
+ * next forecast measures it again). */
+const GROWTH_FOR_H = 1;
+
+/** Theil-Sen line through (t, r): the median of the pairwise slopes (per hour) and the level at tMs. */
+function theilSen(
+  ts: readonly number[],
+  rs: readonly number[],
+  tMs: number,
+): { level: number; slope: number } {
+  const slopes: number[] = [];
+  for (let i = 0; i < ts.length; i++)
+    for (let j = i + 1; j < ts.length; j++)
+      if ((ts[j] as number) !== (ts[i] as number))
+        slopes.push(
+          ((rs[j] as number) - (rs[i] as number)) / (((ts[j] as number) - (ts[i] as number)) / HOUR),
+        );
+  const med = (xs: number[]) => {
+    const v = [...xs].sort((a, b) => a - b);
+    return v.length ? 0.5 * ((v[(v.length - 1) >> 1] as number) + (v[v.length >> 1] as number)) : 0;
+  };
+  const slope = med(slopes);
+  return { slope, level: med(rs.map((r, i) => r - (slope * ((ts[i] as number) - tMs)) / HOUR)) };
 }
 
 /** Tonight's own respiration of a box, from its last two dark hours (the budget solved for R with the fitted
  * exchange); when it is clearly above the fitted R (more than three of its sigmas: a bloom's decay, a calm
- * stratified night) it replaces it, with the difference as its sigma. The forecasts after dusk then follow
- * an event the history could not foresee (docs/methods/forecast.md 11.4). */
+ * stratified night) the night is anomalous and the rate now (a Theil-Sen line through the two hours, at T)
+ * replaces the fitted R, with the difference as its sigma, and a rising rate is carried on for an hour. The
+ * forecasts after dusk then follow an event the history could not foresee (docs/methods/forecast.md 11.4). */
 function assimilateBox(
   s: ForecastState,
   p: { station: string; source: string; feed: string },
   box: BoxModel,
   night: { duskMs: number },
   T: number,
-): BoxModel {
+): { box: BoxModel; growthMmolM2H2: number } | undefined {
   const from = Math.max(night.duskMs + HOUR, T - 2 * HOUR);
   const b = s.o2[p.station];
   const src = s.o2[p.source];
   const h = s.depth[p.station];
   const u = s.flowU[p.feed];
   const hc = s.flowDepth[p.feed];
-  if (!b || !src || !h || !u || !hc || T - from < HOUR) return box;
+  if (!b || !src || !h || !u || !hc || T - from < HOUR) return undefined;
   const m = blockMeans(b, from, T);
   const r: number[] = [];
+  const rt: number[] = [];
   for (let i = 1; i < m.tMs.length; i++) {
     const t0 = m.tMs[i - 1] as number;
     const t1 = m.tMs[i] as number;
     const tm = (t0 + t1) / 2;
     const [o2s, hh, uc, dc] = [
-      valueAt(src, tm, HOUR),
-      valueAt(h, tm, HOUR),
-      valueAt(u, tm, HOUR),
-      valueAt(hc, tm, HOUR),
+      valueAt(src, tm, HOUR, T),
+      valueAt(h, tm, HOUR, T),
+      valueAt(u, tm, HOUR, T),
+      valueAt(hc, tm, HOUR, T),
     ];
     if (o2s === undefined || hh === undefined || uc === undefined || dc === undefined) continue;
     const k = box.kappa * ((Math.max(0, uc) * 3600 * dc) / hh);
     const o2 = 0.5 * ((m.v[i - 1] as number) + (m.v[i] as number));
     const dOdt = ((m.v[i] as number) - (m.v[i - 1] as number)) / ((t1 - t0) / HOUR);
     r.push(((k * (o2s - o2) - dOdt) * hh) / O2_MG_L_PER_MMOL_M3);
+    rt.push(tm);
   }
-  if (r.length < 4) return box;
+  if (r.length < 4) return undefined;
+  const line = theilSen(rt, r, T);
   r.sort((a, c) => a - c);
   const med = 0.5 * ((r[(r.length - 1) >> 1] as number) + (r[r.length >> 1] as number));
   const sdFit = Math.sqrt(Math.max(0, box.cov[3] as number));
   const spread = 1.4826 * (r.map((x) => Math.abs(x - med)).sort((a, c) => a - c)[r.length >> 1] as number);
   const sigma = Math.max(sdFit, spread / Math.sqrt(r.length));
-  if (!(med - box.rMmolM2H > 3 * sigma)) return box;
-  const extra = ((med - box.rMmolM2H) / 2) ** 2;
-  return { ...box, rMmolM2H: med, cov: [box.cov[0] as number, 0, 0, (box.cov[3] as number) + extra] };
+  if (!(med - box.rMmolM2H > 3 * sigma)) return undefined;
+  const rNow = Math.max(med, line.level);
+  const extra = ((rNow - box.rMmolM2H) / 2) ** 2;
+  return {
+    box: { ...box, rMmolM2H: rNow, cov: [box.cov[0] as number, 0, 0, (box.cov[3] as number) + extra] },
+    growthMmolM2H2: Math.max(0, line.slope),
+  };
 }
 
 /** Offshore Hm0 now (mean of the last two hours) and the sd of ln Hm0 changes over six hours in the record. */
@@ -342,7 +375,10 @@ export function issueAt(
     members: o.members,
   });
   return raw.map((f) => {
-    const c = calibration(s.errors[f.station] ?? [], lead, o);
+    // The errors of the model in use: a station forecast by persistence until its model could be fitted
+    // starts its calibration afresh.
+    const errors = (s.errors[f.station] ?? []).filter((e) => e.model === undefined || e.model === f.kind);
+    const c = calibration(errors, lead, o);
     const halfLo = f.o2MinMgL - f.loMgL;
     const halfHi = f.hiMgL - f.o2MinMgL;
     const centre = Math.max(0, f.o2MinMgL + c.bias);

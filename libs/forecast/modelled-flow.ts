@@ -16,6 +16,28 @@ export interface ModelledFlow {
   hm0OffshoreM: number;
   depthM: number;
   model: FlowModel;
+  /** The inputs lie outside the ranges the model was fitted on (by more than 5 % in depth, 20 % in Hm0). */
+  extrapolated: boolean;
+}
+
+/** Margins (in ln) around the fitted ranges within which a prediction is not an extrapolation. */
+const DEPTH_MARGIN_LN = Math.log(1.05);
+const HM0_MARGIN_LN = Math.log(1.2);
+
+function outside(x: number, [lo, hi]: [number, number], marginLn: number): boolean {
+  return Math.log(x) < Math.log(lo) - marginLn || Math.log(x) > Math.log(hi) + marginLn;
+}
+
+/** End (ms) of the last 15-minute block of valid ensembles of a transect that started before tMs, if any in
+ * the kept history: where measured flow stopped, for the limit on how long a model may stand in for it. */
+export function measuredFlowUntil(s: ForecastState, transect: string, tMs: number): number | undefined {
+  const b = s.flowU[transect];
+  if (!b) return undefined;
+  for (let i = b.k.length - 1; i >= 0; i--) {
+    const start = (b.k[i] as number) * b.blockMs;
+    if (start < tMs) return start + b.blockMs;
+  }
+  return undefined;
 }
 
 /** The modelled velocity of a transect at tMs from the last three hours' offshore Hm0 and the last hour's
@@ -42,5 +64,8 @@ export function modelledFlow(
     hm0OffshoreM: hm0,
     depthM: depth,
     model,
+    extrapolated:
+      (model.terms.depth && outside(depth, model.depthRangeM, DEPTH_MARGIN_LN)) ||
+      (model.terms.wave && outside(hm0, model.hm0RangeM, HM0_MARGIN_LN)),
   };
 }

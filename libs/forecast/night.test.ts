@@ -21,7 +21,7 @@ const T0 = Date.UTC(2026, 5, 10, 4);
 const END = T0 + 11 * 3.6e6;
 
 describe('tonight: the transect model', () => {
-  it('downstream = upstream - R tau/h in mg/L: 19 mmol m-2 h-1, 180 m at 5 cm/s over 1.2 m (analytic)', () => {
+  it('downstream = upstream - R L/(u_c h_c) in mg/L: 19 mmol m-2 h-1, 180 m at 5 cm/s over 1.2 m (analytic)', () => {
     const models: StationModel[] = [
       { kind: 'persistence', station: 'crest', o2NowMgL: 6.3, sigmaMgL: 0 },
       {
@@ -32,7 +32,6 @@ describe('tonight: the transect model', () => {
         rMmolM2H: 19,
         rSigmaMmolM2H: 0,
         flow: { flow: fixedFlow(0.05), currentDepthM: () => 1.2 },
-        meanDepthM: () => 1.2,
         offsetMgL: 0.02,
       },
     ];
@@ -62,7 +61,6 @@ describe('tonight: the transect model', () => {
         rMmolM2H: 20,
         rSigmaMmolM2H: 0,
         flow: { flow: fixedFlow(0.06), currentDepthM: depth },
-        meanDepthM: depth,
         offsetMgL: 0,
       },
     ];
@@ -82,7 +80,6 @@ describe('tonight: the transect model', () => {
         rMmolM2H: 19,
         rSigmaMmolM2H: rSigma,
         flow: { flow: fixedFlow(0.05, flowSd), currentDepthM: () => 1.2 },
-        meanDepthM: () => 1.2,
         offsetMgL: 0,
       },
     ];
@@ -117,7 +114,6 @@ describe('tonight: the transect model', () => {
         rMmolM2H: 19,
         rSigmaMmolM2H: 0,
         flow: { flow: fixedFlow(0.05), currentDepthM: () => 1 },
-        meanDepthM: () => 1,
         offsetMgL: 0,
       },
     ];
@@ -147,5 +143,28 @@ describe('tonight: the one-box lagoon', () => {
     const lagoon = f[1]!;
     expect(lagoon.o2MinMgL).toBeCloseTo(eq + (6.5 - eq) * Math.exp(-0.5 * 11), 6);
     expect(lagoon.tMinMs).toBe(END);
+  });
+
+  it('a demand found rising tonight grows for rGrowthForH hours, then holds (analytic, no exchange)', () => {
+    const box: BoxModel = { ok: true, kappa: 0, rMmolM2H: 14, cov: [0, 0, 0, 0], residualSdMgLH: 0, n: 100 };
+    const models = (growth: number): StationModel[] => [
+      { kind: 'persistence', station: 'back', o2NowMgL: 5.8, sigmaMgL: 0 },
+      {
+        kind: 'box',
+        station: 'lagoon',
+        source: 'back',
+        o2NowMgL: 6.5,
+        box,
+        depthM: () => 3.6,
+        rGrowthMmolM2H2: growth,
+        rGrowthForH: 1,
+      },
+    ];
+    const run = (g: number) =>
+      forecastNight(models(g), { issueMs: T0, endMs: END, hm0OffshoreM: 1, hm0LnSigma: 0, stepMin: 5 })[1]!;
+    // O(end) = O0 - c/h [R 11 h + g (0.5 h^2 + 10 h^2)]: the ramp's first hour, then 10 h at R + g.
+    const c = O2_MG_L_PER_MMOL_M3 / 3.6;
+    expect(run(0).o2MinMgL).toBeCloseTo(6.5 - c * 14 * 11, 9);
+    expect(run(20).o2MinMgL).toBeCloseTo(6.5 - c * (14 * 11 + 20 * 10.5), 9);
   });
 });

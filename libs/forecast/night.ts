@@ -23,7 +23,9 @@ export interface PersistenceModel {
   driftMgL?: (tMs: number) => number;
 }
 
-/** The downstream station of a transect: upstream O2 less the respiration over the transit. */
+/** The downstream station of a transect: upstream O2 less the respiration over the transit. The water
+ * crosses the transect's volume per metre L h at the transport q = u_c h_c (continuity), so the drop is
+ * R c L / (u_c h_c) with the current station's velocity and depth. */
 export interface TransectModel {
   kind: 'transect';
   station: string;
@@ -33,8 +35,6 @@ export interface TransectModel {
   rMmolM2H: number;
   rSigmaMmolM2H: number;
   flow: FlowSource;
-  /** Predicted mean depth of the transect, m. */
-  meanDepthM: (tMs: number) => number;
   /** Observed minus modelled O2 at the issue time, mg/L: kept through the night (sensor offsets, PQ, air-sea). */
   offsetMgL: number;
 }
@@ -51,6 +51,9 @@ export interface BoxStationModel {
   feed?: FlowSource;
   /** Tonight's data replaced the fitted respiration (an anomaly; bookkeeping only). */
   anomalous?: boolean;
+  /** A demand found rising tonight (mmol O2 m-2 h-2), carried on for rGrowthForH hours after the issue. */
+  rGrowthMmolM2H2?: number;
+  rGrowthForH?: number;
 }
 
 export type StationModel = PersistenceModel | TransectModel | BoxStationModel;
@@ -119,7 +122,7 @@ function runMember(
         const tauH = s.lengthM / flowAt(s.flow, m, t, minU) / 3600;
         o[i] = Math.max(
           0,
-          (up[i] as number) - (r * O2_MG_L_PER_MMOL_M3 * tauH) / s.meanDepthM(t) + s.offsetMgL,
+          (up[i] as number) - (r * O2_MG_L_PER_MMOL_M3 * tauH) / s.flow.currentDepthM(t) + s.offsetMgL,
         );
       }
     } else {
@@ -135,10 +138,12 @@ function runMember(
         const h = s.depthM(tm);
         const driver = s.feed ? (flowAt(s.feed, m, tm, minU) * 3600 * s.feed.currentDepthM(tm)) / h : 1;
         const srcMid = 0.5 * ((src[i - 1] as number) + (src[i] as number));
+        const grownH = Math.min((tm - (times[0] as number)) / 3.6e6, s.rGrowthForH ?? 0);
+        const rNow = r + (s.rGrowthMmolM2H2 ?? 0) * Math.max(0, grownH);
         // Oxygen cannot go below zero: respiration stops there (the budget's linear demand does not know it).
         o[i] = Math.max(
           0,
-          stepBox(o[i - 1] as number, srcMid, kappa * driver, (r * O2_MG_L_PER_MMOL_M3) / h, dtH),
+          stepBox(o[i - 1] as number, srcMid, kappa * driver, (rNow * O2_MG_L_PER_MMOL_M3) / h, dtH),
         );
       }
     }

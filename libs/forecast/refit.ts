@@ -51,8 +51,8 @@ function flowSamples(s: ForecastState, transect: string, asOfMs: number, days: n
   const m = blockMeans(u, asOfMs - days * DAY, asOfMs);
   const out: FlowSample[] = [];
   m.tMs.forEach((t, i) => {
-    const depthM = valueAt(h, t, 3_600_000);
-    const hm0OffshoreM = valueAt(s.offshore, t, 3 * 3_600_000);
+    const depthM = valueAt(h, t, 3_600_000, asOfMs);
+    const hm0OffshoreM = valueAt(s.offshore, t, 3 * 3_600_000, asOfMs);
     if (depthM !== undefined && hm0OffshoreM !== undefined)
       out.push({ tMs: t, uMS: m.v[i] as number, hm0OffshoreM, depthM });
   });
@@ -81,10 +81,10 @@ function boxNights(
   for (let i = 0; i < m.tMs.length; i++) {
     const t = m.tMs[i] as number;
     const dark = isSunDown(t, plan.latDeg, plan.lonDeg);
-    const o2Src = valueAt(src, t, 3_600_000);
-    const h = valueAt(depth, t, 3_600_000);
-    const uc = valueAt(u, t, 3_600_000);
-    const dc = valueAt(hc, t, 3_600_000);
+    const o2Src = valueAt(src, t, 3_600_000, asOfMs);
+    const h = valueAt(depth, t, 3_600_000, asOfMs);
+    const uc = valueAt(u, t, 3_600_000, asOfMs);
+    const dc = valueAt(hc, t, 3_600_000, asOfMs);
     const ok =
       dark && o2Src !== undefined && h !== undefined && uc !== undefined && dc !== undefined && uc > 0;
     if (!ok || t - lastT > 45 * 60_000) {

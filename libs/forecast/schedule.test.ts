@@ -34,8 +34,9 @@ const PLAN: ForecastPlan = {
 const START = Date.UTC(2026, 5, 1, 10);
 const H = 3.6e6;
 
-/** A synthetic reef that obeys the transect model at night: tide, waves, flow u = 0.03 H h^-0.5,
- * crest O2 with a daily cycle, flat O2 = crest - R tau/h (plus daytime production). */
+/** A synthetic reef that obeys the transect model at night: tide, waves, flow u = 0.03 H h^-0.5 at the
+ * current station (the flat), crest O2 with a daily cycle, flat O2 = crest - R L/(u h_flat) (continuity; plus
+ * daytime production). */
 const reef = {
   tide: (t: number) => 0.4 * Math.cos((2 * Math.PI * (t - START)) / (12.4206012 * H)),
   hm0: (t: number) => 1.2 + 0.3 * Math.sin((2 * Math.PI * (t - START)) / (3 * 24 * H)),
@@ -45,9 +46,8 @@ const reef = {
   sun: (t: number) => Math.max(0, Math.sin((solarElevationDeg(t, LAT, LON) * Math.PI) / 180)),
   crest: (t: number) => 6.2 + 0.6 * reef.sun(t - 2 * H),
   flat: (t: number) => {
-    const h = 0.5 * (reef.depthFlat(t) + reef.depthCrest(t));
     const tauH = 180 / reef.u(t) / 3600;
-    return reef.crest(t) - (19 * O2_MG_L_PER_MMOL_M3 * tauH) / h + 1.5 * reef.sun(t);
+    return reef.crest(t) - (19 * O2_MG_L_PER_MMOL_M3 * tauH) / reef.depthFlat(t) + 1.5 * reef.sun(t);
   },
 };
 

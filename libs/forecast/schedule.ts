@@ -45,20 +45,26 @@ export interface StepResult {
 }
 
 /** Dusk of the night after fromMs: the sunset, moved to where the site's PAR went dark within 90 minutes
- * of it when PAR was observed. */
+ * of it when PAR was observed. Decided from the PAR blocks complete by watermarkMs only, so it is the same
+ * whenever it is asked: while the site's PAR reports and shows no dusk yet, undefined until 90 minutes
+ * after sunset. */
 function nextDusk(
   s: ForecastState,
   plan: ForecastPlan,
   fromMs: number,
+  watermarkMs: number,
   o: ForecastOptions,
-): number | undefined {
+): number | { waitFromMs: number } | undefined {
   const set = sunEvents(fromMs, fromMs + 36 * HOUR, plan.latDeg, plan.lonDeg).find((e) => e.kind === 'set');
   if (!set) return undefined;
-  const par = blockMeans(s.par, set.tMs - 1.5 * HOUR, set.tMs + 1.5 * HOUR);
+  const until = set.tMs + 1.5 * HOUR;
+  const par = blockMeans(s.par, set.tMs - 1.5 * HOUR, Math.min(until, watermarkMs));
   for (let i = 1; i < par.v.length; i++) {
     if ((par.v[i - 1] as number) >= o.darkParUmolM2S && (par.v[i] as number) < o.darkParUmolM2S)
       return (par.tMs[i] as number) - s.par.blockMs / 2; // the first dark block: the light went within it or just before
   }
+  // The light may still go later: wait for the PAR of the whole span (a site without PAR uses the sun).
+  if (s.par.k.length > 0 && watermarkMs < until) return { waitFromMs: Math.min(fromMs, set.tMs - 1) };
   return set.tMs;
 }
 
@@ -81,6 +87,7 @@ function scoreNight(s: ForecastState, o: ForecastOptions): void {
       errMgL: r4(Math.min(...m.v) - f.rawMgL),
       halfLoMgL: r4(f.halfLoMgL),
       halfHiMgL: r4(f.halfHiMgL),
+      ...(f.model !== undefined ? { model: f.model } : {}),
     });
     const keepFrom = f.issueMs - o.calibrationNights * 24 * HOUR;
     s.errors[f.station] = rows.filter((r) => r.issueMs >= keepFrom);
@@ -104,10 +111,12 @@ export function stepForecast(
     s.lastStepMs = watermarkMs;
     return out;
   }
+  let waitFromMs: number | undefined;
   for (;;) {
     if (s.night === null) {
-      const dusk = nextDusk(s, plan, s.lastStepMs, o);
-      if (dusk === undefined || dusk > watermarkMs) break;
+      const dusk = nextDusk(s, plan, s.lastStepMs, watermarkMs, o);
+      if (typeof dusk === 'object') waitFromMs = dusk.waitFromMs;
+      if (dusk === undefined || typeof dusk === 'object' || dusk > watermarkMs) break;
       const sunrise = nextSunrise(dusk, plan.latDeg, plan.lonDeg);
       if (sunrise === undefined) break;
       s.night = { duskMs: dusk, sunriseMs: sunrise, nextIssueMs: dusk, issued: [], anomalies: [] };
@@ -127,6 +136,7 @@ export function stepForecast(
           rawMgL: r4(f.rawMgL),
           halfLoMgL: r4(f.halfLoMgL),
           halfHiMgL: r4(f.halfHiMgL),
+          model: f.kind,
         });
         out.forecasts.push(f);
         out.records.push(toForecastRecord(plan.site, T, f, night.sunriseMs, lead));
@@ -142,8 +152,8 @@ export function stepForecast(
     }
     break;
   }
-  // No night open: nothing can be due before the watermark any more.
-  if (s.night === null) s.lastStepMs = watermarkMs;
+  // No night open: nothing can be due before the watermark any more (but a dusk still being decided).
+  if (s.night === null) s.lastStepMs = waitFromMs ?? watermarkMs;
   pruneState(s, watermarkMs, o);
   // Depth records of stations no model reads (the fore reef, a channel) are not kept.
   const needed = new Set([

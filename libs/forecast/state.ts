@@ -20,6 +20,8 @@ export interface IssuedForecast {
   rawMgL: number;
   halfLoMgL: number;
   halfHiMgL: number;
+  /** The model that made it (a station's errors calibrate the model in use only). */
+  model?: 'persistence' | 'transect' | 'box';
 }
 
 /** A scored forecast: observed minus raw central minimum, with the members' half-widths. */
@@ -29,6 +31,7 @@ export interface ForecastError {
   errMgL: number;
   halfLoMgL: number;
   halfHiMgL: number;
+  model?: 'persistence' | 'transect' | 'box';
 }
 
 export interface ModelFits {

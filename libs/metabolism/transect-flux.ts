@@ -55,6 +55,16 @@ const sigO2 = (s: StationWindowMean) => s.sigmaO2UmolKg ?? 0.02 * s.o2UmolKg;
 const sigDepth = (s: StationWindowMean) => s.sigmaDepthM ?? 0.01; // ~1 hPa barometer + 0.05 % FS logger
 
 /**
+ * h_c / h: the factor from the current station's velocity to the segment's mean velocity (1 without a usable
+ * depth at the current station). Check: h_c 1.5, h 1.35 gives 1.111 (algebra).
+ */
+export function transportScale(currentDepthM: number | undefined, meanDepthM: number): number {
+  return currentDepthM !== undefined && currentDepthM > 0 && meanDepthM > 0 && Number.isFinite(currentDepthM)
+    ? currentDepthM / meanDepthM
+    : 1;
+}
+
+/**
  * Fluxes of one transect window. `previous` is the preceding window of the same transect (for storage);
  * without it (or further back than maxPreviousGapMin) storage is taken as zero and noted.
  */
@@ -91,16 +101,19 @@ export function computeTransectFlux(
       addReason('reverse_flow');
     }
   }
+  const h = 0.5 * (up.depthM + down.depthM);
+  const sigmaH = 0.5 * Math.hypot(sigDepth(up), sigDepth(down));
+  // Continuity (docs/methods/metabolism.md 6.1): the segment carries the volume flux per metre measured at the
+  // current station, q = U_c h_c, so its mean velocity over the mean depth h is U = q / h.
+  const toMean = transportScale(current.currentDepthM, h);
+  const sigmaU = (current.sigmaUMS ?? defaultCurrentSigmaMS(u)) * toMean;
+  u *= toMean;
   let flag: QcFlag = worst(up.flag, down.flag, current.currentFlag);
   if (Math.abs(u) < params.minSpeedMS) addReason('speed_below_min');
   if (angle > params.maxAngleDeg && !reasons.includes('reverse_flow')) {
     addReason('angle_off_transect');
     flag = worst(flag, angle <= params.suspectAngleDeg ? 3 : 4);
   }
-  const sigmaU = current.sigmaUMS ?? defaultCurrentSigmaMS(u);
-
-  const h = 0.5 * (up.depthM + down.depthM);
-  const sigmaH = 0.5 * Math.hypot(sigDepth(up), sigDepth(down));
   if (Math.min(up.depthM, down.depthM) < params.minDepthM) addReason('depth_below_min');
   const residenceS = u !== 0 ? L / Math.abs(u) : Number.POSITIVE_INFINITY;
   const residenceMin = Number.isFinite(residenceS) ? residenceS / 60 : null;

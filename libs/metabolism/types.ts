@@ -54,6 +54,12 @@ export interface TransectWindow {
   /** sigma of the along-transect velocity [m/s]; default from docs/methods/uncertainty.md 9.3 (see defaultCurrentSigmaMS). */
   sigmaUMS?: number;
   currentFlag?: QcFlag;
+  /**
+   * Mean water depth at the `current` station over the window [m]: the segment's transport is U_c h_c
+   * (continuity, docs/methods/metabolism.md 6.1). Without it the current station's velocity is taken as the
+   * segment's mean velocity.
+   */
+  currentDepthM?: number;
   /** Wind speed [m/s] at windHeightM (default TransectParams.windHeightM). */
   windMS?: number;
   windHeightM?: number;

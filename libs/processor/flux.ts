@@ -104,27 +104,47 @@ function stationMean(
   return { mean: m, missing };
 }
 
+/**
+ * The velocity of a window whose current station has no valid ensemble, from the fitted flow model
+ * (forecast-step.ts), or undefined when there is none or the gap is too long.
+ */
+export type FlowFallback = (startMs: number, endMs: number) => ModelledVelocity | undefined;
+
+export interface ModelledVelocity {
+  eastMS: number;
+  northMS: number;
+  sigmaUMS: number;
+}
+
 function transectWindow(
   state: ProcessorState,
   tr: TransectConfig,
   startMs: number,
   endMs: number,
-): { window?: TransectWindow; missing: string[] } {
+  fallback?: FlowFallback,
+): { window?: TransectWindow; missing: string[]; modelled?: boolean } {
   const up = stationMean(state, tr.upstream, startMs, endMs);
   const down = stationMean(state, tr.downstream, startMs, endMs);
   const cur = state.stations[tr.current];
   const east = cur ? mean(cur.east, startMs, endMs) : undefined;
   const north = cur ? mean(cur.north, startMs, endMs) : undefined;
+  // No valid ensemble: the flow model carries the budget over the gap, flagged 3 (docs/methods/forecast.md 11.3).
+  const model = !east || !north ? fallback?.(startMs, endMs) : undefined;
   const missing = [...up.missing, ...down.missing];
-  if (!east || !north) missing.push(`${tr.current}.current`);
-  if (!up.mean || !down.mean || !east || !north) return { missing };
+  if ((!east || !north) && !model) missing.push(`${tr.current}.current`);
+  if (!up.mean || !down.mean || (!model && (!east || !north))) return { missing };
+  const currentDepth = cur ? mean(cur.depth, startMs, endMs) : undefined;
   const w: TransectWindow = {
     tCentreMs: (startMs + endMs) / 2,
     up: up.mean,
     down: down.mean,
-    eastMS: east.mean,
-    northMS: north.mean,
-    currentFlag: Math.max(east.flag, north.flag) as TransectWindow['currentFlag'] & number,
+    eastMS: model ? model.eastMS : (east as Mean).mean,
+    northMS: model ? model.northMS : (north as Mean).mean,
+    currentFlag: (model
+      ? 3
+      : Math.max((east as Mean).flag, (north as Mean).flag)) as TransectWindow['currentFlag'] & number,
+    ...(model ? { sigmaUMS: model.sigmaUMS } : {}),
+    ...(currentDepth ? { currentDepthM: currentDepth.mean } : {}),
   };
   const wind = mean(state.site.wind, startMs, endMs);
   const baro = mean(state.site.baro, startMs, endMs);
@@ -134,7 +154,7 @@ function transectWindow(
   if (xco2) w.xco2AirPpm = xco2.mean;
   if (wind || baro)
     w.metFlag = Math.max(wind?.flag ?? 1, baro?.flag ?? 1) as TransectWindow['metFlag'] & number;
-  return { window: w, missing };
+  return { window: w, missing, ...(model ? { modelled: true } : {}) };
 }
 
 /** True when any of the transect's stations has a sample in [start, end): empty stretches emit nothing. */
@@ -233,9 +253,15 @@ function fluxRecord(
 
 /**
  * The causes, among a transect's input sensors, that make a window over [fromMs, toMs) invalid (faults in force
- * and failed samples, docs/methods/faults.md 12.7), e.g. `input_fault:back/co2-back/flatline`.
+ * and failed samples, docs/methods/faults.md 12.7), e.g. `input_fault:back/co2-back/flatline`; `withoutCurrent`:
+ * leaving out the current station's ADCP (a window on modelled flow does not read it).
  */
-export type InputReasons = (transect: string, fromMs: number, toMs: number) => string[];
+export type InputReasons = (
+  transect: string,
+  fromMs: number,
+  toMs: number,
+  withoutCurrent?: boolean,
+) => string[];
 
 /**
  * A window whose input sensors had a fault or a failed sample is not valid (docs/contract-v1.md, E3): flag 4 (a
@@ -262,12 +288,13 @@ export function transectFluxAt(
   p: TransectParams,
   inputReasons: InputReasons = () => [],
   withNext = false,
+  fallback?: FlowFallback,
 ): FlaggedFluxRecord | undefined {
   const tr = config.transects[id] as TransectConfig;
   const W = config.processing.window_min * MIN;
   const startMs = endMs - W;
   if (!hasData(state, tr, startMs, endMs)) return undefined;
-  const cur = transectWindow(state, tr, startMs, endMs);
+  const cur = transectWindow(state, tr, startMs, endMs, fallback);
   const t = new Date(endMs - W / 2).toISOString();
   const results = (state.transects[id] ??= {});
   if (!cur.window) {
@@ -275,13 +302,14 @@ export function transectFluxAt(
     invalidate(rec, inputReasons(id, startMs, endMs));
     return rec;
   }
-  const prev = transectWindow(state, tr, startMs - W, startMs).window;
-  const next = withNext ? transectWindow(state, tr, endMs, endMs + W).window : undefined;
+  const prev = transectWindow(state, tr, startMs - W, startMs, fallback).window;
+  const next = withNext ? transectWindow(state, tr, endMs, endMs + W, fallback).window : undefined;
   const prevResult = results[String(startMs)] as FluxResult | undefined;
   const r = computeTransectFlux(cur.window, prev, p, {
     ...(prevResult ? { previousResult: prevResult } : {}),
     ...(next ? { next } : {}),
   });
+  if (cur.modelled) r.notes.push('modelled_flow');
   // The storage form of the next window's inverse needs this one's result (kept for three windows: a window
   // computed a window late still finds its previous one's).
   results[String(endMs)] = r;
@@ -289,6 +317,8 @@ export function transectFluxAt(
   const rec = fluxRecord(config.site, t, id, tr, r);
   // The storage term read the previous window's means too, and the next one's when centred.
   const from = r.notes.includes('no_storage') ? startMs : startMs - W;
-  invalidate(rec, inputReasons(id, from, r.notes.includes('storage_centred') ? endMs + W : endMs));
+  // With modelled flow the current station's ADCP is not an input of the window.
+  const to = r.notes.includes('storage_centred') ? endMs + W : endMs;
+  invalidate(rec, inputReasons(id, from, to, cur.modelled === true));
   return rec;
 }

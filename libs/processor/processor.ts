@@ -4,6 +4,8 @@
 // derivation and the windows.
 import type { DerivedRecord, ReefdConfig, SensorMessage } from '../contract/index.js';
 import { createAlertEngine, type AlertEngine, type EngineSnapshot } from '../alerts/index.js';
+import { planFromConfig } from '../forecast/index.js';
+import { createDayNight, type DayNightOptions } from './day-night.js';
 import { makeContext } from './derive.js';
 import { deriveMessage, moduleOf } from './dispatch.js';
 import { createFaultWiring, exclusionsOf, type FaultWiring } from './faults.js';
@@ -146,9 +148,12 @@ export function createProcessor(
   const scope = reviseScope(config, kindModules);
   if (scope === undefined) return withRevisions(config, core, options, undefined);
   const scopeField = createFieldHooks(scope.config, options, kindModules);
+  // A scratch core follows the site's forecast plan (its flow model fits are those of the live run) and sends
+  // no forecasts: they read the whole site, and lab results do not change them.
+  const scratchNights: DayNightOptions = { plan: planFromConfig(config), scratch: true };
   return withRevisions(config, core, options, {
     scope,
-    scratch: (from) => createCore(scope.config, from, options, scopeField),
+    scratch: (from) => createCore(scope.config, from, options, scopeField, scratchNights),
   });
 }
 
@@ -167,21 +172,29 @@ export function createCore(
   restored: ProcessorState | undefined,
   options: ProcessorOptions,
   field: FieldHooks,
+  nights: DayNightOptions = {},
 ): Core {
   const state = startState(config, restored);
   const alerts = startAlerts(config, state);
   const times = processorTimes(config);
   const { faults, ctx } = startFaults(config, state, alerts, options, field);
   const observer = createObserver(state, alerts, faults);
-  const windows = createWindows(config, state, times, alerts, observer, faults, field);
+  const dayNight = createDayNight(config, state, observer, nights);
+  const windows = createWindows(config, state, times, alerts, observer, faults, field, dayNight);
 
   const count = (records: readonly DerivedRecord[]): void => {
     for (const r of records) state.counters.records[r.type] = (state.counters.records[r.type] ?? 0) + 1;
   };
   const watermark = () => (state.maxEventMs > 0 ? state.maxEventMs - times.latenessMs : 0);
+  /** Derives one message; its records also feed tonight's forecast (forecast-step.ts). */
+  const derive = (m: SensorMessage, rxMs: number, out: DerivedRecord[]): void => {
+    const from = out.length;
+    deriveMessage(ctx, observer, faults, m, rxMs, out);
+    dayNight.forecast.observe(out, from);
+  };
   /** Derives the held messages up to untilMs, in event-time order. */
   const release = (untilMs: number, out: DerivedRecord[]): void => {
-    for (const h of takeDue(state, untilMs)) deriveMessage(ctx, observer, faults, h.message, h.rxMs, out);
+    for (const h of takeDue(state, untilMs)) derive(h.message, h.rxMs, out);
   };
 
   /** A message past the intake rules: derived now if late, else held; then the hold and the windows move. */
@@ -193,7 +206,7 @@ export function createCore(
     if (late) {
       // Past the watermark: its windows are closed; derived now, counted late (QC judges its order).
       state.counters.late++;
-      deriveMessage(ctx, observer, faults, m, rxMs, out);
+      derive(m, rxMs, out);
     } else {
       // Held in event-time order for reorder_min, then derived (reorder_min 0: at once); with
       // reorder_min = lateness_min the records do not depend on the delivery order at all.

@@ -179,7 +179,7 @@ describe('records on two simulated days of the demo reef, against the digest fro
   }, 300_000);
 
   it('covers every derived record type the processor makes, the faults and the rough delivery', () => {
-    for (const t of ['waves', 'current', 'carbonate', 'oxygen', 'flux', 'alert'])
+    for (const t of ['waves', 'current', 'carbonate', 'oxygen', 'flux', 'alert', 'daily', 'forecast'])
       expect(fixture.inOrder.byType[t]?.count ?? 0, t).toBeGreaterThan(0);
     const c = fixture.shuffled.counters;
     expect(c.duplicates as number).toBeGreaterThan(0);

@@ -1,11 +1,13 @@
 // What a late lab result can change, so a re-derivation (revise.ts) keeps and replays that part of the site
 // only: the stations with a bottle sampler, the transects that have one at either end with all of their
-// stations, and the stations of the sensors that write site-wide series (the met mast's barometer enters
-// every carbonate record). Records of a station depend on that station's series and the site's; records of a
+// stations, the stations of the sensors that write site-wide series (the met mast's barometer enters every
+// carbonate record), and the outermost pressure station when a transect may run on modelled flow (its waves
+// drive the flow model, forecast-step.ts). Records of a station depend on that station's series and the site's; records of a
 // transect on its stations' and the site's: so a processor of this part gives the same records for it as the
 // whole site's processor. Other stations' messages only move its clock (revise.ts). A site without bottle
 // samplers has no scope, and then no re-derivation and no cost.
 import type { Kind, ReefdConfig } from '../contract/index.js';
+import { planFromConfig } from '../forecast/index.js';
 import type { KindTable } from './kinds/index.js';
 import type { ProcessorState } from './state.js';
 
@@ -36,6 +38,13 @@ export function reviseScope(config: ReefdConfig, kinds: KindTable): ReviseScope 
   }
   for (const id of Object.keys(config.stations))
     if (kindsAt(id).some((k) => kinds[k].writes.site.length > 0)) stations.add(id);
+  // Windows on modelled flow read the offshore waves of the outermost pressure station (forecast-step.ts).
+  const offshore = planFromConfig(config).offshoreStation;
+  if (
+    offshore !== undefined &&
+    [...transects].some((id) => (config.transects[id]?.modelled_flow_max_h ?? 0) > 0)
+  )
+    stations.add(offshore);
   const scoped: ReefdConfig = {
     ...config,
     stations: Object.fromEntries(Object.entries(config.stations).filter(([id]) => stations.has(id))),
@@ -88,5 +97,8 @@ export function adoptScoped(live: ProcessorState, scratch: ProcessorState, scope
   for (const id of scope.transects) {
     const t = scratch.transects[id];
     if (t !== undefined) live.transects[id] = t;
+    // The days of its transects too (daily-step.ts), with the revised windows.
+    const d = scratch.daily[id];
+    if (d !== undefined) live.daily[id] = d;
   }
 }

@@ -2,6 +2,8 @@
 import type { SensorMessage } from '../contract/index.js';
 import { createFaultState, type FaultState } from '../qc/index.js';
 import { createReprocessState, type ReprocessState } from './reprocess-state.js';
+import { createDailyState, type DailyState } from '../daily/index.js';
+import { createForecastState, type ForecastState } from '../forecast/index.js';
 import type { Series } from './series.js';
 import { createSeries } from './series.js';
 
@@ -54,6 +56,7 @@ export const STATION_VARS = [
   'adcpDepth', // water depth from an ADCP's own pressure at its ensemble time, m
   'east', // depth-averaged current, m/s
   'north',
+  'omega', // aragonite saturation of the carbonate records (the daily NEC-Omega fit)
 ] as const;
 export type StationVar = (typeof STATION_VARS)[number];
 
@@ -106,6 +109,10 @@ export interface ProcessorState {
   counters: ProcessorCounters;
   /** Calibration bookkeeping and the re-derivation of late lab results (reprocess-state.ts). */
   reprocess: ReprocessState;
+  /** Daily budgets per transect: the windows of the open days and the sliding week (libs/daily, daily-step.ts). */
+  daily: Record<string, DailyState>;
+  /** Tonight's oxygen: observations, fitted models, the night's forecasts and scores (libs/forecast). */
+  forecast: ForecastState;
 }
 
 export function createState(stationIds: readonly string[]): ProcessorState {
@@ -125,6 +132,8 @@ export function createState(stationIds: readonly string[]): ProcessorState {
     qc: {},
     alerts: undefined,
     faults: createFaultState(),
+    daily: {},
+    forecast: createForecastState(),
     counters: {
       accepted: 0,
       duplicates: 0,
@@ -163,4 +172,12 @@ export function completeState(state: ProcessorState, stationIds: readonly string
   state.counters.lateSamplesRevised ??= 0;
   state.counters.lateSamplesNotRevised ??= 0;
   state.counters.revisedRecords ??= 0;
+  // A checkpoint from before the daily and forecast states starts them empty (they fill from the data).
+  state.daily ??= {};
+  state.forecast ??= createForecastState();
+}
+
+/** The daily state of a transect, created on its first window. */
+export function dailyOf(state: ProcessorState, transect: string): DailyState {
+  return (state.daily[transect] ??= createDailyState());
 }

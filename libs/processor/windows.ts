@@ -3,6 +3,7 @@
 import type { DerivedRecord, ReefdConfig } from '../contract/index.js';
 import type { AlertEngine } from '../alerts/index.js';
 import type { TransectParams } from '../metabolism/index.js';
+import type { DayNight } from './day-night.js';
 import { windowInputs, type FaultWiring } from './faults.js';
 import type { FieldHooks } from './field.js';
 import { markFluxRecord } from './field-marks.js';
@@ -55,14 +56,25 @@ export function createWindows(
   observer: Observer,
   faults: FaultWiring,
   field: FieldHooks,
+  dayNight: DayNight,
 ): Windows {
   const params = new Map<string, TransectParams>(
     Object.entries(config.transects).map(([id, tr]) => [id, transectParams(config, tr)]),
   );
   // The sensors each transect's windows read, and the faults and failed samples among them over a span.
   const inputs = new Map(Object.entries(config.transects).map(([id, tr]) => [id, windowInputs(faults, tr)]));
-  const inputReasons = (id: string, fromMs: number, toMs: number): string[] =>
-    faults.reasonsDuring(inputs.get(id) ?? [], fromMs, toMs);
+  // A window on modelled flow does not read the current station's ADCP (forecast-step.ts).
+  const withoutCurrent = new Map(
+    Object.entries(config.transects).map(([id, tr]) => {
+      const adcp = new Set([
+        ...faults.writers({ station: tr.current, v: 'east' }),
+        ...faults.writers({ station: tr.current, v: 'north' }),
+      ]);
+      return [id, (inputs.get(id) ?? []).filter((k) => !adcp.has(k))];
+    }),
+  );
+  const inputReasons = (id: string, fromMs: number, toMs: number, modelled = false): string[] =>
+    faults.reasonsDuring((modelled ? withoutCurrent : inputs).get(id) ?? [], fromMs, toMs);
   const hasTransects = params.size > 0;
   // Pruning walks every series of every station, so it runs when the watermark enters a new minute, not on
   // every message: the horizons are hours longer than anything a derivation reads, so when the old samples
@@ -82,11 +94,28 @@ export function createWindows(
       centred ? endMs + times.windowMs : endMs,
       times.windowMs,
     );
+    // The window's PAR, and the window into its transect's local day (daily-step.ts).
+    dayNight.daily.onFlux(r);
     out.push(r);
     observer.record(r, undefined, Date.parse(r.t), r.flag, out);
   };
   const compute = (id: string, endMs: number, withNext: boolean) =>
-    transectFluxAt(config, state, id, endMs, params.get(id) as TransectParams, inputReasons, withNext);
+    transectFluxAt(
+      config,
+      state,
+      id,
+      endMs,
+      params.get(id) as TransectParams,
+      inputReasons,
+      withNext,
+      dayNight.forecast.fallback(id),
+    );
+  /**
+   * Centre of the earliest window not out yet: the next tick's, or a window held for its centred storage term.
+   * The local days before it are complete.
+   */
+  const pendingCentreMs = (nextEndMs: number): number =>
+    state.heldWindows.reduce((m, w) => Math.min(m, w.endMs), nextEndMs) - times.windowMs / 2;
 
   /**
    * The windows ending at endMs, after the held windows whose next window ends there (their centred storage
@@ -121,6 +150,10 @@ export function createWindows(
       for (; next + times.windowDelayMs <= watermarkMs; next += cadence) {
         tick(next, out);
         state.lastTickMs = next;
+        // Days whose windows are all out close (the next window is centred at next + cadence - W/2), and
+        // tonight's schedule runs to the tick's time: both on the cadence grid, so on event time only.
+        dayNight.daily.close(pendingCentreMs(next + cadence), out);
+        dayNight.forecast.step(next + times.windowDelayMs, out);
       }
       const pruneStep = Math.floor(watermarkMs / MIN);
       if (pruneStep !== lastPruneStep) {
@@ -131,6 +164,8 @@ export function createWindows(
     },
     flush(out) {
       for (const w of takeHeldWindows(state, Infinity)) emit(compute(w.transect, w.endMs, true), out);
+      if (state.lastTickMs >= 0)
+        dayNight.daily.close(pendingCentreMs(state.lastTickMs + times.cadenceMs), out);
     },
   };
 }

@@ -282,6 +282,9 @@ export class ReefModel {
     const outer = communityRates(par, hOuter, FLAT_COMMUNITY, prod);
     const inner = communityRates(par, hInner, FLAT_COMMUNITY, prod);
     const prev = this.#prev;
+    // Continuity: every segment carries the same volume flux q per metre of reef (no water enters or leaves
+    // sideways), so its mean velocity is q over its mean depth. (Taking the velocity at one end of a segment
+    // instead moves more or less water through it than crosses the crest.)
     // The first step has no previous window: the steady form (science 6.4).
     const crest = segment(
       off,
@@ -295,7 +298,7 @@ export class ReefModel {
       crest,
       prev && { up: prev.crest, down: prev.flat },
       hOuter,
-      flow.uFlatMS,
+      flow.qM2S / hOuter,
       L.crestToFlatM,
       outer,
     );
@@ -303,7 +306,7 @@ export class ReefModel {
       flatW,
       prev && { up: prev.flat, down: prev.back },
       hInner,
-      (flow.uFlatMS + flow.uBackMS) / 2,
+      flow.qM2S / hInner,
       L.flatToBackM,
       inner,
     );

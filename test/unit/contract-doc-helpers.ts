@@ -114,6 +114,7 @@ const SUFFIX_UNITS: [string, string][] = (
     ['_umol_l', 'umol/L'],
     ['_mS_cm', 'mS/cm'],
     ['_mg_l', 'mg/L'],
+    ['_per_m', 'm-1'],
     ['_uatm', 'uatm'],
     ['_dbar', 'dbar'],
     ['_pct', '%'],

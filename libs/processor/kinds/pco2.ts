@@ -10,7 +10,7 @@ export const pco2 = defineKind({
   kind: 'pco2',
   order: 7,
   qcVariables: ['pco2_uatm'],
-  writes: { station: ['pco2', 'ta', 'dic'], site: [] },
+  writes: { station: ['pco2', 'ta', 'dic', 'omega'], site: [] },
   reads: { station: ['temp', 'sal', 'sampleTa', 'sampleSal'], site: ['baro'] },
   completeMs: atSampleTime,
   derive(m, io) {
@@ -26,6 +26,7 @@ export const pco2 = defineKind({
     io.put('pco2', m.tMs, r.pco2Out, f);
     io.put('ta', m.tMs, r.ta, f);
     io.put('dic', m.tMs, r.dic, f);
+    if (r.record.omega_ar !== null) io.put('omega', m.tMs, r.record.omega_ar, f);
   },
 });
 
