@@ -1,8 +1,8 @@
 // The dashboard in a real browser (Debian's Chromium through playwright-core), asked the field team's
 // questions on the fictional demo reef: 16 hours of its messages through the real processor, fed to the
 // dashboard as the daemon feeds it, with a real notifier for acknowledgements, the records in the durable
-// record history (services/records) for /api/records, a field log and a calibration file. Records the processor does not write
-// yet (daily, forecast) are constructed in their contract shapes. Screenshots go to test/artifacts/.
+// record history (services/records) for /api/records, a field log and a calibration file; the daily budgets
+// of the two days before from a processor run of those days. Screenshots go to test/artifacts/.
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { mkdtemp } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
@@ -18,12 +18,7 @@ import {
 } from '../../services/dashboard/index.js';
 import { createRecordStore, type RecordStore } from '../../services/records/index.js';
 import type { AlertView } from '../../services/dashboard/api-schemas.js';
-import {
-  constructedDaily,
-  constructedForecasts,
-  demoSiteConfig,
-  runDemo,
-} from '../../services/dashboard/demo-records.js';
+import { demoSiteConfig, runDemo } from '../../services/dashboard/demo-records.js';
 import type { SensorHealthRow } from '../../services/dashboard/sensor-watch.js';
 import {
   alertsStateDir,
@@ -55,6 +50,7 @@ let page: Page;
 let live: { records: DerivedRecord[]; health?: SensorHealthRow[] }[];
 let lastLagoonO2: number;
 let health: SensorHealthRow[] = [];
+let forecasts: DerivedRecord[] = [];
 const pageErrors: string[] = [];
 
 async function newPage(viewport: { width: number; height: number }, url = server.url): Promise<Page> {
@@ -89,19 +85,11 @@ beforeAll(async () => {
   config = { ...demoSiteConfig(), logbook_file: 'logbook.yaml', calibration_file: 'calibration.yaml' };
   const demo = runDemo({ config, startMs: START, hours: HOURS, seed: 8, health: true });
   const all = demo.batches.flatMap((b) => b.records);
-  // Made here until the processor writes them: two daily budgets per transect, and the lagoon's forecast
-  // issued hourly from 04:00 at the site for a minimum just after dawn.
-  const constructed = [
-    ...constructedDaily(config, START, 2, -10),
-    ...constructedForecasts(
-      config,
-      'lagoon',
-      START + 14 * HOUR,
-      START + 15 * HOUR,
-      START + 16 * HOUR + 5 * 60_000,
-      1.3,
-    ),
-  ];
+  // The two local days before, from a processor run of those days (daily budgets close at local
+  // midnight, so a run of the 16 hours alone has none); tonight's forecasts come from the run itself.
+  const before = runDemo({ config, startMs: START - 72 * HOUR, hours: 72, seed: 9 });
+  const days = before.batches.flatMap((b) => b.records).filter((r) => r.type === 'daily');
+  forecasts = all.filter((r) => r.type === 'forecast' && r.station === 'lagoon');
   // The record history holds more than the dashboard's 48-h history: the lagoon's oxygen of a week earlier.
   const older = all
     .filter((r) => r.type === 'oxygen' && r.station === 'lagoon')
@@ -112,7 +100,7 @@ beforeAll(async () => {
     fsyncMs: 5,
     clock: () => START + HOURS * HOUR,
   });
-  await store.append([...older, ...all, ...constructed]);
+  await store.append([...older, ...days, ...all]);
   lastLagoonO2 = (
     all.filter((r) => r.type === 'oxygen' && r.station === 'lagoon').at(-1) as { o2_mg_l: number }
   ).o2_mg_l;
@@ -145,7 +133,6 @@ beforeAll(async () => {
     server.publish(b.records);
     for (const r of b.records) if (r.type === 'alert') await notifier.enqueue(r as never);
   }
-  server.publish(constructed);
   chrome = await launchChromium();
   browser = chrome.browser;
   page = await newPage({ width: 1360, height: 900 });
@@ -350,14 +337,37 @@ describe('metabolism, daily budgets and tonight', () => {
     expect(found).toMatch(
       /window not valid: (change in the water dominates the budget \(dawn or dusk\)|an input|[\w-]+ at [\w-]+: )/,
     );
-    expect(await page.locator('#daily-body tr').count()).toBe(2);
-    expect(await page.locator('#daily-body tr').first().innerText()).toMatch(
-      /^2026-02-\d\d\s+−?\d+\.\d ± 9\.0\s+\d+ ± 12\s/,
-    );
+    // One row per local day of the transect: the two days before the run.
+    // One row per local day of the transect, newest first: the part of the 28th the run saw, the two whole
+    // days before it with every budget, and the part of the 25th that run began in; part days are not valid.
+    const rows = page.locator('#daily-body tr');
+    expect(await rows.count()).toBe(4);
+    expect(await rows.evaluateAll((els) => els.map((e) => e.getAttribute('data-valid')))).toEqual([
+      'false',
+      'true',
+      'true',
+      'false',
+    ]);
+    expect(await rows.nth(0).innerText()).toMatch(/^2026-02-28\s.*not valid$/);
+    for (const [i, day] of [
+      [1, '2026-02-27'],
+      [2, '2026-02-26'],
+    ] as const)
+      expect(await rows.nth(i).innerText()).toMatch(new RegExp(`^${day}(\\s+−?\\d+ ± \\d+){4}\\s+\\d+ %`));
+    // Tonight's lowest oxygen at the lagoon as the processor last forecast it, in site time (UTC-10).
     const tonight = await page.locator('#tonight').innerText();
-    expect(tonight).toContain(
-      'Lagoon patch reef Lowest oxygen before sunrise expected 1.30 mg/L around 06:05 (80 % between 0.90 mg/L and 1.75 mg/L).',
-    );
+    const m =
+      /Lagoon patch reef Lowest oxygen before sunrise expected (\d\.\d\d) mg\/L around (\d\d:\d\d) \(80 % between (\d\.\d\d) mg\/L and (\d\.\d\d) mg\/L\)\./.exec(
+        tonight,
+      );
+    expect(m, tonight).not.toBeNull();
+    const shown = forecasts.find(
+      (f) => (f as unknown as { o2_min_mg_l: number }).o2_min_mg_l.toFixed(2) === m?.[1],
+    ) as unknown as { o2_min_lo_mg_l: number; o2_min_hi_mg_l: number; t_min: string } | undefined;
+    expect(shown, `a lagoon forecast of ${m?.[1]} mg/L`).toBeDefined();
+    expect(m?.[3]).toBe(shown?.o2_min_lo_mg_l.toFixed(2));
+    expect(m?.[4]).toBe(shown?.o2_min_hi_mg_l.toFixed(2));
+    expect(m?.[2]).toBe(new Date(Date.parse(shown?.t_min ?? '') - 10 * HOUR).toISOString().slice(11, 16));
     expect(tonight).toContain("The site's limit is 2.00 mg/L.");
     await page
       .locator('#metabolism')
