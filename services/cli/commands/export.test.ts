@@ -90,9 +90,10 @@ describe('reefd export --format csv', () => {
     ]);
     const fl = (await readFile(path.join(out, 'flux.csv'), 'utf8')).trim().split('\n');
     expect(fl).toHaveLength(3);
-    // (ncp and nec sigma and the inverse's NEC in a TA window are empty here)
+    // (ncp and nec sigma, the inverse's NEC in a TA window and the window's PAR are empty here)
+    expect(fl[0]?.split(',').slice(15, 18)).toEqual(['invalid_reasons', 'par_umol_m2_s', 'flag']);
     expect(fl[1]).toMatch(
-      /^2026-07-14T00:25:00Z,ornen-reef,inner,,,ta,0.1,1.5,28,false,true,false,,,,input_fault:back\/co2\/flatline,4/,
+      /^2026-07-14T00:25:00Z,ornen-reef,inner,,,ta,0.1,1.5,28,false,true,false,,,,input_fault:back\/co2\/flatline,,4,/,
     );
     expect(fl[2]).toMatch(/^2026-07-14T00:15:00Z,ornen-reef,inner,11,/);
     expect(fl[2]).toMatch(/,1$/); // revision column
