@@ -19,6 +19,7 @@ import { operationalAlert } from './operational.js';
 import { createPipeline, type Pipeline } from './pipeline.js';
 import { resumeFromArchive } from './resume.js';
 import type { SilenceWatch } from './silence.js';
+import { errFields } from '../log/logger.js';
 
 export interface CoreState {
   processor: Processor;
@@ -214,7 +215,7 @@ export function buildCheckpointer(
     await writeCheckpoint(state.checkpointFile, taken.state, taken.stream, { silence: taken.silence });
   }
   const timer = setInterval(() => {
-    checkpoint().catch((err: unknown) => logger.error({ err }, 'checkpoint failed'));
+    checkpoint().catch((err: unknown) => logger.error(errFields(err), 'checkpoint failed'));
   }, everyMs);
   timer.unref();
   const spoolTimer = setInterval(() => {
@@ -245,7 +246,7 @@ export function buildCheckpointer(
       // The outputs had their flush above: a second chance of 1 s keeps the exit within 10 s.
       await checkpoint(1000);
     } catch (err) {
-      logger.error({ err }, 'final checkpoint failed');
+      logger.error(errFields(err), 'final checkpoint failed');
     }
   });
   return { checkpoint };

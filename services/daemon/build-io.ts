@@ -25,6 +25,7 @@ import type { StartContext } from './context.js';
 import { operationalAlert } from './operational.js';
 import { createOutputs, resolveSasl, tlsFiles } from './outputs.js';
 import { createSystemdNotifier } from './systemd.js';
+import { errFields } from '../log/logger.js';
 
 type MqttSourceConfig = NonNullable<NonNullable<ReefdConfig['sources']>['mqtt']>;
 
@@ -44,7 +45,7 @@ async function auxMqtt(ctx: StartContext, m: MqttSourceConfig, role: string): Pr
     ...(password !== undefined ? { password } : {}),
     ...(tlsOptions(tlsFiles(ctx.baseDir, m.tls)) as Record<string, unknown>),
   });
-  client.on('error', (err) => ctx.logger.warn({ err, role }, 'auxiliary mqtt client error'));
+  client.on('error', (err) => ctx.logger.warn({ ...errFields(err), role }, 'auxiliary mqtt client error'));
   return ctx.life.add(`mqtt client ${role}`, client, (c) => c.endAsync());
 }
 
@@ -70,7 +71,9 @@ export async function buildClients(ctx: StartContext): Promise<Clients> {
     ctx.life.add('dead-letter kafka producer', producer, (p) => p.disconnect());
     await producer
       .connect()
-      .catch((err: unknown) => ctx.logger.warn({ err }, 'dead-letter kafka producer not connected yet'));
+      .catch((err: unknown) =>
+        ctx.logger.warn(errFields(err), 'dead-letter kafka producer not connected yet'),
+      );
     out.deadLetterKafka = { publisher: kafkaPublisher(producer), topic: dl.kafka_topic };
   }
   const notify = config.notify;
@@ -98,14 +101,17 @@ export async function buildNotifier(ctx: StartContext, clients: Clients): Promis
     channels,
     ...notifierOptionsFromConfig(notify),
     onError: (err, channelId) =>
-      ctx.logger.warn({ channel: channelId, err }, 'notification failed; retrying'),
+      ctx.logger.warn({ channel: channelId, ...errFields(err) }, 'notification failed; retrying'),
   });
   await notifier.start();
   const enqueue = (r: DerivedRecord) =>
     notifier
       .enqueue(r as never)
       .catch((err: unknown) =>
-        ctx.logger.error({ err, rule: (r as { rule?: string }).rule }, 'alert not queued for notification'),
+        ctx.logger.error(
+          { ...errFields(err), rule: (r as { rule?: string }).rule },
+          'alert not queued for notification',
+        ),
       );
   const unsubscribe = ctx.bus.subscribe((records) => {
     for (const r of records) if (r.type === 'alert') void enqueue(r);

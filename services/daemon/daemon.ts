@@ -19,6 +19,7 @@ import { createMetrics, type DaemonMetrics } from './metrics.js';
 import { secretResolver } from './outputs.js';
 import { buildSilenceWatch } from './silence.js';
 import type { Pipeline } from './pipeline.js';
+import { errFields } from '../log/logger.js';
 
 export type { RecordBus } from './bus.js';
 
@@ -68,7 +69,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const dataDir = resolveDataDir(config, o.baseDir, o.env);
   await mkdir(dataDir, { recursive: true });
   const life = new Lifecycle(logger);
-  const onBusError = (err: unknown) => logger.error({ err }, 'a record bus subscriber failed');
+  const onBusError = (err: unknown) => logger.error(errFields(err), 'a record bus subscriber failed');
   const ctx: StartContext = {
     config,
     baseDir: o.baseDir,
@@ -138,7 +139,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
       },
     };
   } catch (err) {
-    logger.error({ err, parts: life.names() }, 'start failed; stopping what was started');
+    logger.error({ ...errFields(err), parts: life.names() }, 'start failed; stopping what was started');
     await life.closeAll(5000);
     throw err;
   }
