@@ -100,3 +100,27 @@ describe('reefd config schema', () => {
     expect(io.text().stderr).toContain('expected "check FILE" or "schema"');
   });
 });
+
+// The systemd unit stops restarting on exit 2 (RestartPreventExitStatus=2, test/unit/systemd-unit.test.ts):
+// every configuration error of `reefd run` must exit 2, before anything is started.
+describe('reefd run on a configuration error', () => {
+  it('exits 2 with every problem for an invalid file', async () => {
+    const io = captureIo();
+    const bad = file('test/fixtures/config/invalid.yaml');
+    expect(await main(['run', '--config', bad, '--log-level', 'silent'], io)).toBe(2);
+    expect(io.text().stderr).toContain('reef_axis_deg');
+    const problems = io
+      .text()
+      .stderr.split('\n')
+      .filter((l) => l.startsWith(bad));
+    expect(problems.length).toBeGreaterThan(3);
+  });
+
+  it('exits 2 for a file that cannot be read', async () => {
+    const io = captureIo();
+    expect(await main(['run', '--config', '/nonexistent/reefd.yaml', '--log-level', 'silent'], io)).toBe(2);
+    expect(io.text().stderr).toMatch(
+      /^reefd run: REEFD_CONFIG_UNREADABLE: cannot read \/nonexistent\/reefd\.yaml: ENOENT.*check the path/,
+    );
+  });
+});
