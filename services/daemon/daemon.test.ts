@@ -309,3 +309,33 @@ notify: { channels: { hook: { type: webhook, url: "http://127.0.0.1:9/none", sec
     expect(io.text().stderr).toMatch(/REEFD_NO_SOURCE: .* has no sources.*add sources\.mqtt/);
   });
 });
+
+describe('the daemon on /metrics', () => {
+  it('shows its source connected, the sensors it heard and their age, and lets go of them at stop', async () => {
+    const folder = await mkdtemp(path.join(dir, 'metrics-'));
+    await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });
+    const metrics = createMetrics(false);
+    const nowMs = Date.UTC(2026, 2, 1) + 10 * 60_000;
+    const d = await startDaemon({
+      config: siteConfig(folder),
+      baseDir: folder,
+      logger: quiet(),
+      env: {},
+      mqttProtocolVersion: 4,
+      metrics,
+      clock: () => nowMs,
+    });
+    await until('the source connected', () => d.ready());
+    await publish('hermetic', 0, 2);
+    await until('both sensors seen', () => d.processor.sensorHealth().length === 2);
+    const text = await metrics.registry.metrics();
+    expect(text).toMatch(/^reefd_source_connected\{source="[^"]+"\} 1$/m);
+    // The last messages are at minute 1; the daemon's clock says minute 10: 540 s.
+    expect(text).toContain('reefd_sensor_last_seen_age_seconds{station="s1",sensor="c1",kind="ctd"} 540');
+    expect(text).toContain('reefd_sensor_last_seen_age_seconds{station="s1",sensor="o1",kind="oxygen"} 540');
+    expect(text).toMatch(/^reefd_build_info\{version="\d+\.\d+\.\d+",node="v\d+/m);
+    await d.stop('test');
+    expect(d.bus.size()).toBe(0);
+    expect(await metrics.registry.metrics()).not.toContain('reefd_source_connected{');
+  }, 40_000);
+});
