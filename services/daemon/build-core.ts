@@ -62,7 +62,8 @@ function derivationConfig(c: ReefdConfig): unknown {
  * either is written at once, so a crash before the first periodic checkpoint resumes the same stream.
  */
 export async function buildState(ctx: StartContext): Promise<CoreState> {
-  const { config, logger } = ctx;
+  const { config } = ctx;
+  const logger = ctx.logger.child({ component: 'state' });
   const checkpointFile = path.join(ctx.dataDir, 'checkpoint.json');
   const cp = await readCheckpoint(checkpointFile);
   if (cp.warning) logger.warn({ code: cp.warning.code }, cp.warning.message);
@@ -111,7 +112,7 @@ export async function buildArchive(ctx: StartContext): Promise<{ writer: RawArch
     fsyncMs: config.archive.fsync_ms,
     retentionDays: config.archive.retention_days,
     clock: ctx.clock,
-    logger: ctx.logger,
+    logger: ctx.logger.child({ component: 'archive' }),
   });
   ctx.life.add('raw archive', writer, (w) => w.close());
   return { writer, dir };
@@ -129,7 +130,8 @@ export async function buildPipeline(
   outputs: Outputs,
   silence: SilenceWatch,
 ): Promise<Pipeline> {
-  const { config, logger } = ctx;
+  const { config } = ctx;
+  const logger = ctx.logger.child({ component: 'pipeline' });
   let diskFullAtMs = Number.NEGATIVE_INFINITY;
   const pipeline = createPipeline({
     config,
@@ -186,7 +188,7 @@ export function buildCheckpointer(
   silence: SilenceWatch,
   everyMs: number,
 ): Checkpointer {
-  const { logger } = ctx;
+  const logger = ctx.logger.child({ component: 'checkpoint' });
   async function checkpoint(settleMs = 20_000): Promise<void> {
     // State and stream are taken together between two processor steps; then everything they cover is made
     // durable before the checkpoint may claim it: the bridge (edge mode) and the records the outputs still

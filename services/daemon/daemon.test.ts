@@ -311,15 +311,20 @@ notify: { channels: { hook: { type: webhook, url: "http://127.0.0.1:9/none", sec
 });
 
 describe('the daemon on /metrics', () => {
-  it('shows its source connected, the sensors it heard and their age, and lets go of them at stop', async () => {
+  it('shows its source connected, the sensors it heard and their age, and lets go of them at stop (logs name their component)', async () => {
     const folder = await mkdtemp(path.join(dir, 'metrics-'));
     await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });
     const metrics = createMetrics(false);
     const nowMs = Date.UTC(2026, 2, 1) + 10 * 60_000;
+    const logs: { msg: string; component?: string }[] = [];
+    const logger = pino(
+      { level: 'info' },
+      { write: (line: string) => void logs.push(JSON.parse(line) as (typeof logs)[number]) },
+    );
     const d = await startDaemon({
       config: siteConfig(folder),
       baseDir: folder,
-      logger: quiet(),
+      logger,
       env: {},
       mqttProtocolVersion: 4,
       metrics,
@@ -337,5 +342,8 @@ describe('the daemon on /metrics', () => {
     await d.stop('test');
     expect(d.bus.size()).toBe(0);
     expect(await metrics.registry.metrics()).not.toContain('reefd_source_connected{');
+    // Each part logs through its own child logger, so a line names the component it comes from.
+    expect(logs.find((l) => l.msg === 'mqtt connected')?.component).toBe('sources');
+    expect(logs.find((l) => l.msg === 'reefd started')?.component).toBeUndefined();
   }, 40_000);
 });

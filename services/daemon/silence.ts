@@ -33,7 +33,8 @@ export function buildSilenceWatch(
   sinks: readonly RecordSink[],
   saved: SiteSilenceState | undefined,
 ): SilenceWatch {
-  const { config, logger } = ctx;
+  const { config } = ctx;
+  const logger = ctx.logger.child({ component: 'silence' });
   const cfg = resolveRules(config.alerts).silence;
   const now = ctx.clock();
   const st: SiteSilenceState =
