@@ -14,6 +14,7 @@ import { inScope, resolveRules, type ResolvedRules } from './rules.js';
 import { kindOfMetric, rebuildStale, staleDue, staleExempt, staleMessage } from './stale.js';
 import { newThresholdSeries, stepThreshold, type ThresholdSeries } from './threshold.js';
 import type { AlertRecord, FaultName, QcInfo, ThresholdRule } from './types.js';
+import { ALERTS_ERRORS } from './errors.js';
 
 export interface EngineSnapshot {
   v: 1;
@@ -58,9 +59,10 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
   const parsed = alertsConfigSchema.safeParse(config ?? {});
   if (!parsed.success) {
     const first = parsed.error.issues[0];
-    throw new Error(
-      `REEFD_ALERTS_BAD_CONFIG: alerts.${first?.path.join('.') ?? ''}: ${first?.message ?? 'invalid'}; ` +
-        'fix the alerts: section (see libs/alerts/README.md)',
+    throw ALERTS_ERRORS.error(
+      'REEFD_ALERTS_BAD_CONFIG',
+      `alerts.${first?.path.join('.') ?? ''}: ${first?.message ?? 'invalid'} (see libs/alerts/README.md)`,
+      { detail: { path: ['alerts', ...(first?.path ?? [])].join('.') } },
     );
   }
   const rules = resolveRules(parsed.data);
@@ -343,9 +345,10 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
     },
     restore(snapshot) {
       if (snapshot?.v !== 1 || snapshot.site !== site) {
-        throw new Error(
-          `REEFD_ALERTS_BAD_SNAPSHOT: snapshot version ${String(snapshot?.v)} for site "${String(snapshot?.site)}" ` +
-            `does not fit this engine (version 1, site "${site}"); delete the alert state file to start afresh`,
+        throw ALERTS_ERRORS.error(
+          'REEFD_ALERTS_BAD_SNAPSHOT',
+          `snapshot version ${String(snapshot?.v)} for site "${String(snapshot?.site)}" ` +
+            `does not fit this engine (version 1, site "${site}")`,
         );
       }
       st = structuredClone(snapshot);

@@ -1,5 +1,7 @@
 // Error catalogue of libs/calibration: every code this package returns, with what to do about it.
-export const CALIBRATION_ERRORS = Object.freeze({
+import { defineErrors } from '../contract/errors.js';
+
+export const CALIBRATION_ERRORS = defineErrors('libs/calibration', {
   REEFD_CALIBRATION_INVALID:
     'the calibration file has problems; each is given with its path (entry number and key): fix them and re-run',
   REEFD_CALIBRATION_TOO_FEW:
@@ -11,4 +13,4 @@ export const CALIBRATION_ERRORS = Object.freeze({
   REEFD_CALIBRATION_NO_REFERENCE:
     'a bottle gave no reference value (e.g. TA and DIC with no carbonate solution): check that bottle',
 });
-export type CalibrationErrorCode = keyof typeof CALIBRATION_ERRORS;
+export type CalibrationErrorCode = (typeof CALIBRATION_ERRORS.codes)[number];

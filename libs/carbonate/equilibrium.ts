@@ -22,6 +22,7 @@ import type { FitTerms } from './constants/terms.js';
 import { kpYaoMillero1995Sws, ksiYaoMillero1995Sws } from './constants/yao-millero1995.js';
 import type { CarbonateOptions, ResolvedCarbonateOptions } from './types.js';
 import { CARBONATE_OPTION_NAMES, DEFAULT_CARBONATE_OPTIONS } from './types.js';
+import { CARBONATE_ERRORS } from './errors.js';
 
 /** Bits of EquilibriumConstants.rangeMask: which fits were evaluated outside their published t/S range. */
 export const RANGE_BITS = {
@@ -103,8 +104,9 @@ export function resolveCarbonateOptions(options?: CarbonateOptions): ResolvedCar
 
 function check(key: string, value: string, valid: readonly string[]): void {
   if (!valid.includes(value)) {
-    throw new RangeError(
-      `REEFD_CARBONATE_BAD_OPTION: carbonate option ${key} = "${value}" is unknown; use one of ${valid.join(', ')}`,
+    throw CARBONATE_ERRORS.error(
+      'REEFD_CARBONATE_BAD_OPTION',
+      `carbonate option ${key} = "${value}" is unknown; use one of ${valid.join(', ')}`,
     );
   }
 }

@@ -6,5 +6,6 @@ export * from './records.js';
 export * from './record-types.js';
 export * from './config-schema.js';
 export * from './config-parse.js';
+export * from './config-json-schema.js';
 export * from './errors.js';
 export * from './field-files.js';

@@ -10,6 +10,7 @@
 // The top power law keeps the bed exponent and fits only its coefficient, by least squares over all
 // valid bins: linear in u, so it works on east and north separately and on flows that reverse.
 // Check: u = u* (z/h)^(1/6) averages to 6/7 u* (analytic); the test holds it within 0.3 %.
+import { CURRENT_ERRORS } from './errors.js';
 
 /** Both top variants of the depth average of one component, m/s. */
 export interface DepthMean {
@@ -82,7 +83,7 @@ export function depthAverage(
   m = 6,
 ): DepthMean {
   if (zM.length < 1 || zM.length !== uMS.length) {
-    throw new RangeError('REEFD_CURRENTS_SHAPE: depthAverage needs equal-length, non-empty z and u');
+    throw CURRENT_ERRORS.error('REEFD_CURRENTS_SHAPE', 'depthAverage needs equal-length, non-empty z and u');
   }
   const out = new Float64Array(4);
   depthAverage2Into(zM, uMS, uMS, zM.length, depthM, m, out);

@@ -1,11 +1,11 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { CURRENT_ERRORS, currentFail } from './errors.js';
+import { CURRENT_FAILS, currentFail } from './errors.js';
 
 describe('error catalogue', () => {
   const readme = readFileSync(new URL('./README.md', import.meta.url), 'utf8');
 
-  it.each(Object.entries(CURRENT_ERRORS))('%s is documented with its reason and flag', (code, e) => {
+  it.each(Object.entries(CURRENT_FAILS))('%s is documented with its reason and flag', (code, e) => {
     expect(readme).toMatch(new RegExp(`\\| \`${code}\` \\| ${e.reason} \\| ${e.flag} \\|`));
   });
 

@@ -26,7 +26,7 @@ export {
 export { depthAverage, type DepthMean } from './depth-average.js';
 export { toReefFrame, directionTowardsDeg, logLawCd, bedStressPa, type ReefVelocity } from './reef-frame.js';
 export { synthesizeBeamEnsemble, type SynthesisSpec } from './synthesize.js';
-export { CURRENT_ERRORS, type CurrentErrorCode } from './errors.js';
+export { CURRENT_ERRORS, CURRENT_FAILS, type CurrentErrorCode, type CurrentFailCode } from './errors.js';
 export {
   DEFAULT_QC,
   type AdcpEnsemble,

@@ -16,6 +16,7 @@
 //   P = [[1, 0, 0], [0, cp, -sp], [0, sp, cp]]     positive pitch raises +y (right-hand about +x)
 //   R = [[cr, 0, sr], [0, 1, 0], [-sr, 0, cr]]     positive roll lowers +x (right-hand about +y)
 // Check (worked by hand): heading 90, pitch = roll = 0 maps instrument +y to east and +x to south.
+import { CURRENT_ERRORS } from './errors.js';
 
 /** Precomputed factors of a 4-beam Janus head (docs/methods/currents.md 5.1). */
 export interface JanusHead {
@@ -41,9 +42,7 @@ const DEG = Math.PI / 180;
  */
 export function janusHead(beamAngleDeg = 20, convex = true): JanusHead {
   if (!(beamAngleDeg > 0 && beamAngleDeg < 60)) {
-    throw new RangeError(
-      `REEFD_CURRENTS_BEAM_ANGLE: beam angle ${beamAngleDeg} deg is outside (0, 60); set beam_angle_deg to the head's value (usually 20, 25 or 30)`,
-    );
+    throw CURRENT_ERRORS.error('REEFD_CURRENTS_BEAM_ANGLE', `beam angle ${beamAngleDeg} deg`);
   }
   const s = Math.sin(beamAngleDeg * DEG);
   const co = Math.cos(beamAngleDeg * DEG);

@@ -1,8 +1,9 @@
 // Error catalogue of the daily library: stable codes, each with what is wrong and how to fix it.
 // Fits and budgets return these codes inside `{ ok: false }` results (a refused fit is data, not a crash);
 // only bad options and unknown time zones are thrown, as DailyError.
+import { defineErrors, errorMessage, ReefdError } from '../contract/errors.js';
 
-export const DAILY_ERRORS = {
+export const DAILY_ERRORS = defineErrors('libs/daily', {
   REEFD_DAILY_BAD_TIMEZONE:
     'the time zone is not an IANA zone name this runtime knows; use a name such as Pacific/Majuro or UTC',
   REEFD_DAILY_BAD_OPTIONS: 'a fit or budget option is out of range; fix the value named in the message',
@@ -20,9 +21,9 @@ export const DAILY_ERRORS = {
     'the windows span too narrow a range of aragonite saturation for a slope; more varied water is needed',
   REEFD_DAILY_FIT_FAILED:
     'the least-squares problem is singular or not finite; check the windows for NaN values',
-} as const;
+});
 
-export type DailyErrorCode = keyof typeof DAILY_ERRORS;
+export type DailyErrorCode = (typeof DAILY_ERRORS.codes)[number];
 
 /** A refused fit or budget: the code, the catalogue text and what was seen. */
 export interface Refusal {
@@ -32,17 +33,15 @@ export interface Refusal {
 }
 
 export function refuse(code: DailyErrorCode, detail: string): Refusal {
-  return { ok: false, code, reason: `${detail}: ${DAILY_ERRORS[code]}` };
+  return { ok: false, code, reason: `${detail}: ${DAILY_ERRORS.text(code)}` };
 }
 
 /** Thrown only for programming or configuration errors (bad options, unknown time zone). */
-export class DailyError extends Error {
-  readonly code: DailyErrorCode;
-  readonly detail: string;
-  constructor(code: DailyErrorCode, detail: string) {
-    super(`${code}: ${detail}: ${DAILY_ERRORS[code]}`);
+export class DailyError extends ReefdError<DailyErrorCode> {
+  readonly what: string;
+  constructor(code: DailyErrorCode, what: string) {
+    super(code, errorMessage(code, what, DAILY_ERRORS.text(code)), { detail: { what } });
     this.name = 'DailyError';
-    this.code = code;
-    this.detail = detail;
+    this.what = what;
   }
 }

@@ -67,7 +67,7 @@ describe('logbook file', () => {
     const r = parseLogbookText(bad, config);
     expect(r.ok).toBe(false);
     if (r.ok) return;
-    expect(r.code in LOGBOOK_ERRORS).toBe(true);
+    expect(LOGBOOK_ERRORS.codes).toContain(r.code);
     const by = Object.fromEntries(r.problems.map((p) => [p.path, p]));
     expect(by['0.event']?.message).toMatch(/must be one of cleaning, swap, relevel, deploy, recover, note/);
     expect(by['0.event']?.line).toBe(3);

@@ -1,7 +1,8 @@
 // Error catalogue of the metabolism library: stable codes, each with what is wrong and how to fix it.
 // Hot paths return these codes inside `{ ok: false }` results instead of throwing.
+import { defineErrors, errorMessage, ReefdError } from '../contract/errors.js';
 
-export const METABOLISM_ERRORS = {
+export const METABOLISM_ERRORS = defineErrors('libs/metabolism', {
   REEFD_METABOLISM_NO_BRACKET:
     'the function has the same sign at both ends of the bracket; widen the bracket or check the inputs',
   REEFD_METABOLISM_NO_CONVERGENCE:
@@ -13,18 +14,16 @@ export const METABOLISM_ERRORS = {
   REEFD_METABOLISM_CARBONATE_FAILED:
     'the carbonate system could not be solved for a station; check TA, pCO2, temperature and salinity of that station',
   REEFD_METABOLISM_BAD_PARAMS: 'a transect parameter is out of range; fix the transect configuration',
-} as const;
+});
 
-export type MetabolismErrorCode = keyof typeof METABOLISM_ERRORS;
+export type MetabolismErrorCode = (typeof METABOLISM_ERRORS.codes)[number];
 
 /** Thrown only for programming or configuration errors (never on the per-window hot path). */
-export class MetabolismError extends Error {
-  readonly code: MetabolismErrorCode;
-  readonly detail: string;
-  constructor(code: MetabolismErrorCode, detail: string) {
-    super(`${code}: ${detail}: ${METABOLISM_ERRORS[code]}`);
+export class MetabolismError extends ReefdError<MetabolismErrorCode> {
+  readonly what: string;
+  constructor(code: MetabolismErrorCode, what: string) {
+    super(code, errorMessage(code, what, METABOLISM_ERRORS.text(code)), { detail: { what } });
     this.name = 'MetabolismError';
-    this.code = code;
-    this.detail = detail;
+    this.what = what;
   }
 }

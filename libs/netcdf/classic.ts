@@ -3,6 +3,8 @@
 // dimensions, global attributes and variables, then each variable's values, big-endian, every part padded
 // to 4 bytes. Only fixed-size dimensions are written (no record dimension); the reader accepts what the
 // writer writes plus record-free files of other writers. Pure: bytes in, bytes out.
+import { errorMessage, ReefdError } from '../contract/errors.js';
+import { NETCDF_ERRORS, type NetcdfErrorCode } from './errors.js';
 
 export type NcType = 'byte' | 'char' | 'short' | 'int' | 'float' | 'double';
 
@@ -43,8 +45,13 @@ export interface NcDataset {
   variables: readonly NcVariable[];
 }
 
-export class NetcdfError extends Error {
-  readonly code = 'REEFD_NETCDF_INVALID';
+/** What is wrong with a dataset (never retriable); the message names the case and the fix. */
+export class NetcdfError extends ReefdError<NetcdfErrorCode> {
+  constructor(what: string) {
+    const code = 'REEFD_NETCDF_INVALID';
+    super(code, errorMessage(code, what, NETCDF_ERRORS.text(code)));
+    this.name = 'NetcdfError';
+  }
 }
 
 const utf8 = new TextEncoder();

@@ -8,6 +8,7 @@
 // Memory is at most (nBins + 1) x 5 numbers whatever the sample rate, and fewer when samples are sparser than the
 // bins; the price is that the window edge is resolved to one bin (windowMs / nBins), which is documented at each
 // test that uses it. Plain number arrays (no typed arrays, no NaN): the state survives a JSON round trip.
+import { QC_ERRORS } from './errors.js';
 
 export interface WindowSummary {
   n: number;
@@ -37,8 +38,9 @@ const STRIDE = 5;
 /** A window of `windowMs` resolved into `nBins` bins. */
 export function createBinnedStats(windowMs: number, nBins: number, mode: BinnedMode): BinnedStats {
   if (!(windowMs > 0) || !Number.isInteger(nBins) || nBins < 1) {
-    throw new RangeError(
-      `REEFD_QC_BAD_WINDOW: window ${windowMs} ms / ${nBins} bins; give a window > 0 and bins >= 1`,
+    throw QC_ERRORS.error(
+      'REEFD_QC_BAD_WINDOW',
+      `window ${windowMs} ms / ${nBins} bins; give a window > 0 and bins >= 1`,
     );
   }
   return { mode, binMs: windowMs / nBins, nBins, b: [] };

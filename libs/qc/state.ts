@@ -20,6 +20,7 @@ import {
   stuckFlag,
   timing,
 } from './tests.js';
+import { QC_ERRORS } from './errors.js';
 
 /** Names of the per-sample tests, as reported in `tests`. */
 export type QcTestName =
@@ -107,8 +108,9 @@ export function createQcState(config: QcConfig | string): QcState {
   const cfg: QcConfig = typeof config === 'string' ? { variable: config } : config;
   const base = DEFAULT_QC_LIMITS[cfg.variable];
   if (base === undefined && cfg.sensor === undefined) {
-    throw new Error(
-      `REEFD_QC_UNKNOWN_VARIABLE: no default QC limits for "${cfg.variable}"; give sensor limits in its QC config ` +
+    throw QC_ERRORS.error(
+      'REEFD_QC_UNKNOWN_VARIABLE',
+      `no default QC limits for "${cfg.variable}"; give sensor limits in its QC config ` +
         `or use one of ${Object.keys(DEFAULT_QC_LIMITS).join(', ')}`,
     );
   }

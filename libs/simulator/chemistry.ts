@@ -3,6 +3,7 @@
 // Lee et al. 2010 boron; science 3).
 import { k0, solveCarbonate } from '../carbonate/index.js';
 import { densityEos80, o2SolubilityUmolKg } from '../seawater/index.js';
+import { SIMULATOR_ERRORS } from './errors.js';
 
 /** O2 umol/kg to mg/L at density rho (kg m-3): x rho/1000 / 31.2512 (1000/31.9988 umol per mg, science 2.3). */
 export function o2MgL(o2UmolKg: number, rhoKgM3: number): number {
@@ -34,9 +35,9 @@ export interface CarbonateState {
 export function speciate(w: Water): CarbonateState {
   const r = solveCarbonate({ salinity: w.sal, tempC: w.tempC, taUmolKg: w.taUmolKg, dicUmolKg: w.dicUmolKg });
   if (!r.ok) {
-    throw new Error(
-      `REEFD_SIMULATOR_CARBONATE: no carbonate solution for TA ${w.taUmolKg}, DIC ${w.dicUmolKg}, ` +
-        `S ${w.sal}, t ${w.tempC}: the reef model left the valid range; check its rates`,
+    throw SIMULATOR_ERRORS.error(
+      'REEFD_SIMULATOR_CARBONATE',
+      `no carbonate solution for TA ${w.taUmolKg}, DIC ${w.dicUmolKg}, S ${w.sal}, t ${w.tempC}`,
     );
   }
   return {
@@ -65,6 +66,9 @@ export function o2Saturation(w: Water): number {
 export function offshoreDicAt(taUmolKg: number, pco2Uatm: number, sal: number, tempC: number): number {
   const r = solveCarbonate({ salinity: sal, tempC, taUmolKg, pco2Uatm });
   if (!r.ok)
-    throw new Error(`REEFD_SIMULATOR_CARBONATE: offshore water has no solution (${r.reason ?? 'unknown'})`);
+    throw SIMULATOR_ERRORS.error(
+      'REEFD_SIMULATOR_CARBONATE',
+      `offshore water has no solution (${r.reason ?? 'unknown'})`,
+    );
   return r.dicUmolKg;
 }

@@ -9,3 +9,4 @@ export { crossReef, ORNEN_HYDRAULICS, FLAT_CURRENT_RANGE_M_S, CREST_CURRENT_RANG
 export type { CrossReefInput, CrossReefState, ReefHydraulics } from './hydro.js';
 export { ReefModel, type ReefSnapshot, type WaveClimateOverride } from './model.js';
 export { siteLayout, roleOf, ROLES, type Role, type SiteLayout } from './site.js';
+export { SIMULATOR_ERRORS, type SimulatorErrorCode } from './errors.js';

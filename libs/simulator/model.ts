@@ -30,6 +30,7 @@ import {
   solarHour,
 } from './signals.js';
 import { BED_ELEVATION_M, type Role, type SiteLayout } from './site.js';
+import { SIMULATOR_ERRORS } from './errors.js';
 
 const HOUR_S = 3600;
 const DAY_S = 86400;
@@ -268,10 +269,7 @@ export class ReefModel {
         airSea: { kind: 'wind', windMS: wind, windHeightM: windHeight, xco2AirPpm: 424 },
         ...(before ? { previous: { dtS: W, up: station(before.up), down: station(before.down) } } : {}),
       });
-      if (!f.ok)
-        throw new Error(
-          `REEFD_SIMULATOR_FORWARD: ${f.reason}; the reef model left the carbonate solver's range`,
-        );
+      if (!f.ok) throw SIMULATOR_ERRORS.error('REEFD_SIMULATOR_FORWARD', f.reason);
       return { tempC, sal, o2UmolKg: f.o2UmolKg, taUmolKg: f.taUmolKg, dicUmolKg: f.dicUmolKg };
     };
 

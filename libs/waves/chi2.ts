@@ -4,6 +4,7 @@
 // ln Gamma by the Lanczos (1964, SIAM J. Numer. Anal.) approximation, g = 7, 9 terms. The inverse starts from
 // the Wilson & Hilferty (1931, Proc. Natl. Acad. Sci.) cube-root normal approximation and is refined by a
 // bracketed Halley iteration to 1e-14 relative.
+import { WAVES_ERRORS } from './errors.js';
 
 const LANCZOS_G = 7;
 // Lanczos coefficients for g = 7, n = 9 (common practice; the widely used set, accurate to ~1e-15).
@@ -88,9 +89,7 @@ function normalQuantileRough(p: number): number {
  */
 export function chi2Quantile(p: number, nu: number): number {
   if (!(p > 0 && p < 1) || !(nu > 0) || !Number.isFinite(nu)) {
-    throw new RangeError(
-      `REEFD_WAVES_CHI2_DOMAIN: chi2Quantile needs 0 < p < 1 and nu > 0; got p=${p}, nu=${nu}`,
-    );
+    throw WAVES_ERRORS.error('REEFD_WAVES_CHI2_DOMAIN', `got p=${p}, nu=${nu}`);
   }
   const a = nu / 2;
   const lga = lnGamma(a);

@@ -1,6 +1,7 @@
 // Linear (Airy) dispersion omega^2 = g k tanh(k h), solved by Newton's method from the explicit first
 // guess of Guo (2002), Coastal Eng. 45, 71-74, and the linear pressure response factor
 // Kp = cosh(k z)/cosh(k h) (e.g. Dean & Dalrymple 1991, Water Wave Mechanics for Engineers and Scientists).
+import { WAVES_ERRORS } from './errors.js';
 
 /** m s-2, standard gravity (CGPM 1901); the default when the caller gives no site gravity. */
 export const G_STANDARD = 9.80665;
@@ -29,8 +30,9 @@ export function guoGuess(omegaRadS: number, depthM: number, g: number = G_STANDA
  */
 export function solveDispersion(omegaRadS: number, depthM: number, g: number = G_STANDARD): number {
   if (!(omegaRadS >= 0) || !(depthM > 0) || !(g > 0) || !Number.isFinite(omegaRadS + depthM + g)) {
-    throw new RangeError(
-      `REEFD_WAVES_DISPERSION_DOMAIN: solveDispersion needs omega >= 0, depth > 0 and g > 0 (finite); got omega=${omegaRadS}, depth=${depthM}, g=${g}`,
+    throw WAVES_ERRORS.error(
+      'REEFD_WAVES_DISPERSION_DOMAIN',
+      `got omega=${omegaRadS}, depth=${depthM}, g=${g}`,
     );
   }
   if (omegaRadS === 0) return 0;

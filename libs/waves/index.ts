@@ -23,3 +23,4 @@ export type {
 } from './types.js';
 export { jonswapShape, jonswapPressureBurst, type SeaSpec, type PressureBurstSpec } from './synthetic.js';
 export { depthSigmaM, type DepthSigmaInput } from './uncertainty.js';
+export { WAVES_ERRORS } from './errors.js';

@@ -5,6 +5,7 @@
 // overlap correlation 1/6, Harris 1978, Proc. IEEE 66, 51-83).
 import { chi2Quantile } from './chi2.js';
 import { planFor, realForward } from './fft.js';
+import { WAVES_ERRORS } from './errors.js';
 
 /** Welch estimate. psd in (unit of x)^2 Hz-1 at fHz[m] = m fs/nperseg, m = 0..nperseg/2. */
 export interface WelchResult {
@@ -118,9 +119,7 @@ export function welchPsd(x: ArrayLike<number>, fsHz: number, nperseg?: number): 
   const n = x.length;
   const ns = nperseg ?? chooseSegmentLength(n, fsHz);
   if (!(fsHz > 0) || ns < 8 || ns > n || (ns & (ns - 1)) !== 0) {
-    throw new RangeError(
-      `REEFD_WAVES_WELCH_SIZE: welchPsd needs fs > 0 and a power-of-two nperseg in [8, N]; got fs=${fsHz}, nperseg=${ns}, N=${n}`,
-    );
+    throw WAVES_ERRORS.error('REEFD_WAVES_WELCH_SIZE', `got fs=${fsHz}, nperseg=${ns}, N=${n}`);
   }
   const xs = x instanceof Float64Array ? x : Float64Array.from(x);
   const psd = new Float64Array(ns / 2 + 1);

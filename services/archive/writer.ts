@@ -8,7 +8,7 @@ import { mkdir, readdir, rm } from 'node:fs/promises';
 import { join } from 'node:path';
 import { ReefdError } from '../../libs/contract/index.js';
 import type { ArchiveWriter } from '../pipeline/types.js';
-import type { Logger } from '../log/logger.js';
+import { errFields, type Logger } from '../log/logger.js';
 import { compressFile, repairArchiveDir } from './compress.js';
 import { archiveLineBytes, type ArchiveMessage } from './line.js';
 import {
@@ -19,6 +19,7 @@ import {
   type AppendFile,
   type OpenAppendFile,
 } from './files.js';
+import { ARCHIVE_ERRORS } from './errors.js';
 
 export interface ArchiveWriterOptions {
   dir: string;
@@ -131,14 +132,15 @@ class Writer implements RawArchiveWriter {
       this.#o.logger?.warn({ removed }, 'raw archive: removed leftovers of an interrupted gzip');
     this.#maintTimer = setInterval(() => {
       this.maintain().catch((err: unknown) =>
-        this.#o.logger?.error({ err }, 'raw archive maintenance failed'),
+        this.#o.logger?.error(errFields(err), 'raw archive maintenance failed'),
       );
     }, 60_000);
     this.#maintTimer.unref();
   }
 
   append(line: string, rxMs: number): Promise<void> {
-    if (this.#closed) return Promise.reject(new Error('REEFD_ARCHIVE_CLOSED: append after close()'));
+    if (this.#closed)
+      return Promise.reject(ARCHIVE_ERRORS.error('REEFD_ARCHIVE_CLOSED', 'append after close()'));
     return this.#enqueue(
       Buffer.from(/[\n\r]/.test(line) ? line.replace(/[\n\r]/g, ' ') : line, 'utf8'),
       rxMs,
@@ -146,7 +148,8 @@ class Writer implements RawArchiveWriter {
   }
 
   appendMessage(m: ArchiveMessage): Promise<void> {
-    if (this.#closed) return Promise.reject(new Error('REEFD_ARCHIVE_CLOSED: append after close()'));
+    if (this.#closed)
+      return Promise.reject(ARCHIVE_ERRORS.error('REEFD_ARCHIVE_CLOSED', 'append after close()'));
     return this.#enqueue(archiveLineBytes(m), m.rxMs);
   }
 

@@ -1,4 +1,5 @@
-// The CLI front door: help, version, unknown commands, and `config check` exit codes (contract section 5).
+// The CLI front door: help, version, unknown commands, `config check` exit codes (contract section 5) and
+// `config schema` (docs/contract-v1.md, commands).
 import { fileURLToPath } from 'node:url';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -80,5 +81,46 @@ describe('reefd config check', () => {
 
   it('exits 2 without a file', async () => {
     expect(await main(['config', 'check'], captureIo())).toBe(2);
+  });
+});
+
+describe('reefd config schema', () => {
+  it('prints the JSON Schema of the configuration on stdout and exits 0', async () => {
+    const io = captureIo();
+    expect(await main(['config', 'schema'], io)).toBe(0);
+    const printed = JSON.parse(io.text().stdout) as { $schema: string; properties: Record<string, unknown> };
+    expect(printed.$schema).toBe('http://json-schema.org/draft-07/schema#');
+    expect(Object.keys(printed.properties)).toContain('stations');
+    expect(io.text().stderr).toBe('');
+  });
+
+  it('exits 2 on an argument it does not take', async () => {
+    const io = captureIo();
+    expect(await main(['config', 'schema', 'extra'], io)).toBe(2);
+    expect(io.text().stderr).toContain('expected "check FILE" or "schema"');
+  });
+});
+
+// The systemd unit stops restarting on exit 2 (RestartPreventExitStatus=2, test/unit/systemd-unit.test.ts):
+// every configuration error of `reefd run` must exit 2, before anything is started.
+describe('reefd run on a configuration error', () => {
+  it('exits 2 with every problem for an invalid file', async () => {
+    const io = captureIo();
+    const bad = file('test/fixtures/config/invalid.yaml');
+    expect(await main(['run', '--config', bad, '--log-level', 'silent'], io)).toBe(2);
+    expect(io.text().stderr).toContain('reef_axis_deg');
+    const problems = io
+      .text()
+      .stderr.split('\n')
+      .filter((l) => l.startsWith(bad));
+    expect(problems.length).toBeGreaterThan(3);
+  });
+
+  it('exits 2 for a file that cannot be read', async () => {
+    const io = captureIo();
+    expect(await main(['run', '--config', '/nonexistent/reefd.yaml', '--log-level', 'silent'], io)).toBe(2);
+    expect(io.text().stderr).toMatch(
+      /^reefd run: REEFD_CONFIG_UNREADABLE: cannot read \/nonexistent\/reefd\.yaml: ENOENT.*check the path/,
+    );
   });
 });

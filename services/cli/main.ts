@@ -19,7 +19,7 @@ export const COMMANDS: Record<string, CommandEntry> = {
     load: () => import('./commands/replay.js'),
   },
   config: {
-    summary: 'validate a configuration file (config check FILE)',
+    summary: 'validate a configuration file (config check FILE) or print its JSON Schema (config schema)',
     load: () => import('./commands/config.js'),
   },
   carbonate: {

@@ -10,26 +10,26 @@ import {
   parseCalibrationText,
   type CalibrationEntry,
 } from '../../libs/calibration/index.js';
-import type { ReefdConfig } from '../../libs/contract/index.js';
+import { ReefdError, type ReefdConfig } from '../../libs/contract/index.js';
 import { parseLogbookText, type LogbookEntry } from '../../libs/logbook/index.js';
 import type { ProcessorOptions } from '../../libs/processor/index.js';
 
 export type FieldFileCode = 'REEFD_CALIBRATION_INVALID' | 'REEFD_LOGBOOK_INVALID' | 'REEFD_INPUT_MISSING';
 
 /** A calibration or logbook file that is missing or has problems; `problems` holds one line per problem. */
-export class FieldFileError extends Error {
-  readonly code: FieldFileCode;
+export class FieldFileError extends ReefdError<FieldFileCode> {
   readonly file: string;
   readonly problems: readonly string[];
 
   constructor(code: FieldFileCode, file: string, problems: readonly string[]) {
     super(
+      code,
       code === 'REEFD_INPUT_MISSING'
         ? `${file} does not exist (${problems.join('; ')})`
         : `${file} has ${problems.length} problem(s): ${problems.join('; ')}`,
+      { detail: { file, problems } },
     );
     this.name = 'FieldFileError';
-    this.code = code;
     this.file = file;
     this.problems = problems;
   }

@@ -2,6 +2,7 @@
 import { readFile, stat } from 'node:fs/promises';
 import path from 'node:path';
 import {
+  CORE_ERRORS,
   parseConfigText,
   ReefdError,
   type ConfigParse,
@@ -33,8 +34,9 @@ export async function loadConfigFile(file: string): Promise<ConfigParse> {
   try {
     text = await readFile(file, 'utf8');
   } catch (err) {
-    throw new ReefdError('REEFD_CONFIG_UNREADABLE', `cannot read ${file}: ${(err as Error).message}`, {
+    throw CORE_ERRORS.error('REEFD_CONFIG_UNREADABLE', `cannot read ${file}: ${(err as Error).message}`, {
       cause: err,
+      detail: { file },
     });
   }
   return parseConfigText(text);

@@ -19,6 +19,7 @@ import { operationalAlert } from './operational.js';
 import { createPipeline, type Pipeline } from './pipeline.js';
 import { resumeFromArchive } from './resume.js';
 import type { SilenceWatch } from './silence.js';
+import { errFields } from '../log/logger.js';
 
 export interface CoreState {
   processor: Processor;
@@ -61,7 +62,8 @@ function derivationConfig(c: ReefdConfig): unknown {
  * either is written at once, so a crash before the first periodic checkpoint resumes the same stream.
  */
 export async function buildState(ctx: StartContext): Promise<CoreState> {
-  const { config, logger } = ctx;
+  const { config } = ctx;
+  const logger = ctx.logger.child({ component: 'state' });
   const checkpointFile = path.join(ctx.dataDir, 'checkpoint.json');
   const cp = await readCheckpoint(checkpointFile);
   if (cp.warning) logger.warn({ code: cp.warning.code }, cp.warning.message);
@@ -110,7 +112,7 @@ export async function buildArchive(ctx: StartContext): Promise<{ writer: RawArch
     fsyncMs: config.archive.fsync_ms,
     retentionDays: config.archive.retention_days,
     clock: ctx.clock,
-    logger: ctx.logger,
+    logger: ctx.logger.child({ component: 'archive' }),
   });
   ctx.life.add('raw archive', writer, (w) => w.close());
   return { writer, dir };
@@ -128,7 +130,8 @@ export async function buildPipeline(
   outputs: Outputs,
   silence: SilenceWatch,
 ): Promise<Pipeline> {
-  const { config, logger } = ctx;
+  const { config } = ctx;
+  const logger = ctx.logger.child({ component: 'pipeline' });
   let diskFullAtMs = Number.NEGATIVE_INFINITY;
   const pipeline = createPipeline({
     config,
@@ -185,7 +188,7 @@ export function buildCheckpointer(
   silence: SilenceWatch,
   everyMs: number,
 ): Checkpointer {
-  const { logger } = ctx;
+  const logger = ctx.logger.child({ component: 'checkpoint' });
   async function checkpoint(settleMs = 20_000): Promise<void> {
     // State and stream are taken together between two processor steps; then everything they cover is made
     // durable before the checkpoint may claim it: the bridge (edge mode) and the records the outputs still
@@ -214,7 +217,7 @@ export function buildCheckpointer(
     await writeCheckpoint(state.checkpointFile, taken.state, taken.stream, { silence: taken.silence });
   }
   const timer = setInterval(() => {
-    checkpoint().catch((err: unknown) => logger.error({ err }, 'checkpoint failed'));
+    checkpoint().catch((err: unknown) => logger.error(errFields(err), 'checkpoint failed'));
   }, everyMs);
   timer.unref();
   const spoolTimer = setInterval(() => {
@@ -245,7 +248,7 @@ export function buildCheckpointer(
       // The outputs had their flush above: a second chance of 1 s keeps the exit within 10 s.
       await checkpoint(1000);
     } catch (err) {
-      logger.error({ err }, 'final checkpoint failed');
+      logger.error(errFields(err), 'final checkpoint failed');
     }
   });
   return { checkpoint };

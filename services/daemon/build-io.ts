@@ -25,6 +25,7 @@ import type { StartContext } from './context.js';
 import { operationalAlert } from './operational.js';
 import { createOutputs, resolveSasl, tlsFiles } from './outputs.js';
 import { createSystemdNotifier } from './systemd.js';
+import { errFields } from '../log/logger.js';
 
 type MqttSourceConfig = NonNullable<NonNullable<ReefdConfig['sources']>['mqtt']>;
 
@@ -44,7 +45,8 @@ async function auxMqtt(ctx: StartContext, m: MqttSourceConfig, role: string): Pr
     ...(password !== undefined ? { password } : {}),
     ...(tlsOptions(tlsFiles(ctx.baseDir, m.tls)) as Record<string, unknown>),
   });
-  client.on('error', (err) => ctx.logger.warn({ err, role }, 'auxiliary mqtt client error'));
+  const logger = ctx.logger.child({ component: 'clients' });
+  client.on('error', (err) => logger.warn({ ...errFields(err), role }, 'auxiliary mqtt client error'));
   return ctx.life.add(`mqtt client ${role}`, client, (c) => c.endAsync());
 }
 
@@ -65,12 +67,16 @@ export async function buildClients(ctx: StartContext): Promise<Clients> {
       clientId: `${kc.client_id}-deadletter`,
       tls: tlsFiles(ctx.baseDir, kc.tls),
       sasl: await resolveSasl({ env: ctx.env, baseDir: ctx.baseDir }, kc.sasl),
-      logger: ctx.logger,
+      logger: ctx.logger.child({ component: 'clients' }),
     }).producer();
     ctx.life.add('dead-letter kafka producer', producer, (p) => p.disconnect());
     await producer
       .connect()
-      .catch((err: unknown) => ctx.logger.warn({ err }, 'dead-letter kafka producer not connected yet'));
+      .catch((err: unknown) =>
+        ctx.logger
+          .child({ component: 'clients' })
+          .warn(errFields(err), 'dead-letter kafka producer not connected yet'),
+      );
     out.deadLetterKafka = { publisher: kafkaPublisher(producer), topic: dl.kafka_topic };
   }
   const notify = config.notify;
@@ -92,20 +98,24 @@ export async function buildNotifier(ctx: StartContext, clients: Clients): Promis
     ...(clients.notifyMqtt ? { mqtt: clients.notifyMqtt } : {}),
     dashboard: (m) => ctx.notices.publish(m),
   });
+  const logger = ctx.logger.child({ component: 'notifier' });
   const notifier = createNotifier({
     dir: alertsStateDir(ctx.dataDir),
     site: ctx.config.site,
     channels,
     ...notifierOptionsFromConfig(notify),
     onError: (err, channelId) =>
-      ctx.logger.warn({ channel: channelId, err }, 'notification failed; retrying'),
+      logger.warn({ channel: channelId, ...errFields(err) }, 'notification failed; retrying'),
   });
   await notifier.start();
   const enqueue = (r: DerivedRecord) =>
     notifier
       .enqueue(r as never)
       .catch((err: unknown) =>
-        ctx.logger.error({ err, rule: (r as { rule?: string }).rule }, 'alert not queued for notification'),
+        logger.error(
+          { ...errFields(err), rule: (r as { rule?: string }).rule },
+          'alert not queued for notification',
+        ),
       );
   const unsubscribe = ctx.bus.subscribe((records) => {
     for (const r of records) if (r.type === 'alert') void enqueue(r);
@@ -123,7 +133,8 @@ export interface Outputs {
 
 /** Step 5: the record outputs, each writing every stream position once, and the dead-letter output. */
 export async function buildOutputs(ctx: StartContext, clients: Clients, epoch: string): Promise<Outputs> {
-  const { config, logger } = ctx;
+  const { config } = ctx;
+  const logger = ctx.logger.child({ component: 'outputs' });
   const authSince = new Map<string, number>();
   const sinks = await createOutputs({
     config,
@@ -182,7 +193,8 @@ export async function buildOutputs(ctx: StartContext, clients: Clients, epoch: s
 
 /** Step 9: the sources, started last; they push into the intake. Stopping them is the first step of a stop. */
 export async function buildSources(ctx: StartContext, push: (input: RawInput) => void): Promise<Source[]> {
-  const { config, logger } = ctx;
+  const { config } = ctx;
+  const logger = ctx.logger.child({ component: 'sources' });
   const sources: Source[] = [];
   const src = config.sources;
   if (src?.mqtt) {

@@ -309,3 +309,41 @@ notify: { channels: { hook: { type: webhook, url: "http://127.0.0.1:9/none", sec
     expect(io.text().stderr).toMatch(/REEFD_NO_SOURCE: .* has no sources.*add sources\.mqtt/);
   });
 });
+
+describe('the daemon on /metrics', () => {
+  it('shows its source connected, the sensors it heard and their age, and lets go of them at stop (logs name their component)', async () => {
+    const folder = await mkdtemp(path.join(dir, 'metrics-'));
+    await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });
+    const metrics = createMetrics(false);
+    const nowMs = Date.UTC(2026, 2, 1) + 10 * 60_000;
+    const logs: { msg: string; component?: string }[] = [];
+    const logger = pino(
+      { level: 'info' },
+      { write: (line: string) => void logs.push(JSON.parse(line) as (typeof logs)[number]) },
+    );
+    const d = await startDaemon({
+      config: siteConfig(folder),
+      baseDir: folder,
+      logger,
+      env: {},
+      mqttProtocolVersion: 4,
+      metrics,
+      clock: () => nowMs,
+    });
+    await until('the source connected', () => d.ready());
+    await publish('hermetic', 0, 2);
+    await until('both sensors seen', () => d.processor.sensorHealth().length === 2);
+    const text = await metrics.registry.metrics();
+    expect(text).toMatch(/^reefd_source_connected\{source="[^"]+"\} 1$/m);
+    // The last messages are at minute 1; the daemon's clock says minute 10: 540 s.
+    expect(text).toContain('reefd_sensor_last_seen_age_seconds{station="s1",sensor="c1",kind="ctd"} 540');
+    expect(text).toContain('reefd_sensor_last_seen_age_seconds{station="s1",sensor="o1",kind="oxygen"} 540');
+    expect(text).toMatch(/^reefd_build_info\{version="\d+\.\d+\.\d+",node="v\d+/m);
+    await d.stop('test');
+    expect(d.bus.size()).toBe(0);
+    expect(await metrics.registry.metrics()).not.toContain('reefd_source_connected{');
+    // Each part logs through its own child logger, so a line names the component it comes from.
+    expect(logs.find((l) => l.msg === 'mqtt connected')?.component).toBe('sources');
+    expect(logs.find((l) => l.msg === 'reefd started')?.component).toBeUndefined();
+  }, 40_000);
+});

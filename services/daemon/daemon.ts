@@ -15,10 +15,11 @@ import { createBus, type Bus, type RecordBus } from './bus.js';
 import type { StartContext } from './context.js';
 import { resolveDataDir } from '../config/load.js';
 import { Lifecycle } from './lifecycle.js';
-import { createMetrics, type DaemonMetrics } from './metrics.js';
+import { ActiveAlerts, createMetrics, type DaemonMetrics } from './metrics.js';
 import { secretResolver } from './outputs.js';
 import { buildSilenceWatch } from './silence.js';
 import type { Pipeline } from './pipeline.js';
+import { errFields } from '../log/logger.js';
 
 export type { RecordBus } from './bus.js';
 
@@ -68,7 +69,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const dataDir = resolveDataDir(config, o.baseDir, o.env);
   await mkdir(dataDir, { recursive: true });
   const life = new Lifecycle(logger);
-  const onBusError = (err: unknown) => logger.error({ err }, 'a record bus subscriber failed');
+  const onBusError = (err: unknown) => logger.error(errFields(err), 'a record bus subscriber failed');
   const ctx: StartContext = {
     config,
     baseDir: o.baseDir,
@@ -83,10 +84,16 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     clock: o.clock ?? Date.now,
     mqttProtocolVersion: o.mqttProtocolVersion ?? 5,
   };
+  // Unsubscribed (and the metrics' probes let go) once the parts are closed, on a stop or a failed start.
+  let offAlerts: (() => void) | undefined;
   try {
     const clients = await buildClients(ctx);
     const notifier = await buildNotifier(ctx, clients);
     const state = await buildState(ctx);
+    // Alerts raised and not cleared, for /metrics: those restored, then every alert record published.
+    const activeAlerts = new ActiveAlerts();
+    activeAlerts.seed(state.processor.activeAlerts());
+    offAlerts = ctx.bus.subscribe((records) => activeAlerts.observe(records));
     const archive = await buildArchive(ctx);
     const outputs = await buildOutputs(ctx, clients, state.stream.epoch);
     // The site's wall-clock dead-man (`site_silent`): fed by the pipeline, writes to the outputs and the bus.
@@ -101,7 +108,14 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
       silence,
       o.checkpointEveryMs ?? 30_000,
     );
-    const sources: Source[] = await buildSources(ctx, (input) => void pipeline.handle(input));
+    const sources: Source[] = [];
+    ctx.metrics.observe({
+      nowMs: ctx.clock,
+      sources: () => sources,
+      sensors: () => state.processor.sensorHealth(),
+      activeAlerts: () => activeAlerts.list(),
+    });
+    sources.push(...(await buildSources(ctx, (input) => void pipeline.handle(input))));
     buildSystemd(ctx);
     logger.info({ parts: life.names(), dataDir, epoch: state.stream.epoch }, 'reefd started');
 
@@ -132,14 +146,18 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
         stopping ??= (async () => {
           logger.info({ reason }, 'stopping: intake first, then flush and checkpoint');
           await life.closeAll(STOP_DEADLINE_MS);
+          ctx.metrics.observe(undefined);
+          offAlerts?.();
           logger.info({ stats: pipeline.stats() }, 'stopped');
         })();
         return stopping;
       },
     };
   } catch (err) {
-    logger.error({ err, parts: life.names() }, 'start failed; stopping what was started');
+    logger.error({ ...errFields(err), parts: life.names() }, 'start failed; stopping what was started');
     await life.closeAll(5000);
+    ctx.metrics.observe(undefined);
+    offAlerts?.();
     throw err;
   }
 }

@@ -9,6 +9,7 @@ import type { Logger } from '../log/logger.js';
 import { alertsStateDir, watchAcks } from '../notifiers/index.js';
 import { createRecordStore, recordsDir } from '../records/index.js';
 import type { Daemon } from './daemon.js';
+import { errFields } from '../log/logger.js';
 
 export interface HttpFront {
   url: string;
@@ -27,6 +28,7 @@ export interface HttpOptions {
 }
 
 export async function startHttp(o: HttpOptions): Promise<HttpFront> {
+  const logger = o.logger.child({ component: 'http' });
   const token = o.config.http.token ? await resolveSecret(o.config.http.token, o.env, o.baseDir) : undefined;
   // The one-file history of earlier versions, rewritten whole every minute: replaced by dashboard-history/.
   await rm(path.join(o.daemon.dataDir, 'dashboard-history.ndjson'), { force: true });
@@ -40,7 +42,7 @@ export async function startHttp(o: HttpOptions): Promise<HttpFront> {
   const offStore = o.daemon.bus.subscribe((records) => {
     store
       .append(records)
-      .catch((err: unknown) => o.logger.warn({ err }, 'records not kept for /api/records'));
+      .catch((err: unknown) => logger.warn(errFields(err), 'records not kept for /api/records'));
   });
   const maintain = setInterval(() => void store.maintain().catch(() => undefined), 3_600_000);
   maintain.unref();
@@ -56,14 +58,15 @@ export async function startHttp(o: HttpOptions): Promise<HttpFront> {
     acks: o.daemon.notifier,
     query: recordStoreQuery(store, 'record history'),
     historyDir: path.join(o.daemon.dataDir, 'dashboard-history'),
-    logger: o.logger,
+    logger,
     portAttempts: o.tryNextPorts ? 10 : 0,
     metrics: () => o.daemon.metrics.registry.metrics(),
     ready: () => o.daemon.ready(),
   });
   // `reefd alerts ack` appends to the notifier's journal: the page shows it within a second or two.
   const acks = watchAcks(alertsStateDir(o.daemon.dataDir), () => void o.daemon.notifier.syncAcks(), {
-    onError: (err) => o.logger.debug({ err }, 'no watch on the acknowledgement journal; read every 30 s'),
+    onError: (err) =>
+      logger.debug(errFields(err), 'no watch on the acknowledgement journal; read every 30 s'),
   });
   // The notifier's dashboard channel: its notices on the page's banner, until the page closes.
   const offNotices = o.daemon.notices.subscribe((m) => {

@@ -3,6 +3,7 @@
 // else uses (clients) stop last. Each close runs even when an earlier one failed; a close that hangs is
 // cut off at the deadline so the process can still exit.
 import type { Logger } from '../log/logger.js';
+import { errFields } from '../log/logger.js';
 
 interface Part {
   name: string;
@@ -44,7 +45,7 @@ export class Lifecycle {
           const r = await Promise.race([part.close().then(() => 'ok' as const), cut]);
           if (r === 'timeout') this.#logger.warn({ part: part.name }, 'stop: part did not close in time');
         } catch (err) {
-          this.#logger.error({ err, part: part.name }, 'stop: part failed to close');
+          this.#logger.error({ ...errFields(err), part: part.name }, 'stop: part failed to close');
         } finally {
           clearTimeout(timer);
         }

@@ -18,6 +18,7 @@ import {
 import type { DerivedRecord } from '../../libs/contract/index.js';
 import type { RecordSink } from '../pipeline/types.js';
 import type { StartContext } from './context.js';
+import { errFields } from '../log/logger.js';
 
 export interface SilenceWatch {
   /** A message of the site was accepted (received, valid, archived) at wall time `rxMs`. */
@@ -32,7 +33,8 @@ export function buildSilenceWatch(
   sinks: readonly RecordSink[],
   saved: SiteSilenceState | undefined,
 ): SilenceWatch {
-  const { config, logger } = ctx;
+  const { config } = ctx;
+  const logger = ctx.logger.child({ component: 'silence' });
   const cfg = resolveRules(config.alerts).silence;
   const now = ctx.clock();
   const st: SiteSilenceState =
@@ -52,7 +54,7 @@ export function buildSilenceWatch(
       );
     for (const s of sinks) {
       s.write(records);
-      s.flush().catch((err: unknown) => logger.error({ err, sink: s.name }, 'flush failed'));
+      s.flush().catch((err: unknown) => logger.error({ ...errFields(err), sink: s.name }, 'flush failed'));
     }
     ctx.bus.publish(records);
   };

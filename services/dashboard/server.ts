@@ -9,7 +9,7 @@ import { readFileSync } from 'node:fs';
 import { createServer, type IncomingMessage, type ServerResponse } from 'node:http';
 import path from 'node:path';
 import type { DerivedRecord, RecordType, ReefdConfig } from '../../libs/contract/index.js';
-import type { Logger } from '../log/logger.js';
+import { errFields, type Logger } from '../log/logger.js';
 import { packageRoot } from '../paths.js';
 import { AlertBook, type AckStore } from './alert-book.js';
 import { ackRequestSchema, historyQuerySchema, recordsQuerySchema, type SensorsBody } from './api-schemas.js';
@@ -101,7 +101,7 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
     ? new HistoryLog({
         dir: opts.historyDir,
         windowMs,
-        onError: (err) => opts.logger.warn({ err }, 'dashboard history not saved'),
+        onError: (err) => opts.logger.warn(errFields(err), 'dashboard history not saved'),
       })
     : undefined;
   const history = new RecordHistory({
@@ -312,7 +312,7 @@ export async function createDashboardServer(opts: DashboardOptions): Promise<Das
 
   const server = createServer((req, res) => {
     handle(req, res).catch((err: unknown) => {
-      opts.logger.error({ err, url: req.url }, 'dashboard request failed');
+      opts.logger.error({ ...errFields(err), url: req.url }, 'dashboard request failed');
       if (!res.headersSent) fail(res, 500, 'REEFD_DASHBOARD_INTERNAL', 'internal error; see the daemon log');
       else res.end();
     });

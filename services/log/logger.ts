@@ -1,6 +1,7 @@
 // pino logging for every service: JSON by default, pretty on a terminal. Secrets never reach a log line:
 // fields named like secrets are redacted wherever they appear.
 import { pino, type Logger, type LevelWithSilent } from 'pino';
+import { errorCode } from '../../libs/contract/index.js';
 
 export type { Logger };
 
@@ -44,4 +45,13 @@ export function createLogger(opts: LoggerOptions = {}): Logger {
     { level, redact: { paths: REDACT, censor: '[redacted]' } },
     pino.destination({ fd, sync: false }),
   );
+}
+
+/**
+ * The fields of a log line about an error: the error itself (pino keeps its message, stack and cause) and its
+ * stable code beside it, so a log search can select by code (`REEFD_...`, or a system code such as ENOSPC).
+ */
+export function errFields(err: unknown): { err: unknown; code?: string } {
+  const code = errorCode(err);
+  return code === undefined ? { err } : { err, code };
 }

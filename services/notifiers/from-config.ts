@@ -9,6 +9,7 @@ import { createWebhookChannel } from './channels/webhook.js';
 import type { NotificationMessage } from './messages.js';
 import type { NotifierOptions } from './notifier.js';
 import { resolveSecret } from '../config/load.js';
+import { NOTIFY_ERRORS } from './errors.js';
 
 export interface ChannelDeps {
   readonly site: string;
@@ -59,7 +60,8 @@ export async function channelsFromConfig(cfg: NotifyConfig, deps: ChannelDeps): 
         break;
       }
       case 'mqtt':
-        if (!deps.mqtt) throw new Error(`REEFD_NOTIFY_NO_MQTT: channel ${id} needs the daemon's MQTT client`);
+        if (!deps.mqtt)
+          throw NOTIFY_ERRORS.error('REEFD_NOTIFY_NO_MQTT', `channel ${id}`, { detail: { channel: id } });
         ch = createMqttChannel({
           id,
           client: deps.mqtt,

@@ -4,6 +4,7 @@
 
 import { mkdir, open, readFile, rename, stat, type FileHandle } from 'node:fs/promises';
 import { dirname } from 'node:path';
+import { NOTIFY_ERRORS } from './errors.js';
 
 export class Journal {
   readonly path: string;
@@ -32,7 +33,10 @@ export class Journal {
     const run = async (): Promise<void> => {
       const fh = this.#fh;
       if (fh === null)
-        throw new Error(`REEFD_NOTIFY_JOURNAL_CLOSED: ${this.path} is not open; call start() first`);
+        throw NOTIFY_ERRORS.error(
+          'REEFD_NOTIFY_JOURNAL_CLOSED',
+          `${this.path} is not open; call start() first`,
+        );
       await fh.appendFile(text, 'utf8');
       await fh.sync();
       this.#lines += records.length;

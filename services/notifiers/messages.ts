@@ -2,6 +2,7 @@
 // sensors going stale at once), a digest when many are queued, and "still active" reminders.
 
 import type { AlertRecord } from '../../libs/alerts/index.js';
+import { NOTIFY_ERRORS } from './errors.js';
 
 export type MessageKind = 'alerts' | 'reminder' | 'digest';
 
@@ -56,7 +57,7 @@ export function groupItems(items: readonly QueuedItem[]): QueuedItem[][] {
 export function groupMessage(site: string, items: readonly QueuedItem[]): NotificationMessage {
   const first = items[0];
   if (first === undefined)
-    throw new RangeError('REEFD_NOTIFY_EMPTY_GROUP: a message needs at least one alert');
+    throw NOTIFY_ERRORS.error('REEFD_NOTIFY_EMPTY_GROUP', 'a message needs at least one alert');
   const a = first.alert;
   const kind: MessageKind = first.kind === 'reminder' ? 'reminder' : 'alerts';
   const state = first.kind === 'reminder' ? 'still raised' : a.state;

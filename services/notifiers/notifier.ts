@@ -29,6 +29,7 @@ import {
   type OutboxState,
 } from './outbox-state.js';
 import { nextRetryDelayMs, type RetryPolicy } from './retry.js';
+import { NOTIFY_ERRORS } from './errors.js';
 
 export interface Clock {
   now(): number;
@@ -151,9 +152,7 @@ export function createNotifier(o: NotifierOptions): Notifier {
   const ids = new Set<string>();
   for (const c of o.channels) {
     if (ids.has(c.id))
-      throw new Error(
-        `REEFD_NOTIFY_DUPLICATE_CHANNEL: channel id "${c.id}" is used twice; ids must be unique`,
-      );
+      throw NOTIFY_ERRORS.error('REEFD_NOTIFY_DUPLICATE_CHANNEL', `channel id "${c.id}" is used twice`);
     ids.add(c.id);
   }
 
@@ -345,7 +344,7 @@ export function createNotifier(o: NotifierOptions): Notifier {
       await acks.close();
     },
     async enqueue(input) {
-      if (!started) throw new Error('REEFD_NOTIFY_NOT_STARTED: call start() before enqueue()');
+      if (!started) throw NOTIFY_ERRORS.error('REEFD_NOTIFY_NOT_STARTED', 'call start() before enqueue()');
       const alert = normaliseAlert(input);
       await record([
         { op: 'enq', seq: ++seqAlloc, kind: 'alert', at: clock.now(), alert, ch: channelsFor(alert) },
@@ -353,7 +352,7 @@ export function createNotifier(o: NotifierOptions): Notifier {
       if (running === null) schedule();
     },
     async ack(id, by, comment) {
-      if (!started) throw new Error('REEFD_NOTIFY_NOT_STARTED: call start() before ack()');
+      if (!started) throw NOTIFY_ERRORS.error('REEFD_NOTIFY_NOT_STARTED', 'call start() before ack()');
       await readAcks();
       const ep = st.episodes.get(id);
       if (ep === undefined) {

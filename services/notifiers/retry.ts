@@ -3,15 +3,14 @@
 // helper (services/sinks/retry.ts: exponential with full jitter); only the outbox's rule for errors a retry
 // cannot fix differs, and lives here.
 import { backoffDelayMs } from '../sinks/retry.js';
+import { ReefdError } from '../../libs/contract/index.js';
+import type { NotifyErrorCode } from './errors.js';
 
-export class NotifyError extends Error {
-  readonly code: string;
-  readonly retriable: boolean;
-  constructor(code: string, message: string, retriable: boolean, options?: { cause?: unknown }) {
-    super(`${code}: ${message}`, options);
+/** A channel's failure: a code of the notifiers' catalogue and whether this case can be retried. */
+export class NotifyError extends ReefdError<NotifyErrorCode> {
+  constructor(code: NotifyErrorCode, message: string, retriable: boolean, options?: { cause?: unknown }) {
+    super(code, `${code}: ${message}`, { retriable, cause: options?.cause });
     this.name = 'NotifyError';
-    this.code = code;
-    this.retriable = retriable;
   }
 }
 

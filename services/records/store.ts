@@ -12,9 +12,11 @@ import { createInterface } from 'node:readline';
 import {
   derivedRecordSchema,
   recordKey,
+  ReefdError,
   type DerivedRecord,
   type RecordType,
 } from '../../libs/contract/index.js';
+import { RECORDS_ERRORS, type RecordsErrorCode } from './errors.js';
 
 const DAY_MS = 86_400_000;
 const FILE = /^records-(\d{4}-\d{2}-\d{2})\.ndjson$/;
@@ -80,8 +82,13 @@ function decodeCursor(s: string): Cursor | undefined {
   }
 }
 
-export class RecordStoreError extends Error {
-  readonly code = 'REEFD_RECORDS_BAD_QUERY';
+/** A query the store cannot answer (bad limit or cursor); never retriable. */
+export class RecordStoreError extends ReefdError<RecordsErrorCode> {
+  constructor(what: string) {
+    const code = 'REEFD_RECORDS_BAD_QUERY';
+    super(code, `${what}`, { detail: { hint: RECORDS_ERRORS.text(code) } });
+    this.name = 'RecordStoreError';
+  }
 }
 
 /** True when the record is one the query asks for (the time range is checked by the caller). */

@@ -7,17 +7,9 @@ import { mkdir, open, readFile, rename } from 'node:fs/promises';
 import path from 'node:path';
 import { ID_PATTERN } from '../../libs/contract/index.js';
 import type { ProcessorState } from '../../libs/processor/index.js';
+import { ScaleoutError } from './errors.js';
 
-/** Errors of the scale-out store, with stable codes (REEFD_SCALEOUT_*). */
-export class ScaleoutError extends Error {
-  constructor(
-    readonly code: 'REEFD_SCALEOUT_BAD_SITE' | 'REEFD_SCALEOUT_STATE_CORRUPT',
-    message: string,
-  ) {
-    super(`${code}: ${message}`);
-    this.name = 'ScaleoutError';
-  }
-}
+export { ScaleoutError };
 
 export interface SiteStateEntry {
   site: string;

@@ -18,8 +18,3 @@ export {
 export { SpooledSink, type SpooledSinkOptions } from './spooled-sink.js';
 export { retry, backoffDelayMs, realSleep, type RetryOptions, type Sleep } from './retry.js';
 export { tlsOptions, type TlsFiles } from './http.js';
-export {
-  influxSinkOptionsFromConfig,
-  kafkaSinkOptionsFromConfig,
-  type SecretResolver,
-} from './from-config.js';

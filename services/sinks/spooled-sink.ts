@@ -13,7 +13,7 @@
 // destination already holds (kafka-sink.ts, influx-sink.ts) and says how many it skipped.
 import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { RecordSink, SinkStats } from '../pipeline/types.js';
-import type { Logger } from '../log/logger.js';
+import { errFields, type Logger } from '../log/logger.js';
 import { retry, realSleep, type Sleep } from './retry.js';
 import { Spool } from './spool.js';
 
@@ -89,7 +89,7 @@ export class SpooledSink implements RecordSink {
     // A spool left near its bound by an earlier run is reported at once.
     this.#checkNear();
     this.#pump = this.#run().catch((err: unknown) => {
-      this.#o.logger.error({ err, sink: this.name }, 'sink stopped on an unexpected error');
+      this.#o.logger.error({ ...errFields(err), sink: this.name }, 'sink stopped on an unexpected error');
     });
   }
 

@@ -2,4 +2,3 @@
 export { createMqttSource, type MqttSource, type MqttSourceOptions } from './mqtt-source.js';
 export { createKafkaSource, type KafkaSource, type KafkaSourceOptions } from './kafka-source.js';
 export { kafkaTopicOf } from './kafka-topic.js';
-export { mqttSourceOptionsFromConfig, kafkaSourceOptionsFromConfig } from './from-config.js';

@@ -1,13 +1,20 @@
 // `reefd config check FILE`: validates a configuration; exit 0 with a one-line summary, 2 with every problem.
+// `reefd config schema`: prints the configuration's JSON Schema (for editors; docs/reefd-config.schema.json).
 import { parseArgs } from 'node:util';
-import { formatProblem } from '../../../libs/contract/index.js';
+import { configJsonSchema, formatProblem } from '../../../libs/contract/index.js';
 import { loadConfigFile } from '../../config/load.js';
 import { EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
 
 const HELP = `Usage: reefd config check FILE
+       reefd config schema
 
-Validates a reefd configuration file (YAML). Prints every problem as
-"path: message (line N)" and exits 2, or prints a one-line summary and exits 0.
+check   Validates a reefd configuration file (YAML). Prints every problem as
+        "path: message (line N)" and exits 2, or prints a one-line summary and exits 0.
+schema  Prints the JSON Schema (draft-07) of the configuration file on stdout, for
+        editors: save it and name it on the first line of a site file,
+        # yaml-language-server: $schema=reefd-config.schema.json
+        A copy ships as docs/reefd-config.schema.json. config check also checks what
+        a schema cannot (transects against their stations, time zone names).
 `;
 
 export const run: CommandRun = async (args, io) => {
@@ -22,8 +29,12 @@ export const run: CommandRun = async (args, io) => {
     return EXIT_OK;
   }
   const [sub, file, ...rest] = positionals;
+  if (sub === 'schema' && file === undefined) {
+    io.stdout(`${JSON.stringify(configJsonSchema(), null, 2)}\n`);
+    return EXIT_OK;
+  }
   if (sub !== 'check' || file === undefined || rest.length > 0) {
-    io.stderr(`reefd config: expected "check FILE"\n\n${HELP}`);
+    io.stderr(`reefd config: expected "check FILE" or "schema"\n\n${HELP}`);
     return EXIT_USAGE;
   }
   let result;

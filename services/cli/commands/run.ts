@@ -7,7 +7,7 @@ import { loadConfigFile } from '../../config/load.js';
 import { startDaemon, type Daemon } from '../../daemon/daemon.js';
 import { prepareDemo, type DemoSetup } from '../../daemon/demo.js';
 import { startHttp, type HttpFront } from '../../daemon/http.js';
-import { createLogger, LOG_LEVELS, type Logger } from '../../log/logger.js';
+import { createLogger, errFields, LOG_LEVELS, type Logger } from '../../log/logger.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
 import { parseCommand } from '../args.js';
 
@@ -108,7 +108,7 @@ export const run: CommandRun = async (args, io) => {
     });
   } catch (err) {
     // startDaemon has closed whatever it had started: returning lets the process exit.
-    logger.fatal({ err, code: (err as { code?: string }).code }, 'reefd could not start');
+    logger.fatal(errFields(err), 'reefd could not start');
     await demo?.broker.close();
     await flushLogger(logger);
     return EXIT_FAILURE;
@@ -124,7 +124,7 @@ export const run: CommandRun = async (args, io) => {
       tryNextPorts: demo !== undefined || port === undefined,
     });
   } catch (err) {
-    logger.fatal({ err }, 'reefd could not open its HTTP port');
+    logger.fatal(errFields(err), 'reefd could not open its HTTP port');
     await daemon.stop('http failed');
     await demo?.broker.close();
     await flushLogger(logger);
