@@ -258,7 +258,7 @@ describe('the daemon with no outside service', () => {
     await ok.stop('test');
   });
 
-  it('`reefd run` exits 1 instead of hanging when the start fails after the notifier started', async () => {
+  it('`reefd run` exits (2: a secret readable by others is for the operator to fix) instead of hanging when the start fails after the notifier started', async () => {
     const folder = await mkdtemp(path.join(dir, 'child-'));
     await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });
     await writeFile(path.join(folder, 'mqtt.pass'), 'pw');
@@ -297,7 +297,8 @@ notify: { channels: { hook: { type: webhook, url: "http://127.0.0.1:9/none", sec
         resolve(code);
       });
     });
-    expect(exit).toBe(1);
+    // Exit 2: only the operator can fix it, so systemd does not restart into it (RestartPreventExitStatus=2).
+    expect(exit).toBe(2);
     expect(err).toContain('REEFD_SECRET_PERMISSIONS');
   }, 40_000);
 

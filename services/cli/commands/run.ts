@@ -111,7 +111,7 @@ export const run: CommandRun = async (args, io) => {
     logger.fatal(errFields(err), 'reefd could not start');
     await demo?.broker.close();
     await flushLogger(logger);
-    return EXIT_FAILURE;
+    return isOperatorFix(err) ? EXIT_USAGE : EXIT_FAILURE;
   }
   try {
     http = await startHttp({
@@ -163,4 +163,21 @@ export const run: CommandRun = async (args, io) => {
 
 function flushLogger(logger: Logger): Promise<void> {
   return new Promise((r) => logger.flush(() => r()));
+}
+
+/**
+ * Start failures that a restart cannot cure, only the operator: a secret file readable by others or
+ * missing, a calibration file or field log that is missing or invalid. They exit 2 like a configuration
+ * error, so the systemd unit (RestartPreventExitStatus=2) does not restart into the same failure.
+ */
+const OPERATOR_FIX = new Set([
+  'REEFD_SECRET_PERMISSIONS',
+  'REEFD_SECRET_MISSING',
+  'REEFD_CALIBRATION_INVALID',
+  'REEFD_LOGBOOK_INVALID',
+  'REEFD_INPUT_MISSING',
+]);
+function isOperatorFix(err: unknown): boolean {
+  const code = (err as { code?: unknown } | null)?.code;
+  return typeof code === 'string' && OPERATOR_FIX.has(code);
 }
