@@ -272,7 +272,9 @@ export class SpooledSink implements RecordSink {
       this.#authTrouble(err);
       this.#o.logger.warn(
         { sink: this.name, err: (err as Error).message, code: (err as { code?: string }).code },
-        'destination unreachable; spooling to disk',
+        isDiskFull(err)
+          ? 'delivery ledger cannot be saved (disk full); the batch waits and is sent again'
+          : 'destination unreachable; spooling to disk',
       );
       this.#mem.unshift(...batch);
       await this.#spill();
