@@ -40,7 +40,14 @@ const flux = (tMs: number, ncp: number, extra: Record<string, unknown> = {}) =>
     ...extra,
   }) as DerivedRecord;
 
-async function store(opts: { retentionDays?: number; maxTotalMb?: number; now?: number } = {}) {
+async function store(
+  opts: {
+    retentionDays?: number;
+    maxTotalMb?: number;
+    now?: number;
+    appendLines?: (file: string, lines: readonly string[]) => Promise<void>;
+  } = {},
+) {
   const dir = await mkdtemp(path.join(os.tmpdir(), 'reefd-records-'));
   const s = await createRecordStore({
     dir,
@@ -48,11 +55,33 @@ async function store(opts: { retentionDays?: number; maxTotalMb?: number; now?: 
     fsyncMs: 5,
     clock: () => opts.now ?? T0,
     ...(opts.maxTotalMb !== undefined ? { maxTotalMb: opts.maxTotalMb } : {}),
+    ...(opts.appendLines !== undefined ? { appendLines: opts.appendLines } : {}),
   });
   return { dir, s };
 }
 
 describe('record store', () => {
+  it('loses nothing on a full disk: the lines wait and are written once space returns', async () => {
+    let fullFor = 2;
+    const tries: number[] = [];
+    const { dir, s } = await store({
+      appendLines: async (file, lines) => {
+        tries.push(lines.length);
+        if (fullFor-- > 0)
+          throw Object.assign(new Error('ENOSPC: no space left on device, write'), { code: 'ENOSPC' });
+        await appendFile(file, lines.join('\n') + '\n');
+      },
+    });
+    const first = s.append([oxygen(T0 + MIN, 'back', 200)]);
+    const second = s.append([oxygen(T0 + 2 * MIN, 'back', 201)]);
+    // Both appends resolve (nothing rejected): they waited for the disk, not dropped.
+    await Promise.all([first, second]);
+    expect(tries).toEqual([2, 2, 2]);
+    expect((await s.query({ station: 'back' })).records.map((r) => r.o2_umol_kg)).toEqual([200, 201]);
+    expect((await readFile(path.join(dir, 'records-2026-07-14.ndjson'), 'utf8')).split('\n')).toHaveLength(3);
+    await s.close();
+  });
+
   it('writes day files by event time and answers queries by type, station, transect and time', async () => {
     const { dir, s } = await store();
     await s.append([

@@ -4,7 +4,9 @@
 // the day files of the range one at a time, keep the latest revision of each record (record-types.ts
 // recordKey), and page in (t, identity) order with an opaque cursor, so memory is bounded by one day's
 // matches and a page, whatever the history holds. A crash can cut the last line of a file short: readers
-// skip it and the next append starts a new line.
+// skip it and the next append starts a new line. A full disk loses nothing: the lines wait in memory, in
+// order, and are written again after a backoff (at most 5 s); appends resolve once they are on disk. The
+// intake stops on the same full disk (the archive refuses), so what waits is bounded.
 import { mkdir, open, readdir, rm, stat } from 'node:fs/promises';
 import { createReadStream } from 'node:fs';
 import path from 'node:path';
@@ -30,6 +32,8 @@ export interface RecordStoreOptions {
   /** Longest an append waits for its fsync (group commit). */
   fsyncMs?: number;
   clock: () => number;
+  /** Appends lines to a day file and fsyncs it (injected by tests, e.g. a full disk). */
+  appendLines?: (file: string, lines: readonly string[]) => Promise<void>;
 }
 
 export interface RecordQuery {
@@ -106,7 +110,10 @@ class Store implements RecordStore {
   #waiters: { resolve: () => void; reject: (e: Error) => void }[] = [];
   #timer: NodeJS.Timeout | undefined;
   #chain: Promise<void> = Promise.resolve();
+  #closing = false;
   #closed = false;
+  /** Commits in a row that found the disk full. */
+  #fullAttempts = 0;
 
   constructor(o: RecordStoreOptions) {
     this.#o = o;
@@ -144,11 +151,30 @@ class Store implements RecordStore {
     try {
       const byDay = new Map<string, string[]>();
       for (const q of queue) byDay.set(q.day, [...(byDay.get(q.day) ?? []), q.line]);
-      for (const [day, lines] of byDay) await appendLines(path.join(this.#o.dir, fileOf(day)), lines);
+      const write = this.#o.appendLines ?? appendLines;
+      for (const [day, lines] of byDay) await write(path.join(this.#o.dir, fileOf(day)), lines);
+      this.#fullAttempts = 0;
       for (const w of waiters) w.resolve();
     } catch (err) {
+      if (isDiskFull(err) && !this.#closing) {
+        // Nothing is lost: the lines go back in front of newer ones and are written again later (a day
+        // written before the failure is written twice, which queries see as one: latest revision wins).
+        this.#queue = [...queue, ...this.#queue];
+        this.#waiters = [...waiters, ...this.#waiters];
+        this.#commitLater(Math.min(5_000, 250 * 2 ** this.#fullAttempts++));
+        return;
+      }
       for (const w of waiters) w.reject(err as Error);
     }
+  }
+
+  #commitLater(ms: number): void {
+    if (this.#timer !== undefined) clearTimeout(this.#timer);
+    this.#timer = setTimeout(() => {
+      this.#timer = undefined;
+      void this.#commit();
+    }, ms);
+    this.#timer.unref();
   }
 
   async flush(): Promise<void> {
@@ -160,6 +186,8 @@ class Store implements RecordStore {
   }
 
   async close(): Promise<void> {
+    // A last try; on a still full disk the lines waiting are given up (their appends reject).
+    this.#closing = true;
     await this.flush();
     this.#closed = true;
     await this.#chain;
@@ -233,6 +261,11 @@ class Store implements RecordStore {
     }
     return removed;
   }
+}
+
+function isDiskFull(err: unknown): boolean {
+  const code = (err as NodeJS.ErrnoException | null)?.code;
+  return code === 'ENOSPC' || code === 'EDQUOT';
 }
 
 /** Appends lines to a file and fsyncs it; a line cut short by a crash is closed first. */

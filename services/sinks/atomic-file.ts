@@ -1,5 +1,5 @@
 // One atomic file write for the services: a crash leaves the old or the new content, never a mix.
-import { mkdir, open, readFile, rename } from 'node:fs/promises';
+import { mkdir, open, readFile, rename, rm } from 'node:fs/promises';
 import path from 'node:path';
 
 /**
@@ -13,9 +13,13 @@ export async function writeFileAtomic(file: string, text: string): Promise<void>
   try {
     await fh.writeFile(text);
     await fh.sync();
-  } finally {
-    await fh.close();
+  } catch (err) {
+    // A full disk: the partial temp file would only keep the space taken.
+    await fh.close().catch(() => undefined);
+    await rm(tmp, { force: true }).catch(() => undefined);
+    throw err;
   }
+  await fh.close();
   await rename(tmp, file);
   const dir = await open(path.dirname(file), 'r');
   try {

@@ -1,14 +1,31 @@
 // The delivery ledger of the database and Kafka outputs: marks only rise, an unclean stop is known at the
 // next start, another epoch's marks say nothing; positions ride on spool entries.
-import { mkdtemp, rm } from 'node:fs/promises';
+import { mkdtemp, readFile, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import fc from 'fast-check';
-import { afterEach, describe, expect, it } from 'vitest';
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import { ReefdError } from '../../libs/contract/index.js';
+import type * as AtomicFile from './atomic-file.js';
 import { DeliveryLedger, splitPosition, withPosition } from './delivery-ledger.js';
+
+// The ledger's file writes can be made to fail as on a full disk (ENOSPC), as the device would.
+const disk = vi.hoisted(() => ({ full: false }));
+vi.mock('./atomic-file.js', async (importOriginal) => {
+  const real = await importOriginal<typeof AtomicFile>();
+  return {
+    ...real,
+    writeFileAtomic: async (file: string, text: string) => {
+      if (disk.full)
+        throw Object.assign(new Error('ENOSPC: no space left on device, write'), { code: 'ENOSPC' });
+      return real.writeFileAtomic(file, text);
+    },
+  };
+});
 
 const dirs: string[] = [];
 afterEach(async () => {
+  disk.full = false;
   for (const d of dirs.splice(0)) await rm(d, { recursive: true, force: true });
 });
 
@@ -38,6 +55,28 @@ describe('delivery ledger', () => {
 
     const other = await DeliveryLedger.open(file, 'e2');
     expect([other.uncleanStart, other.hwm(0)]).toEqual([false, -1]);
+  });
+
+  it('on a full disk keeps a delivered batch delivered, and holds the next one until the marks are saved', async () => {
+    const dir = await mkdtemp(join(tmpdir(), 'reefd-ledger-'));
+    dirs.push(dir);
+    const file = join(dir, 'outputs', 'influx.json');
+    const a = await DeliveryLedger.open(file, 'e1');
+    await a.delivered(new Map([[0, 5]]));
+    disk.full = true;
+    // The batch reached the destination: the failed save neither throws nor lowers the mark.
+    await expect(a.delivered(new Map([[0, 10]]))).resolves.toBeUndefined();
+    expect(a.hwm(0)).toBe(10);
+    // The next batch must wait: ready() refuses with a retriable REEFD_DISK_FULL.
+    const err = await a.ready().catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(ReefdError);
+    expect([(err as ReefdError).code, (err as ReefdError).retriable]).toEqual(['REEFD_DISK_FULL', true]);
+    // On disk the ledger is still the last saved one, one batch behind at most.
+    expect(JSON.parse(await readFile(file, 'utf8'))).toMatchObject({ hwm: { 0: 5 } });
+    disk.full = false;
+    await a.ready();
+    const b = await DeliveryLedger.open(file, 'e1');
+    expect([b.hwm(0), b.uncleanStart]).toEqual([10, true]);
   });
 
   it('carries a position on an entry and back, for any entry text (property)', () => {

@@ -3,6 +3,12 @@
 // the last run closed cleanly. Written atomically after each confirmed batch, so after a crash it is at
 // most one batch behind the destination: the batch that was in flight, which the output then checks
 // against the destination itself before sending it again (kafka-sink.ts, influx-sink.ts).
+//
+// A save that fails (disk full) does not undo the delivery: the batch is at the destination, so the marks
+// stay raised in memory and the batch counts as delivered. The next batch waits (ready() throws a
+// retriable error, so the output holds it and retries) until the marks are on disk again: the file is
+// never more than the one batch in flight behind.
+import { ReefdError } from '../../libs/contract/index.js';
 import { readJsonFile, writeFileAtomic } from './atomic-file.js';
 
 interface LedgerFile {
@@ -21,6 +27,8 @@ export class DeliveryLedger {
   readonly uncleanStart: boolean;
   #chain: Promise<void> = Promise.resolve();
   #written = '';
+  /** Why the last save failed; undefined once the marks are on disk. */
+  #unsaved: Error | undefined;
 
   private constructor(file: string, epoch: string, saved: LedgerFile | undefined) {
     this.#file = file;
@@ -54,7 +62,10 @@ export class DeliveryLedger {
     return this.#hwm.get(partition) ?? -1;
   }
 
-  /** Raises the high-water marks (never lowers them) and records them durably. */
+  /**
+   * Raises the high-water marks (never lowers them) and records them durably. A failed save does not
+   * throw (the destination holds the batch): ready() reports it before the next batch goes.
+   */
   async delivered(marks: ReadonlyMap<number, number>): Promise<void> {
     let changed = false;
     for (const [p, pos] of marks) {
@@ -63,7 +74,35 @@ export class DeliveryLedger {
         changed = true;
       }
     }
-    if (changed) await this.#save(false);
+    if (changed || this.#unsaved !== undefined) await this.#trySave();
+  }
+
+  /**
+   * Resolves when the marks are on disk, saving them again after a failed save; throws a retriable error
+   * (REEFD_DISK_FULL on a full disk) while they cannot be written. Called before each batch is sent.
+   */
+  async ready(): Promise<void> {
+    if (this.#unsaved === undefined) return;
+    await this.#trySave();
+    const err = this.#unsaved;
+    if (err === undefined) return;
+    const code = (err as NodeJS.ErrnoException).code;
+    if (code === 'ENOSPC' || code === 'EDQUOT')
+      throw new ReefdError(
+        'REEFD_DISK_FULL',
+        `No space left for the delivery ledger ${this.#file}; free space there (records wait and nothing is lost).`,
+        { retriable: true, detail: { path: this.#file }, cause: err },
+      );
+    throw err;
+  }
+
+  async #trySave(): Promise<void> {
+    try {
+      await this.#save(false);
+      this.#unsaved = undefined;
+    } catch (err) {
+      this.#unsaved = err instanceof Error ? err : new Error(String(err));
+    }
   }
 
   /** Records a clean close: nothing is in flight. */

@@ -170,6 +170,7 @@ class OnceGuard {
   }
 
   async send(entries: readonly string[], post: (lines: readonly string[]) => Promise<void>) {
+    await this.#ledger.ready();
     const hwm = this.#ledger.hwm();
     let top = -1;
     let todo: { pos: number | undefined; body: string }[] = [];

@@ -287,6 +287,7 @@ class KafkaOnce {
   }
 
   async send(entries: readonly string[]): Promise<{ skipped: number }> {
+    await this.#ledger.ready();
     this.#hwm ??= await this.#learn();
     const hwm = this.#hwm;
     const messages: Message[] = [];

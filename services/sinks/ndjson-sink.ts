@@ -172,12 +172,15 @@ class NdjsonSink implements RecordSink {
       await this.#t.flush();
       if (mark !== undefined) await this.#ledger?.commit(mark);
       this.#stats.written += n;
-    } catch (err) {
-      this.#stats.failed += n;
-      this.#stats.lastError = (err as Error).message;
-      throw err;
-    } finally {
       this.#stats.pending -= n;
+    } catch (err) {
+      this.#stats.lastError = (err as Error).message;
+      // A full disk: the records wait in memory (text-file.ts) and count when a later flush writes them.
+      if ((err as { code?: string }).code !== 'REEFD_DISK_FULL') {
+        this.#stats.failed += n;
+        this.#stats.pending -= n;
+      }
+      throw err;
     }
   }
   async close(): Promise<void> {

@@ -1,4 +1,4 @@
-import { describe, it, expect, afterEach } from 'vitest';
+import { describe, it, expect, afterEach, vi } from 'vitest';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -6,11 +6,31 @@ import pino from 'pino';
 import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import { createSpooledSink } from './spooled-sink.js';
 import type { Sleep } from './retry.js';
+import { Spool } from './spool.js';
 
 const dirs: string[] = [];
 afterEach(async () => {
+  vi.restoreAllMocks();
   for (const d of dirs.splice(0)) await rm(d, { recursive: true, force: true });
 });
+
+/** The spool's disk is full for its next `n` appends (REEFD_DISK_FULL, as Spool reports ENOSPC). */
+function spoolDiskFull(n: number): { refused: () => number } {
+  const real = Spool.prototype.append;
+  let left = n;
+  let refused = 0;
+  vi.spyOn(Spool.prototype, 'append').mockImplementation(function (this: Spool, entries) {
+    if (left > 0) {
+      left--;
+      refused++;
+      return Promise.reject(
+        new ReefdError('REEFD_DISK_FULL', 'No space left for the sink spool', { retriable: true }),
+      );
+    }
+    return real.call(this, entries);
+  });
+  return { refused: () => refused };
+}
 
 const rec = (i: number): DerivedRecord => ({
   type: 'oxygen',
@@ -114,5 +134,34 @@ describe('spooled sink (injected destination and timers)', () => {
     expect(dest.got).toEqual(Array.from({ length: 25 }, (_, i) => i));
     expect(sink.stats()).toMatchObject({ written: 25, failed: 0 });
     expect(auth).toEqual([true, false]);
+  });
+
+  it('loses nothing when the spool disk is full while the destination fails: lines are held and retried', async () => {
+    // The destination fails twice (as a delivery ledger on the same full disk does), the spool refuses
+    // three appends: every entry still arrives once, in order, after backoff waits of at most 5 s.
+    const full = spoolDiskFull(3);
+    const dest: Dest = { got: [], fail: 2, refuseNext: false, calls: 0 };
+    const waits: number[] = [];
+    const sink = await make(dest, waits);
+    sink.write(Array.from({ length: 25 }, (_, i) => rec(i)));
+    await sink.flush();
+    await sink.close();
+    expect(full.refused()).toBeGreaterThanOrEqual(2);
+    expect(dest.got).toEqual(Array.from({ length: 25 }, (_, i) => i));
+    expect(sink.stats()).toMatchObject({ written: 25, failed: 0, pending: 0 });
+    expect(waits.length).toBeGreaterThan(0);
+    expect(Math.max(...waits)).toBeLessThanOrEqual(5000);
+  });
+
+  it('sends from memory instead of dropping when the spool disk is full and memory passes its bound', async () => {
+    const full = spoolDiskFull(1000);
+    const dest: Dest = { got: [], fail: 0, refuseNext: false, calls: 0 };
+    const sink = await make(dest, [], { maxMemoryLines: 20 });
+    for (let i = 0; i < 200; i += 50) sink.write(Array.from({ length: 50 }, (_, k) => rec(i + k)));
+    await sink.flush();
+    await sink.close();
+    expect(full.refused()).toBeGreaterThan(0);
+    expect(dest.got).toEqual(Array.from({ length: 200 }, (_, i) => i));
+    expect(sink.stats()).toMatchObject({ written: 200, failed: 0 });
   });
 });

@@ -9,12 +9,17 @@
 // retrying data the destination refuses would block everything behind it forever. Programming errors are
 // never retried.
 //
+// A full disk (the spool refuses with REEFD_DISK_FULL) loses nothing: the lines stay in memory, in order,
+// and go to the destination directly while it answers; when it does not, they are held and the spool is
+// tried again after a backoff (at most 5 s). Memory stays bounded by the intake: records come only from
+// archived lines, and the archive on the same full disk refuses new messages (left unacknowledged).
+//
 // Entries carry the record's stream position (`encode` gets it); the destination's `send` skips what the
 // destination already holds (kafka-sink.ts, influx-sink.ts) and says how many it skipped.
 import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { RecordSink, SinkStats } from '../pipeline/types.js';
 import { errFields, type Logger } from '../log/logger.js';
-import { retry, realSleep, type Sleep } from './retry.js';
+import { backoffDelayMs, retry, realSleep, type Sleep } from './retry.js';
 import { Spool } from './spool.js';
 
 export type Encoded = { ok: true; entry: string } | { ok: false; reason: string };
@@ -55,6 +60,14 @@ export function isAuthFailure(err: unknown): boolean {
   return err instanceof ReefdError && err.code === 'REEFD_SINK_AUTH';
 }
 
+/** The spool's disk is full: the lines are held in memory and the spool is tried again later. */
+function isDiskFull(err: unknown): boolean {
+  return err instanceof ReefdError && err.code === 'REEFD_DISK_FULL';
+}
+
+/** Longest wait between two tries of a spool on a full disk. */
+const HOLD_MAX_MS = 5_000;
+
 function isProgrammingError(err: unknown): boolean {
   return err instanceof TypeError || err instanceof RangeError || err instanceof SyntaxError;
 }
@@ -76,6 +89,10 @@ export class SpooledSink implements RecordSink {
   #pump: Promise<void> | undefined;
   #nearSignalled = false;
   #authFailing = false;
+  /** The spool's disk is full: lines stay in memory until a backoff wait ends (then the spool is tried again). */
+  #spoolHeld = false;
+  /** Backoff waits in a row while lines are held (0 once the spool or the destination takes lines again). */
+  #holdAttempt = 0;
   #stats: SinkStats = { written: 0, failed: 0, pending: 0, skipped: 0 };
 
   constructor(o: SpooledSinkOptions, spool: Spool) {
@@ -136,10 +153,12 @@ export class SpooledSink implements RecordSink {
 
   async close(): Promise<void> {
     if (this.#closing) return this.#pump;
-    await this.flush();
+    const deadline = Date.now() + (this.#o.closeDrainMs ?? 5_000);
+    // Lines held in memory on a full disk with the destination down may never settle: the flush gets
+    // the same bounded moment as the spool.
+    await this.#boundedFlush(deadline);
     // Give a reachable destination a bounded moment to take what is spooled; the rest stays on disk
     // and is replayed at the next start.
-    const deadline = Date.now() + (this.#o.closeDrainMs ?? 5_000);
     while (!this.#spool.isEmpty() && Date.now() < deadline) await new Promise((r) => setTimeout(r, 20));
     this.#closing = true;
     this.#abort.abort(new Error('sink closing'));
@@ -148,6 +167,16 @@ export class SpooledSink implements RecordSink {
     await this.#pump;
     await this.#spool.close();
     await this.#o.onClose?.();
+  }
+
+  async #boundedFlush(deadline: number): Promise<void> {
+    if (!this.#spoolHeld && this.#holdAttempt === 0) return this.flush();
+    let t: NodeJS.Timeout | undefined;
+    await Promise.race([
+      this.flush(),
+      new Promise<void>((r) => (t = setTimeout(r, Math.max(0, deadline - Date.now())))),
+    ]);
+    clearTimeout(t);
   }
 
   stats(): SinkStats {
@@ -212,7 +241,7 @@ export class SpooledSink implements RecordSink {
         await this.#drainOne();
         continue;
       }
-      if (this.#mem.length > this.#memCap) {
+      if (this.#mem.length > this.#memCap && !this.#spoolHeld) {
         // The database is up but slower than the input: keep memory bounded, the spool takes the rest.
         await this.#spill();
         continue;
@@ -223,6 +252,7 @@ export class SpooledSink implements RecordSink {
       }
       await this.#idle();
     }
+    this.#dropHeld();
   }
 
   /** One batch from memory: delivered, or spooled on a retriable failure, or dropped on a refusal. */
@@ -231,6 +261,7 @@ export class SpooledSink implements RecordSink {
     try {
       this.#delivered(batch.length, await this.#o.send(batch));
       this.#settle(batch.length);
+      this.#holdAttempt = 0;
     } catch (err) {
       if (isRefusal(err) || isProgrammingError(err)) {
         this.#refused(err, batch.length);
@@ -241,16 +272,38 @@ export class SpooledSink implements RecordSink {
       this.#authTrouble(err);
       this.#o.logger.warn(
         { sink: this.name, err: (err as Error).message, code: (err as { code?: string }).code },
-        'destination unreachable; spooling to disk',
+        isDiskFull(err)
+          ? 'delivery ledger cannot be saved (disk full); the batch waits and is sent again'
+          : 'destination unreachable; spooling to disk',
       );
       this.#mem.unshift(...batch);
       await this.#spill();
+      if (this.#spoolHeld) await this.#hold();
     }
   }
 
-  /** Moves every line in memory, oldest first, to the spool. */
+  /**
+   * The destination failed and the spool's disk is full: waits (backoff, at most 5 s), then lets the spool
+   * be tried again. At close the held lines cannot wait any longer: they are dropped, loudly.
+   */
+  async #hold(): Promise<void> {
+    if (this.#closing) return this.#dropHeld();
+    const backoff = this.#o.backoff ?? { baseMs: 250, maxMs: 30_000 };
+    const ms = backoffDelayMs(this.#holdAttempt++, {
+      baseMs: backoff.baseMs,
+      maxMs: Math.min(backoff.maxMs, HOLD_MAX_MS),
+      random: this.#o.random ?? Math.random,
+    });
+    await (this.#o.sleep ?? realSleep)(ms, this.#abort.signal).catch(() => undefined);
+    this.#spoolHeld = false;
+  }
+
+  /**
+   * Moves every line in memory, oldest first, to the spool. On a full disk the lines left stay in memory,
+   * in order, and `#spoolHeld` says so until the next backoff wait ends.
+   */
   async #spill(): Promise<void> {
-    while (this.#mem.length > 0) {
+    while (this.#mem.length > 0 && !this.#spoolHeld) {
       const part = this.#mem.slice(0, this.#o.batchSize);
       let ok: boolean;
       try {
@@ -258,7 +311,12 @@ export class SpooledSink implements RecordSink {
       } catch (err) {
         ok = false;
         this.#stats.lastError = (err as Error).message;
+        if (isDiskFull(err)) {
+          this.#diskFull(err);
+          break;
+        }
       }
+      if (this.#holdAttempt > 0 && ok) this.#holdAttempt = 0;
       this.#mem.splice(0, part.length);
       if (!ok) {
         this.#stats.failed += part.length;
@@ -275,6 +333,28 @@ export class SpooledSink implements RecordSink {
       this.#settle(part.length);
     }
     this.#checkNear();
+  }
+
+  /** At close: lines neither delivered nor spooled (full disk, destination down) are dropped, loudly. */
+  #dropHeld(): void {
+    const n = this.#mem.length;
+    if (n === 0) return;
+    this.#mem = [];
+    this.#stats.failed += n;
+    this.#o.logger.error(
+      { sink: this.name, dropped: n, code: 'REEFD_DISK_FULL' },
+      'closing with records neither delivered nor spooled (disk full, destination unreachable); replay the raw archive to fill the gap',
+    );
+    this.#settle(n);
+  }
+
+  #diskFull(err: unknown): void {
+    if (this.#holdAttempt === 0)
+      this.#o.logger.error(
+        { sink: this.name, held: this.#mem.length, err: (err as Error).message, code: 'REEFD_DISK_FULL' },
+        'spool disk full; records are held in memory and sent or spooled once possible',
+      );
+    this.#spoolHeld = true;
   }
 
   #checkNear(): void {
@@ -311,6 +391,8 @@ export class SpooledSink implements RecordSink {
             await Promise.race([slept, this.#idle()]);
             if (this.#due()) await this.#spill();
           }
+          // The wait is over: a spool held on a full disk is tried again.
+          this.#spoolHeld = false;
           if (signal?.aborted) throw signal.reason as Error;
         },
         onRetry: (err, attempt, delayMs) => {

@@ -69,14 +69,17 @@ describe('fault e: disk full on the data folder', () => {
 
     rmSync(filler, { force: true });
     rmSync(`${filler}.tail`, { force: true });
+    // Bounds for a loaded 2-core machine: the archive and the outputs retry a full disk with backoffs of
+    // at most 5 s, so recovery takes seconds; the waits end as soon as everything is there, and a real
+    // loss still fails (the counts never reach the totals).
     const recovered = await waitFor(
       async () => (await countArchive(archiveDir, prefix)).byKey.size >= msgs.length,
-      20_000,
+      60_000,
       500,
     );
     await waitFor(
       async () => (await countVm(vm.url, 'oxygen_o2_umol_kg', site)).byTs.size >= oxygenTs.length,
-      10_000,
+      60_000,
       500,
     );
     const stopped = await d.kill('SIGTERM');
