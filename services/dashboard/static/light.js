@@ -2,6 +2,7 @@
 // The light response of a transect: its valid flux windows' NCP (or NEC) against their PAR, and the curve the
 // processor fitted for a local day (the `daily` record; libs/daily light-response.ts, docs/methods/daily.md
 // 10.2): NCP = Pmax tanh(I/Ik) - R and NEC = Gmax tanh(I/Ik) + G0. DOM-free: the columns uPlot draws.
+import { decimals, num, unitText } from './format.js';
 import { lowerBound } from './series.js';
 
 /** @typedef {import('./types.js').Rec} Rec */
@@ -200,4 +201,28 @@ export function nearestPoint(points, toPx, at, maxPx) {
     }
   }
   return best;
+}
+
+/**
+ * The fitted curve in words with its parameters, their uncertainties and units (units from /api/site):
+ * 'NCP = Pmax tanh(I/Ik) − R, fitted to the windows of 2026-02-28: Pmax 52.0 ± 3.1 mmol m⁻² h⁻¹, ...'.
+ * @param {Rec} daily
+ * @param {ResponseKind} kind
+ * @param {Record<string, {unit: string}>} fields the daily record's fields as /api/site gives them
+ */
+export function fitSentence(daily, kind, fields) {
+  const r = RESPONSES[kind];
+  const c = curveOf(daily, kind);
+  const day = String(daily.day ?? '');
+  if (!c) return `No ${r.name} curve was fitted to the windows of ${day}.`;
+  const part = (/** @type {string} */ name, /** @type {string} */ field, /** @type {number} */ v) => {
+    const s = daily[`${field}_sigma`];
+    const u = unitText(fields[field]?.unit ?? '');
+    const sd = finite(s) ? ` ± ${/** @type {number} */ (s).toFixed(decimals(v))}` : '';
+    return `${name} ${num(v)}${sd}${u ? ` ${u}` : ''}`;
+  };
+  return (
+    `${r.name} = ${r.ampName} tanh(I/Ik) ${r.sign < 0 ? '−' : '+'} ${r.interceptName}, fitted to the windows ` +
+    `of ${day}: ${[part(r.ampName, r.amp, c.amp), part('Ik', r.ik, c.ik), part(r.interceptName, r.intercept, c.intercept)].join(', ')}.`
+  );
 }

@@ -1,6 +1,14 @@
 import { describe, expect, it } from 'vitest';
 import type { DerivedRecord } from '../../../libs/contract/index.js';
-import { curveOf, curveValue, dayBounds, latestFit, lightColumns, nearestPoint } from './light.js';
+import {
+  curveOf,
+  curveValue,
+  dayBounds,
+  fitSentence,
+  latestFit,
+  lightColumns,
+  nearestPoint,
+} from './light.js';
 import { RecordStore } from './store.js';
 
 type Rec = DerivedRecord & Record<string, unknown>;
@@ -139,5 +147,27 @@ describe('the windows against their light', () => {
     const toPx = (p: { par: number; rate: number }) => ({ x: p.par / 10, y: -p.rate });
     expect(nearestPoint(pts, toPx, { x: 61, y: -21 }, 6)?.par).toBe(600);
     expect(nearestPoint(pts, toPx, { x: 100, y: 0 }, 6)).toBeNull();
+  });
+});
+
+describe('the fit in words', () => {
+  it('names the curve, its parameters with their sigmas and the units of the site', () => {
+    const fields = {
+      pmax_mmol_m2_h: { unit: 'mmol m-2 h-1' },
+      ik_umol_m2_s: { unit: 'umol m-2 s-1' },
+      r_fit_mmol_m2_h: { unit: 'mmol m-2 h-1' },
+    };
+    const d = daily('2026-02-28', DAY0, {
+      pmax_mmol_m2_h: 51.992,
+      pmax_mmol_m2_h_sigma: 3.14,
+      ik_umol_m2_s: 365.1,
+      ik_umol_m2_s_sigma: 40.2,
+      r_fit_mmol_m2_h: 19.447,
+    });
+    expect(fitSentence(d, 'ncp', fields)).toBe(
+      'NCP = Pmax tanh(I/Ik) − R, fitted to the windows of 2026-02-28: Pmax 52.0 ± 3.1 mmol m⁻² h⁻¹, ' +
+        'Ik 365 ± 40 µmol m⁻² s⁻¹, R 19.4 mmol m⁻² h⁻¹.',
+    );
+    expect(fitSentence(d, 'nec', fields)).toBe('No NEC curve was fitted to the windows of 2026-02-28.');
   });
 });
