@@ -17,6 +17,22 @@ const HOUR = 60 * MIN;
 const DAY0 = Date.UTC(2026, 1, 28, 10); // local midnight at UTC-10
 const iso = (ms: number) => new Date(ms).toISOString();
 
+// The budgets of the day are not read by the light plot: present as the contract has them, without values.
+const budgets = {
+  ncp_mmol_m2_d: null,
+  ncp_mmol_m2_d_sigma: null,
+  r_mmol_m2_d: null,
+  r_mmol_m2_d_sigma: null,
+  gpp_mmol_m2_d: null,
+  gpp_mmol_m2_d_sigma: null,
+  nec_mmol_m2_d: null,
+  nec_mmol_m2_d_sigma: null,
+  nec_day_mmol_m2_d: null,
+  nec_day_mmol_m2_d_sigma: null,
+  nec_night_mmol_m2_d: null,
+  nec_night_mmol_m2_d_sigma: null,
+};
+
 const daily = (day: string, startMs: number, extra: Record<string, unknown> = {}): Rec =>
   ({
     type: 'daily',
@@ -24,6 +40,9 @@ const daily = (day: string, startMs: number, extra: Record<string, unknown> = {}
     transect: 'outer',
     day,
     t: iso(startMs),
+    ...budgets,
+    coverage: 0.8,
+    gap_filled: 0.1,
     valid: true,
     pmax_mmol_m2_h: 50,
     ik_umol_m2_s: 400,

@@ -187,7 +187,7 @@ function renderLight(app, transect, range) {
   const dayLabel = daily ? String(daily.day) : 'the fitted day';
   byId('light-key').textContent =
     `Filled: the valid windows of ${dayLabel}, the day the curve is fitted to; hollow: other valid windows in ` +
-    `the range shown. Dotted: zero and Ik, the light at which production nears saturation.`;
+    `the range shown. Dotted: zero and Ik, the light at which ${kind === 'ncp' ? 'production' : 'calcification'} nears saturation.`;
   const opts = {
     data,
     name: r.name,
