@@ -9,12 +9,20 @@ const MIN_MS = 60_000;
 
 /**
  * Fields the records carry besides the table's (extension fields of the processor) that the dashboard plots:
- * the CTD temperature and salinity the carbonate system was solved at.
+ * the CTD temperature and salinity the carbonate system was solved at, and the rest of the day's fitted light
+ * responses (libs/daily record.ts), with words where the name alone says too little.
  */
-const EXTRA_FIELDS: Readonly<Record<string, readonly string[]>> = {
+const EXTRA_FIELDS: Readonly<Record<string, readonly (string | readonly [string, string])[]>> = {
   carbonate: ['temp_c', 'sal', 'ph_total_sigma', 'omega_ar_sigma'],
   oxygen: ['sal_used'],
   flux: ['storage_fraction'],
+  daily: [
+    ['r_fit_mmol_m2_h', 'community respiration of the fitted production-light curve'],
+    ['r_mmol_m2_h', 'community respiration per hour'],
+    ['gmax_mmol_m2_h', 'maximum light-driven calcification of the fitted curve'],
+    ['ik_nec_umol_m2_s', 'light saturation parameter of the calcification curve'],
+    ['g0_mmol_m2_h', 'calcification in the dark of the fitted curve'],
+  ],
 };
 
 function recordTypes(): SiteInfo['record_types'] {
@@ -25,10 +33,11 @@ function recordTypes(): SiteInfo['record_types'] {
       spec.fields as Record<string, { unit: string; label: string; kind: 'number' | 'string' | 'boolean' }>,
     ))
       fields[name] = { unit: f.unit, label: f.label, kind: f.kind };
-    for (const name of EXTRA_FIELDS[type] ?? []) {
+    for (const extra of EXTRA_FIELDS[type] ?? []) {
+      const [name, label] = typeof extra === 'string' ? [extra, undefined] : extra;
       if (fields[name]) continue;
       const m = metricInfo(`${type}.${name}`);
-      fields[name] = { unit: m.unit, label: m.label, kind: 'number' };
+      fields[name] = { unit: m.unit, label: label ?? m.label, kind: 'number' };
     }
     out[type] = { subject: spec.subject, label: spec.label, fields };
   }

@@ -51,6 +51,8 @@ let live: { records: DerivedRecord[]; health?: SensorHealthRow[] }[];
 let lastLagoonO2: number;
 let health: SensorHealthRow[] = [];
 let forecasts: DerivedRecord[] = [];
+let dailies: DerivedRecord[] = [];
+let fluxes: DerivedRecord[] = [];
 const pageErrors: string[] = [];
 
 async function newPage(viewport: { width: number; height: number }, url = server.url): Promise<Page> {
@@ -90,6 +92,8 @@ beforeAll(async () => {
   const before = runDemo({ config, startMs: START - 72 * HOUR, hours: 72, seed: 9 });
   const days = before.batches.flatMap((b) => b.records).filter((r) => r.type === 'daily');
   forecasts = all.filter((r) => r.type === 'forecast' && r.station === 'lagoon');
+  dailies = [...days, ...all.filter((r) => r.type === 'daily')];
+  fluxes = all.filter((r) => r.type === 'flux');
   // The record history holds more than the dashboard's 48-h history: the lagoon's oxygen of a week earlier.
   const older = all
     .filter((r) => r.type === 'oxygen' && r.station === 'lagoon')
@@ -375,6 +379,88 @@ describe('metabolism, daily budgets and tonight', () => {
   });
 });
 
+describe('light responses', () => {
+  type Row = Record<string, unknown> & { t: string };
+  const num = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
+
+  it("draws the newest fitted day's curve from its daily record, with its windows apart from the others", async () => {
+    const transect = (await page
+      .locator('#transect-chips button[aria-pressed="true"]')
+      .getAttribute('data-transect'))!;
+    // The newest day of the transect with a production curve: the part of the 28th the run saw.
+    const fitted = (dailies as unknown as Row[])
+      .filter((d) => d.transect === transect && num(d.pmax_mmol_m2_h) && num(d.r_fit_mmol_m2_h))
+      .sort((a, b) => (a.t < b.t ? -1 : 1))
+      .at(-1)!;
+    expect(fitted.day).toBe('2026-02-28');
+    const plot = page.locator('#light-plot');
+    await plot.scrollIntoViewIfNeeded();
+    expect(await plot.getAttribute('data-kind')).toBe('ncp');
+    expect(await plot.getAttribute('data-day')).toBe('2026-02-28');
+    expect(Number(await plot.getAttribute('data-amp'))).toBe(fitted.pmax_mmol_m2_h);
+    expect(Number(await plot.getAttribute('data-ik'))).toBe(fitted.ik_umol_m2_s);
+    expect(Number(await plot.getAttribute('data-intercept'))).toBe(fitted.r_fit_mmol_m2_h);
+    const fit = await page.locator('#light-fit').innerText();
+    expect(fit).toContain(`Pmax ${(fitted.pmax_mmol_m2_h as number).toFixed(1)}`);
+    expect(fit).toMatch(/Ik \d+( ± \d+)? µmol m⁻² s⁻¹, R \d+\.\d( ± \d+\.\d)? mmol m⁻² h⁻¹\.$/);
+    // The windows: every valid window of the transect with a PAR and an NCP, those of the fitted local day
+    // (from the record's start for its hours) apart from the rest up to the newest the page holds.
+    const dayFrom = Date.parse(fitted.t);
+    const dayTo = dayFrom + (fitted.day_hours as number) * HOUR;
+    const usable = (field: string) =>
+      (fluxes as unknown as Row[]).filter(
+        (f) => f.transect === transect && f.valid === true && num(f.par_umol_m2_s) && num(f[field]),
+      );
+    const ofDay = (f: Row) => Date.parse(f.t) >= dayFrom && Date.parse(f.t) < dayTo;
+    const last = Date.parse((await plot.getAttribute('data-last'))!);
+    const ncp = usable('ncp_mmol_m2_h');
+    expect(Number(await plot.getAttribute('data-day-windows'))).toBe(ncp.filter(ofDay).length);
+    expect(ncp.filter(ofDay).length).toBeGreaterThan(20);
+    expect(Number(await plot.getAttribute('data-other-windows'))).toBe(
+      ncp.filter((f) => !ofDay(f) && Date.parse(f.t) <= last).length,
+    );
+    // The curve as drawn: the readout between the windows gives the fitted NCP at the cursor's light.
+    const over = (await page.locator('#light-plot .u-over').boundingBox())!;
+    let seen: RegExpExecArray | null = null;
+    for (let i = 0; i < 40 && !seen; i++) {
+      await page.mouse.move(
+        over.x + over.width * (0.3 + (i % 8) * 0.08),
+        over.y + over.height * (0.05 + 0.12 * Math.floor(i / 8)),
+      );
+      seen = /^PAR (\d+) µmol m⁻² s⁻¹ · fitted NCP (−?\d+\.\d) mmol m⁻² h⁻¹$/.exec(
+        await page.locator('#light-readout').innerText(),
+      );
+    }
+    expect(seen).not.toBeNull();
+    const par = Number(seen![1]);
+    const want =
+      (fitted.pmax_mmol_m2_h as number) * Math.tanh(par / (fitted.ik_umol_m2_s as number)) -
+      (fitted.r_fit_mmol_m2_h as number);
+    // PAR is printed to 1 umol m-2 s-1 (half of it moves the curve by at most 0.5 Pmax/Ik), NCP to 0.1.
+    const slope = (fitted.pmax_mmol_m2_h as number) / (fitted.ik_umol_m2_s as number);
+    expect(Math.abs(Number(seen![2]!.replace('−', '-')) - want)).toBeLessThanOrEqual(
+      0.05 + 0.5 * slope + 1e-9,
+    );
+    await page.locator('#light').screenshot({ path: path.join(ARTIFACTS, 'dashboard-desktop-light.png') });
+
+    // Calcification the same way, from the day's calcification curve.
+    expect(num(fitted.gmax_mmol_m2_h)).toBe(true);
+    await page.locator('#light-kinds button[data-kind="nec"]').click();
+    await expect.poll(() => plot.getAttribute('data-kind')).toBe('nec');
+    expect(Number(await plot.getAttribute('data-amp'))).toBe(fitted.gmax_mmol_m2_h);
+    expect(Number(await plot.getAttribute('data-ik'))).toBe(fitted.ik_nec_umol_m2_s);
+    expect(Number(await plot.getAttribute('data-intercept'))).toBe(fitted.g0_mmol_m2_h);
+    expect(Number(await plot.getAttribute('data-day-windows'))).toBe(
+      usable('nec_mmol_m2_h').filter(ofDay).length,
+    );
+    expect(await page.locator('#light-fit').innerText()).toMatch(/^NEC = Gmax tanh\(I\/Ik\) \+ G0, fitted/);
+    await page
+      .locator('#light')
+      .screenshot({ path: path.join(ARTIFACTS, 'dashboard-desktop-light-nec.png') });
+    await page.locator('#light-kinds button[data-kind="ncp"]').click();
+  });
+});
+
 describe('alerts', () => {
   it('say what happened in plain words with units, and offer no acknowledgement for a cleared alert', async () => {
     const low = page.locator('#alert-list li.alert[data-severity="critical"]').first();
@@ -472,6 +558,44 @@ describe('live records', () => {
     expect(await page.locator('#site-time').innerText()).toMatch(/^0[56]:\d\d$/);
     await page.screenshot({ path: path.join(ARTIFACTS, 'dashboard-desktop.png'), fullPage: true });
     expect(pageErrors).toEqual([]);
+  });
+});
+
+describe("tonight's forecast", () => {
+  it("stands on the station's oxygen plot with its interval, the latest forecast's values in its line", async () => {
+    // All batches are in (the live test): the lagoon's latest forecast is the run's last.
+    const latest = [...forecasts].sort((a, b) => (a.t < b.t ? -1 : 1)).at(-1) as unknown as {
+      o2_min_mg_l: number;
+      o2_min_lo_mg_l: number;
+      o2_min_hi_mg_l: number;
+      t_min: string;
+      t: string;
+    };
+    await page.locator('#station-chips button[data-station="lagoon"]').click();
+    const card = page.locator('[data-plot="oxygen.o2_mg_l"]');
+    const line = card.locator('.forecast-line');
+    await expect.poll(() => line.getAttribute('data-issued'), { timeout: 10_000 }).toBe(latest.t);
+    expect(Number(await line.getAttribute('data-min'))).toBe(latest.o2_min_mg_l);
+    expect(Number(await line.getAttribute('data-lo'))).toBe(latest.o2_min_lo_mg_l);
+    expect(Number(await line.getAttribute('data-hi'))).toBe(latest.o2_min_hi_mg_l);
+    expect(await line.getAttribute('data-t-min')).toBe(latest.t_min);
+    const m =
+      /^Forecast issued (\d\d:\d\d): lowest (\d\.\d\d) mg\/L around (\d\d:\d\d), 80 % between (\d\.\d\d) mg\/L and (\d\.\d\d) mg\/L · observed (\d\.\d\d) mg\/L at \d\d:\d\d, (within|outside) the interval$/.exec(
+        await line.innerText(),
+      );
+    expect(m, await line.innerText()).not.toBeNull();
+    const local = (iso: string) => new Date(Date.parse(iso) - 10 * HOUR).toISOString().slice(11, 16);
+    expect(m!.slice(1, 6)).toEqual([
+      local(latest.t),
+      latest.o2_min_mg_l.toFixed(2),
+      local(latest.t_min),
+      latest.o2_min_lo_mg_l.toFixed(2),
+      latest.o2_min_hi_mg_l.toFixed(2),
+    ]);
+    const inside =
+      Number(m![6]) >= latest.o2_min_lo_mg_l && Number(m![6]) <= latest.o2_min_hi_mg_l ? 'within' : 'outside';
+    expect(m![7]).toBe(inside);
+    await card.screenshot({ path: path.join(ARTIFACTS, 'dashboard-desktop-forecast.png') });
   });
 });
 

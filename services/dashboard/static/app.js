@@ -27,7 +27,8 @@ import { PRESETS_H, renderRangeControls, renderStation, renderStationChips } fro
  *   sensors: SensorsBody | null, fieldLog: FieldLog, selected: {station: string, transect: string},
  *   view: {presetH: number | null, fromMs: number, toMs: number}, lastPresetH: number,
  *   plots: Map<string, PlotHandle>, map: ReturnType<typeof drawMap> | null, narrow: boolean,
- *   focusSensor: string | null, fetched: Map<string, {fromMs: number, toMs: number}>,
+ *   focusSensor: string | null, fetched: Map<string, {fromMs: number, toMs: number}>, lightKind: 'ncp' | 'nec',
+ *   fetchFlux(transect: string, range: {fromMs: number, toMs: number}): void,
  *   nowMs(): number, api(path: string, init?: RequestInit): Promise<unknown>, changed(what: Change): void,
  *   selectStation(id: string, scroll: boolean): void, selectTransect(id: string): void,
  *   setRange(fromMs: number, toMs: number): void, setPreset(h: number): void
@@ -89,6 +90,28 @@ async function ensureRange(key, query, range = viewRange(app.view, app.nowMs()),
   const r = range;
   const have = app.fetched.get(key);
   if (have && have.fromMs <= r.fromMs && have.toMs >= Math.min(r.toMs, app.nowMs())) return;
+  // The same range asked again while its answer is on the way is not asked twice.
+  const asking = `${key} ${r.fromMs} ${r.toMs}`;
+  if (pending.has(asking)) return;
+  pending.add(asking);
+  try {
+    await fetchRange(key, query, r, have, quiet);
+  } finally {
+    pending.delete(asking);
+  }
+}
+
+/** @type {Set<string>} */
+const pending = new Set();
+
+/**
+ * @param {string} key
+ * @param {string} query
+ * @param {{fromMs: number, toMs: number}} r
+ * @param {{fromMs: number, toMs: number} | undefined} have
+ * @param {boolean} quiet
+ */
+async function fetchRange(key, query, r, have, quiet) {
   const status = quiet ? document.createElement('p') : byId('range-status');
   status.textContent = 'Loading the records of this range…';
   let cursor = '';
@@ -230,6 +253,16 @@ async function start() {
     narrow,
     focusSensor: null,
     fetched: new Map(),
+    lightKind: 'ncp',
+    fetchFlux(transect, range) {
+      // A key of its own: the fitted day's windows are kept apart from the range shown.
+      void ensureRange(
+        `lightday:${transect}`,
+        `transect=${encodeURIComponent(transect)}&type=flux`,
+        range,
+        true,
+      );
+    },
     nowMs() {
       // The wall clock, or the data's own time when it is far from it (a replayed or stopped site).
       const now = Date.now();

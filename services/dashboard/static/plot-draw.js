@@ -231,3 +231,58 @@ export function drawSignificance(u, cols, ncpColor, necColor) {
   });
   ctx.restore();
 }
+
+const FORECAST = '#5a2d82';
+
+/**
+ * A station's forecast: its 80 % interval as a bar with caps at the expected time of the minimum, and the
+ * expected minimum as a diamond, labelled.
+ * @param {uPlot} u
+ * @param {import('./series.js').ForecastMark | null | undefined} mark
+ */
+export function drawForecast(u, mark) {
+  if (!mark) return;
+  const ctx = u.ctx;
+  const { left, top, width, height } = u.bbox;
+  const dpr = devicePixelRatio || 1;
+  const x = u.valToPos(mark.tMinS, 'x', true);
+  if (x < left || x > left + width) return;
+  const yLo = u.valToPos(mark.loMgL, 'y', true);
+  const yHi = u.valToPos(mark.hiMgL, 'y', true);
+  const y = u.valToPos(mark.minMgL, 'y', true);
+  const w = 5 * dpr;
+  ctx.save();
+  ctx.beginPath();
+  ctx.rect(left, top, width, height);
+  ctx.clip();
+  ctx.fillStyle = 'rgba(90, 45, 130, 0.16)';
+  ctx.fillRect(x - w, yHi, 2 * w, yLo - yHi);
+  ctx.strokeStyle = FORECAST;
+  ctx.lineWidth = 1.5 * dpr;
+  ctx.setLineDash([]);
+  ctx.beginPath();
+  ctx.moveTo(x, yLo);
+  ctx.lineTo(x, yHi);
+  ctx.moveTo(x - w, yLo);
+  ctx.lineTo(x + w, yLo);
+  ctx.moveTo(x - w, yHi);
+  ctx.lineTo(x + w, yHi);
+  ctx.stroke();
+  const d = 5 * dpr;
+  ctx.beginPath();
+  ctx.moveTo(x, y - d);
+  ctx.lineTo(x + d, y);
+  ctx.lineTo(x, y + d);
+  ctx.lineTo(x - d, y);
+  ctx.closePath();
+  ctx.fillStyle = FORECAST;
+  ctx.fill();
+  ctx.font = `${12 * dpr}px system-ui, sans-serif`;
+  ctx.textBaseline = 'middle';
+  const label = 'forecast';
+  const tw = ctx.measureText(label).width;
+  const right = x + w + 4 * dpr + tw < left + width;
+  ctx.textAlign = right ? 'left' : 'right';
+  ctx.fillText(label, right ? x + w + 4 * dpr : x - w - 4 * dpr, y);
+  ctx.restore();
+}

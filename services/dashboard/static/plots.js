@@ -2,7 +2,16 @@
 // The plots (uPlot): site-local time on the axis, UTC in the readout, night shading, the site's limits,
 // flagged points marked by their flag, field-log markers, drag to zoom, cursors linked within a station.
 import { FLAG_WORDS, num, unitText, withUnit } from './format.js';
-import { drawOver, drawSignificance, drawUnder, FONT, padRange, timeAxis, valueAxis } from './plot-draw.js';
+import {
+  drawForecast,
+  drawOver,
+  drawSignificance,
+  drawUnder,
+  FONT,
+  padRange,
+  timeAxis,
+  valueAxis,
+} from './plot-draw.js';
 import { reasonWords } from './words.js';
 
 /** @typedef {import('./series.js').PlotColumns} PlotColumns */
@@ -10,6 +19,7 @@ import { reasonWords } from './words.js';
 /** @typedef {import('./format.js').SiteClock} SiteClock */
 /** @typedef {import('./types.js').SiteRule} SiteRule */
 /** @typedef {import('./types.js').LogbookEntry} LogbookEntry */
+/** @typedef {import('./series.js').ForecastMark} ForecastMark */
 
 /**
  * @typedef {{
@@ -50,7 +60,7 @@ const LINE_DASH = [[], [6, 3], [2, 3]];
  * @param {HTMLElement} node
  * @param {Common & {
  *   field: string, label: string, unit: string, color: string, pointsOnly: boolean,
- *   data: PlotColumns, limits: SiteRule[]
+ *   data: PlotColumns, limits: SiteRule[], forecast?: ForecastMark | null
  * }} o
  */
 export function quantityPlot(node, o) {
@@ -103,7 +113,20 @@ export function quantityPlot(node, o) {
     height: o.height,
     legend: { show: false },
     tzDate: (ts) => uPlot.tzDate(new Date(ts * 1000), o.clock.timeZone),
-    scales: { x: { time: true }, y: { range: (_u, min, max) => padRange(min, max, c.limits) } },
+    scales: {
+      x: { time: true },
+      y: {
+        // The forecast's interval stays in view beside the water's course.
+        range: (_u, min, max) =>
+          c.forecast
+            ? padRange(
+                Math.min(min ?? c.forecast.loMgL, c.forecast.loMgL),
+                Math.max(max ?? c.forecast.hiMgL, c.forecast.hiMgL),
+                c.limits,
+              )
+            : padRange(min, max, c.limits),
+      },
+    },
     axes: [timeAxis(o.clock), valueAxis()],
     cursor: {
       sync: { key: o.syncKey },
@@ -125,7 +148,12 @@ export function quantityPlot(node, o) {
     ],
     hooks: {
       drawClear: [(u) => drawUnder(u, c.nights, c.logbook)],
-      draw: [(u) => drawOver(u, c.limits, cols.marks)],
+      draw: [
+        (u) => {
+          drawOver(u, c.limits, cols.marks);
+          drawForecast(u, c.forecast);
+        },
+      ],
       setCursor: [(u) => readout(u.cursor.idx)],
       ...zoomHooks(o),
     },
@@ -140,7 +168,7 @@ export function quantityPlot(node, o) {
   return {
     /**
      * @param {PlotColumns} data
-     * @param {Partial<Common> & {limits?: SiteRule[]}} next
+     * @param {Partial<Common> & {limits?: SiteRule[], forecast?: ForecastMark | null}} next
      */
     update(data, next) {
       c = { ...c, ...next };

@@ -291,3 +291,79 @@ export function pan(r, fraction, nowMs) {
   if (from + w > nowMs + 60_000) from = nowMs + 60_000 - w;
   return { fromMs: from, toMs: from + w };
 }
+
+/**
+ * @typedef {{
+ *   tMinS: number, minMgL: number, loMgL: number, hiMgL: number, issuedMs: number, rec: Rec
+ * }} ForecastMark
+ */
+
+/**
+ * The forecast a station's oxygen plot shows: the newest one issued by the end of the range whose expected
+ * minimum falls after its start (so a range of past nights shows the forecast of that night).
+ * @param {readonly Rec[]} forecasts the station's forecast records, in time order
+ * @param {{fromMs: number, toMs: number}} range
+ * @returns {ForecastMark | null}
+ */
+export function stationForecast(forecasts, range) {
+  for (let i = forecasts.length - 1; i >= 0; i--) {
+    const f = /** @type {Rec} */ (forecasts[i]);
+    const issuedMs = Date.parse(f.t);
+    const tMinMs = typeof f.t_min === 'string' ? Date.parse(f.t_min) : NaN;
+    if (!(issuedMs <= range.toMs)) continue;
+    const ok = [f.o2_min_mg_l, f.o2_min_lo_mg_l, f.o2_min_hi_mg_l].every(
+      (v) => typeof v === 'number' && Number.isFinite(v),
+    );
+    if (!ok || !Number.isFinite(tMinMs)) continue;
+    if (tMinMs < range.fromMs) return null;
+    return {
+      tMinS: tMinMs / 1000,
+      minMgL: /** @type {number} */ (f.o2_min_mg_l),
+      loMgL: /** @type {number} */ (f.o2_min_lo_mg_l),
+      hiMgL: /** @type {number} */ (f.o2_min_hi_mg_l),
+      issuedMs,
+      rec: f,
+    };
+  }
+  return null;
+}
+
+/**
+ * The range a station shows with its forecast: a range ending now reaches on to the expected minimum (and a
+ * little beyond) while it is still ahead, so tonight's forecast stands beside the water's course so far.
+ * @param {{fromMs: number, toMs: number}} range
+ * @param {ForecastMark | null} mark
+ * @param {boolean} live the range ends now (a preset)
+ */
+export function rangeWithForecast(range, mark, live) {
+  if (!mark || !live) return range;
+  const tMinMs = mark.tMinS * 1000;
+  if (tMinMs <= range.toMs || tMinMs - range.toMs > 24 * 3_600_000) return range;
+  return { fromMs: range.fromMs, toMs: tMinMs + 0.05 * (tMinMs - range.fromMs) };
+}
+
+/**
+ * The observed value of a field nearest to a time, over a station's sensors, within `withinMs` (a value failed
+ * by QC is not an observation).
+ * @param {{t: number[], r: Rec[]}[]} series
+ * @param {string} field
+ * @param {number} tMs
+ * @param {number} withinMs
+ * @returns {{value: number, tMs: number} | null}
+ */
+export function observedNear(series, field, tMs, withinMs) {
+  /** @type {{value: number, tMs: number} | null} */
+  let best = null;
+  for (const s of series) {
+    const i = lowerBound(s.t, tMs);
+    for (const j of [i - 1, i]) {
+      const r = s.r[j];
+      const t = s.t[j];
+      if (!r || t === undefined || Math.abs(t - tMs) > withinMs) continue;
+      const v = r[field];
+      if (typeof v !== 'number' || !Number.isFinite(v) || r.flag === 4 || r.flag === 9) continue;
+      if (!best || Math.abs(t - tMs) < Math.abs(best.tMs - tMs)) best = { value: v, tMs: t };
+    }
+  }
+  return best;
+}

@@ -2,7 +2,16 @@ import { describe, expect, it } from 'vitest';
 import type { DerivedRecord } from '../../../libs/contract/index.js';
 import { demoSiteConfig } from '../demo-records.js';
 import { siteInfo } from '../site-info.js';
-import { fluxColumns, limitsFor, pan, plotColumns, stationGroups } from './series.js';
+import {
+  fluxColumns,
+  limitsFor,
+  observedNear,
+  pan,
+  plotColumns,
+  rangeWithForecast,
+  stationForecast,
+  stationGroups,
+} from './series.js';
 import { RecordStore } from './store.js';
 
 type Rec = DerivedRecord & Record<string, unknown>;
@@ -114,5 +123,66 @@ describe('what a station shows', () => {
     expect(pan({ fromMs: 900, toMs: 1000 }, 0.5, 1000)).toEqual({ fromMs: 950, toMs: 1050 });
     // Later than now (plus a minute of margin) is not shown: the range stops there.
     expect(pan({ fromMs: 0, toMs: 100_000 }, 0.5, 1000)).toEqual({ fromMs: -39_000, toMs: 61_000 });
+  });
+});
+
+describe("tonight's forecast on the oxygen plot", () => {
+  const HOUR = 3_600_000;
+  const fc = (issueH: number, minH: number, min: number, lo = min - 0.4, hi = min + 0.5): Rec =>
+    ({
+      type: 'forecast',
+      site: 'ornen-reef',
+      t: iso(T0 + issueH * HOUR),
+      station: 'lagoon',
+      o2_min_mg_l: min,
+      o2_min_lo_mg_l: lo,
+      o2_min_hi_mg_l: hi,
+      t_min: iso(T0 + minH * HOUR),
+      horizon_h: minH - issueH,
+    }) as Rec;
+  const list = [fc(4, 15, 3.1), fc(5, 15.5, 2.6), fc(6, 15.5, 2.2, 1.7, 2.9)];
+
+  it('shows the newest forecast issued by the end of the range, at its expected minimum', () => {
+    const m = stationForecast(list, { fromMs: T0, toMs: T0 + 7 * HOUR })!;
+    expect([m.tMinS, m.minMgL, m.loMgL, m.hiMgL, m.issuedMs]).toEqual([
+      (T0 + 15.5 * HOUR) / 1000,
+      2.2,
+      1.7,
+      2.9,
+      T0 + 6 * HOUR,
+    ]);
+    // A range ending before the last issue shows the forecast of its own time.
+    expect(stationForecast(list, { fromMs: T0, toMs: T0 + 5.5 * HOUR })?.minMgL).toBe(2.6);
+    // A range after the night's minimum shows none; so does a range before any issue.
+    expect(stationForecast(list, { fromMs: T0 + 16 * HOUR, toMs: T0 + 30 * HOUR })).toBeNull();
+    expect(stationForecast(list, { fromMs: T0 - 9 * HOUR, toMs: T0 + HOUR })).toBeNull();
+    // A record without its interval is passed over.
+    expect(
+      stationForecast([list[0]!, { ...list[1]!, o2_min_hi_mg_l: null } as Rec], {
+        fromMs: T0,
+        toMs: T0 + 7 * HOUR,
+      })?.minMgL,
+    ).toBe(3.1);
+  });
+
+  it('reaches on to a minimum still ahead of a range ending now, not of a zoomed one', () => {
+    const m = stationForecast(list, { fromMs: T0, toMs: T0 + 7 * HOUR });
+    const r = { fromMs: T0 - 17 * HOUR, toMs: T0 + 7 * HOUR };
+    const to = T0 + 15.5 * HOUR;
+    expect(rangeWithForecast(r, m, true)).toEqual({ fromMs: r.fromMs, toMs: to + 0.05 * (to - r.fromMs) });
+    expect(rangeWithForecast(r, m, false)).toBe(r);
+    expect(rangeWithForecast({ fromMs: r.fromMs, toMs: T0 + 16 * HOUR }, m, true).toMs).toBe(T0 + 16 * HOUR);
+    expect(rangeWithForecast(r, null, true)).toBe(r);
+  });
+
+  it('reads the observed oxygen nearest the expected minimum, passing over failed values', () => {
+    const s = new RecordStore();
+    s.add([o2(0, 5), o2(1, 4.8), o2(2, 9.9, 4), o2(3, 4.6)]);
+    const series = s.seriesOf('oxygen', 'lagoon');
+    const at = (i: number) => T0 + i * 5 * MIN;
+    expect(observedNear(series, 'o2_mg_l', at(1) + MIN, 10 * MIN)).toEqual({ value: 4.8, tMs: at(1) });
+    // The failed value at 10 min is nearest but not an observation: the next one is.
+    expect(observedNear(series, 'o2_mg_l', at(2) + MIN, 10 * MIN)).toEqual({ value: 4.6, tMs: at(3) });
+    expect(observedNear(series, 'o2_mg_l', at(3) + 20 * MIN, 10 * MIN)).toBeNull();
   });
 });

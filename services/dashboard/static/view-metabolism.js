@@ -4,6 +4,8 @@
 // weather mast.
 import { el, byId } from './dom.js';
 import { ago, decimals, num, unitText, withUnit } from './format.js';
+import { curveOf, dayBounds, fitSentence, latestFit, lightColumns, RESPONSES } from './light.js';
+import { lightPlot } from './plot-light.js';
 import { fluxPlot } from './plots.js';
 import { fluxColumns, viewRange } from './series.js';
 import { nightsFor } from './view-station.js';
@@ -124,6 +126,89 @@ export function renderMetabolism(app) {
     ? `Hatched: ${invalid} stretch${invalid > 1 ? 'es' : ''} of windows not valid (${[...new Set(data.invalid.flatMap((w) => w.reasons.split(',')))].map((r) => reasonWords(r)).join('; ')}). ${KEY}`
     : `Every window in this range is valid. ${KEY}`;
   renderDaily(app, t.id);
+  renderLight(app, t.id, range);
+}
+
+const LIGHT_COLORS = { ncp: '#0f7b6c', nec: '#b8562a' };
+
+/**
+ * The transect's valid windows against their light with the newest fitted day's curve; NEC as well where
+ * that day has a calcification curve.
+ * @param {App} app
+ * @param {string} transect
+ * @param {{fromMs: number, toMs: number}} range
+ */
+function renderLight(app, transect, range) {
+  const box = byId('light');
+  const flux = app.store.seriesOf('flux', transect)[0] ?? { t: [], r: [] };
+  const daily = latestFit(app.store.seriesOf('daily', transect)[0]?.r ?? []);
+  box.hidden = flux.r.length === 0 && !daily;
+  if (box.hidden) return;
+  // The fitted day's windows, wherever the range shown is.
+  if (daily) app.fetchFlux(transect, dayBounds(daily));
+  const kinds = /** @type {('ncp' | 'nec')[]} */ (['ncp', 'nec']).filter(
+    (k) => k === 'ncp' || (daily !== null && curveOf(daily, k) !== null),
+  );
+  const kind = kinds.includes(app.lightKind) ? app.lightKind : 'ncp';
+  byId('light-kinds').replaceChildren(
+    ...kinds.map((k) => {
+      const b = el(
+        'button',
+        { type: 'button', class: 'chip', 'data-kind': k, 'aria-pressed': String(k === kind) },
+        `${RESPONSES[k].name} against light`,
+      );
+      b.addEventListener('click', () => {
+        app.lightKind = k;
+        app.changed('view');
+      });
+      return b;
+    }),
+  );
+  const r = RESPONSES[kind];
+  const fluxFields = app.site.record_types.flux?.fields ?? {};
+  const dailyFields = app.site.record_types.daily?.fields ?? {};
+  const data = lightColumns(flux, daily, kind, range);
+  byId('light-fit').textContent = daily
+    ? fitSentence(daily, kind, dailyFields)
+    : 'No day has a fitted light response yet: its windows are shown alone.';
+  const holder = byId('light-plot');
+  // What the plot draws, for a person inspecting the page and for the browser tests.
+  holder.dataset.kind = kind;
+  holder.dataset.day = daily ? String(daily.day) : '';
+  for (const [k, field] of /** @type {const} */ ([
+    ['amp', r.amp],
+    ['ik', r.ik],
+    ['intercept', r.intercept],
+  ]))
+    holder.dataset[k] = daily && data.curveParams ? String(daily[field]) : '';
+  holder.dataset.dayWindows = String(data.dayCount);
+  holder.dataset.otherWindows = String(data.otherCount);
+  holder.dataset.last = data.lastMs === null ? '' : new Date(data.lastMs).toISOString();
+  const dayLabel = daily ? String(daily.day) : 'the fitted day';
+  byId('light-key').textContent =
+    `Filled: the valid windows of ${dayLabel}, the day the curve is fitted to; hollow: other valid windows in ` +
+    `the range shown. Dotted: zero and Ik, the light at which ${kind === 'ncp' ? 'production' : 'calcification'} nears saturation.`;
+  const opts = {
+    data,
+    name: r.name,
+    color: LIGHT_COLORS[kind],
+    parUnit: fluxFields.par_umol_m2_s?.unit ?? '',
+    rateUnit: fluxFields[r.rate]?.unit ?? '',
+    dayLabel,
+    height: app.narrow ? 220 : 260,
+    clock: app.clock,
+    nowMs: app.nowMs(),
+    readout: byId('light-readout'),
+  };
+  const key = `light|${transect}|${kind}`;
+  if (holder.dataset.key !== key) {
+    app.plots.get(holder.dataset.key ?? '')?.destroy();
+    app.plots.delete(holder.dataset.key ?? '');
+    holder.replaceChildren();
+    holder.dataset.key = key;
+  }
+  const have = app.plots.get(key);
+  if (!have || !have.update(data, opts)) app.plots.set(key, lightPlot(holder, opts));
 }
 
 /**

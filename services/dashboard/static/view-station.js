@@ -5,9 +5,19 @@
 import { el, byId } from './dom.js';
 import { ago, capitalise, unitText, withUnit } from './format.js';
 import { quantityPlot } from './plots.js';
-import { limitsFor, plotColumns, POINTS_ONLY, stationGroups, viewRange } from './series.js';
+import {
+  limitsFor,
+  observedNear,
+  plotColumns,
+  POINTS_ONLY,
+  rangeWithForecast,
+  stationForecast,
+  stationGroups,
+  viewRange,
+} from './series.js';
 import { nightIntervals } from './sun.js';
 import { LEVEL_RANK, STATE_RANK } from './verdicts.js';
+import { forecastLine } from './words.js';
 
 /** @typedef {import('./app.js').App} App */
 
@@ -189,7 +199,10 @@ function renderStationStatus(app, st, reef) {
  */
 function renderStationPlots(app, id) {
   const now = app.nowMs();
-  const range = viewRange(app.view, now);
+  const shown = viewRange(app.view, now);
+  // Tonight's forecast of the station, and the range reaching on to its expected minimum while it is ahead.
+  const forecast = stationForecast(app.store.seriesOf('forecast', id)[0]?.r ?? [], shown);
+  const range = rangeWithForecast(shown, forecast, app.view.presetH !== null);
   const nights = nightsFor(app, range);
   const logbook = app.fieldLog.logbook.filter((e) => e.station === id);
   const box = byId('station-groups');
@@ -291,8 +304,11 @@ function renderStationPlots(app, id) {
         onZoom: (/** @type {number} */ a, /** @type {number} */ b) => app.setRange(a, b),
         onReset: () => app.setPreset(app.lastPresetH),
       };
+      const mark = item.type === 'oxygen' && item.field === 'o2_mg_l' ? forecast : null;
+      if (item.type === 'oxygen' && item.field === 'o2_mg_l')
+        renderForecastLine(app, card, mark, series, now);
       const have = app.plots.get(key);
-      if (have && have.update(data, { ...common, limits })) continue;
+      if (have && have.update(data, { ...common, limits, forecast: mark })) continue;
       have?.destroy();
       const node = /** @type {HTMLElement} */ (card.querySelector('.plot'));
       node.replaceChildren();
@@ -307,8 +323,40 @@ function renderStationPlots(app, id) {
           pointsOnly: POINTS_ONLY.has(item.field),
           data,
           limits,
+          forecast: mark,
         }),
       );
     }
   });
+}
+
+/**
+ * The forecast's line on the oxygen plot, with what it shows as data attributes (for a person inspecting the
+ * page and the browser tests).
+ * @param {App} app
+ * @param {HTMLElement} card
+ * @param {import('./series.js').ForecastMark | null} mark
+ * @param {{t: number[], r: import('./types.js').Rec[]}[]} series the station's oxygen
+ * @param {number} now
+ */
+function renderForecastLine(app, card, mark, series, now) {
+  let line = /** @type {HTMLElement | null} */ (card.querySelector('.forecast-line'));
+  if (!line) {
+    line = el('div', { class: 'forecast-line' });
+    card.querySelector('.readout')?.after(line);
+  }
+  line.hidden = !mark;
+  if (!mark) {
+    for (const k of ['min', 'lo', 'hi', 'tMin', 'issued']) delete line.dataset[k];
+    return;
+  }
+  const unit = app.site.record_types.forecast?.fields.o2_min_mg_l?.unit ?? '';
+  // The water's reading nearest the expected minimum, within half an hour.
+  const observed = observedNear(series, 'o2_mg_l', mark.tMinS * 1000, 1_800_000);
+  line.textContent = forecastLine(mark, observed, unit, app.clock, now);
+  line.dataset.min = String(mark.rec.o2_min_mg_l);
+  line.dataset.lo = String(mark.rec.o2_min_lo_mg_l);
+  line.dataset.hi = String(mark.rec.o2_min_hi_mg_l);
+  line.dataset.tMin = String(mark.rec.t_min);
+  line.dataset.issued = mark.rec.t;
 }

@@ -31,6 +31,26 @@ export function forecastSentence(f, clock, nowMs) {
   return `Lowest oxygen before sunrise expected ${v}${at} (80 % between ${lo} and ${hi}).`;
 }
 
+/**
+ * The readout line of a station's forecast on its oxygen plot: the forecast, and what the water did then.
+ * @param {import('./series.js').ForecastMark} mark
+ * @param {{value: number, tMs: number} | null} observed the oxygen observed nearest the expected minimum
+ * @param {string} unit the unit of the forecast's fields (/api/site)
+ * @param {SiteClock} clock
+ * @param {number} nowMs
+ */
+export function forecastLine(mark, observed, unit, clock, nowMs) {
+  const tMinMs = mark.tMinS * 1000;
+  const v = (/** @type {number} */ x) => withUnit(x, unit, 'o2_mg_l');
+  const head =
+    `Forecast issued ${clock.when(mark.issuedMs, nowMs)}: lowest ${v(mark.minMgL)} around ` +
+    `${clock.when(tMinMs, nowMs)}, 80 % between ${v(mark.loMgL)} and ${v(mark.hiMgL)}`;
+  if (tMinMs > nowMs) return `${head} · still ahead`;
+  if (!observed) return `${head} · no reading near that time`;
+  const inside = observed.value >= mark.loMgL && observed.value <= mark.hiMgL;
+  return `${head} · observed ${v(observed.value)} at ${clock.time(observed.tMs)}, ${inside ? 'within' : 'outside'} the interval`;
+}
+
 /** Words for the built-in rules; user rules are worded from their metric. */
 const RULE_TITLES = /** @type {Record<string, string>} */ ({
   low_oxygen: 'Low oxygen',

@@ -3,7 +3,7 @@ import type { AlertView } from '../api-schemas.js';
 import { demoSiteConfig } from '../demo-records.js';
 import { siteInfo } from '../site-info.js';
 import { siteClock } from './format.js';
-import { alertWords, reasonWords } from './words.js';
+import { alertWords, forecastLine, reasonWords } from './words.js';
 
 const H = 3_600_000;
 const NOW = Date.UTC(2026, 2, 1, 14, 0); // 04:00 at the site
@@ -130,6 +130,30 @@ describe('words for people', () => {
     expect(silent.title).toBe('Site silent');
     expect(silent.detail).toBe(
       'No message from the site for longer than 15 min: the uplink, the broker or the power.',
+    );
+  });
+});
+
+describe("the forecast's line on the oxygen plot", () => {
+  const clock = siteClock('Pacific/Tahiti'); // UTC-10
+  const T = Date.UTC(2026, 2, 1, 14, 45); // 04:45 at the site
+  const mark = {
+    tMinS: T / 1000,
+    minMgL: 1.079,
+    loMgL: 0.8,
+    hiMgL: 1.4,
+    issuedMs: T - 3_600_000,
+    rec: {} as never,
+  };
+  it('gives the forecast with its interval in the unit of the site, and the water then', () => {
+    const head = 'Forecast issued 03:45: lowest 1.08 mg/L around 04:45, 80 % between 0.80 mg/L and 1.40 mg/L';
+    expect(forecastLine(mark, null, 'mg L-1', clock, T - 60_000)).toBe(`${head} · still ahead`);
+    expect(forecastLine(mark, null, 'mg L-1', clock, T + 60_000)).toBe(`${head} · no reading near that time`);
+    expect(forecastLine(mark, { value: 1.234, tMs: T + 300_000 }, 'mg L-1', clock, T + 3_600_000)).toBe(
+      `${head} · observed 1.23 mg/L at 04:50, within the interval`,
+    );
+    expect(forecastLine(mark, { value: 1.5, tMs: T }, 'mg L-1', clock, T + 3_600_000)).toMatch(
+      /observed 1\.50 mg\/L at 04:45, outside the interval$/,
     );
   });
 });
