@@ -7,12 +7,12 @@ import { createAlertEngine, type AlertEngine, type EngineSnapshot } from '../ale
 import { planFromConfig } from '../forecast/index.js';
 import { createDayNight, type DayNightOptions } from './day-night.js';
 import { makeContext } from './derive.js';
-import { deriveMessage, moduleOf } from './dispatch.js';
+import { deriveMessage } from './dispatch.js';
 import { createFaultWiring, exclusionsOf, type FaultWiring } from './faults.js';
 import { createFieldHooks, type FieldHooks, type ProcessorOptions } from './field.js';
 import { kindModules } from './kinds/index.js';
 import { alertRecord, createObserver, type Observer } from './observe.js';
-import { hold, takeDue } from './order.js';
+import { completeMs, hold, sortHeld, takeDue } from './order.js';
 import { intake, sensorHealth, type SensorHealthRow } from './sensors.js';
 import { processorTimes } from './settings.js';
 import { completeState, createState, STATE_VERSION, type ProcessorState } from './state.js';
@@ -175,6 +175,7 @@ export function createCore(
   nights: DayNightOptions = {},
 ): Core {
   const state = startState(config, restored);
+  sortHeld(state);
   const alerts = startAlerts(config, state);
   const times = processorTimes(config);
   const { faults, ctx } = startFaults(config, state, alerts, options, field);
@@ -192,15 +193,24 @@ export function createCore(
     deriveMessage(ctx, observer, faults, m, rxMs, out);
     dayNight.forecast.observe(out, from);
   };
-  /** Derives the held messages up to untilMs, in event-time order. */
+  /**
+   * Derives the held messages up to untilMs in event-time order, the watermark's effects interleaved: before
+   * a message at or behind the watermark, everything the watermark makes due up to the message's time (stale
+   * faults, flux windows, days, forecasts, stale alerts) is done first. So a message sees the same state, and
+   * a window the same derived messages, however many messages one delivery releases at once.
+   */
   const release = (untilMs: number, out: DerivedRecord[]): void => {
-    for (const h of takeDue(state, untilMs)) derive(h.message, h.rxMs, out);
+    for (const h of takeDue(state, untilMs)) {
+      const eMs = completeMs(h.message);
+      if (eMs <= watermark()) windows.advance(eMs, out);
+      derive(h.message, h.rxMs, out);
+    }
   };
 
   /** A message past the intake rules: derived now if late, else held; then the hold and the windows move. */
   function accept(m: SensorMessage, rxMs: number, out: DerivedRecord[]): boolean {
     state.counters.accepted++;
-    const eMs = moduleOf(m).completeMs(m);
+    const eMs = completeMs(m);
     const late = eMs < watermark();
     if (eMs > state.maxEventMs) state.maxEventMs = eMs;
     if (late) {
