@@ -19,6 +19,7 @@ import {
   type AdcpQcThresholds,
   type AdcpSensorConfig,
   type CurrentContext,
+  type CurrentFail,
   type CurrentResult,
 } from './types.js';
 
@@ -39,15 +40,8 @@ function shapeOk(a: readonly (readonly unknown[])[] | undefined, n: number): boo
   return true;
 }
 
-/**
- * Depth-averaged current of one ensemble. Units: m, m/s, deg, dbar, Pa (see types.ts).
- * Valid for shallow moorings (h up to a few tens of m) and total tilt below 20 deg.
- */
-export function processEnsemble(
-  ens: AdcpEnsemble,
-  sensor: AdcpSensorConfig,
-  ctx: CurrentContext,
-): CurrentResult {
+/** The ensemble's shape and the sensor's configuration; a CurrentFail when either is unusable. */
+function checkShapeAndConfig(ens: AdcpEnsemble, sensor: AdcpSensorConfig): CurrentFail | null {
   const nBins = ens.velMS.length;
   if (
     nBins === 0 ||
@@ -70,12 +64,17 @@ export function processEnsemble(
       `height_m ${zHeadM}, beam_angle_deg ${beamAngleDeg}, beam map ${String(map)}`,
     );
   }
-  const qc: Readonly<AdcpQcThresholds> =
-    sensor.qc === undefined ? DEFAULT_QC : { ...DEFAULT_QC, ...sensor.qc };
-  const notes: string[] = [];
-  let flag = 1;
+  return null;
+}
 
-  // Attitude and tilt.
+/** The result's running flag and notes (docs/methods/qc.md 7.4). */
+interface EnsembleLog {
+  flag: number;
+  readonly notes: string[];
+}
+
+/** Attitude and tilt: the tilt flag, the cosine of the tilt and the instrument -> earth rotation. */
+function attitude(ens: AdcpEnsemble, sensor: AdcpSensorConfig, qc: Readonly<AdcpQcThresholds>) {
   const { headingDeg, pitchDeg, rollDeg } = ens;
   const hasTilt = pitchDeg !== undefined && rollDeg !== undefined;
   if (ens.coord !== 'earth' && (headingDeg === undefined || !hasTilt)) {
@@ -94,8 +93,12 @@ export function processEnsemble(
     cosTilt = Math.cos(p * DEG) * Math.cos(rollDeg * DEG);
     if (headingDeg !== undefined) sensorRotationMatrix(sensor, headingDeg, pitchDeg, rollDeg, rot);
   }
+  return { tiltFlag, cosTilt, rot };
+}
 
-  // Water depth: the station's pressure sensor, else the ADCP's own pressure.
+/** Water depth: the station's pressure sensor, else the ADCP's own pressure; and the ensemble's own checks. */
+function waterDepth(ens: AdcpEnsemble, sensor: AdcpSensorConfig, ctx: CurrentContext, log: EnsembleLog) {
+  const zHeadM = sensor.heightM;
   const rho = ctx.rhoKgM3 ?? RHO_DEFAULT;
   const g = ctx.gMS2 ?? G_STANDARD;
   let depthAdcpM = Number.NaN;
@@ -108,15 +111,15 @@ export function processEnsemble(
     depthM = ctx.depthM;
     depthSource = 'pressure';
     if (Math.abs(depthAdcpM - depthM) > DEPTH_MISMATCH_M) {
-      flag = 3;
-      notes.push(`depth_mismatch: station ${depthM.toFixed(3)} m, adcp ${depthAdcpM.toFixed(3)} m`);
+      log.flag = 3;
+      log.notes.push(`depth_mismatch: station ${depthM.toFixed(3)} m, adcp ${depthAdcpM.toFixed(3)} m`);
     }
   } else if (Number.isFinite(depthAdcpM)) {
     depthM = depthAdcpM;
     depthSource = 'adcp';
     if (ctx.patmDbar === undefined) {
-      flag = 3;
-      notes.push('patm_default: 10.1325 dbar assumed for the ADCP depth');
+      log.flag = 3;
+      log.notes.push('patm_default: 10.1325 dbar assumed for the ADCP depth');
     }
   } else {
     return currentFail('REEFD_CURRENTS_NO_DEPTH', 'no station depth and no pres_dbar');
@@ -125,16 +128,30 @@ export function processEnsemble(
     return currentFail('REEFD_CURRENTS_HEAD_DRY', `depth ${depthM.toFixed(3)} m, head at ${zHeadM} m`);
   }
   if (ens.durationS !== undefined && ens.durationS < MIN_ENSEMBLE_S) {
-    flag = 3;
-    notes.push(`short_ensemble: ${ens.durationS} s < ${MIN_ENSEMBLE_S} s`);
+    log.flag = 3;
+    log.notes.push(`short_ensemble: ${ens.durationS} s < ${MIN_ENSEMBLE_S} s`);
   }
+  return { rho, depthM, depthSource };
+}
 
-  // Side-lobe limit and bins.
+/** Side-lobe limit and bins: the valid bins' heights and velocities, z ascending, and the bins' tally. */
+function profileBins(
+  ens: AdcpEnsemble,
+  sensor: AdcpSensorConfig,
+  ctx: CurrentContext,
+  qc: Readonly<AdcpQcThresholds>,
+  att: { tiltFlag: number; cosTilt: number; rot: Float64Array },
+  depthM: number,
+) {
+  const nBins = ens.velMS.length;
+  const zHeadM = sensor.heightM;
+  const beamAngleDeg = sensor.beamAngleDeg ?? 20;
+  const { cosTilt } = att;
   const boundaryM = boundaryDistanceM(sensor.orientation, zHeadM, depthM, ctx.hm0SsM);
   const plan: BinPlan = {
     ens,
     head: janusHead(beamAngleDeg, sensor.convex ?? true),
-    rot,
+    rot: att.rot,
     qc,
     r1M: sensor.firstBinRangeM ?? ens.blankM + 0.5 * ens.binM,
     binM: ens.binM,
@@ -142,7 +159,7 @@ export function processEnsemble(
     zHeadM,
     dzdr: sensor.orientation === 'up' ? cosTilt : -cosTilt,
     depthM,
-    tiltFlag,
+    tiltFlag: att.tiltFlag,
     beamMap: sensor.beamMap ?? BEAM_IDENTITY,
     beamSign: sensor.beamSign ?? 1,
   };
@@ -158,18 +175,82 @@ export function processEnsemble(
     east.subarray(0, m).reverse();
     north.subarray(0, m).reverse();
   }
-  // Coverage: the part of the column the profile pins down. Up-looking: from the bed (the power law from
-  // the no-slip bottom through the first bin is a constrained extrapolation, docs/methods/currents.md 5.5) to the top of
-  // the highest valid cell; down-looking: from the bottom of the lowest valid cell to the surface. Counting
-  // only the cells themselves would fail every shallow reef-flat ADCP: head height and blanking alone are
-  // ~25 % of a 1.5 m flat, and the wave troughs take the top (5.3).
-  const halfCellM = 0.5 * ens.binM * cosTilt;
-  const coverage =
-    m === 0
-      ? 0
-      : sensor.orientation === 'down'
-        ? (depthM - ((z[0] as number) - halfCellM)) / depthM
-        : ((z[m - 1] as number) + halfCellM) / depthM;
+  return { binFlags, z, east, north, tally, m };
+}
+
+/**
+ * Coverage: the part of the column the profile pins down. Up-looking: from the bed (the power law from
+ * the no-slip bottom through the first bin is a constrained extrapolation, docs/methods/currents.md 5.5) to the top of
+ * the highest valid cell; down-looking: from the bottom of the lowest valid cell to the surface. Counting
+ * only the cells themselves would fail every shallow reef-flat ADCP: head height and blanking alone are
+ * ~25 % of a 1.5 m flat, and the wave troughs take the top (5.3).
+ */
+function coverageFraction(
+  sensor: AdcpSensorConfig,
+  binM: number,
+  cosTilt: number,
+  z: Float64Array,
+  m: number,
+  depthM: number,
+): number {
+  const halfCellM = 0.5 * binM * cosTilt;
+  return m === 0
+    ? 0
+    : sensor.orientation === 'down'
+      ? (depthM - ((z[0] as number) - halfCellM)) / depthM
+      : ((z[m - 1] as number) + halfCellM) / depthM;
+}
+
+/**
+ * Uncertainty (docs/methods/uncertainty.md 9.2). Random term: sigma_ping^2/N_pings when configured; else the mean
+ * square error velocity, which by construction of d has the noise variance of a horizontal component
+ * (conservative: it also holds any inhomogeneity of the flow).
+ */
+function sigmaCurrentMS(
+  mean: Float64Array,
+  speedMS: number,
+  sensor: AdcpSensorConfig,
+  errMeanSq: number,
+  notes: string[],
+): number {
+  const dE = 0.5 * ((mean[1] as number) - (mean[0] as number));
+  const dN = 0.5 * ((mean[3] as number) - (mean[2] as number));
+  const sigmaHeadingRad = (sensor.headingSigmaDeg ?? 2) * DEG;
+  let var2 = (REL_ERR * speedMS) ** 2 + (speedMS * sigmaHeadingRad) ** 2 + dE * dE + dN * dN;
+  if (sensor.pingSigmaMS !== undefined && sensor.pingsPerEnsemble !== undefined) {
+    var2 += (sensor.pingSigmaMS * sensor.pingSigmaMS) / sensor.pingsPerEnsemble;
+  } else if (Number.isFinite(errMeanSq)) {
+    var2 += errMeanSq;
+  } else {
+    notes.push('sigma_without_noise: no ping noise configured and no error velocity');
+  }
+  return Math.sqrt(var2);
+}
+
+/**
+ * Depth-averaged current of one ensemble. Units: m, m/s, deg, dbar, Pa (see types.ts).
+ * Valid for shallow moorings (h up to a few tens of m) and total tilt below 20 deg.
+ */
+export function processEnsemble(
+  ens: AdcpEnsemble,
+  sensor: AdcpSensorConfig,
+  ctx: CurrentContext,
+): CurrentResult {
+  const bad = checkShapeAndConfig(ens, sensor);
+  if (bad !== null) return bad;
+  const qc: Readonly<AdcpQcThresholds> =
+    sensor.qc === undefined ? DEFAULT_QC : { ...DEFAULT_QC, ...sensor.qc };
+  const log: EnsembleLog = { flag: 1, notes: [] };
+  const notes = log.notes;
+
+  const att = attitude(ens, sensor, qc);
+  if ('ok' in att) return att;
+  const water = waterDepth(ens, sensor, ctx, log);
+  if ('ok' in water) return water;
+  const { rho, depthM, depthSource } = water;
+
+  const { binFlags, z, east, north, tally, m } = profileBins(ens, sensor, ctx, qc, att, depthM);
+  const coverage = coverageFraction(sensor, ens.binM, att.cosTilt, z, m, depthM);
   if (m < qc.minBins || coverage < qc.minCoverage) {
     return currentFail(
       'REEFD_CURRENTS_TOO_FEW_BINS',
@@ -177,7 +258,7 @@ export function processEnsemble(
     );
   }
   if (tally.threeBeam > 0) notes.push(`three_beam: ${tally.threeBeam} bins`);
-  if (tally.worst > flag) flag = tally.worst;
+  if (tally.worst > log.flag) log.flag = tally.worst;
 
   // Depth average: [E const, E power, N const, N power].
   const mean = new Float64Array(4);
@@ -187,26 +268,12 @@ export function processEnsemble(
   const northMS = (power ? mean[3] : mean[2]) as number;
   const speedMS = Math.sqrt(eastMS * eastMS + northMS * northMS);
   const { uMS, vMS } = toReefFrame(eastMS, northMS, ctx.reefAxisDeg);
-
-  // Uncertainty (docs/methods/uncertainty.md 9.2). Random term: sigma_ping^2/N_pings when configured; else the mean
-  // square error velocity, which by construction of d has the noise variance of a horizontal component
-  // (conservative: it also holds any inhomogeneity of the flow).
-  const dE = 0.5 * ((mean[1] as number) - (mean[0] as number));
-  const dN = 0.5 * ((mean[3] as number) - (mean[2] as number));
-  const sigmaHeadingRad = (sensor.headingSigmaDeg ?? 2) * DEG;
-  let var2 = (REL_ERR * speedMS) ** 2 + (speedMS * sigmaHeadingRad) ** 2 + dE * dE + dN * dN;
-  if (sensor.pingSigmaMS !== undefined && sensor.pingsPerEnsemble !== undefined) {
-    var2 += (sensor.pingSigmaMS * sensor.pingSigmaMS) / sensor.pingsPerEnsemble;
-  } else if (Number.isFinite(tally.errMeanSq)) {
-    var2 += tally.errMeanSq;
-  } else {
-    notes.push('sigma_without_noise: no ping noise configured and no error velocity');
-  }
+  const sigmaMS = sigmaCurrentMS(mean, speedMS, sensor, tally.errMeanSq, notes);
 
   const cd = ctx.z0M !== undefined ? logLawCd(depthM, ctx.z0M) : (ctx.cd ?? CD_DEFAULT);
   return {
     ok: true,
-    flag,
+    flag: log.flag,
     eastMS,
     northMS,
     uMS,
@@ -217,7 +284,7 @@ export function processEnsemble(
     depthM,
     depthSource,
     tauBedPa: bedStressPa(speedMS, rho, cd),
-    sigmaMS: Math.sqrt(var2),
+    sigmaMS,
     binFlags,
     notes,
   };
