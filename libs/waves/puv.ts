@@ -59,16 +59,10 @@ const fail = (flag: 3 | 4 | 9, code: WavesErrorCode, reason: string): PuvResult 
   reason,
 });
 
-/**
- * Mean wave direction (from, degrees true) and spread over the sea-swell band. Bulk a1, b1 are weighted by
- * S_eta = S_pp/Kp^2; theta = (270 - atan2(b1, a1)) mod 360; sigma1 = sqrt(2 (1 - sqrt(a1^2 + b1^2))).
- * The Doppler shift by the mean current is neglected (|U| << omega/k). Check value: a single linear wave
- * travelling towards the north-east comes from 225 deg with spread 0 and r = 1 (algebra of 4.7).
- */
-export function puvDirection(input: PuvInput, options: PuvOptions = {}): PuvResult {
+/** The burst's metadata and segment length; a PuvFail when they are unusable. */
+function checkPuvInput(input: PuvInput, options: PuvOptions) {
   const n = input.pDbar.length;
   const fs = input.fsHz;
-  const g = input.gMS2 ?? G_STANDARD;
   const zp = input.sensorHeightM;
   const zu = input.velocityHeightM;
   if (input.uMS.length !== n || input.vMS.length !== n) {
@@ -91,6 +85,14 @@ export function puvDirection(input: PuvInput, options: PuvOptions = {}): PuvResu
   if (ns < 8 || ns > n || (ns & (ns - 1)) !== 0) {
     return fail(9, 'REEFD_WAVES_BAD_INPUT', `nperseg must be a power of two in [8, ${n}], got ${ns}`);
   }
+  return { n, fs, ns };
+}
+
+/** Gap-filled, detrended p (as head), u and v, and the water depth; a PuvFail for gappy input or a dry sensor. */
+function prepareChannels(input: PuvInput, n: number, g: number) {
+  const fs = input.fsHz;
+  const zp = input.sensorHeightM;
+  const zu = input.velocityHeightM;
   const chans = [new Float64Array(n), new Float64Array(n), new Float64Array(n)] as const;
   const srcs = [input.pDbar, input.uMS, input.vMS];
   for (let c = 0; c < 3; c++) {
@@ -111,8 +113,14 @@ export function puvDirection(input: PuvInput, options: PuvOptions = {}): PuvResu
     return fail(4, 'REEFD_WAVES_DRY', `sensor out of the water (head ${mean.toFixed(3)} m)`);
   const order = n / fs > 3600 ? 2 : 1;
   for (const ch of chans) detrend(ch, n, order);
+  return { chans, h };
+}
 
-  // cross-spectral Welch (same window, overlap and scaling as welch.ts; the common factor cancels in a1, b1, r)
+/**
+ * Cross-spectral Welch (same window, overlap and scaling as welch.ts; the common factor cancels in a1, b1, r):
+ * per bin Spp, Suu, Svv, Cpu, Cpv, Cuv, and the number of segments.
+ */
+function crossSpectra(chans: readonly [Float64Array, Float64Array, Float64Array], n: number, ns: number) {
   const half = ns / 2;
   const K = segmentCount(n, ns);
   const { w } = hannWindow(ns);
@@ -139,14 +147,24 @@ export function puvDirection(input: PuvInput, options: PuvOptions = {}): PuvResu
       acc[o + 5] = (acc[o + 5] as number) + ur * vr + ui * vi;
     }
   }
+  return { acc, K };
+}
 
-  const df = fs / ns;
-  const split = options.splitHz ?? 0.04;
-  const cut = cutoffFrequency(h, zp, fs, options.maxFreqHz ?? 1.0, options.minKp2 ?? 0.1, g);
-  const mLo = Math.max(1, Math.ceil((split - 1e-9 * df) / df));
-  const mHi = Math.min(half, Math.floor((cut.fHz + 1e-9 * df) / df));
-  if (mHi < mLo)
-    return fail(4, 'REEFD_WAVES_NO_BAND', `no sea-swell band: cutoff ${cut.fHz} Hz below ${split} Hz`);
+/**
+ * Energy-weighted band sums over bins mLo..mHi: sum S_eta, and the S_eta-weighted a1, b1 and r (to be divided
+ * by the first).
+ */
+function bandSums(
+  acc: Float64Array,
+  mLo: number,
+  mHi: number,
+  df: number,
+  h: number,
+  input: PuvInput,
+  g: number,
+) {
+  const zp = input.sensorHeightM;
+  const zu = input.velocityHeightM;
   const count = mHi - mLo + 1;
   const omega = new Float64Array(count);
   const kk = new Float64Array(count);
@@ -174,10 +192,40 @@ export function puvDirection(input: PuvInput, options: PuvOptions = {}): PuvResu
     b1 += (sEta * (acc[o + 4] as number)) / gg;
     rr += (sEta * (suv * kp * kp)) / (spp * ku * ku);
   }
+  return { sw, a1, b1, rr };
+}
+
+/**
+ * Mean wave direction (from, degrees true) and spread over the sea-swell band. Bulk a1, b1 are weighted by
+ * S_eta = S_pp/Kp^2; theta = (270 - atan2(b1, a1)) mod 360; sigma1 = sqrt(2 (1 - sqrt(a1^2 + b1^2))).
+ * The Doppler shift by the mean current is neglected (|U| << omega/k). Check value: a single linear wave
+ * travelling towards the north-east comes from 225 deg with spread 0 and r = 1 (algebra of 4.7).
+ */
+export function puvDirection(input: PuvInput, options: PuvOptions = {}): PuvResult {
+  const g = input.gMS2 ?? G_STANDARD;
+  const zp = input.sensorHeightM;
+  const checked = checkPuvInput(input, options);
+  if ('ok' in checked) return checked;
+  const { n, fs, ns } = checked;
+  const prepared = prepareChannels(input, n, g);
+  if ('ok' in prepared) return prepared;
+  const { chans, h } = prepared;
+  const { acc, K } = crossSpectra(chans, n, ns);
+  const half = ns / 2;
+
+  const df = fs / ns;
+  const split = options.splitHz ?? 0.04;
+  const cut = cutoffFrequency(h, zp, fs, options.maxFreqHz ?? 1.0, options.minKp2 ?? 0.1, g);
+  const mLo = Math.max(1, Math.ceil((split - 1e-9 * df) / df));
+  const mHi = Math.min(half, Math.floor((cut.fHz + 1e-9 * df) / df));
+  if (mHi < mLo)
+    return fail(4, 'REEFD_WAVES_NO_BAND', `no sea-swell band: cutoff ${cut.fHz} Hz below ${split} Hz`);
+  const sums = bandSums(acc, mLo, mHi, df, h, input, g);
+  const sw = sums.sw;
   if (!(sw > 0)) return fail(4, 'REEFD_WAVES_NO_BAND', 'no wave energy in the sea-swell band');
-  a1 /= sw;
-  b1 /= sw;
-  rr /= sw;
+  const a1 = sums.a1 / sw;
+  const b1 = sums.b1 / sw;
+  const rr = sums.rr / sw;
   const alphaDeg = (Math.atan2(b1, a1) * 180) / Math.PI;
   const dirFromDeg = (((270 - alphaDeg) % 360) + 360) % 360;
   const r1 = Math.min(1, Math.sqrt(a1 * a1 + b1 * b1));
