@@ -85,29 +85,32 @@ function scoped<T extends object>(
   return Object.freeze(out) as T;
 }
 
-/** Resolves a parsed config into the rule list the engine evaluates. */
-export function resolveRules(cfg: AlertsConfig): ResolvedRules {
+/** One built-in low-limit rule (low oxygen, low aragonite saturation, the forecast's low oxygen). */
+function builtinRule(id: string, metricName: string, b: AlertsConfig['low_oxygen']): ThresholdRule {
+  return scoped(
+    {
+      id,
+      metric: metricName,
+      class: 'threshold',
+      dir: 'below',
+      limit: b.below,
+      clear: b.clear,
+      raiseAfterMs: b.raise_after_min * MIN_MS,
+      clearAfterMs: b.clear_after_min * MIN_MS,
+      maxGapMs: b.max_gap_min * MIN_MS,
+      severity: b.severity,
+      ignoreSuspect: false,
+    } satisfies ThresholdRule,
+    b,
+  );
+}
+
+/** The enabled built-in rules, in order. */
+function builtinRules(cfg: AlertsConfig): ThresholdRule[] {
   const out: ThresholdRule[] = [];
   const builtin = (id: string, metricName: string, b: AlertsConfig['low_oxygen']): void => {
     if (!b.enabled) return;
-    out.push(
-      scoped(
-        {
-          id,
-          metric: metricName,
-          class: 'threshold',
-          dir: 'below',
-          limit: b.below,
-          clear: b.clear,
-          raiseAfterMs: b.raise_after_min * MIN_MS,
-          clearAfterMs: b.clear_after_min * MIN_MS,
-          maxGapMs: b.max_gap_min * MIN_MS,
-          severity: b.severity,
-          ignoreSuspect: false,
-        } satisfies ThresholdRule,
-        b,
-      ),
-    );
+    out.push(builtinRule(id, metricName, b));
   };
   builtin('low_oxygen', 'oxygen.o2_mg_l', cfg.low_oxygen);
   builtin('low_omega_ar', 'carbonate.omega_ar', cfg.low_omega_ar);
@@ -118,33 +121,38 @@ export function resolveRules(cfg: AlertsConfig): ResolvedRules {
     below: lox.below ?? cfg.low_oxygen.below,
     clear: lox.clear ?? Math.max(cfg.low_oxygen.clear, lox.below ?? cfg.low_oxygen.below),
   });
+  return out;
+}
 
+/** The low supply voltage rules, one per instrument kind. */
+function batteryRules(cfg: AlertsConfig): ThresholdRule[] {
   const bat = cfg.faults.battery;
-  if (bat.enabled) {
-    const volts: Record<string, number> = { ...DEFAULT_BATTERY_V, ...bat.below_v };
-    for (const [kind, v] of Object.entries(volts)) {
-      out.push(
-        scoped(
-          {
-            id: 'battery',
-            metric: `${kind}.battery_v`,
-            class: 'fault',
-            fault: 'battery',
-            dir: 'below',
-            limit: v,
-            clear: v + bat.clear_margin_v,
-            raiseAfterMs: bat.raise_after_min * MIN_MS,
-            clearAfterMs: 0,
-            maxGapMs: Math.max(30 * MIN_MS, 3 * bat.raise_after_min * MIN_MS),
-            severity: bat.severity,
-            ignoreSuspect: false,
-          } satisfies ThresholdRule,
-          bat,
-        ),
-      );
-    }
-  }
+  if (!bat.enabled) return [];
+  const volts: Record<string, number> = { ...DEFAULT_BATTERY_V, ...bat.below_v };
+  return Object.entries(volts).map(([kind, v]) =>
+    scoped(
+      {
+        id: 'battery',
+        metric: `${kind}.battery_v`,
+        class: 'fault',
+        fault: 'battery',
+        dir: 'below',
+        limit: v,
+        clear: v + bat.clear_margin_v,
+        raiseAfterMs: bat.raise_after_min * MIN_MS,
+        clearAfterMs: 0,
+        maxGapMs: Math.max(30 * MIN_MS, 3 * bat.raise_after_min * MIN_MS),
+        severity: bat.severity,
+        ignoreSuspect: false,
+      } satisfies ThresholdRule,
+      bat,
+    ),
+  );
+}
 
+/** The enabled user rules of `alerts.rules`, in the config's order. */
+function userRules(cfg: AlertsConfig): ThresholdRule[] {
+  const out: ThresholdRule[] = [];
   for (const [id, r] of Object.entries(cfg.rules)) {
     if (!r.enabled) continue;
     const dir = r.below !== undefined ? 'below' : 'above';
@@ -168,55 +176,70 @@ export function resolveRules(cfg: AlertsConfig): ResolvedRules {
       ),
     );
   }
+  return out;
+}
 
-  const f = cfg.faults;
+/** The battery trend warning's settings; its per-kind cut-offs are the battery rule's. */
+function batteryTrendSettings(cfg: AlertsConfig): BatteryTrendSettings {
+  const bat = cfg.faults.battery;
+  return scoped(
+    {
+      enabled: bat.enabled && bat.warn_hours > 0,
+      warnHours: bat.warn_hours,
+      persistMs: bat.raise_after_min * MIN_MS,
+      severity: bat.severity,
+      cutoffV: Object.freeze({ ...DEFAULT_BATTERY_V, ...bat.below_v }),
+    },
+    bat,
+  );
+}
+
+/** The stale, flatline, range and spike fault detectors' settings. */
+function faultSettings(f: AlertsConfig['faults']): FaultSettings {
+  return Object.freeze({
+    stale: scoped(
+      {
+        enabled: f.stale.enabled,
+        factor: f.stale.factor,
+        minMs: f.stale.min_min * MIN_MS,
+        severity: f.stale.severity,
+      },
+      f.stale,
+    ),
+    flatline: scoped(
+      { enabled: f.flatline.enabled, minFlag: f.flatline.min_flag, severity: f.flatline.severity },
+      f.flatline,
+    ),
+    range: scoped(
+      {
+        enabled: f.range.enabled,
+        clearAfterMs: f.range.clear_after_min * MIN_MS,
+        severity: f.range.severity,
+      },
+      f.range,
+    ),
+    spike: scoped(
+      {
+        enabled: f.spike.enabled,
+        minFlag: f.spike.min_flag,
+        count: f.spike.count,
+        windowMs: f.spike.window_min * MIN_MS,
+        severity: f.spike.severity,
+      },
+      f.spike,
+    ),
+  });
+}
+
+/** Resolves a parsed config into the rule list the engine evaluates. */
+export function resolveRules(cfg: AlertsConfig): ResolvedRules {
+  const out: ThresholdRule[] = [...builtinRules(cfg), ...batteryRules(cfg), ...userRules(cfg)];
   return Object.freeze({
     thresholds: Object.freeze(out),
     // Critical: when the whole site is silent nothing else will tell anyone.
     silence: Object.freeze({ silenceMs: cfg.silence_min * MIN_MS, severity: 'critical' as const }),
-    batteryTrend: scoped(
-      {
-        enabled: bat.enabled && bat.warn_hours > 0,
-        warnHours: bat.warn_hours,
-        persistMs: bat.raise_after_min * MIN_MS,
-        severity: bat.severity,
-        cutoffV: Object.freeze({ ...DEFAULT_BATTERY_V, ...bat.below_v }),
-      },
-      bat,
-    ),
-    faults: Object.freeze({
-      stale: scoped(
-        {
-          enabled: f.stale.enabled,
-          factor: f.stale.factor,
-          minMs: f.stale.min_min * MIN_MS,
-          severity: f.stale.severity,
-        },
-        f.stale,
-      ),
-      flatline: scoped(
-        { enabled: f.flatline.enabled, minFlag: f.flatline.min_flag, severity: f.flatline.severity },
-        f.flatline,
-      ),
-      range: scoped(
-        {
-          enabled: f.range.enabled,
-          clearAfterMs: f.range.clear_after_min * MIN_MS,
-          severity: f.range.severity,
-        },
-        f.range,
-      ),
-      spike: scoped(
-        {
-          enabled: f.spike.enabled,
-          minFlag: f.spike.min_flag,
-          count: f.spike.count,
-          windowMs: f.spike.window_min * MIN_MS,
-          severity: f.spike.severity,
-        },
-        f.spike,
-      ),
-    }),
+    batteryTrend: batteryTrendSettings(cfg),
+    faults: faultSettings(cfg.faults),
   });
 }
 
