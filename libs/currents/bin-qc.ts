@@ -80,6 +80,107 @@ function echoPeakIndex(echo: readonly (readonly number[])[], riseCounts: number)
   return best >= riseCounts ? bestIdx : NO_PEAK;
 }
 
+/** The beam tests of one bin; one instance per ensemble, overwritten for each bin (no allocation per bin). */
+interface BeamCheck {
+  nullCount: number;
+  badCount: number;
+  badBeam: number;
+}
+
+/** Per-ensemble constants of the bin loop. */
+interface BinLoop {
+  readonly plan: BinPlan;
+  readonly isBeam: boolean;
+  readonly isEarth: boolean;
+  readonly map: readonly [number, number, number, number];
+  readonly sign: number;
+  /** One work vector: the transforms read all inputs before writing, so they run in place. */
+  readonly w4: Float64Array;
+  readonly check: BeamCheck;
+}
+
+/** Reads bin n's four values into w4 (NaN for null) and runs the null, correlation and percent-good tests. */
+function readBeams(loop: BinLoop, n: number): BeamCheck {
+  const { plan, isBeam, map, sign, w4, check } = loop;
+  const { ens, qc } = plan;
+  const row = ens.velMS[n] as readonly (number | null)[];
+  const cRow = ens.corrPct?.[n];
+  const pRow = ens.pgPct?.[n];
+  check.nullCount = 0;
+  check.badCount = 0;
+  check.badBeam = -1;
+  for (let i = 0; i < 4; i++) {
+    const src = map[i as 0 | 1 | 2 | 3];
+    const v = row[src];
+    // In inst/earth coordinates the 4th value is the error velocity: a null there is "not measured".
+    const isNull = v === null || v === undefined || !Number.isFinite(v);
+    w4[i] = isNull ? Number.NaN : sign * v;
+    const beamBad =
+      (cRow !== undefined && (cRow[src] as number) < qc.corrMinPct) ||
+      (pRow !== undefined && (pRow[src] as number) < qc.pgMinPct);
+    if (isNull && (isBeam || i < 3)) check.nullCount++;
+    if ((isNull && (isBeam || i < 3)) || beamBad) {
+      check.badCount++;
+      check.badBeam = i;
+    }
+  }
+  return check;
+}
+
+/**
+ * Turns w4 into earth velocities (E, N, w, error) after the beam tests: the bin's flag so far, 4 when no
+ * solution can be built.
+ */
+function toEarthVelocity(loop: BinLoop, check: BeamCheck): number {
+  const { plan, isBeam, isEarth, w4 } = loop;
+  const { head, rot } = plan;
+  let flag = plan.tiltFlag === 3 ? 3 : 1;
+  if (isBeam) {
+    if (check.badCount >= 2) return 4;
+    if (check.badCount === 1) {
+      beamToInstrument3(w4, check.badBeam, head, w4);
+      flag = 3;
+    } else {
+      beamToInstrument(w4, head, w4);
+    }
+    instrumentToEarth(w4, rot, w4);
+  } else {
+    if (check.badCount >= 1) return 4;
+    if (!isEarth) instrumentToEarth(w4, rot, w4);
+  }
+  return flag;
+}
+
+/** The error velocity, vertical velocity, speed and echo tests of bin n on the earth velocities in w4. */
+function velocityTests(loop: BinLoop, n: number, flagIn: number): number {
+  const { qc, ens } = loop.plan;
+  const w4 = loop.w4;
+  let flag = flagIn;
+  const e = w4[0] as number;
+  const nn = w4[1] as number;
+  const w = w4[2] as number;
+  const err = w4[3] as number;
+  if (Number.isFinite(err)) {
+    const ae = Math.abs(err);
+    if (ae > qc.errFailMS) flag = 4;
+    else if (ae > qc.errSuspectMS && flag < 3) flag = 3;
+  }
+  if (Math.abs(w) > qc.wSuspectMS && flag < 3) flag = 3;
+  const speed = Math.sqrt(e * e + nn * nn);
+  if (speed > qc.speedFailMS) flag = 4;
+  else if (speed > qc.speedSuspectMS && flag < 3) flag = 3;
+  const eRow = ens.echo?.[n];
+  if (eRow !== undefined && flag < 3) {
+    const a = eRow[0] as number;
+    const b = eRow[1] as number;
+    const c = eRow[2] as number;
+    const d = eRow[3] as number;
+    const lim = median4(a, b, c, d) + qc.echoOutlierCounts;
+    if (a > lim || b > lim || c > lim || d > lim) flag = 3;
+  }
+  return flag;
+}
+
 /**
  * QC, transform and place every bin. Writes binFlags (one per bin, range order) and, for the valid
  * bins in range order, heights zOut (m), velocities eastOut/northOut (m/s).
@@ -91,18 +192,19 @@ export function qcBins(
   eastOut: Float64Array,
   northOut: Float64Array,
 ): BinTally {
-  const { ens, qc, head, rot } = plan;
-  const vel = ens.velMS;
-  const corr = ens.corrPct;
-  const echo = ens.echo;
-  const pg = ens.pgPct;
+  const { ens, qc } = plan;
   const isBeam = ens.coord === 'beam';
-  const isEarth = ens.coord === 'earth';
-  const map = isBeam ? plan.beamMap : IDENTITY;
-  const sign = isBeam ? plan.beamSign : 1;
-  const peak = echo === undefined ? NO_PEAK : echoPeakIndex(echo, qc.echoPeakRiseCounts);
-  // One work vector: the transforms read all inputs before writing, so they run in place.
-  const w4 = new Float64Array(4);
+  const loop: BinLoop = {
+    plan,
+    isBeam,
+    isEarth: ens.coord === 'earth',
+    map: isBeam ? plan.beamMap : IDENTITY,
+    sign: isBeam ? plan.beamSign : 1,
+    w4: new Float64Array(4),
+    check: { nullCount: 0, badCount: 0, badBeam: -1 },
+  };
+  const w4 = loop.w4;
+  const peak = ens.echo === undefined ? NO_PEAK : echoPeakIndex(ens.echo, qc.echoPeakRiseCounts);
   let valid = 0;
   let threeBeam = 0;
   let worst = 1;
@@ -110,92 +212,32 @@ export function qcBins(
   let errN = 0;
   const halfBin = 0.5 * plan.binM;
 
-  for (let n = 0; n < vel.length; n++) {
+  for (let n = 0; n < ens.velMS.length; n++) {
     const rM = plan.r1M + n * plan.binM;
     const zM = plan.zHeadM + plan.dzdr * rM;
     if (rM + halfBin > plan.rMaxM || zM <= 0 || zM >= plan.depthM || n >= peak) {
       binFlags[n] = 4; // side lobes, outside the water column, or at or beyond the boundary echo
       continue;
     }
-    const row = vel[n] as readonly (number | null)[];
-    const cRow = corr?.[n];
-    const pRow = pg?.[n];
-    let nullCount = 0;
-    let badCount = 0;
-    let badBeam = -1;
-    for (let i = 0; i < 4; i++) {
-      const src = map[i as 0 | 1 | 2 | 3];
-      const v = row[src];
-      // In inst/earth coordinates the 4th value is the error velocity: a null there is "not measured".
-      const isNull = v === null || v === undefined || !Number.isFinite(v);
-      w4[i] = isNull ? Number.NaN : sign * v;
-      const beamBad =
-        (cRow !== undefined && (cRow[src] as number) < qc.corrMinPct) ||
-        (pRow !== undefined && (pRow[src] as number) < qc.pgMinPct);
-      if (isNull && (isBeam || i < 3)) nullCount++;
-      if ((isNull && (isBeam || i < 3)) || beamBad) {
-        badCount++;
-        badBeam = i;
-      }
-    }
-    const components = isBeam ? 4 : 3;
-    if (nullCount === components) {
+    const check = readBeams(loop, n);
+    if (check.nullCount === (isBeam ? 4 : 3)) {
       binFlags[n] = 9;
       continue;
     }
-    let flag = plan.tiltFlag === 3 ? 3 : 1;
-    if (isBeam) {
-      if (badCount >= 2) {
-        binFlags[n] = 4;
-        continue;
-      }
-      if (badCount === 1) {
-        beamToInstrument3(w4, badBeam, head, w4);
-        flag = 3;
-      } else {
-        beamToInstrument(w4, head, w4);
-      }
-      instrumentToEarth(w4, rot, w4);
-    } else {
-      if (badCount >= 1) {
-        binFlags[n] = 4;
-        continue;
-      }
-      if (!isEarth) instrumentToEarth(w4, rot, w4);
-    }
-    const e = w4[0] as number;
-    const nn = w4[1] as number;
-    const w = w4[2] as number;
-    const err = w4[3] as number;
-    if (Number.isFinite(err)) {
-      const ae = Math.abs(err);
-      if (ae > qc.errFailMS) flag = 4;
-      else if (ae > qc.errSuspectMS && flag < 3) flag = 3;
-    }
-    if (Math.abs(w) > qc.wSuspectMS && flag < 3) flag = 3;
-    const speed = Math.sqrt(e * e + nn * nn);
-    if (speed > qc.speedFailMS) flag = 4;
-    else if (speed > qc.speedSuspectMS && flag < 3) flag = 3;
-    const eRow = echo?.[n];
-    if (eRow !== undefined && flag < 3) {
-      const a = eRow[0] as number;
-      const b = eRow[1] as number;
-      const c = eRow[2] as number;
-      const d = eRow[3] as number;
-      const lim = median4(a, b, c, d) + qc.echoOutlierCounts;
-      if (a > lim || b > lim || c > lim || d > lim) flag = 3;
-    }
+    const flag0 = toEarthVelocity(loop, check);
+    const flag = flag0 === 4 ? 4 : velocityTests(loop, n, flag0);
     binFlags[n] = flag;
     if (flag === 4) continue;
     if (flag > worst) worst = flag;
-    if (isBeam && badCount === 1) threeBeam++;
+    if (isBeam && check.badCount === 1) threeBeam++;
+    const err = w4[3] as number;
     if (Number.isFinite(err)) {
       errSq += err * err;
       errN++;
     }
     zOut[valid] = zM;
-    eastOut[valid] = e;
-    northOut[valid] = nn;
+    eastOut[valid] = w4[0] as number;
+    northOut[valid] = w4[1] as number;
     valid++;
   }
   return { valid, threeBeam, worst, errMeanSq: errN > 0 ? errSq / errN : Number.NaN };
