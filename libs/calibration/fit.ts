@@ -97,45 +97,63 @@ function spreadProblem(target: FitTarget, days: number[], opts: FitOptions): str
   return undefined;
 }
 
-function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitOptions): FitResult {
-  const auto = opts.drift === undefined || opts.drift === 'auto';
-  let drift = opts.drift !== false;
-  const minPairs = opts.minPairs ?? (drift ? 4 : 3);
-  const sorted = [...pairs].sort((p, q) => p.tMs - q.tMs);
-  const days = sorted.map((p) => (p.tMs - target.fromMs) / DAY_MS);
-  const blank = (): FitRow[] =>
-    sorted.map((p, i) => ({
-      ...p,
-      days: days[i] as number,
-      corrected: p.raw,
-      residual: p.reference - p.raw,
-      weight: 1,
-    }));
+type FitFail = Extract<FitResult, { ok: false }>;
+
+/** The bottles in time order, their days since the record's start, and what the fit asks for. */
+interface FitSetup {
+  readonly model: Model;
+  readonly target: FitTarget;
+  readonly opts: FitOptions;
+  readonly sorted: readonly Pair[];
+  readonly days: number[];
+  readonly minPairs: number;
+}
+
+/** The rows of a failed fit: the bottles against the uncorrected readings. */
+function blankRows(s: FitSetup): FitRow[] {
+  return s.sorted.map((p, i) => ({
+    ...p,
+    days: s.days[i] as number,
+    corrected: p.raw,
+    residual: p.reference - p.raw,
+    weight: 1,
+  }));
+}
+
+/** Too few bottles, readings a gain cannot use, or bottles too close in time for a drift. */
+function checkBottles(s: FitSetup, drift: boolean): FitFail | undefined {
+  const { sorted, target, minPairs } = s;
   if (sorted.length < minPairs) {
     return {
       ok: false,
       code: 'REEFD_CALIBRATION_TOO_FEW',
       reason: `${sorted.length} bottle-sensor pair(s) for ${target.sensor}; at least ${minPairs} are needed`,
-      rows: blank(),
+      rows: blankRows(s),
     };
   }
-  if (model === 'gain') {
+  if (s.model === 'gain') {
     const bad = sorted.find((p) => !(p.raw > 1));
     if (bad !== undefined) {
       return {
         ok: false,
         code: 'REEFD_CALIBRATION_NO_REFERENCE',
         reason: `the optode read ${bad.raw} at ${new Date(bad.tMs).toISOString()}: a gain needs readings above 1`,
-        rows: blank(),
+        rows: blankRows(s),
       };
     }
   }
   if (drift) {
-    const why = spreadProblem(target, days, opts);
-    if (why !== undefined) return { ok: false, code: 'REEFD_CALIBRATION_SPREAD', reason: why, rows: blank() };
+    const why = spreadProblem(target, s.days, s.opts);
+    if (why !== undefined)
+      return { ok: false, code: 'REEFD_CALIBRATION_SPREAD', reason: why, rows: blankRows(s) };
   }
-  const y = sorted.map((p) => (model === 'offset' ? p.reference - p.raw : p.reference / p.raw));
-  let f: LineFit | undefined = drift ? robustLine(days, y) : robustLocation(y);
+  return undefined;
+}
+
+/** The robust line (or constant); with 'auto', a drift the bottles cannot tell from zero is dropped. */
+function robustFit(s: FitSetup, y: number[], driftIn: boolean, auto: boolean) {
+  let drift = driftIn;
+  let f: LineFit | undefined = drift ? robustLine(s.days, y) : robustLocation(y);
   let driftDropped: { value: number; se: number } | undefined;
   if (f !== undefined && drift && auto && !(Math.abs(f.b) > 2 * f.seB)) {
     const constant = robustLocation(y);
@@ -145,22 +163,14 @@ function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitO
       drift = false;
     }
   }
-  if (f === undefined) {
-    return {
-      ok: false,
-      code: 'REEFD_CALIBRATION_SPREAD',
-      reason: 'the bottles are all at one time; nothing determines a drift',
-      rows: blank(),
-    };
-  }
-  const rows: FitRow[] = sorted.map((p, i) => {
-    const d = days[i] as number;
-    const corr = model === 'offset' ? p.raw + f.a + f.b * d : (f.a + f.b * d) * p.raw;
-    return { ...p, days: d, corrected: corr, residual: p.reference - corr, weight: f.weights[i] as number };
-  });
-  const inliers = rows.filter((r) => r.weight > 0).length;
+  return { f, drift, driftDropped };
+}
+
+/** A fit whose bottles scatter too much about it, or of which too few agree. */
+function checkScatter(s: FitSetup, f: LineFit, rows: FitRow[], inliers: number): FitFail | undefined {
+  const { model, target } = s;
   const outliers = rows.length - inliers;
-  const maxScale = opts.maxScale ?? (model === 'offset' ? 15 : 0.05);
+  const maxScale = s.opts.maxScale ?? (model === 'offset' ? 15 : 0.05);
   if (f.scale > maxScale) {
     const unit = model === 'offset' ? ' uatm' : '';
     return {
@@ -172,7 +182,7 @@ function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitO
       rows,
     };
   }
-  if (inliers < minPairs || inliers * 2 < rows.length) {
+  if (inliers < s.minPairs || inliers * 2 < rows.length) {
     return {
       ok: false,
       code: 'REEFD_CALIBRATION_OUTLIERS',
@@ -180,6 +190,12 @@ function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitO
       rows,
     };
   }
+  return undefined;
+}
+
+/** The calibration entry and the fitted parameters with their standard errors. */
+function fitEntry(s: FitSetup, f: LineFit, drift: boolean): { entry: CalibrationEntry; params: FitParam[] } {
+  const { model, target } = s;
   const entry: CalibrationEntry = {
     sensor: target.sensor,
     field: target.field,
@@ -199,6 +215,38 @@ function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitO
           { name: 'slope', value: f.a, se: f.seA },
           ...(drift ? [{ name: 'slope_drift_per_day' as const, value: f.b, se: f.seB }] : []),
         ];
+  return { entry, params };
+}
+
+function fit(model: Model, target: FitTarget, pairs: readonly Pair[], opts: FitOptions): FitResult {
+  const auto = opts.drift === undefined || opts.drift === 'auto';
+  const driftAsked = opts.drift !== false;
+  const minPairs = opts.minPairs ?? (driftAsked ? 4 : 3);
+  const sorted = [...pairs].sort((p, q) => p.tMs - q.tMs);
+  const days = sorted.map((p) => (p.tMs - target.fromMs) / DAY_MS);
+  const setup: FitSetup = { model, target, opts, sorted, days, minPairs };
+  const bad = checkBottles(setup, driftAsked);
+  if (bad !== undefined) return bad;
+  const y = sorted.map((p) => (model === 'offset' ? p.reference - p.raw : p.reference / p.raw));
+  const { f, drift, driftDropped } = robustFit(setup, y, driftAsked, auto);
+  if (f === undefined) {
+    return {
+      ok: false,
+      code: 'REEFD_CALIBRATION_SPREAD',
+      reason: 'the bottles are all at one time; nothing determines a drift',
+      rows: blankRows(setup),
+    };
+  }
+  const rows: FitRow[] = sorted.map((p, i) => {
+    const d = days[i] as number;
+    const corr = model === 'offset' ? p.raw + f.a + f.b * d : (f.a + f.b * d) * p.raw;
+    return { ...p, days: d, corrected: corr, residual: p.reference - corr, weight: f.weights[i] as number };
+  });
+  const inliers = rows.filter((r) => r.weight > 0).length;
+  const outliers = rows.length - inliers;
+  const scatter = checkScatter(setup, f, rows, inliers);
+  if (scatter !== undefined) return scatter;
+  const { entry, params } = fitEntry(setup, f, drift);
   // The scale of the fit is in y units; for the gain it is relative, so report it in field units.
   const meanRaw = sorted.reduce((s, p) => s + p.raw, 0) / sorted.length;
   const scale = model === 'offset' ? f.scale : f.scale * meanRaw;
