@@ -153,16 +153,8 @@ function toSolution(
   };
 }
 
-/**
- * Solves the input pair at cIn, then (when cOut differs) TA + DIC at cOut, into `state`. Returns undefined
- * on success or a failure. Exported for batch users that evaluate constants once per (S, t, P).
- */
-export function solveWithConstants(
-  cIn: EquilibriumConstants,
-  cOut: EquilibriumConstants,
-  input: CarbonateInput,
-  state: Float64Array,
-): CarbonateFailure | undefined {
+/** The input pair in mol/kg at cIn, with the total phosphate and silicate; a failure for values out of range. */
+function pairInputs(cIn: EquilibriumConstants, input: CarbonateInput) {
   const tp = (input.po4UmolKg ?? 0) * 1e-6;
   const tsi = (input.sio4UmolKg ?? 0) * 1e-6;
   const baro = input.baroHpa ?? STANDARD_BARO_HPA;
@@ -179,61 +171,92 @@ export function solveWithConstants(
   if (ph !== undefined && !(ph > 3 && ph < 12)) {
     return fail('REEFD_CARBONATE_BAD_INPUT', `phTotal = ${ph} is outside the solver's bracket 3 to 12`);
   }
+  return { tp, tsi, baro, ph0, ta, dic, ph, fco2, co2 };
+}
 
-  let taS: number;
-  let dicS: number;
-  let phS: number;
-  if (ta !== undefined && dic !== undefined) {
-    phS = solvePhFromTaDic(cIn, ta, dic, tp, tsi, ph0);
+type PairInputs = Exclude<ReturnType<typeof pairInputs>, CarbonateFailure>;
+
+/** TA, DIC and pH (mol/kg, total scale) at cIn from a pair with TA. */
+function solveTaPair(
+  cIn: EquilibriumConstants,
+  input: CarbonateInput,
+  ta: number,
+  q: PairInputs,
+): CarbonateFailure | { taS: number; dicS: number; phS: number } {
+  const { tp, tsi, ph0, dic, ph, co2 } = q;
+  if (dic !== undefined) {
+    const phS = solvePhFromTaDic(cIn, ta, dic, tp, tsi, ph0);
     if (phS !== phS) {
       return fail(
         'REEFD_CARBONATE_NO_ROOT',
         `no pH in 3 to 12 balances TA ${input.taUmolKg} with DIC ${input.dicUmolKg} umol/kg; check units (umol/kg) and that TA and DIC are of the same water`,
       );
     }
-    taS = ta;
-    dicS = dic;
-  } else if (ta !== undefined && co2 !== undefined) {
-    phS = solvePhFromTaCo2(cIn, ta, co2, tp, tsi, ph0);
+    return { taS: ta, dicS: dic, phS };
+  } else if (co2 !== undefined) {
+    const phS = solvePhFromTaCo2(cIn, ta, co2, tp, tsi, ph0);
     if (phS !== phS) {
       return fail(
         'REEFD_CARBONATE_NO_ROOT',
-        `no pH in 3 to 12 balances TA ${input.taUmolKg} umol/kg with fCO2 ${fco2} uatm; check units and the pCO2 reading`,
+        `no pH in 3 to 12 balances TA ${input.taUmolKg} umol/kg with fCO2 ${q.fco2} uatm; check units and the pCO2 reading`,
       );
     }
-    taS = ta;
-    dicS = dicFromPhCo2(cIn, phS, co2);
-  } else if (ta !== undefined && ph !== undefined) {
-    dicS = dicFromTaPh(cIn, ta, ph, tp, tsi);
+    return { taS: ta, dicS: dicFromPhCo2(cIn, phS, co2), phS };
+  } else if (ph !== undefined) {
+    const dicS = dicFromTaPh(cIn, ta, ph, tp, tsi);
     if (!(dicS > 0)) {
       return fail(
         'REEFD_CARBONATE_NO_ROOT',
         `TA ${input.taUmolKg} umol/kg is at or below the non-carbonate alkalinity at pH ${ph}: DIC would be <= 0`,
       );
     }
-    taS = ta;
-    phS = ph;
-  } else if (dic !== undefined && ph !== undefined) {
-    taS = taFromDicPh(cIn, dic, ph, tp, tsi);
-    dicS = dic;
-    phS = ph;
+    return { taS: ta, dicS, phS: ph };
+  }
+  return fail('REEFD_CARBONATE_BAD_PAIR', 'give exactly two of TA, DIC, pH, pCO2/fCO2');
+}
+
+/** TA, DIC and pH (mol/kg, total scale) at cIn from a pair without TA. */
+function solveOtherPair(
+  cIn: EquilibriumConstants,
+  input: CarbonateInput,
+  q: PairInputs,
+): CarbonateFailure | { taS: number; dicS: number; phS: number } {
+  const { tp, tsi, dic, ph, co2 } = q;
+  if (dic !== undefined && ph !== undefined) {
+    return { taS: taFromDicPh(cIn, dic, ph, tp, tsi), dicS: dic, phS: ph };
   } else if (dic !== undefined && co2 !== undefined) {
-    phS = phFromDicCo2(cIn, dic, co2);
+    const phS = phFromDicCo2(cIn, dic, co2);
     if (!(phS > 3 && phS < 12)) {
       return fail(
         'REEFD_CARBONATE_NO_ROOT',
         `DIC ${input.dicUmolKg} umol/kg must exceed CO2* ${(co2 * 1e6).toPrecision(6)} umol/kg (K0 fCO2) with pH in 3 to 12`,
       );
     }
-    dicS = dic;
-    taS = taFromDicPh(cIn, dic, phS, tp, tsi);
+    return { dicS: dic, taS: taFromDicPh(cIn, dic, phS, tp, tsi), phS };
   } else if (ph !== undefined && co2 !== undefined) {
-    phS = ph;
-    dicS = dicFromPhCo2(cIn, ph, co2);
-    taS = taFromDicPh(cIn, dicS, ph, tp, tsi);
-  } else {
-    return fail('REEFD_CARBONATE_BAD_PAIR', 'give exactly two of TA, DIC, pH, pCO2/fCO2');
+    const dicS = dicFromPhCo2(cIn, ph, co2);
+    return { phS: ph, dicS, taS: taFromDicPh(cIn, dicS, ph, tp, tsi) };
   }
+  return fail('REEFD_CARBONATE_BAD_PAIR', 'give exactly two of TA, DIC, pH, pCO2/fCO2');
+}
+
+/**
+ * Solves the input pair at cIn, then (when cOut differs) TA + DIC at cOut, into `state`. Returns undefined
+ * on success or a failure. Exported for batch users that evaluate constants once per (S, t, P).
+ */
+export function solveWithConstants(
+  cIn: EquilibriumConstants,
+  cOut: EquilibriumConstants,
+  input: CarbonateInput,
+  state: Float64Array,
+): CarbonateFailure | undefined {
+  const q = pairInputs(cIn, input);
+  if ('ok' in q) return q;
+  const { tp, tsi, baro } = q;
+  const sys = q.ta !== undefined ? solveTaPair(cIn, input, q.ta, q) : solveOtherPair(cIn, input, q);
+  if ('ok' in sys) return sys;
+  const { taS, dicS } = sys;
+  let phS = sys.phS;
 
   if (cOut !== cIn) {
     const phOut = solvePhFromTaDic(cOut, taS, dicS, tp, tsi, phS);
