@@ -51,15 +51,17 @@ function addSigmas(
       salinity: 0.05,
     },
     ctx.carbonateOptions,
+    // Only the sigmas reach the record: no per-source contributions or Jacobian rows to build.
+    'sigma',
   );
-  for (const [k, name] of [
-    ['phTotal', 'ph_total_sigma'],
-    ['omegaAr', 'omega_ar_sigma'],
-    ['dicUmolKg', 'dic_umol_kg_sigma'],
-  ] as const) {
-    const v = (sig as unknown as Record<string, unknown>)[k];
-    if (typeof v === 'number' && Number.isFinite(v)) (record as Record<string, unknown>)[name] = v;
-  }
+  // A system the perturbations push past its domain has no sigmas; the record goes out without them.
+  if (!sig.ok) return;
+  const put = (name: string, v: number): void => {
+    if (Number.isFinite(v)) (record as Record<string, unknown>)[name] = v;
+  };
+  put('ph_total_sigma', sig.sigma.phTotal);
+  put('omega_ar_sigma', sig.sigma.omegaAr);
+  put('dic_umol_kg_sigma', sig.sigma.dicUmolKg);
 }
 
 /** The carbonate system at a pCO2 reading, reported at the CTD temperature (docs/methods/carbonate.md 3.6, 3.8). */
