@@ -77,9 +77,9 @@ export function deriveWaves(ctx: DeriveContext, m: PressureMessage, heightM: num
   const ctd = ctdAt(ctx, m.station, tCentre, true);
   // Without a CTD, seawater of S 35 at the logger's temperature (or 27 degC) stands in, flagged 3.
   const rho = ctd ? densityEos80(ctd.sal.value, ctd.temp.value) : densityEos80(35, m.temp_c ?? 27);
-  const p = Float64Array.from(m.p_dbar, (x) => (x === null ? Number.NaN : x));
+  // The samples as carried: the waves library reads a null as a gap itself (no per-sample copy here).
   const r = analyzeBurst({
-    pDbar: p,
+    pDbar: m.p_dbar,
     fsHz: m.fs_hz,
     t0Ms: m.tMs,
     sensorHeightM: heightM,
