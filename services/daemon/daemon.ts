@@ -69,6 +69,8 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
   const dataDir = resolveDataDir(config, o.baseDir, o.env);
   await mkdir(dataDir, { recursive: true });
   const life = new Lifecycle(logger);
+  // Metrics made here are closed here, last of all; metrics handed in belong to the caller.
+  const metrics = o.metrics ?? life.add('metrics', createMetrics(), (m) => m.close());
   const onBusError = (err: unknown) => logger.error(errFields(err), 'a record bus subscriber failed');
   const ctx: StartContext = {
     config,
@@ -77,7 +79,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     logger,
     env: o.env,
     secret: secretResolver({ env: o.env, baseDir: o.baseDir }),
-    metrics: o.metrics ?? createMetrics(),
+    metrics,
     bus: createBus(onBusError),
     notices: createBus(onBusError),
     life,

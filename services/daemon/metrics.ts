@@ -24,6 +24,7 @@ export interface BuildInfo {
   version: string;
   node: string;
 }
+import { watchEventLoop, type LoopWatch } from './stall.js';
 
 export interface DaemonMetrics {
   registry: Registry;
@@ -44,6 +45,13 @@ export interface DaemonMetrics {
   alertsActive: Gauge<'rule' | 'severity'>;
   /** Connects the state gauges to the running daemon; undefined disconnects them (they have no series). */
   observe(probes: MetricsProbes | undefined): void;
+  /** Longest event-loop stall since the previous scrape (read and reset at each scrape). */
+  loopStallMaxSeconds: Gauge;
+  /** Resident set size now, and its peak since the process started (read at each scrape). */
+  rssBytes: Gauge;
+  rssPeakBytes: Gauge;
+  /** Stops the event-loop watch (the daemon's stop, or the test that made the metrics). */
+  close(): void;
 }
 
 /** The package version (package.json) and the Node.js version running it. */
@@ -54,7 +62,12 @@ export function buildInfo(): BuildInfo {
   return { version: pkg.version, node: process.version };
 }
 
-export function createMetrics(withDefaults = true, build: BuildInfo = buildInfo()): DaemonMetrics {
+/** `loop`: the event-loop watch the stall gauge reads (closed with the metrics); one of its own by default. */
+export function createMetrics(
+  withDefaults = true,
+  build: BuildInfo = buildInfo(),
+  loop: LoopWatch = watchEventLoop(),
+): DaemonMetrics {
   const registry = new Registry();
   if (withDefaults) collectDefaultMetrics({ register: registry, prefix: 'reefd_' });
   const r = [registry];
@@ -112,6 +125,32 @@ export function createMetrics(withDefaults = true, build: BuildInfo = buildInfo(
     observe(p) {
       probes = p;
     },
+    close: () => loop.close(),
+    loopStallMaxSeconds: new Gauge({
+      name: 'reefd_event_loop_stall_max_seconds',
+      help: 'Longest event-loop stall since the previous scrape (delay of a 20 ms timer beyond its interval)',
+      registers: r,
+      collect() {
+        this.set(loop.takeStallMaxS());
+      },
+    }),
+    rssBytes: new Gauge({
+      name: 'reefd_memory_rss_bytes',
+      help: 'Resident set size of the daemon process',
+      registers: r,
+      collect() {
+        this.set(process.memoryUsage.rss());
+      },
+    }),
+    rssPeakBytes: new Gauge({
+      name: 'reefd_memory_rss_peak_bytes',
+      help: 'Largest resident set size of the daemon process since it started',
+      registers: r,
+      collect() {
+        // maxRSS is in kilobytes (getrusage).
+        this.set(process.resourceUsage().maxRSS * 1024);
+      },
+    }),
     messagesIn: new Counter({
       name: 'reefd_messages_in_total',
       help: 'Messages received, by kind',
