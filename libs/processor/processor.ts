@@ -39,8 +39,13 @@ export interface Processor {
   push(message: SensorMessage, rxMs: number): PushResult;
   /** Computes every window whose end the data has passed, ignoring the lateness (end of a replay). */
   drain(): DerivedRecord[];
-  /** The whole state as plain JSON data (the checkpoint). */
-  snapshot(): ProcessorState;
+  /**
+   * The whole state as plain JSON data (the checkpoint): a copy, or with `copy: false` the live state itself,
+   * for a caller that serialises it before the next push and keeps nothing of it (the daemon's checkpoint
+   * writes it in pieces between two pushes instead of cloning it first). An implementation may return a
+   * copy either way.
+   */
+  snapshot(options?: { copy?: boolean }): ProcessorState;
   /** Event-time watermark, ms (0 before the first message). */
   watermarkMs(): number;
   counters(): ProcessorState['counters'];
@@ -255,9 +260,9 @@ export function createCore(
       count(out);
       return out;
     },
-    snapshot() {
+    snapshot(o) {
       state.alerts = alerts.snapshot();
-      return structuredClone(state);
+      return o?.copy === false ? state : structuredClone(state);
     },
     watermarkMs: watermark,
     counters: () => structuredClone(state.counters),

@@ -126,7 +126,7 @@ function plain(core: Core): Processor {
   return {
     push: (m, rxMs) => core.push(m, rxMs),
     drain: () => core.drain(),
-    snapshot: () => core.snapshot(),
+    snapshot: (o) => core.snapshot(o),
     watermarkMs: () => core.watermarkMs(),
     counters: () => core.counters(),
     activeAlerts: () => core.activeAlerts(),

@@ -11,7 +11,7 @@ import type { EdgeBridge } from '../scaleout/edge-bridge.js';
 import { edgeFromConfig } from '../scaleout/edge-from-config.js';
 import { loadFieldFiles } from '../config/field-files.js';
 import type { Outputs } from './build-io.js';
-import { readCheckpoint, writeCheckpoint } from './checkpoint.js';
+import { checkpointPieces, readCheckpoint, writeCheckpoint, writeFileAtomic } from './checkpoint.js';
 import type { StartContext } from './context.js';
 import { newStream, renewEpoch, streamFingerprint, type StreamState } from './cursor.js';
 import { tlsFiles } from './outputs.js';
@@ -195,11 +195,13 @@ export function buildCheckpointer(
     // hold in memory (delivered or spooled). Archive lines are durable before they are processed. If the
     // outputs do not settle within settleMs (a hung or very slow database), the previous checkpoint stays:
     // resume then feeds more lines again, and the outputs skip what they already hold.
-    const taken = await pipeline.atRest(() => ({
-      state: state.processor.snapshot(),
-      stream: structuredClone(state.stream),
-      silence: silence.snapshot(),
-    }));
+    // The text is made from the live state while the pipeline holds the processor at rest (no copy first);
+    // the event loop runs between its pieces, so the intake keeps archiving and the HTTP side answers.
+    const pieces = await pipeline.atRest(() =>
+      checkpointPieces(state.processor.snapshot({ copy: false }), state.stream, {
+        silence: silence.snapshot(),
+      }),
+    );
     await state.bridge?.flush();
     let timer: NodeJS.Timeout | undefined;
     const settled = await Promise.race([
@@ -214,7 +216,7 @@ export function buildCheckpointer(
       );
       return;
     }
-    await writeCheckpoint(state.checkpointFile, taken.state, taken.stream, { silence: taken.silence });
+    await writeFileAtomic(state.checkpointFile, pieces);
   }
   const timer = setInterval(() => {
     checkpoint().catch((err: unknown) => logger.error(errFields(err), 'checkpoint failed'));

@@ -307,6 +307,52 @@ describe('intake pipeline', () => {
     expect(seen).toHaveLength(5);
   });
 
+  it('holds the processor through an async checkpoint, archiving and acknowledging nothing past it meanwhile', async () => {
+    const a = heldArchive();
+    const seen: string[] = [];
+    const acks: string[] = [];
+    const processor = createProcessor(config);
+    const p = createPipeline({
+      config,
+      step: {
+        push: async (m, rx) => {
+          seen.push(`push ${m.t}`);
+          return processor.push(m, rx);
+        },
+      },
+      archive: a.archive,
+      sinks: [],
+      stream: newStream('t'),
+    });
+    let finish: () => void = () => undefined;
+    const rest = p.atRest(async () => {
+      seen.push('checkpoint start');
+      await new Promise<void>((r) => (finish = r));
+      seen.push('checkpoint end');
+      return 'text';
+    });
+    // The checkpoint began at once (the processor was idle); messages arrive while it is made.
+    expect(seen).toEqual(['checkpoint start']);
+    const one = p.handle(input(`${CREST}/ctd/ctd-crest`, ctd(0), acks, '1'));
+    const two = p.handle(input(`${CREST}/ctd/ctd-crest`, ctd(1), acks, '2'));
+    a.sync();
+    await settle();
+    // Archived (durable) but neither processed nor acknowledged while the checkpoint holds the processor.
+    expect(a.lines).toHaveLength(2);
+    expect(seen).toEqual(['checkpoint start']);
+    expect(acks).toEqual([]);
+    finish();
+    await expect(rest).resolves.toBe('text');
+    await Promise.all([one, two]);
+    expect(seen).toEqual([
+      'checkpoint start',
+      'checkpoint end',
+      'push 2026-03-01T00:00:00.000Z',
+      'push 2026-03-01T00:01:00.000Z',
+    ]);
+    expect(acks).toEqual(['1', '2']);
+  });
+
   it('tells the bus once when a logger restarts its seq, and keeps its data', async () => {
     const a = heldArchive();
     const bus = createBus<readonly DerivedRecord[]>(() => undefined);

@@ -63,8 +63,11 @@ export interface Pipeline {
   deliverArchived(message: SensorMessage | undefined, rxMs: number): Promise<void>;
   /** Marks messages as already archived (by redelivery key), e.g. the archive tail read at a restart. */
   rememberArchived(keys: Iterable<string>): void;
-  /** Runs `take` between two processor steps, so processor state and stream cursor agree (checkpoints). */
-  atRest<T>(take: () => T): Promise<T>;
+  /**
+   * Runs `take` between two processor steps, so processor state and stream cursor agree (checkpoints). An
+   * async `take` holds the processor until it resolves; the intake keeps archiving meanwhile.
+   */
+  atRest<T>(take: () => T | Promise<T>): Promise<T>;
   /** Resolves once every message handed to handle() so far is processed or given up. */
   drain(): Promise<void>;
   stats(): PipelineStats;
@@ -113,7 +116,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
   let pending = 0;
   const drained: (() => void)[] = [];
   const ready: Ready[] = [];
-  const rests: (() => void)[] = [];
+  const rests: (() => Promise<void>)[] = [];
   let running = false;
 
   function countRecords(records: readonly DerivedRecord[]): void {
@@ -206,7 +209,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
     running = true;
     try {
       for (;;) {
-        for (const rest of rests.splice(0)) rest();
+        for (const rest of rests.splice(0)) await rest();
         const item = ready.shift();
         if (item === undefined) break;
         await processLive(item);
@@ -293,16 +296,18 @@ export function createPipeline(o: PipelineOptions): Pipeline {
       await derive(message, rxMs);
     },
     atRest(take) {
-      if (!running) return Promise.resolve(take());
-      return new Promise((resolve, reject) =>
-        rests.push(() => {
+      // Started at once when the processor is idle (take begins before atRest returns), else after the step
+      // in progress.
+      return new Promise((resolve, reject) => {
+        rests.push(async () => {
           try {
-            resolve(take());
+            resolve(await take());
           } catch (err) {
             reject(err as Error);
           }
-        }),
-      );
+        });
+        void run();
+      });
     },
     drain() {
       if (pending === 0) return Promise.resolve();
