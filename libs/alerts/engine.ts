@@ -46,8 +46,11 @@ export interface AlertEngine {
   ): AlertRecord[];
   /** Moves the event-time watermark (ms); raises `stale` for sensors silent past their limit. */
   advance(watermarkMs: number): AlertRecord[];
-  /** Deep copy of the state as plain JSON-serialisable data. */
-  snapshot(): EngineSnapshot;
+  /**
+   * Deep copy of the state as plain JSON-serialisable data; with `copy: false` the state itself, for a caller
+   * that serialises it before the engine is next called and keeps nothing of it.
+   */
+  snapshot(options?: { copy?: boolean }): EngineSnapshot;
   /** Replaces the state with a snapshot (throws REEFD_ALERTS_BAD_SNAPSHOT on a wrong version or site). */
   restore(snapshot: EngineSnapshot): void;
   /** Episodes raised and not yet cleared, as their raise records. */
@@ -340,8 +343,8 @@ export function createAlertEngine(config: AlertsConfigInput | undefined, site: s
       }
       return out;
     },
-    snapshot() {
-      return structuredClone(st);
+    snapshot(o) {
+      return o?.copy === false ? st : structuredClone(st);
     },
     restore(snapshot) {
       if (snapshot?.v !== 1 || snapshot.site !== site) {

@@ -261,8 +261,12 @@ export function createCore(
       return out;
     },
     snapshot(o) {
+      if (o?.copy === false) {
+        state.alerts = alerts.snapshot(o);
+        return state;
+      }
       state.alerts = alerts.snapshot();
-      return o?.copy === false ? state : structuredClone(state);
+      return structuredClone(state);
     },
     watermarkMs: watermark,
     counters: () => structuredClone(state.counters),
