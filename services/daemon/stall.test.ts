@@ -1,7 +1,7 @@
 // The event-loop stall and RSS gauges of /metrics. Each test blocks the loop itself for a measured span and
 // waits, bounded by conditions (ticks counted), never by a sleep of a guessed length; the checks are lower
-// bounds the stall cannot miss however loaded the machine is, reads with no turn of the loop in between, and
-// an injected clock.
+// bounds the stall cannot miss however loaded the machine is (a descheduled process only adds to a stall),
+// and an injected clock for exact values.
 import { afterEach, describe, expect, it } from 'vitest';
 import { createMetrics, type DaemonMetrics } from './metrics.js';
 import { LOOP_WATCH_INTERVAL_MS, watchEventLoop, type LoopWatch } from './stall.js';
@@ -32,13 +32,13 @@ describe('event-loop watch', () => {
   let watch: LoopWatch | undefined;
   afterEach(() => watch?.close());
 
-  it('reports a stall that ended just before the take, once, then starts again from nothing', () => {
+  it('reports a stall that ended just before the take', () => {
     const w = (watch = watchEventLoop());
     w.takeStallMaxS();
     const blockedMs = block(BLOCK_MS);
     expect(w.takeStallMaxS()).toBeGreaterThanOrEqual((blockedMs - LOOP_WATCH_INTERVAL_MS) / 1000);
-    // No turn of the loop between two takes: the loop was not kept waiting, so no stall.
-    expect(w.takeStallMaxS()).toBe(0);
+    // That the next period starts from nothing is checked on an injected clock below: on the real one, a
+    // loaded machine may deschedule the process between two takes, which counts as a stall.
   });
 
   it('keeps the longest stall its ticks saw until the next take', async () => {
@@ -63,7 +63,7 @@ describe('event-loop watch', () => {
     t += 20 + 750;
     expect(w.takeStallMaxS()).toBeCloseTo(0.75, 12);
     t += 5;
-    expect(w.takeStallMaxS()).toBe(0); // early
+    expect(w.takeStallMaxS()).toBe(0); // early: the 750 ms stall was reported once
   });
 });
 
