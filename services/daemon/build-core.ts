@@ -20,9 +20,13 @@ import { createPipeline, type Pipeline } from './pipeline.js';
 import { resumeFromArchive } from './resume.js';
 import type { SilenceWatch } from './silence.js';
 import { errFields } from '../log/logger.js';
+import { startProcessorWorker, type ProcessorWorker } from './worker-processor.js';
 
 export interface CoreState {
+  /** In-process, or the HTTP side's view of the worker's. */
   processor: Processor;
+  /** The processor's worker thread, when the daemon runs the processor there (StartContext.processorWorker). */
+  worker?: ProcessorWorker;
   bridge: EdgeBridge | undefined;
   /** The stream the processor's state covers; the pipeline moves it forward. */
   stream: StreamState;
@@ -89,6 +93,21 @@ export async function buildState(ctx: StartContext): Promise<CoreState> {
     stream = renewEpoch(stream, fingerprint);
     fresh = true;
   }
+  const savedSilence = parseSilence(cp.silence);
+  // The worker thread serves the plain derivation; edge mode keeps its bridge processor in-process.
+  if (ctx.processorWorker && config.bridge === undefined) {
+    const worker = ctx.life.add(
+      'processor worker',
+      await startProcessorWorker(config, cp.state, fieldFiles.options),
+      (w) => w.close(),
+    );
+    if (fresh)
+      await writeFileAtomic(
+        checkpointFile,
+        await worker.checkpoint({ savedAt: new Date().toISOString(), stream }),
+      );
+    return { processor: worker.processor, worker, bridge: undefined, stream, checkpointFile, savedSilence };
+  }
   const { bridge, processor } = await edgeFromConfig({
     config,
     saved: cp.state,
@@ -100,7 +119,7 @@ export async function buildState(ctx: StartContext): Promise<CoreState> {
   });
   if (bridge !== undefined) ctx.life.add('edge bridge', bridge, (b) => b.close());
   if (fresh) await writeCheckpoint(checkpointFile, processor.snapshot(), stream);
-  return { processor, bridge, stream, checkpointFile, savedSilence: parseSilence(cp.silence) };
+  return { processor, bridge, stream, checkpointFile, savedSilence };
 }
 
 /** Step 4: the raw archive. */
@@ -135,7 +154,7 @@ export async function buildPipeline(
   let diskFullAtMs = Number.NEGATIVE_INFINITY;
   const pipeline = createPipeline({
     config,
-    step: { push: async (m, rxMs) => state.processor.push(m, rxMs) },
+    step: state.worker?.step ?? { push: async (m, rxMs) => state.processor.push(m, rxMs) },
     archive: archive.writer,
     sinks: outputs.sinks,
     stream: state.stream,
@@ -195,13 +214,23 @@ export function buildCheckpointer(
     // hold in memory (delivered or spooled). Archive lines are durable before they are processed. If the
     // outputs do not settle within settleMs (a hung or very slow database), the previous checkpoint stays:
     // resume then feeds more lines again, and the outputs skip what they already hold.
-    // The text is made from the live state while the pipeline holds the processor at rest (no copy first);
-    // the event loop runs between its pieces, so the intake keeps archiving and the HTTP side answers.
-    const pieces = await pipeline.atRest(() =>
-      checkpointPieces(state.processor.snapshot({ copy: false }), state.stream, {
-        silence: silence.snapshot(),
-      }),
-    );
+    // In-process, the text is made from the live state while the pipeline holds the processor at rest (no
+    // copy first); the event loop runs between its pieces, so the intake keeps archiving and the HTTP side
+    // answers. With a worker, the request is sent at rest (the worker answers in order, so it sees exactly
+    // the pushes before it) and the worker makes the JSON while the processor moves on here.
+    const taken = await pipeline.atRest(async (): Promise<{ made: Promise<string[] | Uint8Array> }> => {
+      const silenceNow = silence.snapshot();
+      const worker = state.worker;
+      if (worker === undefined) {
+        const pieces = await checkpointPieces(state.processor.snapshot({ copy: false }), state.stream, {
+          silence: silenceNow,
+        });
+        return { made: Promise.resolve(pieces) };
+      }
+      const head = { savedAt: new Date().toISOString(), stream: structuredClone(state.stream) };
+      return { made: worker.checkpoint({ ...head, silence: silenceNow }) };
+    });
+    const content = await taken.made;
     await state.bridge?.flush();
     let timer: NodeJS.Timeout | undefined;
     const settled = await Promise.race([
@@ -216,7 +245,7 @@ export function buildCheckpointer(
       );
       return;
     }
-    await writeFileAtomic(state.checkpointFile, pieces);
+    await writeFileAtomic(state.checkpointFile, content);
   }
   const timer = setInterval(() => {
     checkpoint().catch((err: unknown) => logger.error(errFields(err), 'checkpoint failed'));

@@ -25,4 +25,6 @@ export interface StartContext {
   clock: () => number;
   /** MQTT protocol version for the source (5 for Mosquitto; the embedded demo broker speaks 4). */
   mqttProtocolVersion: 4 | 5;
+  /** Run the processor in a worker thread (worker-processor.ts) rather than on the intake's thread. */
+  processorWorker: boolean;
 }

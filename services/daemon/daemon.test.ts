@@ -92,58 +92,71 @@ const lines = async (file: string): Promise<DerivedRecord[]> =>
     .map((l) => JSON.parse(l) as DerivedRecord);
 
 describe('the daemon with no outside service', () => {
-  it('starts in order, delivers through the bus and the output, stops everything, restarts without doubling', async () => {
-    const folder = await mkdtemp(path.join(dir, 'site-'));
-    await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });
-    const config = siteConfig(folder);
-    const seen: DerivedRecord[] = [];
-    const d = await startDaemon({
-      config,
-      baseDir: folder,
-      logger: quiet(),
-      env: {},
-      mqttProtocolVersion: 4,
-    });
-    expect(d.dataDir).toBe(path.join(folder, 'data'));
-    const off = d.bus.subscribe((rs) => seen.push(...rs));
-    await until('the source connected', () => d.ready());
-    await publish('hermetic', 0, 5);
-    await until('five oxygen records on the bus', () => seen.filter((r) => r.type === 'oxygen').length === 5);
-    off();
-    await d.stop('test');
-    expect(d.bus.size()).toBe(0); // the notifier unsubscribed when it stopped
-    const out = await lines(path.join(folder, 'records.ndjson'));
-    expect(out.filter((r) => r.type === 'oxygen').map((r) => r.t)).toEqual(
-      [0, 1, 2, 3, 4].map((i) => new Date(Date.UTC(2026, 2, 1) + i * 60_000).toISOString()),
-    );
-    const cp = JSON.parse(await readFile(path.join(folder, 'data', 'checkpoint.json'), 'utf8')) as {
-      stream: { nextPos: number; cursor: { lines: number } };
-    };
-    expect(cp.stream.cursor.lines).toBe(10);
-    expect(cp.stream.nextPos).toBe(out.length);
-
-    // The same folder again: nothing of the first run is written twice, the new messages once.
-    const d2 = await startDaemon({
-      config,
-      baseDir: folder,
-      logger: quiet(),
-      env: {},
-      mqttProtocolVersion: 4,
-    });
-    await until('the source connected again', () => d2.ready());
-    await publish('hermetic', 5, 2);
-    await until('seven oxygen records in the file', async () => {
-      await d2.checkpoint();
-      return (
-        (await lines(path.join(folder, 'records.ndjson'))).filter((r) => r.type === 'oxygen').length >= 7
+  it.each([
+    ['in-process', false],
+    ['in a worker thread', true],
+  ])(
+    'starts in order, delivers through the bus and the output, stops everything, restarts without doubling (processor %s)',
+    async (_where, processorWorker) => {
+      const folder = await mkdtemp(path.join(dir, 'site-'));
+      await writeFile(path.join(folder, 'hook.key'), 'k3y', { mode: 0o600 });
+      const config = siteConfig(folder);
+      const seen: DerivedRecord[] = [];
+      const d = await startDaemon({
+        config,
+        baseDir: folder,
+        logger: quiet(),
+        env: {},
+        mqttProtocolVersion: 4,
+        processorWorker,
+      });
+      expect(d.dataDir).toBe(path.join(folder, 'data'));
+      const off = d.bus.subscribe((rs) => seen.push(...rs));
+      await until('the source connected', () => d.ready());
+      await publish('hermetic', 0, 5);
+      await until(
+        'five oxygen records on the bus',
+        () => seen.filter((r) => r.type === 'oxygen').length === 5,
       );
-    });
-    await d2.stop('test');
-    const again = await lines(path.join(folder, 'records.ndjson'));
-    const oxygen = again.filter((r) => r.type === 'oxygen').map((r) => r.t);
-    expect(oxygen).toHaveLength(7);
-    expect(new Set(oxygen).size).toBe(7);
-  });
+      off();
+      await d.stop('test');
+      expect(d.bus.size()).toBe(0); // the notifier unsubscribed when it stopped
+      const out = await lines(path.join(folder, 'records.ndjson'));
+      expect(out.filter((r) => r.type === 'oxygen').map((r) => r.t)).toEqual(
+        [0, 1, 2, 3, 4].map((i) => new Date(Date.UTC(2026, 2, 1) + i * 60_000).toISOString()),
+      );
+      const cp = JSON.parse(await readFile(path.join(folder, 'data', 'checkpoint.json'), 'utf8')) as {
+        stream: { nextPos: number; cursor: { lines: number } };
+        state: { counters: { accepted: number } };
+      };
+      expect(cp.stream.cursor.lines).toBe(10);
+      expect(cp.state.counters.accepted).toBe(10);
+      expect(cp.stream.nextPos).toBe(out.length);
+
+      // The same folder again: nothing of the first run is written twice, the new messages once.
+      const d2 = await startDaemon({
+        config,
+        baseDir: folder,
+        logger: quiet(),
+        env: {},
+        mqttProtocolVersion: 4,
+        processorWorker,
+      });
+      await until('the source connected again', () => d2.ready());
+      await publish('hermetic', 5, 2);
+      await until('seven oxygen records in the file', async () => {
+        await d2.checkpoint();
+        return (
+          (await lines(path.join(folder, 'records.ndjson'))).filter((r) => r.type === 'oxygen').length >= 7
+        );
+      });
+      await d2.stop('test');
+      const again = await lines(path.join(folder, 'records.ndjson'));
+      const oxygen = again.filter((r) => r.type === 'oxygen').map((r) => r.t);
+      expect(oxygen).toHaveLength(7);
+      expect(new Set(oxygen).size).toBe(7);
+    },
+  );
 
   it('starts with a spool left near its bound by a long database outage, and raises the alert', async () => {
     const folder = await mkdtemp(path.join(dir, 'spool-'));

@@ -32,6 +32,11 @@ export interface DaemonOptions {
   /** MQTT protocol version for the source (5 for Mosquitto; the embedded demo broker speaks 4). */
   mqttProtocolVersion?: 4 | 5;
   checkpointEveryMs?: number;
+  /**
+   * Run the processor in a worker thread, off the intake's thread (default: the environment's
+   * REEFD_PROCESSOR_WORKER=1; edge mode keeps it in-process).
+   */
+  processorWorker?: boolean;
   metrics?: DaemonMetrics;
   clock?: () => number;
 }
@@ -85,6 +90,7 @@ export async function startDaemon(o: DaemonOptions): Promise<Daemon> {
     life,
     clock: o.clock ?? Date.now,
     mqttProtocolVersion: o.mqttProtocolVersion ?? 5,
+    processorWorker: o.processorWorker ?? o.env.REEFD_PROCESSOR_WORKER === '1',
   };
   // Unsubscribed (and the metrics' probes let go) once the parts are closed, on a stop or a failed start.
   let offAlerts: (() => void) | undefined;

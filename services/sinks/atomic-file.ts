@@ -9,16 +9,19 @@ import path from 'node:path';
 const BATCH_CHARS = 1 << 20;
 
 /**
- * Replaces `file` with `text` (or the concatenation of its pieces, written a batch at a time so no step
+ * Replaces `file` with `text` (bytes, or the concatenation of its pieces, written a batch at a time so no step
  * encodes the whole of a large file at once): a temp file (mode 0600), fsync, rename, fsync of the folder.
  * Used for the checkpoint, the dashboard history and the outputs' delivery ledgers.
  */
-export async function writeFileAtomic(file: string, text: string | readonly string[]): Promise<void> {
+export async function writeFileAtomic(
+  file: string,
+  text: string | Uint8Array | readonly string[],
+): Promise<void> {
   await mkdir(path.dirname(file), { recursive: true });
   const tmp = `${file}.tmp-${process.pid}`;
   const fh = await open(tmp, 'w', 0o600);
   try {
-    if (typeof text === 'string') await fh.writeFile(text);
+    if (typeof text === 'string' || text instanceof Uint8Array) await fh.writeFile(text);
     else {
       let batch: string[] = [];
       let chars = 0;
