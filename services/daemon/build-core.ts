@@ -22,6 +22,12 @@ import type { SilenceWatch } from './silence.js';
 import { errFields } from '../log/logger.js';
 import { startProcessorWorker, type ProcessorWorker } from './worker-processor.js';
 
+/**
+ * Messages at the processor's worker before the first has its result: enough to keep it busy across the
+ * round trips, far below the broker's in-flight window (1,000), which still bounds the queue before it.
+ */
+const WORKER_STEP_WINDOW = 64;
+
 export interface CoreState {
   /** In-process, or the HTTP side's view of the worker's. */
   processor: Processor;
@@ -155,6 +161,7 @@ export async function buildPipeline(
   const pipeline = createPipeline({
     config,
     step: state.worker?.step ?? { push: async (m, rxMs) => state.processor.push(m, rxMs) },
+    stepWindow: state.worker === undefined ? 1 : WORKER_STEP_WINDOW,
     archive: archive.writer,
     sinks: outputs.sinks,
     stream: state.stream,

@@ -353,6 +353,56 @@ describe('intake pipeline', () => {
     expect(acks).toEqual(['1', '2']);
   });
 
+  it('keeps a window of messages at the step, finishing them in archive order, and checkpoints with none there', async () => {
+    const a = heldArchive();
+    const acks: string[] = [];
+    const processor = createProcessor(config);
+    const calls: { t: string; done: () => void }[] = [];
+    const p = createPipeline({
+      config,
+      // Each result waits until the test lets it go, as a worker thread's reply would.
+      step: {
+        push: (m, rx) =>
+          new Promise((resolve) => {
+            const r = processor.push(m, rx);
+            calls.push({ t: m.t, done: () => resolve(r) });
+          }),
+      },
+      archive: a.archive,
+      sinks: [],
+      stream: newStream('t'),
+      stepWindow: 3,
+    });
+    const all = [0, 1, 2, 3, 4].map((i) => p.handle(input(`${CREST}/oxygen/o2-crest`, oxy(i), acks, `${i}`)));
+    a.sync();
+    await settle();
+    // Three sent ahead, none acknowledged before its result.
+    expect(calls.map((c) => c.t.slice(11, 16))).toEqual(['00:00', '00:01', '00:02']);
+    expect(acks).toEqual([]);
+    let rested = false;
+    const rest = p.atRest(() => {
+      rested = true;
+      return calls.length;
+    });
+    calls[1]!.done(); // the second answers first: nothing is finished out of order
+    await settle();
+    expect(acks).toEqual([]);
+    calls[0]!.done();
+    calls[2]!.done();
+    await settle();
+    // The window emptied before the checkpoint, which ran before any further message was sent.
+    expect(acks).toEqual(['0', '1', '2']);
+    expect(rested).toBe(true);
+    await expect(rest).resolves.toBe(3);
+    await settle();
+    expect(calls).toHaveLength(5);
+    calls[3]!.done();
+    calls[4]!.done();
+    await Promise.all(all);
+    expect(acks).toEqual(['0', '1', '2', '3', '4']);
+    expect(calls.map((c) => c.t.slice(11, 16))).toEqual(['00:00', '00:01', '00:02', '00:03', '00:04']);
+  });
+
   it('tells the bus once when a logger restarts its seq, and keeps its data', async () => {
     const a = heldArchive();
     const bus = createBus<readonly DerivedRecord[]>(() => undefined);

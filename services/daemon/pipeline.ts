@@ -40,6 +40,12 @@ export interface PipelineOptions {
   onAccepted?: (rxMs: number) => void;
   /** Archive attempts on a full disk before the message is left to the broker (default 125, ~10 min). */
   archiveRetries?: number;
+  /**
+   * Messages sent to the step before the first of them has its result (default 1). A step in a worker thread
+   * answers in order, so a window keeps it busy across the round trips; results, sinks and acknowledgements
+   * still go in archive order, and a checkpoint waits until the window is empty.
+   */
+  stepWindow?: number;
   clock?: () => number;
 }
 
@@ -82,6 +88,12 @@ interface Remembered {
   durable: Promise<boolean>;
 }
 
+/** A line at the processor step: its result comes back in the order sent. */
+interface InFlight {
+  item: Ready;
+  result: Promise<PushResult | undefined>;
+}
+
 /** A message whose line is durable, waiting for the processor. */
 interface Ready {
   d: Decoded;
@@ -105,6 +117,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
   };
   const clock = o.clock ?? Date.now;
   const retries = o.archiveRetries ?? 125;
+  const stepWindow = Math.max(1, o.stepWindow ?? 1);
   const recent = new Map<string, Remembered>();
   const remember = (key: string, r: Remembered) => {
     recent.delete(key);
@@ -118,6 +131,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
   const ready: Ready[] = [];
   const rests: (() => Promise<void>)[] = [];
   let running = false;
+  let wake: (() => void) | undefined;
 
   function countRecords(records: readonly DerivedRecord[]): void {
     for (const r of records) {
@@ -126,23 +140,29 @@ export function createPipeline(o: PipelineOptions): Pipeline {
     }
   }
 
-  /** Processor and sinks for one archived line, live or resumed; returns the records. */
-  async function derive(message: SensorMessage | undefined, rxMs: number): Promise<PushResult | undefined> {
+  /** The processor's result for one archived line (the cursor moves past it); never rejects. */
+  function dispatch(message: SensorMessage | undefined, rxMs: number): Promise<PushResult | undefined> {
     advance(o.stream.cursor, rxMs);
-    if (message === undefined) return undefined;
-    let r: PushResult;
-    try {
-      r = await o.step.push(message, rxMs);
-    } catch (err) {
-      // A defect in a derivation must not stop the intake: the message is archived, a replay can derive it.
+    if (message === undefined) return Promise.resolve(undefined);
+    // A defect in a derivation must not stop the intake: the message is archived, a replay can derive it.
+    const failed = (err: unknown): undefined => {
       stats.processorErrors++;
       o.logger?.error(
         { err, topic: `${message.station}/${message.sensor}` },
         'processor failed on a message',
       );
       return undefined;
+    };
+    try {
+      return o.step.push(message, rxMs).catch(failed);
+    } catch (err) {
+      return Promise.resolve(failed(err));
     }
-    if (r.records.length > 0) {
+  }
+
+  /** The records of a result to the sinks, numbered with the next stream positions (in archive order). */
+  function emit(r: PushResult | undefined): PushResult | undefined {
+    if (r !== undefined && r.records.length > 0) {
       const first = o.stream.nextPos;
       o.stream.nextPos += r.records.length;
       countRecords(r.records);
@@ -151,11 +171,25 @@ export function createPipeline(o: PipelineOptions): Pipeline {
     return r;
   }
 
-  async function processLive(item: Ready): Promise<void> {
+  /** Processor and sinks for one archived line, live or resumed; returns the records. */
+  async function derive(message: SensorMessage | undefined, rxMs: number): Promise<PushResult | undefined> {
+    return emit(await dispatch(message, rxMs));
+  }
+
+  const acceptedOf = (d: Decoded): SensorMessage | undefined =>
+    d.reason === undefined && d.parse.ok ? d.parse.message : undefined;
+
+  /** Sends a ready line to the step; its result is finished by finishLive, in the same order. */
+  function startLive(item: Ready): InFlight {
+    const accepted = acceptedOf(item.d);
+    if (accepted === undefined) deadLetter(item.d, item.rxMs);
+    return { item, result: dispatch(accepted, item.rxMs) };
+  }
+
+  async function finishLive({ item, result }: InFlight): Promise<void> {
     const { d, input, rxMs } = item;
-    const accepted = d.reason === undefined && d.parse.ok ? d.parse.message : undefined;
-    if (accepted === undefined) deadLetter(d, rxMs);
-    const r = await derive(accepted, rxMs);
+    const accepted = acceptedOf(d);
+    const r = emit(await result);
     if (accepted !== undefined) o.onAccepted?.(rxMs);
     if (accepted !== undefined && r !== undefined) {
       if (r.status === 'duplicate') o.metrics?.duplicates.inc();
@@ -203,20 +237,43 @@ export function createPipeline(o: PipelineOptions): Pipeline {
     });
   }
 
-  /** The processing loop: one message at a time, in archive order; checkpoints slip in between. */
+  /**
+   * The processing loop, in archive order: up to `stepWindow` lines at the step, finished oldest first;
+   * checkpoints slip in when none is at the step.
+   */
   async function run(): Promise<void> {
     if (running) return;
     running = true;
+    const window: InFlight[] = [];
     try {
       for (;;) {
-        for (const rest of rests.splice(0)) await rest();
+        if (rests.length > 0) {
+          while (window.length > 0) await finishLive(window.shift() as InFlight);
+          for (const rest of rests.splice(0)) await rest();
+          continue;
+        }
         const item = ready.shift();
-        if (item === undefined) break;
-        await processLive(item);
+        if (item !== undefined) window.push(startLive(item));
+        if (window.length >= stepWindow) await finishLive(window.shift() as InFlight);
+        else if (item === undefined) {
+          const oldest = window[0];
+          if (oldest === undefined) break;
+          // Idle but for the window: finish the oldest when its result comes, or send more as lines arrive.
+          const woken = new Promise<false>((r) => (wake = () => r(false)));
+          const done = await Promise.race([oldest.result.then(() => true), woken]);
+          wake = undefined;
+          if (done) await finishLive(window.shift() as InFlight);
+        }
       }
     } finally {
       running = false;
     }
+  }
+
+  /** A new line or a checkpoint for the loop: starts it, or wakes it where it waits on the window. */
+  function kick(): void {
+    wake?.();
+    void run();
   }
 
   function archive(d: Decoded, input: RawInput, settle: () => void, durable: (ok: boolean) => void): void {
@@ -231,7 +288,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
           // Appends resolve in file order, so `ready` is in archive order.
           durable(true);
           ready.push({ d, input, rxMs, settle, endTimer });
-          void run();
+          kick();
         },
         (err: unknown) => {
           stats.archiveErrors++;
@@ -306,7 +363,7 @@ export function createPipeline(o: PipelineOptions): Pipeline {
             reject(err as Error);
           }
         });
-        void run();
+        kick();
       });
     },
     drain() {

@@ -1,10 +1,10 @@
 // The intake thread's share of derivation: the demo site's messages (REEFD_BENCH_WORKER_COPIES copies of its
 // seven stations, REEFD_BENCH_WORKER_HOURS simulated hours) through the pipeline's processor step, once with
 // the processor on this thread (the daemon's default) and once in a worker thread (REEFD_PROCESSOR_WORKER=1,
-// services/daemon/worker-processor.ts), one message at a time as the pipeline sends them. Per case: the
-// time this thread was busy per message (event-loop utilisation: what the intake can no longer spend on
-// sockets, archive and acknowledgements), the rate, and the longest event-loop stall (the /metrics gauge's
-// timer). Baseline in the same run: the in-process step.
+// services/daemon/worker-processor.ts), one message at a time and 64 at a time (the daemon's window with a
+// worker, services/daemon/build-core.ts). Per case: the time this thread was busy per message (event-loop
+// utilisation: what the intake can no longer spend on sockets, archive and acknowledgements), the rate, and
+// the longest event-loop stall (the /metrics gauge's timer). Baseline in the same run: the in-process step.
 import { parseMessage } from '../../libs/contract/index.js';
 import { checkAgainstConfig, createProcessor } from '../../libs/processor/index.js';
 import { simulateMessages } from '../../libs/simulator/index.js';
@@ -36,13 +36,19 @@ interface Case {
   records: number;
 }
 
-async function feed(step: ProcessorStep): Promise<Case> {
+/** Feeds every message, `window` of them at the step at a time, results taken in order (as the pipeline does). */
+async function feed(step: ProcessorStep, window = 1): Promise<Case> {
   const watch = watchEventLoop();
   watch.takeStallMaxS();
   const elu0 = performance.eventLoopUtilization();
   const t0 = performance.now();
   let records = 0;
-  for (const d of list) records += (await step.push(d.m, d.rx)).records.length;
+  const at: Promise<{ records: unknown[] }>[] = [];
+  for (const d of list) {
+    at.push(step.push(d.m, d.rx));
+    if (at.length >= window) records += (await (at.shift() as (typeof at)[number])).records.length;
+  }
+  for (const p of at) records += (await p).records.length;
   const wallMs = performance.now() - t0;
   const elu = performance.eventLoopUtilization(elu0);
   const stallMs = watch.takeStallMaxS() * 1000;
@@ -60,6 +66,10 @@ const inProcess = await feed({ push: async (m, rx) => local.push(m, rx) });
 const worker = await startProcessorWorker(config, undefined, undefined);
 const inWorker = await feed(worker.step);
 await worker.close();
+// The daemon's window with a worker (build-core.ts): 64 messages at the step.
+const worker64 = await startProcessorWorker(config, undefined, undefined);
+const inWorker64 = await feed(worker64.step, 64);
+await worker64.close();
 
 const show = (label: string, c: Case) =>
   console.log(
@@ -71,6 +81,7 @@ console.log(
 );
 show('processor on the intake thread', inProcess);
 show('processor in a worker thread', inWorker);
+show('processor in a worker thread, 64 at a time', inWorker64);
 if (inWorker.records !== inProcess.records)
   throw new Error('REEFD_BENCH_WORKER_RECORDS: the two cases differ');
 summaryRow({
@@ -81,4 +92,13 @@ summaryRow({
   ratio: inWorker.busyUsPerMsg / inProcess.busyUsPerMsg,
   goal: 'derivation off the intake thread',
   met: inWorker.busyUsPerMsg < inProcess.busyUsPerMsg,
+});
+summaryRow({
+  id: 'worker-intake-rate',
+  what: "processor step rate, worker thread with the daemon's window of 64 (demo mix)",
+  baseline: `processor on the intake thread ${Math.round(inProcess.rate)} msg/s`,
+  measured: `${Math.round(inWorker64.rate)} msg/s; intake thread busy ${inWorker64.busyUsPerMsg.toFixed(1)} us/message, longest stall ${inWorker64.stallMs.toFixed(0)} ms`,
+  ratio: inWorker64.rate / inProcess.rate,
+  goal: 'derivation off the intake thread without losing rate',
+  met: inWorker64.rate >= inProcess.rate,
 });
