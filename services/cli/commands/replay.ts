@@ -23,7 +23,7 @@ import {
 import { readArchiveOrdered, type OrderedStats } from '../../replay/ordered.js';
 import { describeFieldFiles, loadFieldFiles, type FieldFiles } from '../../config/field-files.js';
 import { loadConfigFile } from '../../config/load.js';
-import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
+import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
 import { parseCommand } from '../args.js';
 
 const HELP = `Usage: reefd replay --config FILE --input ARCHIVE [--out FILE] [options]
@@ -82,23 +82,72 @@ class ChunkWriter {
   }
 }
 
+const OPTIONS = {
+  config: { type: 'string' },
+  input: { type: 'string' },
+  out: { type: 'string' },
+  'flush-tail': { type: 'boolean', default: false },
+  from: { type: 'string' },
+  to: { type: 'string' },
+  quiet: { type: 'boolean', default: false },
+  'summary-json': { type: 'string' },
+} as const;
+
+interface ReplayOptions {
+  configPath: string;
+  input: string;
+  out?: string;
+  flushTail: boolean;
+  from?: string;
+  to?: string;
+  quiet: boolean;
+  summaryJson?: string;
+}
+
+/** What a replay reads: the configuration, the range and the field files beside the configuration. */
+interface ReplayInputs {
+  config: ReefdConfig;
+  range: Range;
+  field: FieldFiles;
+}
+
 export const run: CommandRun = async (args, io) => {
-  const parsed = parseCommand(
-    'replay',
-    args,
-    {
-      config: { type: 'string' },
-      input: { type: 'string' },
-      out: { type: 'string' },
-      'flush-tail': { type: 'boolean', default: false },
-      from: { type: 'string' },
-      to: { type: 'string' },
-      quiet: { type: 'boolean', default: false },
-      'summary-json': { type: 'string' },
-    },
-    HELP,
-    io,
-  );
+  const opts = parseOptions(args, io);
+  if (typeof opts === 'number') return opts;
+  const inputs = await loadInputs(opts, io);
+  if (typeof inputs === 'number') return inputs;
+  const bounds = rangeBounds(inputs.config, inputs.range);
+  const fileOut = opts.out ? createWriteStream(opts.out, { flags: 'w' }) : undefined;
+  const writer = new ChunkWriter(fileOut ?? process.stdout);
+  const processor = createProcessor(inputs.config, undefined, inputs.field.options);
+  const fieldLine = describeFieldFiles(inputs.field);
+  if (!opts.quiet && fieldLine !== undefined) io.stderr(`replay: ${fieldLine}\n`);
+  const summary = emptySummary();
+  const stop = stopOnSignals();
+  const started = performance.now();
+  try {
+    await replayArchive(
+      { opts, inputs, bounds, processor, summary, writer, stop: stop.requested, started },
+      io,
+    );
+    await writer.flush();
+  } catch (err) {
+    io.stderr(`reefd replay: ${(err as Error).message}\n`);
+    await writer.flush();
+    if (fileOut) await endStream(fileOut);
+    return EXIT_FAILURE;
+  } finally {
+    stop.off();
+  }
+  if (fileOut) await endStream(fileOut);
+  summary.seconds = (performance.now() - started) / 1000;
+  await reportSummary(opts, summary, io);
+  return summary.interrupted ? EXIT_FAILURE : EXIT_OK;
+};
+
+/** The options, checked: the options as given, or the exit code after saying what is wrong. */
+function parseOptions(args: string[], io: CliIo): ReplayOptions | number {
+  const parsed = parseCommand('replay', args, OPTIONS, HELP, io);
   if (!parsed.ok) return parsed.exit;
   const values = parsed.values;
   if (!values.config || !values.input) {
@@ -109,45 +158,48 @@ export const run: CommandRun = async (args, io) => {
     io.stderr(`reefd replay: input ${values.input} does not exist\n`);
     return EXIT_USAGE;
   }
+  return {
+    configPath: values.config,
+    input: values.input,
+    flushTail: values['flush-tail'] ?? false,
+    quiet: values.quiet ?? false,
+    ...(values.out ? { out: values.out } : {}),
+    ...(values.from !== undefined ? { from: values.from } : {}),
+    ...(values.to !== undefined ? { to: values.to } : {}),
+    ...(values['summary-json'] ? { summaryJson: values['summary-json'] } : {}),
+  };
+}
+
+/** The configuration, the range and the field files, or the exit code after saying what is wrong. */
+async function loadInputs(opts: ReplayOptions, io: CliIo): Promise<ReplayInputs | number> {
   let cfg;
   try {
-    cfg = await loadConfigFile(values.config);
+    cfg = await loadConfigFile(opts.configPath);
   } catch (err) {
     io.stderr(`reefd replay: ${(err as Error).message}\n`);
     return EXIT_USAGE;
   }
   if (!cfg.ok) {
-    for (const p of cfg.problems) io.stderr(`${values.config}: ${formatProblem(p)}\n`);
+    for (const p of cfg.problems) io.stderr(`${opts.configPath}: ${formatProblem(p)}\n`);
     return EXIT_USAGE;
   }
-  const config = cfg.config;
-  const quiet = values.quiet ?? false;
-  const range = parseRange(values.from, values.to);
+  const range = parseRange(opts.from, opts.to);
   if (typeof range === 'string') {
     io.stderr(`reefd replay: ${range}\n`);
     return EXIT_USAGE;
   }
-  const bounds = rangeBounds(config, range);
   // The calibration file and the logbook beside the configuration apply as they do live.
-  let field: FieldFiles;
   try {
-    field = await loadFieldFiles(path.dirname(path.resolve(values.config)), config);
+    const field = await loadFieldFiles(path.dirname(path.resolve(opts.configPath)), cfg.config);
+    return { config: cfg.config, range, field };
   } catch (err) {
     io.stderr(`reefd replay: ${(err as Error).message}\n`);
     return EXIT_USAGE;
   }
+}
 
-  let fileOut: WriteStream | undefined;
-  let out: NodeJS.WritableStream = process.stdout;
-  if (values.out) {
-    fileOut = createWriteStream(values.out, { flags: 'w' });
-    out = fileOut;
-  }
-  const writer = new ChunkWriter(out);
-  const processor = createProcessor(config, undefined, field.options);
-  const fieldLine = describeFieldFiles(field);
-  if (!quiet && fieldLine !== undefined) io.stderr(`replay: ${fieldLine}\n`);
-  const summary: ReplaySummary = {
+function emptySummary(): ReplaySummary {
+  return {
     lines: 0,
     unreadable: 0,
     accepted: 0,
@@ -163,118 +215,154 @@ export const run: CommandRun = async (args, io) => {
     interrupted: false,
     seconds: 0,
   };
+}
+
+/** One replay's parts, built by `run`. */
+interface ReplayRun {
+  opts: ReplayOptions;
+  inputs: ReplayInputs;
+  bounds: ReturnType<typeof rangeBounds>;
+  processor: ReturnType<typeof createProcessor>;
+  summary: ReplaySummary;
+  writer: ChunkWriter;
+  /** True once SIGTERM or SIGINT came: the reading stops and the summary says so. */
+  stop: () => boolean;
+  started: number;
+}
+
+/** SIGTERM and SIGINT stop a replay between messages rather than killing it. */
+function stopOnSignals(): { requested: () => boolean; off: () => void } {
   let stop = false;
   const onSignal = () => {
     stop = true;
   };
   process.once('SIGTERM', onSignal);
   process.once('SIGINT', onSignal);
+  return {
+    requested: () => stop,
+    off: () => {
+      process.off('SIGTERM', onSignal);
+      process.off('SIGINT', onSignal);
+    },
+  };
+}
 
-  const started = performance.now();
+/** Runs the archive through the processor, writing the records in range and counting into the summary. */
+async function replayArchive(
+  { opts, inputs, bounds, processor, summary, writer, stop, started }: ReplayRun,
+  io: CliIo,
+): Promise<void> {
+  const { config, range } = inputs;
+  const emit = (records: readonly DerivedRecord[]) => emitInRange(records, range, summary, writer);
+  const progress = progressReporter(summary, started, opts.quiet, io);
+  const ordered: OrderedStats = { lateSamples: 0, lateSamplesUnmoved: 0 };
+  const stream = readArchiveOrdered(
+    opts.input,
+    {
+      topicPrefix: config.topic_prefix,
+      latenessMs: config.processing.lateness_min * 60_000,
+      shouldStop: stop,
+      ...(bounds.stopAfterRxMs !== undefined ? { stopAfterRxMs: bounds.stopAfterRxMs } : {}),
+    },
+    ordered,
+  );
+  for await (const entry of stream) {
+    if (stop()) {
+      summary.interrupted = true;
+      break;
+    }
+    summary.lines++;
+    if (entry.line === null) {
+      summary.unreadable++;
+      continue;
+    }
+    const input = messageFromArchiveLine(config, entry.line);
+    if (!input.ok) {
+      countReject(summary, input.reason);
+      continue;
+    }
+    if (!bounds.inRange(input.message)) {
+      summary.outOfRange++;
+      continue;
+    }
+    summary.accepted++;
+    const r = processor.push(input.message, input.rxMs);
+    if (r.status === 'duplicate') summary.duplicates++;
+    if (r.late) summary.late++;
+    await emit(r.records);
+    progress();
+  }
+  summary.lateSamplesMoved = ordered.lateSamples;
+  // With --to, the windows before `to` are closed from the data read (the archive may go on).
+  if ((opts.flushTail || range.toMs !== undefined) && !summary.interrupted) await emit(processor.drain());
+}
+
+function countReject(summary: ReplaySummary, reason: string): void {
+  summary.rejected++;
+  const short = reason.split(':')[0] ?? reason;
+  summary.rejectsByReason[short] = (summary.rejectsByReason[short] ?? 0) + 1;
+}
+
+/** Writes the records whose time is in the range, counting them. */
+async function emitInRange(
+  records: readonly DerivedRecord[],
+  range: Range,
+  summary: ReplaySummary,
+  writer: ChunkWriter,
+): Promise<void> {
+  for (const r of records) {
+    if (range.fromMs !== undefined || range.toMs !== undefined) {
+      const t = Date.parse(r.t);
+      if ((range.fromMs !== undefined && t < range.fromMs) || (range.toMs !== undefined && t >= range.toMs))
+        continue;
+    }
+    summary.records++;
+    summary.recordsByType[r.type] = (summary.recordsByType[r.type] ?? 0) + 1;
+    if (r.calibrated === true) summary.calibrated++;
+    await writer.line(JSON.stringify(r));
+  }
+}
+
+/** A progress line on stderr at most every 2 s, looked at every 1024 lines. */
+function progressReporter(summary: ReplaySummary, started: number, quiet: boolean, io: CliIo): () => void {
   let lastProgress = started;
-  const reject = (reason: string) => {
-    summary.rejected++;
-    const short = reason.split(':')[0] ?? reason;
-    summary.rejectsByReason[short] = (summary.rejectsByReason[short] ?? 0) + 1;
+  return () => {
+    if (quiet || (summary.lines & 1023) !== 0) return;
+    const now = performance.now();
+    if (now - lastProgress <= 2000) return;
+    lastProgress = now;
+    const rate = Math.round(summary.lines / ((now - started) / 1000));
+    const msg2 = `replay: ${summary.lines} lines, ${summary.records} records, ${rate} lines/s`;
+    io.stderr(io.isTty ? `\r${msg2}   ` : `${msg2}\n`);
   };
-  const emit = async (records: readonly DerivedRecord[]) => {
-    for (const r of records) {
-      if (range.fromMs !== undefined || range.toMs !== undefined) {
-        const t = Date.parse(r.t);
-        if ((range.fromMs !== undefined && t < range.fromMs) || (range.toMs !== undefined && t >= range.toMs))
-          continue;
-      }
-      summary.records++;
-      summary.recordsByType[r.type] = (summary.recordsByType[r.type] ?? 0) + 1;
-      if (r.calibrated === true) summary.calibrated++;
-      await writer.line(JSON.stringify(r));
-    }
-  };
+}
 
-  try {
-    const ordered: OrderedStats = { lateSamples: 0, lateSamplesUnmoved: 0 };
-    const stream = readArchiveOrdered(
-      values.input,
-      {
-        topicPrefix: config.topic_prefix,
-        latenessMs: config.processing.lateness_min * 60_000,
-        shouldStop: () => stop,
-        ...(bounds.stopAfterRxMs !== undefined ? { stopAfterRxMs: bounds.stopAfterRxMs } : {}),
-      },
-      ordered,
-    );
-    for await (const entry of stream) {
-      if (stop) {
-        summary.interrupted = true;
-        break;
-      }
-      summary.lines++;
-      if (entry.line === null) {
-        summary.unreadable++;
-        continue;
-      }
-      const input = messageFromArchiveLine(config, entry.line);
-      if (!input.ok) {
-        reject(input.reason);
-        continue;
-      }
-      if (!bounds.inRange(input.message)) {
-        summary.outOfRange++;
-        continue;
-      }
-      summary.accepted++;
-      const r = processor.push(input.message, input.rxMs);
-      if (r.status === 'duplicate') summary.duplicates++;
-      if (r.late) summary.late++;
-      await emit(r.records);
-      if (!quiet && (summary.lines & 1023) === 0) {
-        const now = performance.now();
-        if (now - lastProgress > 2000) {
-          lastProgress = now;
-          const rate = Math.round(summary.lines / ((now - started) / 1000));
-          const msg2 = `replay: ${summary.lines} lines, ${summary.records} records, ${rate} lines/s`;
-          io.stderr(io.isTty ? `\r${msg2}   ` : `${msg2}\n`);
-        }
-      }
-    }
-    summary.lateSamplesMoved = ordered.lateSamples;
-    // With --to, the windows before `to` are closed from the data read (the archive may go on).
-    if ((values['flush-tail'] || range.toMs !== undefined) && !summary.interrupted)
-      await emit(processor.drain());
-    await writer.flush();
-  } catch (err) {
-    io.stderr(`reefd replay: ${(err as Error).message}\n`);
-    await writer.flush();
-    if (fileOut) await new Promise<void>((r) => fileOut.end(() => r()));
-    return EXIT_FAILURE;
-  } finally {
-    process.off('SIGTERM', onSignal);
-    process.off('SIGINT', onSignal);
-  }
-  if (fileOut) await new Promise<void>((r) => fileOut.end(() => r()));
-  summary.seconds = (performance.now() - started) / 1000;
-  if (values['summary-json']) {
+function endStream(stream: WriteStream): Promise<void> {
+  return new Promise<void>((r) => stream.end(() => r()));
+}
+
+/** The summary as JSON (--summary-json) and as one line on stderr (unless --quiet). */
+async function reportSummary(opts: ReplayOptions, summary: ReplaySummary, io: CliIo): Promise<void> {
+  if (opts.summaryJson) {
     const { writeFile } = await import('node:fs/promises');
-    await writeFile(values['summary-json'], JSON.stringify(summary, null, 2) + '\n');
+    await writeFile(opts.summaryJson, JSON.stringify(summary, null, 2) + '\n');
   }
-  if (!quiet) {
-    const by = (o: Record<string, number>) =>
-      Object.entries(o)
-        .sort()
-        .map(([k, n]) => `${k} ${n}`)
-        .join(', ') || 'none';
-    io.stderr(
-      `${io.isTty ? '\n' : ''}replay ${summary.interrupted ? 'interrupted' : 'done'}: ${summary.lines} lines read ` +
-        `(${summary.unreadable} unreadable), ${summary.accepted} accepted, ${summary.rejected} rejected ` +
-        `(${by(summary.rejectsByReason)}), ${summary.duplicates} duplicates, ${summary.late} late, ` +
-        `${summary.lateSamplesMoved} late lab results replayed at their time` +
-        `${summary.outOfRange > 0 ? `, ${summary.outOfRange} outside the range` : ''}; ` +
-        `${summary.records} records (${by(summary.recordsByType)})` +
-        `${summary.calibrated > 0 ? `, ${summary.calibrated} calibrated` : ''} in ${summary.seconds.toFixed(1)} s\n`,
-    );
-  }
-  return summary.interrupted ? EXIT_FAILURE : EXIT_OK;
-};
+  if (opts.quiet) return;
+  const by = (o: Record<string, number>) =>
+    Object.entries(o)
+      .sort()
+      .map(([k, n]) => `${k} ${n}`)
+      .join(', ') || 'none';
+  io.stderr(
+    `${io.isTty ? '\n' : ''}replay ${summary.interrupted ? 'interrupted' : 'done'}: ${summary.lines} lines read ` +
+      `(${summary.unreadable} unreadable), ${summary.accepted} accepted, ${summary.rejected} rejected ` +
+      `(${by(summary.rejectsByReason)}), ${summary.duplicates} duplicates, ${summary.late} late, ` +
+      `${summary.lateSamplesMoved} late lab results replayed at their time` +
+      `${summary.outOfRange > 0 ? `, ${summary.outOfRange} outside the range` : ''}; ` +
+      `${summary.records} records (${by(summary.recordsByType)})` +
+      `${summary.calibrated > 0 ? `, ${summary.calibrated} calibrated` : ''} in ${summary.seconds.toFixed(1)} s\n`,
+  );
+}
 
 interface Range {
   fromMs?: number;
