@@ -122,7 +122,45 @@ const TABLE: { key: UncertainOutput; label: string; unit: string; digits: number
   { key: 'revelle', label: 'Revelle factor', unit: '', digits: 3 },
 ];
 
+type Values = Record<string, string | boolean | undefined>;
+type Numbers = Partial<Record<NumericOption, number>>;
+
+/** One checked request: what to solve, with which constants and uncertainties, and how to print it. */
+interface CarbonateRequest {
+  num: Numbers & { sal: number; temp: number };
+  input: CarbonateInput;
+  options: CarbonateOptions;
+  sigmas: CarbonateSigmas;
+  noSigma: boolean;
+  json: boolean;
+  taSource: 'measured' | 'salinity';
+  /** TA follows from the two measured parameters (no --ta or --ta-s35 given). */
+  taCalculated: boolean;
+}
+
 export const run: CommandRun = async (args, io) => {
+  const values = parseValues(args, io);
+  if (typeof values === 'number') return values;
+  let request: CarbonateRequest;
+  try {
+    request = checkRequest(values);
+  } catch (e) {
+    if (e instanceof UsageError) return usage(io, e.message);
+    throw e;
+  }
+  const result = carbonateUncertainty(request.input, request.sigmas, request.options);
+  if (!result.ok) {
+    io.stderr(`reefd carbonate: ${result.code}: ${result.reason}\n`);
+    return result.code === 'REEFD_CARBONATE_BAD_INPUT' || result.code === 'REEFD_CARBONATE_BAD_PAIR'
+      ? EXIT_USAGE
+      : EXIT_FAILURE;
+  }
+  io.stdout(request.json ? formatJson(request, result) : formatTable(request, result));
+  return EXIT_OK;
+};
+
+/** The options as given, or the exit code after the help or a usage message. */
+function parseValues(args: string[], io: CliIo): Values | number {
   let parsed;
   try {
     parsed = parseArgs({
@@ -144,42 +182,60 @@ export const run: CommandRun = async (args, io) => {
   } catch (e) {
     return usage(io, (e as Error).message);
   }
-  const values = parsed.values as Record<string, string | boolean | undefined>;
+  const values = parsed.values as Values;
   if (values.help === true) {
     io.stdout(HELP);
     return EXIT_OK;
   }
+  return values;
+}
 
-  const num: Partial<Record<NumericOption, number>> = {};
-  let options: CarbonateOptions;
-  try {
-    for (const k of NUMERIC) {
-      const raw = values[k];
-      if (typeof raw === 'string') num[k] = parseNumber(k, raw);
-    }
-    options = {};
-    if (values.k1k2 !== undefined) throw new UsageError('--k1k2 is now --carbonic-constants (same values)');
-    const carbonicConstants = pick(
-      'carbonic-constants',
-      values['carbonic-constants'] as string | undefined,
-      CARBONATE_OPTION_NAMES.carbonicConstants,
-    );
-    const boron = pick('boron', values.boron as string | undefined, CARBONATE_OPTION_NAMES.boron);
-    const kw = pick('kw', values.kw as string | undefined, CARBONATE_OPTION_NAMES.kw);
-    const fugacity = pick('fugacity', values.fugacity as string | undefined, CARBONATE_OPTION_NAMES.fugacity);
-    if (carbonicConstants) options.carbonicConstants = carbonicConstants;
-    if (boron) options.boron = boron;
-    if (kw) options.kw = kw;
-    if (fugacity) options.fugacity = fugacity;
-  } catch (e) {
-    if (e instanceof UsageError) return usage(io, e.message);
-    throw e;
+/** The request the options describe; throws a UsageError saying what is wrong with them. */
+function checkRequest(values: Values): CarbonateRequest {
+  const num: Numbers = {};
+  for (const k of NUMERIC) {
+    const raw = values[k];
+    if (typeof raw === 'string') num[k] = parseNumber(k, raw);
   }
+  const options = constantOptions(values);
+  const checked = checkInputKinds(num);
+  const noSigma = values['no-sigma'] === true;
+  return {
+    num: checked,
+    ...solverInput(checked),
+    options,
+    sigmas: noSigma ? { constants: 'none' } : inputSigmas(checked),
+    noSigma,
+    json: values.json === true,
+  };
+}
 
-  if (num.sal === undefined || num.temp === undefined) return usage(io, '--sal and --temp are required');
+/** --carbonic-constants, --boron, --kw and --fugacity, checked against the names libs/carbonate knows. */
+function constantOptions(values: Values): CarbonateOptions {
+  const options: CarbonateOptions = {};
+  if (values.k1k2 !== undefined) throw new UsageError('--k1k2 is now --carbonic-constants (same values)');
+  const carbonicConstants = pick(
+    'carbonic-constants',
+    values['carbonic-constants'] as string | undefined,
+    CARBONATE_OPTION_NAMES.carbonicConstants,
+  );
+  const boron = pick('boron', values.boron as string | undefined, CARBONATE_OPTION_NAMES.boron);
+  const kw = pick('kw', values.kw as string | undefined, CARBONATE_OPTION_NAMES.kw);
+  const fugacity = pick('fugacity', values.fugacity as string | undefined, CARBONATE_OPTION_NAMES.fugacity);
+  if (carbonicConstants) options.carbonicConstants = carbonicConstants;
+  if (boron) options.boron = boron;
+  if (kw) options.kw = kw;
+  if (fugacity) options.fugacity = fugacity;
+  return options;
+}
+
+/** Salinity and temperature are given, and exactly two kinds of input, each given once. */
+function checkInputKinds(num: Numbers): Numbers & { sal: number; temp: number } {
+  if (num.sal === undefined || num.temp === undefined) throw new UsageError('--sal and --temp are required');
   if (num.ta !== undefined && num['ta-s35'] !== undefined)
-    return usage(io, 'give --ta or --ta-s35, not both');
-  if (num.pco2 !== undefined && num.fco2 !== undefined) return usage(io, 'give --pco2 or --fco2, not both');
+    throw new UsageError('give --ta or --ta-s35, not both');
+  if (num.pco2 !== undefined && num.fco2 !== undefined)
+    throw new UsageError('give --pco2 or --fco2, not both');
   const kinds = [
     num.ta !== undefined || num['ta-s35'] !== undefined ? '--ta' : undefined,
     num.dic !== undefined ? '--dic' : undefined,
@@ -187,12 +243,16 @@ export const run: CommandRun = async (args, io) => {
     num.pco2 !== undefined || num.fco2 !== undefined ? '--pco2' : undefined,
   ].filter((k) => k !== undefined);
   if (kinds.length !== 2) {
-    return usage(
-      io,
+    throw new UsageError(
       `give exactly two of --ta (or --ta-s35), --dic, --ph, --pco2 (or --fco2); got ${kinds.length === 0 ? 'none' : kinds.join(', ')}`,
     );
   }
+  return { ...num, sal: num.sal, temp: num.temp };
+}
 
+function solverInput(
+  num: Numbers & { sal: number; temp: number },
+): Pick<CarbonateRequest, 'input' | 'taSource' | 'taCalculated'> {
   const input: CarbonateInput = { salinity: num.sal, tempC: num.temp };
   if (num.pres !== undefined) input.seaPressureDbar = num.pres;
   if (num['out-temp'] !== undefined) input.outTempC = num['out-temp'];
@@ -213,53 +273,53 @@ export const run: CommandRun = async (args, io) => {
   if (num.ph !== undefined) input.phTotal = num.ph;
   if (num.pco2 !== undefined) input.pco2Uatm = num.pco2;
   if (num.fco2 !== undefined) input.fco2Uatm = num.fco2;
+  return { input, taSource, taCalculated };
+}
 
-  const noSigma = values['no-sigma'] === true;
-  const sigmas: CarbonateSigmas = noSigma
-    ? { constants: 'none' }
-    : {
-        taUmolKg: num['u-ta'] ?? 5,
-        dicUmolKg: num['u-dic'] ?? 2,
-        phTotal: num['u-ph'] ?? 0.01,
-        pco2Uatm: num['u-pco2'] ?? Math.max(2, 0.01 * (num.pco2 ?? 0)),
-        fco2Uatm: num['u-pco2'] ?? Math.max(2, 0.01 * (num.fco2 ?? 0)),
-        tempC: num['u-temp'] ?? 0.05,
-        salinity: num['u-sal'] ?? 0.05,
-      };
-  const result = carbonateUncertainty(input, sigmas, options);
-  if (!result.ok) {
-    io.stderr(`reefd carbonate: ${result.code}: ${result.reason}\n`);
-    return result.code === 'REEFD_CARBONATE_BAD_INPUT' || result.code === 'REEFD_CARBONATE_BAD_PAIR'
-      ? EXIT_USAGE
-      : EXIT_FAILURE;
-  }
+/** The standard uncertainty of each input: the --u-* options, else the defaults the help lists. */
+function inputSigmas(num: Numbers): CarbonateSigmas {
+  return {
+    taUmolKg: num['u-ta'] ?? 5,
+    dicUmolKg: num['u-dic'] ?? 2,
+    phTotal: num['u-ph'] ?? 0.01,
+    pco2Uatm: num['u-pco2'] ?? Math.max(2, 0.01 * (num.pco2 ?? 0)),
+    fco2Uatm: num['u-pco2'] ?? Math.max(2, 0.01 * (num.fco2 ?? 0)),
+    tempC: num['u-temp'] ?? 0.05,
+    salinity: num['u-sal'] ?? 0.05,
+  };
+}
+
+type Solved = Extract<ReturnType<typeof carbonateUncertainty>, { ok: true }>;
+
+/** --json: the contract carbonate fields, then the extensions, the sigmas and the notes, on one line. */
+function formatJson({ taSource, taCalculated, noSigma }: CarbonateRequest, result: Solved): string {
   const value: CarbonateSolution = result.value;
+  const obj: Record<string, unknown> = {
+    ta_umol_kg: value.taUmolKg,
+    dic_umol_kg: value.dicUmolKg,
+    ph_total: value.phTotal,
+    pco2_uatm: value.pco2Uatm,
+    co3_umol_kg: value.co3UmolKg,
+    omega_ar: value.omegaAr,
+    omega_ca: value.omegaCa,
+    ta_source: taSource,
+    ...(taCalculated ? { ta_calculated: true } : {}),
+    fco2_uatm: value.fco2Uatm,
+    hco3_umol_kg: value.hco3UmolKg,
+    co2_umol_kg: value.co2UmolKg,
+    revelle: value.revelle,
+    ph_free: value.phFree,
+    ph_sws: value.phSws,
+    flag: value.flag,
+  };
+  if (!noSigma) for (const row of TABLE) obj[`${WIRE[row.key]}_sigma`] = result.sigma[row.key];
+  obj.notes = value.notes;
+  return `${JSON.stringify(obj)}\n`;
+}
 
-  if (values.json === true) {
-    const obj: Record<string, unknown> = {
-      ta_umol_kg: value.taUmolKg,
-      dic_umol_kg: value.dicUmolKg,
-      ph_total: value.phTotal,
-      pco2_uatm: value.pco2Uatm,
-      co3_umol_kg: value.co3UmolKg,
-      omega_ar: value.omegaAr,
-      omega_ca: value.omegaCa,
-      ta_source: taSource,
-      ...(taCalculated ? { ta_calculated: true } : {}),
-      fco2_uatm: value.fco2Uatm,
-      hco3_umol_kg: value.hco3UmolKg,
-      co2_umol_kg: value.co2UmolKg,
-      revelle: value.revelle,
-      ph_free: value.phFree,
-      ph_sws: value.phSws,
-      flag: value.flag,
-    };
-    if (!noSigma) for (const row of TABLE) obj[`${WIRE[row.key]}_sigma`] = result.sigma[row.key];
-    obj.notes = value.notes;
-    io.stdout(`${JSON.stringify(obj)}\n`);
-    return EXIT_OK;
-  }
-
+/** The table for people: one line per output with its uncertainty, then the solver's notes. */
+function formatTable({ num, input, taSource, noSigma }: CarbonateRequest, result: Solved): string {
+  const value: CarbonateSolution = result.value;
   const lines: string[] = [];
   const at = `S ${num.sal}, t ${input.outTempC ?? num.temp} degC, ${input.outSeaPressureDbar ?? num.pres ?? 0} dbar`;
   lines.push(`Carbonate system at ${at} (flag ${value.flag}; TA ${taSource})`);
@@ -270,6 +330,5 @@ export const run: CommandRun = async (args, io) => {
     lines.push(`  ${row.label.padEnd(w)}  ${v.padStart(10)}${sg.padEnd(16)} ${row.unit}`.trimEnd());
   }
   for (const note of value.notes) lines.push(`  note: ${note}`);
-  io.stdout(`${lines.join('\n')}\n`);
-  return EXIT_OK;
-};
+  return `${lines.join('\n')}\n`;
+}
