@@ -10,36 +10,22 @@
 // paired with bottles.
 import { writeFile } from 'node:fs/promises';
 import path from 'node:path';
-import {
-  formatProblem,
-  type DerivedRecord,
-  type ReefdConfig,
-  type SensorMessage,
-} from '../../../libs/contract/index.js';
+import { formatProblem, type ReefdConfig } from '../../../libs/contract/index.js';
 import {
   compileCalibration,
   fitOptodeGain,
   fitPco2,
   formatCalibrationYaml,
-  medianWithin,
   parseCalibrationText,
-  pco2Reference,
   type CalibrationEntry,
-  type FitResult,
-  type FitTarget,
-  type Pair,
 } from '../../../libs/calibration/index.js';
-import { buildExclusionIndex, exclusionAt, type ExclusionIndex } from '../../../libs/logbook/index.js';
-import {
-  createProcessor,
-  messageFromArchiveLine,
-  type ProcessorOptions,
-} from '../../../libs/processor/index.js';
+import { buildExclusionIndex } from '../../../libs/logbook/index.js';
 import { loadFieldFiles, type FieldFiles } from '../../config/field-files.js';
 import { loadConfigFile } from '../../config/load.js';
-import { readArchiveOrdered } from '../../replay/ordered.js';
 import { parseCommand } from '../args.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
+import { collect, jobs, type Collected, type Job } from './calibrate-pairs.js';
+import { describeFit, iso } from './calibrate-report.js';
 
 const HELP = `Usage: reefd calibrate --config FILE --input ARCHIVE --out CAL.yaml [options]
 
@@ -61,251 +47,61 @@ Options:
   --no-drift        fit constant offsets and gains only (short deployments)
 `;
 
-interface Series {
-  t: number[];
-  v: number[];
-}
-const push = (m: Map<string, Series>, key: string, t: number, v: number) => {
-  let s = m.get(key);
-  if (s === undefined) {
-    s = { t: [], v: [] };
-    m.set(key, s);
-  }
-  s.t.push(t);
-  s.v.push(v);
-};
+const OPTIONS = {
+  config: { type: 'string' },
+  input: { type: 'string' },
+  out: { type: 'string' },
+  'match-min': { type: 'string' },
+  sensor: { type: 'string', multiple: true },
+  drift: { type: 'boolean', default: false },
+  'no-drift': { type: 'boolean', default: false },
+} as const;
 
-interface Bottle {
-  station: string;
-  tMs: number;
-  ta?: number;
-  dic?: number;
-  o2?: number;
-  sal?: number;
+interface CalibrateOptions {
+  configPath: string;
+  input: string;
+  out: string;
+  matchMin: number;
+  /** --sensor: the sensors to fit (station/sensor), or none for all. */
+  only: string[];
+  drift: boolean;
+  noDrift: boolean;
 }
 
-interface Collected {
-  pco2: Map<string, Series>;
-  pco2Temp: Map<string, Series>;
-  /** CTD temperature and salinity at each pCO2 reading, from the carbonate records. */
-  ctdTemp: Map<string, Series>;
-  ctdSal: Map<string, Series>;
-  o2: Map<string, Series>;
-  /** The O2 field each optode reports (the one the processor reads first). */
-  o2Field: Map<string, string>;
-  bottles: Bottle[];
-}
-
-function sortSeries(m: Map<string, Series>): void {
-  for (const s of m.values()) {
-    const idx = s.t.map((_, i) => i).sort((a, b) => (s.t[a] as number) - (s.t[b] as number));
-    s.t = idx.map((i) => s.t[i] as number);
-    s.v = idx.map((i) => s.v[i] as number);
-  }
-}
-
-async function collect(
-  config: ReefdConfig,
-  input: string,
-  options: ProcessorOptions,
-  excluded: ExclusionIndex,
-): Promise<Collected> {
-  const c: Collected = {
-    pco2: new Map(),
-    pco2Temp: new Map(),
-    ctdTemp: new Map(),
-    ctdSal: new Map(),
-    o2: new Map(),
-    o2Field: new Map(),
-    bottles: [],
-  };
-  const processor = createProcessor(config, undefined, options);
-  const onRecords = (records: readonly DerivedRecord[]) => {
-    for (const r of records) {
-      if ((r as { flag?: unknown }).flag === 4) continue; // a failed or excluded reading pairs with no bottle
-      const key = `${String(r.station ?? '')}/${String((r as { sensor?: unknown }).sensor ?? '')}`;
-      const tMs = Date.parse(r.t);
-      if (r.type === 'oxygen' && typeof r.o2_umol_kg === 'number') push(c.o2, key, tMs, r.o2_umol_kg);
-      if (r.type === 'carbonate') {
-        const x = r as { temp_c?: unknown; sal?: unknown };
-        if (typeof x.temp_c === 'number') push(c.ctdTemp, key, tMs, x.temp_c);
-        if (typeof x.sal === 'number') push(c.ctdSal, key, tMs, x.sal);
-      }
-    }
-  };
-  const stream = readArchiveOrdered(input, {
-    topicPrefix: config.topic_prefix,
-    latenessMs: config.processing.lateness_min * 60_000,
-  });
-  for await (const e of stream) {
-    if (e.line === null) continue;
-    const m = messageFromArchiveLine(config, e.line);
-    if (!m.ok) continue;
-    if (exclusionAt(excluded, m.message.station, m.message.sensor, m.message.tMs) === undefined)
-      note(c, m.message);
-    onRecords(processor.push(m.message, m.rxMs).records);
-  }
-  onRecords(processor.drain());
-  for (const m of [c.pco2, c.pco2Temp, c.ctdTemp, c.ctdSal, c.o2]) sortSeries(m);
-  return c;
-}
-
-function note(c: Collected, m: SensorMessage): void {
-  const key = `${m.station}/${m.sensor}`;
-  if (m.kind === 'pco2') {
-    push(c.pco2, key, m.tMs, m.pco2_uatm);
-    if (m.temp_c !== undefined) push(c.pco2Temp, key, m.tMs, m.temp_c);
-  } else if (m.kind === 'oxygen' && !c.o2Field.has(key)) {
-    c.o2Field.set(
-      key,
-      m.o2_umol_l !== undefined ? 'o2_umol_l' : m.o2_mg_l !== undefined ? 'o2_mg_l' : 'o2_sat_pct',
-    );
-  } else if (m.kind === 'sample') {
-    const b: Bottle = { station: m.station, tMs: m.tMs };
-    if (m.ta_umol_kg !== undefined) b.ta = m.ta_umol_kg;
-    if (m.dic_umol_kg !== undefined) b.dic = m.dic_umol_kg;
-    if (m.o2_umol_kg !== undefined) b.o2 = m.o2_umol_kg;
-    if (m.sal !== undefined) b.sal = m.sal;
-    c.bottles.push(b);
-  }
-}
-
-interface Job {
-  sensor: string;
-  field: string;
-  kind: 'pco2' | 'oxygen';
-  target: FitTarget;
-  pairs: Pair[];
-  unpaired: number;
-}
-
-function jobs(config: ReefdConfig, c: Collected, windowMs: number, only: readonly string[]): Job[] {
-  const out: Job[] = [];
-  const opts = {
-    carbonicConstants: config.carbonate.carbonic_constants,
-    boron: config.carbonate.boron,
-  } as const;
-  for (const [station, st] of Object.entries(config.stations)) {
-    for (const [id, sc] of Object.entries(st.sensors)) {
-      const sensor = `${station}/${id}`;
-      if (only.length > 0 && !only.includes(sensor)) continue;
-      if (sc.kind !== 'pco2' && sc.kind !== 'oxygen') continue;
-      const readings = sc.kind === 'pco2' ? c.pco2.get(sensor) : c.o2.get(sensor);
-      if (readings === undefined || readings.t.length === 0) continue;
-      const bottles = c.bottles.filter(
-        (b) =>
-          b.station === station &&
-          (sc.kind === 'pco2' ? b.ta !== undefined && b.dic !== undefined : b.o2 !== undefined),
-      );
-      const pairs: Pair[] = [];
-      let unpaired = 0;
-      for (const b of bottles) {
-        const raw = medianWithin(readings.t, readings.v, b.tMs, windowMs);
-        if (raw === undefined) {
-          unpaired++;
-          continue;
-        }
-        if (sc.kind === 'oxygen') {
-          pairs.push({ tMs: b.tMs, raw, reference: b.o2 as number });
-          continue;
-        }
-        const own = c.pco2Temp.get(sensor);
-        const ctdT = c.ctdTemp.get(sensor);
-        const temp =
-          (own ? medianWithin(own.t, own.v, b.tMs, windowMs) : undefined) ??
-          (ctdT ? medianWithin(ctdT.t, ctdT.v, b.tMs, windowMs) : undefined);
-        const ctdS = c.ctdSal.get(sensor);
-        const sal = b.sal ?? (ctdS ? medianWithin(ctdS.t, ctdS.v, b.tMs, windowMs) : undefined);
-        const ref =
-          temp !== undefined && sal !== undefined
-            ? pco2Reference(
-                { taUmolKg: b.ta as number, dicUmolKg: b.dic as number, salinity: sal },
-                temp,
-                opts,
-              )
-            : undefined;
-        if (ref === undefined) unpaired++;
-        else pairs.push({ tMs: b.tMs, raw, reference: ref });
-      }
-      if (bottles.length === 0) continue;
-      out.push({
-        sensor,
-        field: sc.kind === 'pco2' ? 'pco2_uatm' : (c.o2Field.get(sensor) ?? 'o2_umol_l'),
-        kind: sc.kind,
-        target: {
-          sensor,
-          field: '',
-          fromMs: readings.t[0] as number,
-          toMs: readings.t[readings.t.length - 1] as number,
-        },
-        pairs,
-        unpaired,
-      });
-    }
-  }
-  for (const j of out) j.target.field = j.field;
-  return out;
-}
-
-const f = (x: number, dp: number) => (Number.isFinite(x) ? x.toFixed(dp) : String(x));
-const iso = (ms: number) => new Date(ms).toISOString().replace('.000Z', 'Z');
-
-function describeFit(j: Job, r: FitResult, windowMin: number): string[] {
-  const unit = j.kind === 'pco2' ? 'uatm' : 'umol/kg';
-  const lines: string[] = [];
-  const head =
-    `${j.sensor} ${j.field}: ${r.rows.length} bottle(s) within ${windowMin} min` +
-    (j.unpaired > 0 ? ` (${j.unpaired} more without a reading or a carbonate solution)` : '');
-  if (r.ok) {
-    const ps = r.params
-      .map((p) => {
-        const u =
-          p.name === 'offset'
-            ? ` ${unit}`
-            : p.name === 'drift_per_day'
-              ? ` ${unit}/d`
-              : p.name === 'slope_drift_per_day'
-                ? ' /d'
-                : '';
-        return `${p.name} ${p.value.toPrecision(6)} +- ${p.se.toPrecision(2)}${u}`;
-      })
-      .join(', ');
-    const dropped = r.driftDropped
-      ? `; drift ${r.driftDropped.value.toPrecision(2)} +- ${r.driftDropped.se.toPrecision(2)}${j.kind === 'pco2' ? ` ${unit}` : ''}/d ` +
-        `is within 2 SE of zero: fitted constant`
-      : '';
-    lines.push(`${head}: ${ps}; scatter ${f(r.scale, 2)} ${unit}, ${r.outliers} outlier(s)${dropped}`);
-  } else lines.push(`${head}: REFUSED (${r.code}): ${r.reason}`);
-  if (r.rows.length > 0) {
-    lines.push(
-      `  ${'bottle time'.padEnd(21)} ${'days'.padStart(6)} ${'reference'.padStart(10)} ${'raw'.padStart(9)} ${'corrected'.padStart(10)} ${'residual'.padStart(9)} weight`,
-    );
-    for (const row of r.rows) {
-      lines.push(
-        `  ${iso(row.tMs).padEnd(21)} ${f(row.days, 2).padStart(6)} ${f(row.reference, 2).padStart(10)} ${f(row.raw, 2).padStart(9)} ` +
-          `${f(row.corrected, 2).padStart(10)} ${f(row.residual, 2).padStart(9)} ${f(row.weight, 2).padStart(6)}${row.weight === 0 ? '  outlier' : ''}`,
-      );
-    }
-  }
-  return lines;
-}
+type Written = { entry: CalibrationEntry; comments: string[] };
 
 export const run: CommandRun = async (args, io) => {
-  const parsed = parseCommand(
-    'calibrate',
-    args,
-    {
-      config: { type: 'string' },
-      input: { type: 'string' },
-      out: { type: 'string' },
-      'match-min': { type: 'string' },
-      sensor: { type: 'string', multiple: true },
-      drift: { type: 'boolean', default: false },
-      'no-drift': { type: 'boolean', default: false },
-    },
-    HELP,
-    io,
-  );
+  const opts = parseOptions(args, io);
+  if (typeof opts === 'number') return opts;
+  const config = await loadConfig(opts.configPath, io);
+  if (config === undefined) return EXIT_USAGE;
+  for (const s of opts.only) {
+    const [st = '', se = ''] = s.split('/');
+    if (config.stations[st]?.sensors[se] === undefined) {
+      io.stderr(`reefd calibrate: --sensor ${s} is not a sensor of the configuration (station/sensor)\n`);
+      return EXIT_USAGE;
+    }
+  }
+  let field: FieldFiles;
+  try {
+    field = await loadFieldFiles(path.dirname(path.resolve(opts.configPath)), config);
+  } catch (err) {
+    io.stderr(`reefd calibrate: ${(err as Error).message}\n`);
+    return EXIT_USAGE;
+  }
+  const todo = await findJobs(opts, config, field, io);
+  if (typeof todo === 'number') return todo;
+  if (opts.drift && opts.noDrift) {
+    io.stderr('reefd calibrate: give --drift or --no-drift, not both\n');
+    return EXIT_USAGE;
+  }
+  const { entries, refused } = fitAll(opts, todo, io);
+  return writeCalibration(opts, config, field, entries, { refused, fits: todo.length }, io);
+};
+
+/** The options, checked: the options as given, or the exit code after saying what is wrong. */
+function parseOptions(args: string[], io: CliIo): CalibrateOptions | number {
+  const parsed = parseCommand('calibrate', args, OPTIONS, HELP, io);
   if (!parsed.ok) return parsed.exit;
   const v = parsed.values;
   if (!v.config || !v.input || !v.out) {
@@ -319,29 +115,34 @@ export const run: CommandRun = async (args, io) => {
     );
     return EXIT_USAGE;
   }
-  const config = await loadConfig(v.config, io);
-  if (config === undefined) return EXIT_USAGE;
-  const only = v.sensor ?? [];
-  for (const s of only) {
-    const [st = '', se = ''] = s.split('/');
-    if (config.stations[st]?.sensors[se] === undefined) {
-      io.stderr(`reefd calibrate: --sensor ${s} is not a sensor of the configuration (station/sensor)\n`);
-      return EXIT_USAGE;
-    }
-  }
-  let field: FieldFiles;
-  try {
-    field = await loadFieldFiles(path.dirname(path.resolve(v.config)), config);
-  } catch (err) {
-    io.stderr(`reefd calibrate: ${(err as Error).message}\n`);
-    return EXIT_USAGE;
-  }
-  const fittable = fittableSensors(config, only);
+  return {
+    configPath: v.config,
+    input: v.input,
+    out: v.out,
+    matchMin,
+    only: v.sensor ?? [],
+    drift: v.drift ?? false,
+    noDrift: v['no-drift'] ?? false,
+  };
+}
+
+/**
+ * Reads the archive and pairs the bottles with the sensors' readings, or the exit code after saying what is
+ * wrong (no archive, nothing to fit). The configured corrections of the sensors fitted are left out, so the
+ * fits are against their raw readings.
+ */
+async function findJobs(
+  opts: CalibrateOptions,
+  config: ReefdConfig,
+  field: FieldFiles,
+  io: CliIo,
+): Promise<Job[] | number> {
+  const fittable = fittableSensors(config, opts.only);
   let c: Collected;
   try {
     c = await collect(
       config,
-      v.input,
+      opts.input,
       {
         calibration: compileCalibration(field.calibration.filter((e) => !fittable.has(e.sensor))),
         logbook: field.logbook,
@@ -352,7 +153,7 @@ export const run: CommandRun = async (args, io) => {
     io.stderr(`reefd calibrate: ${(err as Error).message}\n`);
     return (err as { code?: string }).code === 'REEFD_INPUT_MISSING' ? EXIT_USAGE : EXIT_FAILURE;
   }
-  const todo = jobs(config, c, matchMin * 60_000, only);
+  const todo = jobs(config, c, opts.matchMin * 60_000, opts.only);
   if (todo.length === 0) {
     io.stderr(
       `reefd calibrate: nothing to fit: no pCO2 sensor has bottles with TA and DIC at its station, and no ` +
@@ -361,17 +162,22 @@ export const run: CommandRun = async (args, io) => {
     );
     return EXIT_USAGE;
   }
-  const entries: { entry: CalibrationEntry; comments: string[] }[] = [];
+  return todo;
+}
+
+/** Runs each fit and prints it; the entries of the fits accepted, and how many were refused. */
+function fitAll(
+  opts: CalibrateOptions,
+  todo: readonly Job[],
+  io: CliIo,
+): { entries: Written[]; refused: number } {
+  const entries: Written[] = [];
   let refused = 0;
-  if (v.drift && v['no-drift']) {
-    io.stderr('reefd calibrate: give --drift or --no-drift, not both\n');
-    return EXIT_USAGE;
-  }
-  const fitOpts = { drift: v['no-drift'] ? false : v.drift ? true : ('auto' as const) };
+  const fitOpts = { drift: opts.noDrift ? false : opts.drift ? true : ('auto' as const) };
   for (const j of todo) {
     const r =
       j.kind === 'pco2' ? fitPco2(j.target, j.pairs, fitOpts) : fitOptodeGain(j.target, j.pairs, fitOpts);
-    const text = describeFit(j, r, matchMin);
+    const text = describeFit(j, r, opts.matchMin);
     io.stdout(`${text.join('\n')}\n\n`);
     if (!r.ok) {
       refused++;
@@ -385,6 +191,21 @@ export const run: CommandRun = async (args, io) => {
       ],
     });
   }
+  return { entries, refused };
+}
+
+/**
+ * Writes the calibration file: the new entries and those of the sensors not refitted, unless a fit was
+ * refused. What is written must read back as a valid calibration file of this configuration.
+ */
+async function writeCalibration(
+  opts: CalibrateOptions,
+  config: ReefdConfig,
+  field: FieldFiles,
+  entries: Written[],
+  { refused, fits }: { refused: number; fits: number },
+  io: CliIo,
+): Promise<number> {
   // Entries of sensors not refitted stay as they were (a CTD's, a sensor without bottles this time).
   const refit = new Set(entries.map((e) => e.entry.sensor));
   const carried = field.calibration.filter((e) => !refit.has(e.sensor));
@@ -392,17 +213,16 @@ export const run: CommandRun = async (args, io) => {
     entries.push({ entry: e, comments: [`carried over from ${path.basename(field.calibrationFile ?? '')}`] });
   if (refused > 0) {
     io.stderr(
-      `reefd calibrate: ${refused} of ${todo.length} fit(s) refused (see above); ${v.out} not written. ` +
+      `reefd calibrate: ${refused} of ${fits} fit(s) refused (see above); ${opts.out} not written. ` +
         `Fit the others alone with --sensor, or without drift with --no-drift.\n`,
     );
     return EXIT_USAGE;
   }
   const yaml = formatCalibrationYaml(entries, [
-    `Calibration of ${config.site}, fitted by reefd calibrate from ${v.input}`,
-    `on ${iso(Date.now())}; bottles paired with sensor readings within ${matchMin} min.`,
+    `Calibration of ${config.site}, fitted by reefd calibrate from ${opts.input}`,
+    `on ${iso(Date.now())}; bottles paired with sensor readings within ${opts.matchMin} min.`,
     'corrected = (slope + slope_drift_per_day x days) x raw + offset + drift_per_day x days, days since from.',
   ]);
-  // What we write must read back as a valid calibration file of this configuration.
   const check = parseCalibrationText(yaml, config);
   if (!check.ok) {
     io.stderr(
@@ -410,14 +230,14 @@ export const run: CommandRun = async (args, io) => {
     );
     return EXIT_FAILURE;
   }
-  await writeFile(v.out, yaml);
+  await writeFile(opts.out, yaml);
   io.stderr(
-    `calibrate: wrote ${entries.length} correction(s) to ${v.out}` +
+    `calibrate: wrote ${entries.length} correction(s) to ${opts.out}` +
       `${carried.length > 0 ? ` (${carried.length} carried over unchanged)` : ''}; ` +
       `name it as calibration_file in the configuration\n`,
   );
   return EXIT_OK;
-};
+}
 
 /** The pCO2 sensors and optodes a run may fit (all of them, or those given with --sensor). */
 function fittableSensors(config: ReefdConfig, only: readonly string[]): Set<string> {
