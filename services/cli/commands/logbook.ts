@@ -14,7 +14,7 @@ import {
   type LogbookEntry,
 } from '../../../libs/logbook/index.js';
 import { loadConfigFile } from '../../config/load.js';
-import { parseCommand } from '../args.js';
+import { parseCommand, type Parsed } from '../args.js';
 import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
 
 const HELP = `Usage: reefd logbook add --config FILE --station S [--sensor X] --event EVENT [--text TEXT]
@@ -124,6 +124,19 @@ async function readText(file: string): Promise<string> {
   }
 }
 
+const OPTIONS = {
+  config: { type: 'string' },
+  station: { type: 'string' },
+  sensor: { type: 'string' },
+  event: { type: 'string' },
+  text: { type: 'string' },
+  'exclude-from': { type: 'string' },
+  'exclude-to': { type: 'string' },
+  t: { type: 'string' },
+} as const;
+
+type Values = Extract<Parsed<typeof OPTIONS>, { ok: true }>['values'];
+
 export const run: CommandRun = async (args, io) => {
   const [sub, ...rest] = args;
   if (sub === '--help' || sub === '-h') {
@@ -134,29 +147,25 @@ export const run: CommandRun = async (args, io) => {
     io.stderr(`reefd logbook: expected "add" or "list"\n\n${HELP}`);
     return EXIT_USAGE;
   }
-  const parsed = parseCommand(
-    `logbook ${sub}`,
-    rest,
-    {
-      config: { type: 'string' },
-      station: { type: 'string' },
-      sensor: { type: 'string' },
-      event: { type: 'string' },
-      text: { type: 'string' },
-      'exclude-from': { type: 'string' },
-      'exclude-to': { type: 'string' },
-      t: { type: 'string' },
-    },
-    HELP,
-    io,
-  );
+  const parsed = parseCommand(`logbook ${sub}`, rest, OPTIONS, HELP, io);
   if (!parsed.ok) return parsed.exit;
   const v = parsed.values;
   const loaded = await loadConfig(v.config, io);
   if (typeof loaded === 'number') return loaded;
   const { config, logbook } = loaded;
   if (sub === 'list') return list(logbook, config, v.station, io);
+  const entry = checkEntry(v, config, io);
+  if (typeof entry === 'number') return entry;
+  try {
+    return await withLock(logbook, () => appendEntry(logbook, entry, config, io));
+  } catch (err) {
+    io.stderr(`reefd logbook add: ${(err as Error).message}\n`);
+    return EXIT_FAILURE;
+  }
+};
 
+/** The entry `add` describes, checked against the schema and the configuration, or the exit code. */
+function checkEntry(v: Values, config: ReefdConfig, io: CliIo): LogbookEntry | number {
   if (!v.station || !v.event) {
     io.stderr(`reefd logbook add: --station and --event are required\n\n${HELP}`);
     return EXIT_USAGE;
@@ -183,48 +192,52 @@ export const run: CommandRun = async (args, io) => {
     for (const p of bad) io.stderr(`reefd logbook add: --${String(p.path[1])} ${p.message}\n`);
     return EXIT_USAGE;
   }
-  try {
-    return await withLock(logbook, async () => {
-      const text = await readText(logbook);
-      const now = parseLogbookText(text, config);
-      if (!now.ok) {
-        for (const p of now.problems)
-          io.stderr(
-            `${logbook}: ${p.path}: ${p.message}${p.line !== undefined ? ` (line ${p.line})` : ''}\n`,
-          );
-        io.stderr(`reefd logbook add: ${logbook} has problems; fix them first (nothing was added)\n`);
-        return EXIT_USAGE;
-      }
-      // An empty list may be written as `[]`: keep its comments and start a block list.
-      const head =
-        now.entries.length === 0
-          ? text
-              .split('\n')
-              .filter((l) => l.trimStart().startsWith('#'))
-              .join('\n')
-          : text;
-      const next = `${head}${head === '' || head.endsWith('\n') ? '' : '\n'}${formatLogbookEntry(entry)}`;
-      const again = parseLogbookText(next, config);
-      if (!again.ok || again.entries.length !== now.entries.length + 1) {
-        io.stderr(
-          `reefd logbook add: the entry could not be appended to ${logbook} as valid YAML; nothing was added\n`,
-        );
-        return EXIT_FAILURE;
-      }
-      await replaceFile(logbook, next);
-      const what = entry.sensor !== undefined ? `${entry.station}/${entry.sensor}` : entry.station;
-      const excl =
-        entry.exclude_from !== undefined ? `, excluding ${entry.exclude_from} to ${entry.exclude_to}` : '';
-      io.stdout(
-        `${logbook}: added ${entry.event} at ${what} ${entry.t}${excl} (${again.entries.length} entries)\n`,
-      );
-      return EXIT_OK;
-    });
-  } catch (err) {
-    io.stderr(`reefd logbook add: ${(err as Error).message}\n`);
+  return entry;
+}
+
+/**
+ * Appends the entry to the logbook (called under its lock): the file must read cleanly before, and read back
+ * with one more entry after, or nothing is written.
+ */
+async function appendEntry(
+  logbook: string,
+  entry: LogbookEntry,
+  config: ReefdConfig,
+  io: CliIo,
+): Promise<number> {
+  const text = await readText(logbook);
+  const now = parseLogbookText(text, config);
+  if (!now.ok) {
+    for (const p of now.problems)
+      io.stderr(`${logbook}: ${p.path}: ${p.message}${p.line !== undefined ? ` (line ${p.line})` : ''}\n`);
+    io.stderr(`reefd logbook add: ${logbook} has problems; fix them first (nothing was added)\n`);
+    return EXIT_USAGE;
+  }
+  // An empty list may be written as `[]`: keep its comments and start a block list.
+  const head =
+    now.entries.length === 0
+      ? text
+          .split('\n')
+          .filter((l) => l.trimStart().startsWith('#'))
+          .join('\n')
+      : text;
+  const next = `${head}${head === '' || head.endsWith('\n') ? '' : '\n'}${formatLogbookEntry(entry)}`;
+  const again = parseLogbookText(next, config);
+  if (!again.ok || again.entries.length !== now.entries.length + 1) {
+    io.stderr(
+      `reefd logbook add: the entry could not be appended to ${logbook} as valid YAML; nothing was added\n`,
+    );
     return EXIT_FAILURE;
   }
-};
+  await replaceFile(logbook, next);
+  const what = entry.sensor !== undefined ? `${entry.station}/${entry.sensor}` : entry.station;
+  const excl =
+    entry.exclude_from !== undefined ? `, excluding ${entry.exclude_from} to ${entry.exclude_to}` : '';
+  io.stdout(
+    `${logbook}: added ${entry.event} at ${what} ${entry.t}${excl} (${again.entries.length} entries)\n`,
+  );
+  return EXIT_OK;
+}
 
 async function list(
   file: string,
