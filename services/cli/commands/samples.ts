@@ -66,7 +66,31 @@ async function load(file: string, io: CliIo): Promise<ReefdConfig | undefined> {
   return undefined;
 }
 
+interface ImportOptions {
+  configPath: string;
+  csv: string;
+  archive: string;
+  dryRun: boolean;
+}
+
+type Accepted = ReturnType<typeof checkSheet>['accepted'];
+
 export const run: CommandRun = async (args, io) => {
+  const opts = await parseOptions(args, io);
+  if (typeof opts === 'number') return opts;
+  const config = await load(opts.configPath, io);
+  if (config === undefined) return EXIT_USAGE;
+  const accepted = await checkLabSheet(opts, config, io);
+  if (typeof accepted === 'number') return accepted;
+  if (opts.dryRun) {
+    io.stdout(`${opts.csv}: all ${accepted.length} rows are good; nothing written (--dry-run)\n`);
+    return EXIT_OK;
+  }
+  return appendSamples(opts, accepted, io);
+};
+
+/** The subcommand and its options, checked, or the exit code after the help or saying what is wrong. */
+async function parseOptions(args: string[], io: CliIo): Promise<ImportOptions | number> {
   const [sub, ...rest] = args;
   if (sub === '--help' || sub === '-h') {
     io.stdout(HELP);
@@ -107,43 +131,51 @@ export const run: CommandRun = async (args, io) => {
     io.stderr(`reefd samples import: --archive ${v.archive} is not a folder (give the archive folder)\n`);
     return EXIT_USAGE;
   }
-  const config = await load(v.config, io);
-  if (config === undefined) return EXIT_USAGE;
-  const sheet = parseCsv(await readFile(v.csv, 'utf8'));
+  return { configPath: v.config, csv: v.csv, archive: v.archive, dryRun: v['dry-run'] ?? false };
+}
+
+/** Every row of the sheet checked against the configuration and the archive: the rows, or the exit code. */
+async function checkLabSheet(
+  opts: ImportOptions,
+  config: ReefdConfig,
+  io: CliIo,
+): Promise<Accepted | number> {
+  const sheet = parseCsv(await readFile(opts.csv, 'utf8'));
   if (!sheet.ok) {
-    io.stderr(`${v.csv} row ${sheet.row}: ${sheet.reason}; nothing was imported\n`);
+    io.stderr(`${opts.csv} row ${sheet.row}: ${sheet.reason}; nothing was imported\n`);
     return EXIT_USAGE;
   }
-  const facts = await archiveFacts(v.archive, config);
+  const facts = await archiveFacts(opts.archive, config);
   if (facts === undefined) {
     io.stderr(
-      `reefd samples import: the archive ${v.archive} holds no accepted messages of site ${config.site}, ` +
+      `reefd samples import: the archive ${opts.archive} holds no accepted messages of site ${config.site}, ` +
         `so the sample times cannot be checked against the deployment; nothing was imported\n`,
     );
     return EXIT_USAGE;
   }
   const r = checkSheet(config, sheet.header, sheet.rows, facts);
   if (r.sheet.length > 0) {
-    for (const p of r.sheet) io.stderr(`${v.csv} row 1: ${p}\n`);
+    for (const p of r.sheet) io.stderr(`${opts.csv} row 1: ${p}\n`);
     io.stderr(`reefd samples import: the columns are not usable; nothing was imported\n`);
     return EXIT_USAGE;
   }
   if (r.rejected.length > 0) {
-    for (const x of r.rejected) for (const why of x.reasons) io.stderr(`${v.csv} row ${x.row}: ${why}\n`);
+    for (const x of r.rejected) for (const why of x.reasons) io.stderr(`${opts.csv} row ${x.row}: ${why}\n`);
     io.stderr(
       `reefd samples import: ${r.rejected.length} of ${sheet.rows.length} rows rejected; nothing was imported. ` +
         `Fix them and run again.\n`,
     );
     return EXIT_USAGE;
   }
-  if (v['dry-run']) {
-    io.stdout(`${v.csv}: all ${r.accepted.length} rows are good; nothing written (--dry-run)\n`);
-    return EXIT_OK;
-  }
+  return r.accepted;
+}
+
+/** Appends the rows to the archive as messages received now, in one batch the writer commits whole. */
+async function appendSamples(opts: ImportOptions, accepted: Accepted, io: CliIo): Promise<number> {
   const rxMs = Date.now();
   const rx = new Date(rxMs).toISOString();
   const writer = await createArchiveWriter({
-    dir: v.archive,
+    dir: opts.archive,
     fsyncMs: 50,
     retentionDays: 0,
     clock: Date.now,
@@ -151,7 +183,7 @@ export const run: CommandRun = async (args, io) => {
   try {
     // Appended in one turn of the event loop: the writer commits them as one batch (one write, one fsync).
     await Promise.all(
-      r.accepted.map((a) => writer.append(archiveLine(a.topic, rx, JSON.stringify(a.msg)), rxMs)),
+      accepted.map((a) => writer.append(archiveLine(a.topic, rx, JSON.stringify(a.msg)), rxMs)),
     );
   } catch (err) {
     io.stderr(
@@ -162,8 +194,8 @@ export const run: CommandRun = async (args, io) => {
   }
   await writer.close();
   io.stdout(
-    `${v.csv}: imported ${r.accepted.length} lab results into ${v.archive} (received ${rx}); ` +
+    `${opts.csv}: imported ${accepted.length} lab results into ${opts.archive} (received ${rx}); ` +
       `replay uses them at their sampling time\n`,
   );
   return EXIT_OK;
-};
+}
