@@ -6,14 +6,14 @@ import path from 'node:path';
 import type { DerivedRecord, ReefdConfig } from '../../../libs/contract/index.js';
 import type { ProcessorOptions } from '../../../libs/processor/index.js';
 import { createOutputs } from '../../daemon/outputs.js';
-import { createLogger, LOG_LEVELS } from '../../log/logger.js';
+import { createLogger, LOG_LEVELS, type Logger } from '../../log/logger.js';
 import type { RecordSink } from '../../pipeline/types.js';
 import { createKafkaStateStore } from '../../scaleout/kafka-state-store.js';
 import { createShoreMember } from '../../scaleout/shore.js';
 import { loadShoreSites } from '../../scaleout/shore-sites.js';
 import { createDirectoryStateStore } from '../../scaleout/state-store.js';
 import { parseCommand } from '../args.js';
-import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
+import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
 
 const HELP = `Usage: reefd shore --brokers H:P[,H:P] --topic RAW --group ID --site FILE [--site FILE ...]
                    (--state-topic TOPIC | --state-dir DIR) [options]
@@ -31,7 +31,74 @@ Options:
   --log-level LEVEL  ${LOG_LEVELS.join('|')} (default info)
 `;
 
+interface ShoreOptions {
+  brokers: string[];
+  topic: string;
+  group: string;
+  sites: string[];
+  stateTopic?: string;
+  stateDir?: string;
+  clientId: string;
+  snapshotS: number;
+  dataDir: string;
+  level: (typeof LOG_LEVELS)[number];
+}
+
 export const run: CommandRun = async (args, io) => {
+  const opts = parseOptions(args, io);
+  if (typeof opts === 'number') return opts;
+  const logger = createLogger({ level: opts.level, pretty: Boolean(process.stderr.isTTY) });
+  let sites: ReefdConfig[];
+  let processorOptions: Map<string, ProcessorOptions>;
+  try {
+    ({ sites, processorOptions } = await loadShoreSites(opts.sites));
+  } catch (err) {
+    io.stderr(`reefd shore: ${(err as Error).message}\n`);
+    return EXIT_USAGE;
+  }
+  const outputs = await createSiteOutputs(opts, sites, io.env, logger);
+  const all = [...outputs.values()].flat();
+  const { brokers, clientId } = opts;
+  const store = opts.stateTopic
+    ? await createKafkaStateStore({ brokers, clientId: `${clientId}-state`, topic: opts.stateTopic, logger })
+    : createDirectoryStateStore(path.resolve(opts.stateDir as string));
+  const member = createShoreMember({
+    sites,
+    processorOptions,
+    brokers,
+    clientId,
+    groupId: opts.group,
+    topic: opts.topic,
+    store,
+    snapshotEveryMs: opts.snapshotS * 1000,
+    onRecords: (records: readonly DerivedRecord[], at) => {
+      for (const s of outputs.get(at.site) ?? []) s.write(records);
+    },
+    flushOutputs: async () => {
+      await Promise.all(all.map((s) => s.flush()));
+    },
+    logger,
+  });
+  try {
+    await member.start();
+  } catch (err) {
+    logger.fatal({ err: (err as Error).message }, 'shore member could not join the group');
+    return EXIT_FAILURE;
+  }
+  logger.info(
+    { group: opts.group, topic: opts.topic, sites: sites.map((s) => s.site) },
+    'shore member running',
+  );
+  await untilStopSignal();
+  const killer = setTimeout(() => process.exit(1), 10_000);
+  killer.unref();
+  await member.stop();
+  await Promise.allSettled(all.map((s) => s.close()));
+  return EXIT_OK;
+};
+
+/** The options, checked (every problem said at once), or the exit code. */
+function parseOptions(args: string[], io: CliIo): ShoreOptions | number {
   const parsed = parseCommand(
     'shore',
     args,
@@ -67,67 +134,47 @@ export const run: CommandRun = async (args, io) => {
     io.stderr(`reefd shore: ${problems.join('; ')}\n\n${HELP}`);
     return EXIT_USAGE;
   }
-  const logger = createLogger({ level, pretty: Boolean(process.stderr.isTTY) });
-  const brokers = (v.brokers as string).split(',').map((b) => b.trim());
-  const clientId = v['client-id'] ?? `reefd-shore-${os.hostname()}`;
-  let sites: ReefdConfig[];
-  let processorOptions: Map<string, ProcessorOptions>;
-  try {
-    ({ sites, processorOptions } = await loadShoreSites(v.site as string[]));
-  } catch (err) {
-    io.stderr(`reefd shore: ${(err as Error).message}\n`);
-    return EXIT_USAGE;
-  }
-  const dataDir = path.resolve(v.data ?? path.join('reefd-data', 'shore'));
+  return {
+    brokers: (v.brokers as string).split(',').map((b) => b.trim()),
+    topic: v.topic as string,
+    group: v.group as string,
+    sites: v.site as string[],
+    ...(v['state-topic'] ? { stateTopic: v['state-topic'] } : {}),
+    ...(v['state-dir'] !== undefined ? { stateDir: v['state-dir'] } : {}),
+    clientId: v['client-id'] ?? `reefd-shore-${os.hostname()}`,
+    snapshotS,
+    dataDir: path.resolve(v.data ?? path.join('reefd-data', 'shore')),
+    level,
+  };
+}
+
+/** Each site's own outputs, configured from its file (relative paths beside it), spooling under --data. */
+async function createSiteOutputs(
+  opts: ShoreOptions,
+  sites: readonly ReefdConfig[],
+  env: CliIo['env'],
+  logger: Logger,
+): Promise<Map<string, RecordSink[]>> {
   const outputs = new Map<string, RecordSink[]>();
   for (const [i, cfg] of sites.entries()) {
-    const file = (v.site as string[])[i] as string;
+    const file = opts.sites[i] as string;
     outputs.set(
       cfg.site,
       await createOutputs({
         config: cfg,
         baseDir: path.dirname(path.resolve(file)),
-        dataDir: path.join(dataDir, cfg.site),
-        env: io.env,
+        dataDir: path.join(opts.dataDir, cfg.site),
+        env,
         logger,
       }),
     );
   }
-  const all = [...outputs.values()].flat();
-  const store = v['state-topic']
-    ? await createKafkaStateStore({ brokers, clientId: `${clientId}-state`, topic: v['state-topic'], logger })
-    : createDirectoryStateStore(path.resolve(v['state-dir'] as string));
-  const member = createShoreMember({
-    sites,
-    processorOptions,
-    brokers,
-    clientId,
-    groupId: v.group as string,
-    topic: v.topic as string,
-    store,
-    snapshotEveryMs: snapshotS * 1000,
-    onRecords: (records: readonly DerivedRecord[], at) => {
-      for (const s of outputs.get(at.site) ?? []) s.write(records);
-    },
-    flushOutputs: async () => {
-      await Promise.all(all.map((s) => s.flush()));
-    },
-    logger,
-  });
-  try {
-    await member.start();
-  } catch (err) {
-    logger.fatal({ err: (err as Error).message }, 'shore member could not join the group');
-    return EXIT_FAILURE;
-  }
-  logger.info({ group: v.group, topic: v.topic, sites: sites.map((s) => s.site) }, 'shore member running');
-  await new Promise<void>((resolve) => {
+  return outputs;
+}
+
+function untilStopSignal(): Promise<void> {
+  return new Promise<void>((resolve) => {
     process.once('SIGTERM', () => resolve());
     process.once('SIGINT', () => resolve());
   });
-  const killer = setTimeout(() => process.exit(1), 10_000);
-  killer.unref();
-  await member.stop();
-  await Promise.allSettled(all.map((s) => s.close()));
-  return EXIT_OK;
-};
+}
