@@ -71,104 +71,157 @@ function clockSynced(): Promise<Check> {
   });
 }
 
+type Env = CliIo['env'];
+
+/** Every check, in the order they are printed. */
 async function checks(config: ReefdConfig, io: CliIo, base: string, timeoutMs: number): Promise<Check[]> {
-  const out: Check[] = [];
-  const secret = async (name: string, ref: SecretRef | undefined) => {
-    if (!ref) return;
-    try {
-      await resolveSecret(ref, io.env, base);
-      out.push({ name: `secret ${name}`, status: 'ok', detail: 'available' });
-    } catch (err) {
-      out.push({ name: `secret ${name}`, status: 'fail', detail: (err as Error).message });
-    }
-  };
-  if (config.sources?.mqtt === undefined && config.sources?.kafka === undefined) {
-    out.push({
+  return [
+    ...sourcesCheck(config),
+    await dataFolderCheck(config, base, io.env),
+    ...(await ndjsonCheck(config, base)),
+    ...(await mqttChecks(config, io.env, base, timeoutMs)),
+    ...(await kafkaChecks(config, timeoutMs)),
+    ...(await databaseChecks(config, io.env, base, timeoutMs)),
+    ...(await secretCheck('http.token', config.http.token, io.env, base)),
+    ...dashboardCheck(config),
+    await clockSynced(),
+  ];
+}
+
+/** A secret the configuration names can be read (nothing to check when none is named). */
+async function secretCheck(
+  name: string,
+  ref: SecretRef | undefined,
+  env: Env,
+  base: string,
+): Promise<Check[]> {
+  if (!ref) return [];
+  try {
+    await resolveSecret(ref, env, base);
+    return [{ name: `secret ${name}`, status: 'ok', detail: 'available' }];
+  } catch (err) {
+    return [{ name: `secret ${name}`, status: 'fail', detail: (err as Error).message }];
+  }
+}
+
+function sourcesCheck(config: ReefdConfig): Check[] {
+  if (config.sources?.mqtt !== undefined || config.sources?.kafka !== undefined) return [];
+  return [
+    {
       name: 'sources',
       status: 'fail',
       detail:
         'none configured: reefd run refuses to start (REEFD_NO_SOURCE); add sources.mqtt or sources.kafka',
-    });
-  }
-  const dataDir = resolveDataDir(config, base, io.env);
+    },
+  ];
+}
+
+/** The data folder exists (it is created), is writable, and has room for the archive. */
+async function dataFolderCheck(config: ReefdConfig, base: string, env: Env): Promise<Check> {
+  const dataDir = resolveDataDir(config, base, env);
   try {
     await mkdir(dataDir, { recursive: true });
     await access(dataDir, constants.W_OK);
     const fs = await statfs(dataDir);
     const freeGb = (fs.bavail * fs.bsize) / 1e9;
-    out.push({
+    return {
       name: 'data folder',
       status: freeGb < 1 ? 'fail' : freeGb < 10 ? 'warn' : 'ok',
       detail: `${dataDir}: ${freeGb.toFixed(1)} GB free${freeGb < 10 ? ' (a deployment archive grows by ~0.1-1 GB a week; free space or move data_dir)' : ''}`,
-    });
+    };
   } catch (err) {
-    out.push({
+    return {
       name: 'data folder',
       status: 'fail',
       detail: `${dataDir}: ${(err as Error).message}; create it and give the reefd user write access`,
-    });
+    };
   }
+}
+
+async function ndjsonCheck(config: ReefdConfig, base: string): Promise<Check[]> {
   const ndjson = config.outputs.ndjson;
-  if (ndjson) {
-    const folder = path.dirname(path.resolve(base, ndjson.path));
-    try {
-      await access(folder, constants.W_OK);
-      out.push({ name: 'ndjson output', status: 'ok', detail: `${folder} is writable` });
-    } catch (err) {
-      out.push({
+  if (!ndjson) return [];
+  const folder = path.dirname(path.resolve(base, ndjson.path));
+  try {
+    await access(folder, constants.W_OK);
+    return [{ name: 'ndjson output', status: 'ok', detail: `${folder} is writable` }];
+  } catch (err) {
+    return [
+      {
         name: 'ndjson output',
         status: 'fail',
         detail: `${folder}: ${(err as Error).message}; write the records under the data folder (an absolute path) or give the reefd user write access`,
-      });
-    }
+      },
+    ];
   }
+}
+
+/** The MQTT broker answers on its port, and its password can be read. */
+async function mqttChecks(config: ReefdConfig, env: Env, base: string, timeoutMs: number): Promise<Check[]> {
   const mqtt = config.sources?.mqtt;
-  if (mqtt) {
-    const { host, port } = hostPort(mqtt.url, mqtt.url.startsWith('mqtts') ? 8883 : 1883);
-    const e = await tcpProbe(host, port, timeoutMs);
-    out.push({
+  if (!mqtt) return [];
+  const { host, port } = hostPort(mqtt.url, mqtt.url.startsWith('mqtts') ? 8883 : 1883);
+  const e = await tcpProbe(host, port, timeoutMs);
+  return [
+    {
       name: 'mqtt broker',
       status: e ? 'fail' : 'ok',
       detail: e
         ? `${host}:${port}: ${e}; start the broker or fix sources.mqtt.url`
         : `${host}:${port} reachable`,
-    });
-    await secret('sources.mqtt.password', mqtt.password);
-  }
+    },
+    ...(await secretCheck('sources.mqtt.password', mqtt.password, env, base)),
+  ];
+}
+
+/** Each Kafka broker (of the source, else of the output) answers on its port. */
+async function kafkaChecks(config: ReefdConfig, timeoutMs: number): Promise<Check[]> {
   const kafka = config.sources?.kafka ?? config.outputs.kafka;
-  if (kafka) {
-    for (const b of kafka.brokers) {
-      const { host, port } = hostPort(b, 9092);
-      const e = await tcpProbe(host, port, timeoutMs);
-      out.push({
-        name: `kafka ${b}`,
-        status: e ? 'fail' : 'ok',
-        detail: e ? `${e}; start Kafka or fix the brokers list` : 'reachable',
-      });
-    }
-  }
-  const influx = config.outputs.influx;
-  if (influx) {
-    const probe =
-      influx.api === 'v1' ? new URL('/ping', influx.url).href : new URL('/health', influx.url).href;
-    const e = await httpProbe(probe, timeoutMs);
+  if (!kafka) return [];
+  const out: Check[] = [];
+  for (const b of kafka.brokers) {
+    const { host, port } = hostPort(b, 9092);
+    const e = await tcpProbe(host, port, timeoutMs);
     out.push({
+      name: `kafka ${b}`,
+      status: e ? 'fail' : 'ok',
+      detail: e ? `${e}; start Kafka or fix the brokers list` : 'reachable',
+    });
+  }
+  return out;
+}
+
+/** The time-series database answers its health endpoint, and its token can be read. */
+async function databaseChecks(
+  config: ReefdConfig,
+  env: Env,
+  base: string,
+  timeoutMs: number,
+): Promise<Check[]> {
+  const influx = config.outputs.influx;
+  if (!influx) return [];
+  const probe = influx.api === 'v1' ? new URL('/ping', influx.url).href : new URL('/health', influx.url).href;
+  const e = await httpProbe(probe, timeoutMs);
+  return [
+    {
       name: 'database',
       status: e ? 'fail' : 'ok',
       detail: e ? `${probe}: ${e}; records spool on disk until it answers` : `${probe} answers`,
-    });
-    await secret('outputs.influx.token', influx.token);
-  }
-  await secret('http.token', config.http.token);
-  if (config.http.host !== '127.0.0.1' && config.http.host !== 'localhost' && !config.http.token) {
-    out.push({
+    },
+    ...(await secretCheck('outputs.influx.token', influx.token, env, base)),
+  ];
+}
+
+/** A dashboard bound beyond the loopback needs a token. */
+function dashboardCheck(config: ReefdConfig): Check[] {
+  if (config.http.host === '127.0.0.1' || config.http.host === 'localhost' || config.http.token) return [];
+  return [
+    {
       name: 'dashboard',
       status: 'fail',
       detail: `bound to ${config.http.host} without http.token: anyone on the LAN can read and acknowledge; set a token`,
-    });
-  }
-  out.push(await clockSynced());
-  return out;
+    },
+  ];
 }
 
 export const run: CommandRun = async (args, io) => {
