@@ -59,7 +59,55 @@ async function readMeta(file: string, io: CliIo): Promise<Record<string, string 
   return out;
 }
 
+interface ExportOptions {
+  records: string;
+  format: 'csv' | 'netcdf';
+  out: string;
+  configPath?: string;
+  metaPath?: string;
+  quiet: boolean;
+}
+
+type Meta = Record<string, string | number>;
+type Scan = Awaited<ReturnType<typeof scanRecords>>;
+
 export const run: CommandRun = async (args, io) => {
+  const opts = parseOptions(args, io);
+  if (typeof opts === 'number') return opts;
+  const config = opts.configPath ? await loadConfig(opts.configPath, io) : undefined;
+  if (config === EXIT_USAGE) return EXIT_USAGE;
+  const meta = opts.metaPath ? await readMeta(opts.metaPath, io) : {};
+  if (meta === undefined) return EXIT_USAGE;
+  try {
+    const scan = await scanRecords(opts.records);
+    if (scan.invalid > 0) {
+      io.stderr(
+        `reefd export: ${scan.invalid} line(s) of ${opts.records} are not derived records and were skipped ` +
+          `(lines ${scan.invalidLines.join(', ')}${scan.invalid > scan.invalidLines.length ? ', ...' : ''})\n`,
+      );
+    }
+    if (scan.records === 0) {
+      io.stderr(`reefd export: ${opts.records} holds no derived records; nothing to export\n`);
+      return EXIT_USAGE;
+    }
+    await mkdir(opts.out, { recursive: true });
+    const files = await writeFiles(opts, scan, config, meta, io);
+    if (!opts.quiet) {
+      io.stderr(
+        `export: ${scan.records} records (${scan.superseded} earlier revisions or copies left out) -> ` +
+          `${files.length} ${opts.format === 'csv' ? 'CSV' : 'NetCDF'} file(s) in ${opts.out}\n`,
+      );
+    }
+    for (const f of files) io.stdout(`${f}\n`);
+    return EXIT_OK;
+  } catch (err) {
+    io.stderr(`reefd export: ${(err as Error).message}\n`);
+    return EXIT_FAILURE;
+  }
+};
+
+/** The options, checked, or the exit code after the help or saying what is wrong. */
+function parseOptions(args: string[], io: CliIo): ExportOptions | number {
   const parsed = parseCommand(
     'export',
     args,
@@ -88,65 +136,57 @@ export const run: CommandRun = async (args, io) => {
     io.stderr(`reefd export: records file ${v.records} does not exist\n`);
     return EXIT_USAGE;
   }
-  let config: ReefdConfig | undefined;
-  if (v.config) {
-    try {
-      const c = await loadConfigFile(v.config);
-      if (!c.ok) {
-        for (const p of c.problems) io.stderr(`${v.config}: ${formatProblem(p)}\n`);
-        return EXIT_USAGE;
-      }
-      config = c.config;
-    } catch (err) {
-      io.stderr(`reefd export: ${(err as Error).message}\n`);
-      return EXIT_USAGE;
-    }
-  }
-  const meta = v.meta ? await readMeta(v.meta, io) : {};
-  if (meta === undefined) return EXIT_USAGE;
+  return {
+    records: v.records,
+    format: v.format,
+    out: v.out,
+    ...(v.config ? { configPath: v.config } : {}),
+    ...(v.meta ? { metaPath: v.meta } : {}),
+    quiet: v.quiet ?? false,
+  };
+}
+
+/** The configuration given with --config, or EXIT_USAGE after saying why it cannot be used. */
+async function loadConfig(file: string, io: CliIo): Promise<ReefdConfig | typeof EXIT_USAGE> {
   try {
-    const scan = await scanRecords(v.records);
-    if (scan.invalid > 0) {
-      io.stderr(
-        `reefd export: ${scan.invalid} line(s) of ${v.records} are not derived records and were skipped ` +
-          `(lines ${scan.invalidLines.join(', ')}${scan.invalid > scan.invalidLines.length ? ', ...' : ''})\n`,
-      );
-    }
-    if (scan.records === 0) {
-      io.stderr(`reefd export: ${v.records} holds no derived records; nothing to export\n`);
+    const c = await loadConfigFile(file);
+    if (!c.ok) {
+      for (const p of c.problems) io.stderr(`${file}: ${formatProblem(p)}\n`);
       return EXIT_USAGE;
     }
-    await mkdir(v.out, { recursive: true });
-    const epoch = io.env.SOURCE_DATE_EPOCH;
-    const createdMs = epoch !== undefined && /^\d+$/.test(epoch) ? Number(epoch) * 1000 : Date.now();
-    let files: string[];
-    if (v.format === 'csv') files = (await exportCsv(v.records, scan, v.out)).files;
-    else {
-      const nc = await exportNetcdf(v.records, scan, v.out, {
-        config,
-        createdIso: new Date(createdMs).toISOString().replace(/\.\d{3}Z$/, 'Z'),
-        software: `reefd ${version()}`,
-        meta,
-        sourceName: v.records.split(/[\\/]/).pop() ?? v.records,
-      });
-      files = nc.files;
-      if (nc.withoutPosition.length > 0) {
-        io.stderr(
-          `reefd export: no position for ${nc.withoutPosition.join(', ')}: lat and lon are left out, so CF ` +
-            `checkers see points, not time series; give --config with stations.<id>.position\n`,
-        );
-      }
-    }
-    if (!v.quiet) {
-      io.stderr(
-        `export: ${scan.records} records (${scan.superseded} earlier revisions or copies left out) -> ` +
-          `${files.length} ${v.format === 'csv' ? 'CSV' : 'NetCDF'} file(s) in ${v.out}\n`,
-      );
-    }
-    for (const f of files) io.stdout(`${f}\n`);
-    return EXIT_OK;
+    return c.config;
   } catch (err) {
     io.stderr(`reefd export: ${(err as Error).message}\n`);
-    return EXIT_FAILURE;
+    return EXIT_USAGE;
   }
-};
+}
+
+/**
+ * Writes the CSV or NetCDF files and returns their paths. The NetCDF files' creation time is
+ * SOURCE_DATE_EPOCH when set, so that a build of the same records is byte-identical.
+ */
+async function writeFiles(
+  opts: ExportOptions,
+  scan: Scan,
+  config: ReefdConfig | undefined,
+  meta: Meta,
+  io: CliIo,
+): Promise<string[]> {
+  const epoch = io.env.SOURCE_DATE_EPOCH;
+  const createdMs = epoch !== undefined && /^\d+$/.test(epoch) ? Number(epoch) * 1000 : Date.now();
+  if (opts.format === 'csv') return (await exportCsv(opts.records, scan, opts.out)).files;
+  const nc = await exportNetcdf(opts.records, scan, opts.out, {
+    config,
+    createdIso: new Date(createdMs).toISOString().replace(/\.\d{3}Z$/, 'Z'),
+    software: `reefd ${version()}`,
+    meta,
+    sourceName: opts.records.split(/[\\/]/).pop() ?? opts.records,
+  });
+  if (nc.withoutPosition.length > 0) {
+    io.stderr(
+      `reefd export: no position for ${nc.withoutPosition.join(', ')}: lat and lon are left out, so CF ` +
+        `checkers see points, not time series; give --config with stations.<id>.position\n`,
+    );
+  }
+  return nc.files;
+}
