@@ -3,7 +3,7 @@ import { parseArgs } from 'node:util';
 import { loadConfigOrThrow } from '../../config/load.js';
 import { createLogger, LOG_LEVELS } from '../../log/logger.js';
 import { publishSimulation } from '../../simulator/publisher.js';
-import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CommandRun } from '../io.js';
+import { EXIT_FAILURE, EXIT_OK, EXIT_USAGE, type CliIo, type CommandRun } from '../io.js';
 
 const HELP = `Usage: reefd simulate --config FILE [options]
 
@@ -23,32 +23,62 @@ Options:
   --log-level LEVEL  ${LOG_LEVELS.join('|')} (default info)
 `;
 
+interface SimulateOptions {
+  configPath: string;
+  broker: string | undefined;
+  truth: string | undefined;
+  speed: number | 'max';
+  seed: number;
+  startMs: number;
+  hours: number;
+  level: (typeof LOG_LEVELS)[number];
+}
+
 export const run: CommandRun = async (args, io) => {
-  let values;
+  const opts = parseOptions(args, io);
+  if (typeof opts === 'number') return opts;
+  let config;
   try {
-    ({ values } = parseArgs({
-      args,
-      strict: true,
-      options: {
-        help: { type: 'boolean', short: 'h' },
-        config: { type: 'string' },
-        broker: { type: 'string' },
-        speed: { type: 'string' },
-        seed: { type: 'string' },
-        start: { type: 'string' },
-        duration: { type: 'string' },
-        truth: { type: 'string' },
-        'log-level': { type: 'string' },
-      },
-    }));
+    config = await loadConfigOrThrow(opts.configPath);
   } catch (err) {
-    io.stderr(`reefd simulate: ${(err as Error).message}\n\n${HELP}`);
+    io.stderr(`reefd simulate: ${(err as Error).message}\n`);
     return EXIT_USAGE;
   }
-  if (values.help) {
-    io.stdout(HELP);
+  const logger = createLogger({ level: opts.level, pretty: io.isTty });
+  const abort = new AbortController();
+  const stop = () => abort.abort();
+  process.once('SIGINT', stop);
+  process.once('SIGTERM', stop);
+  try {
+    const s = await publishSimulation({
+      config,
+      brokerUrl: opts.broker ?? 'mqtt://127.0.0.1:1883',
+      speed: opts.speed,
+      seed: opts.seed,
+      startMs: opts.startMs,
+      durationMs: opts.hours * 3.6e6,
+      notAheadOfWallClock: true,
+      ...(opts.truth ? { truthPath: opts.truth } : {}),
+      logger,
+      signal: abort.signal,
+    });
+    io.stderr(
+      `reefd simulate: published ${s.messages} messages up to ${new Date(s.lastTMs).toISOString()}${s.aborted ? ' (stopped)' : ''}\n`,
+    );
     return EXIT_OK;
+  } catch (err) {
+    io.stderr(`reefd simulate: ${(err as Error).message}\n`);
+    return EXIT_FAILURE;
+  } finally {
+    process.off('SIGINT', stop);
+    process.off('SIGTERM', stop);
   }
+};
+
+/** The options, checked (every problem said at once), or the exit code after the help or the problems. */
+function parseOptions(args: string[], io: CliIo): SimulateOptions | number {
+  const values = parseValues(args, io);
+  if (typeof values === 'number') return values;
   const problems: string[] = [];
   if (!values.config) problems.push('--config FILE is required');
   const speed = values.speed === undefined ? 1 : values.speed === 'max' ? 'max' : Number(values.speed);
@@ -75,40 +105,44 @@ export const run: CommandRun = async (args, io) => {
     io.stderr(problems.map((p) => `reefd simulate: ${p}\n`).join('') + `\n${HELP}`);
     return EXIT_USAGE;
   }
-  let config;
+  return {
+    configPath: values.config as string,
+    broker: values.broker,
+    truth: values.truth,
+    speed,
+    seed,
+    startMs,
+    hours,
+    level: level as (typeof LOG_LEVELS)[number],
+  };
+}
+
+/** The options as given, or the exit code after the help or a parse error. */
+function parseValues(args: string[], io: CliIo) {
+  let values;
   try {
-    config = await loadConfigOrThrow(values.config as string);
+    ({ values } = parseArgs({
+      args,
+      strict: true,
+      options: {
+        help: { type: 'boolean', short: 'h' },
+        config: { type: 'string' },
+        broker: { type: 'string' },
+        speed: { type: 'string' },
+        seed: { type: 'string' },
+        start: { type: 'string' },
+        duration: { type: 'string' },
+        truth: { type: 'string' },
+        'log-level': { type: 'string' },
+      },
+    }));
   } catch (err) {
-    io.stderr(`reefd simulate: ${(err as Error).message}\n`);
+    io.stderr(`reefd simulate: ${(err as Error).message}\n\n${HELP}`);
     return EXIT_USAGE;
   }
-  const logger = createLogger({ level: level as (typeof LOG_LEVELS)[number], pretty: io.isTty });
-  const abort = new AbortController();
-  const stop = () => abort.abort();
-  process.once('SIGINT', stop);
-  process.once('SIGTERM', stop);
-  try {
-    const s = await publishSimulation({
-      config,
-      brokerUrl: values.broker ?? 'mqtt://127.0.0.1:1883',
-      speed,
-      seed,
-      startMs,
-      durationMs: hours * 3.6e6,
-      notAheadOfWallClock: true,
-      ...(values.truth ? { truthPath: values.truth } : {}),
-      logger,
-      signal: abort.signal,
-    });
-    io.stderr(
-      `reefd simulate: published ${s.messages} messages up to ${new Date(s.lastTMs).toISOString()}${s.aborted ? ' (stopped)' : ''}\n`,
-    );
+  if (values.help) {
+    io.stdout(HELP);
     return EXIT_OK;
-  } catch (err) {
-    io.stderr(`reefd simulate: ${(err as Error).message}\n`);
-    return EXIT_FAILURE;
-  } finally {
-    process.off('SIGINT', stop);
-    process.off('SIGTERM', stop);
   }
-};
+  return values;
+}
