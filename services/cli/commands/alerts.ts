@@ -92,21 +92,42 @@ export const run: CommandRun = async (args, io) => {
     (a.raised ?? a.last).t < (b.raised ?? b.last).t ? -1 : 1,
   );
 
-  if (sub === 'list') {
-    const shown = values.all ? episodes : episodes.filter((e) => !e.cleared);
-    const pending: Record<string, number> = {};
-    for (const it of state.items.values()) for (const c of it.pending) pending[c] = (pending[c] ?? 0) + 1;
-    if (values.json) {
-      io.stdout(JSON.stringify({ alerts: shown, queued: pending }, null, 2) + '\n');
-      return EXIT_OK;
-    }
-    if (shown.length === 0) io.stdout(values.all ? 'no alerts\n' : 'no active alerts\n');
-    for (const e of shown) io.stdout(describe(e) + '\n');
-    const q = Object.entries(pending);
-    if (q.length > 0) io.stdout(`queued: ${q.map(([c, n]) => `${c} ${n}`).join(', ')}\n`);
+  if (sub === 'list') return list(state, episodes, values, io);
+  return ack(dir, episodes, rest, values, io);
+};
+
+type OutboxState = Awaited<ReturnType<typeof loadOutboxState>>['state'];
+interface AlertsValues {
+  all?: boolean;
+  json?: boolean;
+  by?: string;
+  comment?: string;
+}
+
+/** `list`: the raised alerts (all with --all), oldest first, and the notifications still queued per channel. */
+function list(state: OutboxState, episodes: readonly Episode[], values: AlertsValues, io: CliIo): number {
+  const shown = values.all ? episodes : episodes.filter((e) => !e.cleared);
+  const pending: Record<string, number> = {};
+  for (const it of state.items.values()) for (const c of it.pending) pending[c] = (pending[c] ?? 0) + 1;
+  if (values.json) {
+    io.stdout(JSON.stringify({ alerts: shown, queued: pending }, null, 2) + '\n');
     return EXIT_OK;
   }
+  if (shown.length === 0) io.stdout(values.all ? 'no alerts\n' : 'no active alerts\n');
+  for (const e of shown) io.stdout(describe(e) + '\n');
+  const q = Object.entries(pending);
+  if (q.length > 0) io.stdout(`queued: ${q.map(([c, n]) => `${c} ${n}`).join(', ')}\n`);
+  return EXIT_OK;
+}
 
+/** `ack ID`: acknowledges a raised alert in the name of --by (or $USER). */
+async function ack(
+  dir: string,
+  episodes: Episode[],
+  rest: readonly string[],
+  values: AlertsValues,
+  io: CliIo,
+): Promise<number> {
   if (rest.length !== 1) {
     io.stderr(`reefd alerts ack: give exactly one alert id\n\n${HELP}`);
     return EXIT_USAGE;
@@ -136,4 +157,4 @@ export const run: CommandRun = async (args, io) => {
   await appendAck(dir, { op: 'ack', id: ep.id, by, at: Date.now(), ...(comment ? { comment } : {}) });
   io.stdout(`acknowledged ${ep.id} (${(ep.raised ?? ep.last).rule} at ${ep.last.station}) by ${by}\n`);
   return EXIT_OK;
-};
+}
