@@ -12,15 +12,10 @@ import {
   type Notifier,
 } from '../notifiers/index.js';
 import type { DeadLetterSink, RawInput, RecordSink, Source } from '../pipeline/types.js';
-import {
-  createDeadLetterSink,
-  kafkaClient,
-  kafkaPublisher,
-  mqttPublisher,
-  tlsOptions,
-  type TopicPublisher,
-} from '../sinks/index.js';
+import { createDeadLetterSink, kafkaPublisher, mqttPublisher, type TopicPublisher } from '../sinks/index.js';
 import { createKafkaSource, createMqttSource } from '../sources/index.js';
+import { kafkaClient } from '../transport/kafka-client.js';
+import { tlsOptions } from '../transport/tls.js';
 import type { StartContext } from './context.js';
 import { operationalAlert } from './operational.js';
 import { createOutputs, resolveSasl, tlsFiles } from './outputs.js';

@@ -5,7 +5,8 @@ import type { ReefdConfig, SecretRef } from '../../libs/contract/index.js';
 import { resolveSecret } from '../config/load.js';
 import type { Logger } from '../log/logger.js';
 import type { RecordSink } from '../pipeline/types.js';
-import { createInfluxSink, createKafkaSink, createNdjsonSink, type TlsFiles } from '../sinks/index.js';
+import { createInfluxSink, createKafkaSink, createNdjsonSink } from '../sinks/index.js';
+import type { TlsFiles } from '../transport/tls.js';
 
 export interface OutputContext {
   config: ReefdConfig;

@@ -1,8 +1,8 @@
 // Retry policy of the notifiers: errors say at creation whether a retry can help (NotifyError.retriable);
 // nextRetryDelayMs turns an error and an attempt count into a delay. The backoff itself is the project's one
-// helper (services/sinks/retry.ts: exponential with full jitter); only the outbox's rule for errors a retry
+// helper (services/transport/backoff.ts: exponential with full jitter); only the outbox's rule for errors a retry
 // cannot fix differs, and lives here.
-import { backoffDelayMs } from '../sinks/retry.js';
+import { backoffDelayMs } from '../transport/backoff.js';
 import { ReefdError } from '../../libs/contract/index.js';
 import type { NotifyErrorCode } from './errors.js';
 

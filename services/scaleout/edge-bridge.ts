@@ -8,8 +8,9 @@ import { CompressionTypes } from 'kafkajs';
 import type { DerivedRecord, SensorMessage } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
 import type { SinkStats } from '../pipeline/types.js';
-import type { TlsFiles } from '../sinks/http.js';
-import { kafkaClient, orderedKafkaSender } from '../sinks/kafka-sink.js';
+import { orderedKafkaSender } from '../sinks/kafka-sink.js';
+import { kafkaClient } from '../transport/kafka-client.js';
+import type { TlsFiles } from '../transport/tls.js';
 import { createSpooledSink, type SpooledSink } from '../sinks/spooled-sink.js';
 import { createSitePartitioner, type PartitionBy } from './partition.js';
 

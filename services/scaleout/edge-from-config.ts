@@ -9,7 +9,7 @@ import {
   type ProcessorState,
 } from '../../libs/processor/index.js';
 import type { Logger } from '../log/logger.js';
-import type { TlsFiles } from '../sinks/http.js';
+import type { TlsFiles } from '../transport/tls.js';
 import { createBridgeProcessor } from './bridge-processor.js';
 import { createEdgeBridge, type EdgeBridge } from './edge-bridge.js';
 

@@ -7,8 +7,8 @@ import { randomBytes } from 'node:crypto';
 import { gunzipSync, gzipSync } from 'node:zlib';
 import { CompressionTypes, type Admin, type Consumer, type Producer } from 'kafkajs';
 import type { Logger } from '../log/logger.js';
-import type { TlsFiles } from '../sinks/http.js';
-import { kafkaClient } from '../sinks/kafka-sink.js';
+import { kafkaClient } from '../transport/kafka-client.js';
+import type { TlsFiles } from '../transport/tls.js';
 import { ScaleoutError, type SiteStateEntry, type SiteStateStore } from './state-store.js';
 
 export interface KafkaStateStoreOptions {

@@ -16,8 +16,8 @@ import {
   type ProcessorOptions,
 } from '../../libs/processor/index.js';
 import type { Logger } from '../log/logger.js';
-import type { TlsFiles } from '../sinks/http.js';
-import { kafkaClient } from '../sinks/kafka-sink.js';
+import { kafkaClient } from '../transport/kafka-client.js';
+import type { TlsFiles } from '../transport/tls.js';
 import { kafkaTopicOf } from '../sources/kafka-topic.js';
 import { siteOfKey } from './partition.js';
 import type { SiteStateStore } from './state-store.js';

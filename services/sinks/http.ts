@@ -3,36 +3,15 @@
 // and 404 (credentials refused, database or bucket missing) are retriable with an alert (REEFD_SINK_AUTH):
 // a rotated token or a database not yet created must not lose data; other 4xx are refusals of the data
 // (never retried).
-import { readFileSync } from 'node:fs';
 import { request as plainRequest, type IncomingHttpHeaders } from 'node:http';
-import { request as httpsRequest, type RequestOptions } from 'node:https';
+import { request as httpsRequest } from 'node:https';
 import { ReefdError } from '../../libs/contract/index.js';
-
-export interface TlsFiles {
-  ca_file?: string | undefined;
-  cert_file?: string | undefined;
-  key_file?: string | undefined;
-  verify?: boolean | undefined;
-}
+import type { TlsOptions } from '../transport/tls.js';
 
 export interface HttpResponse {
   status: number;
   headers: IncomingHttpHeaders;
   body: string;
-}
-
-/** TLS options for node:https / node:tls from the configuration's file names (read once, at start-up). */
-export function tlsOptions(
-  tls: TlsFiles | undefined,
-): Pick<RequestOptions, 'ca' | 'cert' | 'key' | 'rejectUnauthorized'> {
-  if (tls === undefined) return {};
-  const o: Pick<RequestOptions, 'ca' | 'cert' | 'key' | 'rejectUnauthorized'> = {
-    rejectUnauthorized: tls.verify ?? true,
-  };
-  if (tls.ca_file !== undefined) o.ca = readFileSync(tls.ca_file);
-  if (tls.cert_file !== undefined) o.cert = readFileSync(tls.cert_file);
-  if (tls.key_file !== undefined) o.key = readFileSync(tls.key_file);
-  return o;
 }
 
 /**
@@ -52,7 +31,7 @@ export function mayHaveLanded(err: unknown): boolean {
 
 export interface HttpOptions {
   timeoutMs: number;
-  tls?: ReturnType<typeof tlsOptions>;
+  tls?: TlsOptions;
   /** Keep at most this much of the answer (default 4 kB: error bodies are for the log only). */
   maxBodyBytes?: number;
 }

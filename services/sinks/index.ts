@@ -1,12 +1,6 @@
 // Outputs for derived records and dead letters. Every RecordSink passes test/integration/sink-contract.ts.
 export { createInfluxSink, type InfluxSink, type InfluxSinkOptions } from './influx-sink.js';
-export {
-  createKafkaSink,
-  kafkaKey,
-  kafkaClient,
-  orderedKafkaSender,
-  type KafkaSinkOptions,
-} from './kafka-sink.js';
+export { createKafkaSink, kafkaKey, orderedKafkaSender, type KafkaSinkOptions } from './kafka-sink.js';
 export { createNdjsonSink, type NdjsonSinkOptions } from './ndjson-sink.js';
 export {
   createDeadLetterSink,
@@ -16,5 +10,3 @@ export {
   type TopicPublisher,
 } from './dead-letter.js';
 export { SpooledSink, type SpooledSinkOptions } from './spooled-sink.js';
-export { retry, backoffDelayMs, realSleep, type RetryOptions, type Sleep } from './retry.js';
-export { tlsOptions, type TlsFiles } from './http.js';

@@ -23,8 +23,9 @@ import { promisify } from 'node:util';
 import { recordToLine } from '../../libs/lineproto/index.js';
 import type { Logger } from '../log/logger.js';
 import { DeliveryLedger, splitPosition, withPosition } from './delivery-ledger.js';
-import { checkStatus, httpPost, mayHaveLanded, tlsOptions, type TlsFiles } from './http.js';
-import type { Sleep } from './retry.js';
+import type { Sleep } from '../transport/backoff.js';
+import { tlsOptions, type TlsFiles } from '../transport/tls.js';
+import { checkStatus, httpPost, mayHaveLanded } from './http.js';
 import { createSpooledSink, type SpooledSink } from './spooled-sink.js';
 import { keepsCopies, presentPoints, type PresenceTarget } from './vm-presence.js';
 

@@ -13,19 +13,18 @@
 // A replay (`reefd replay` loaded into Kafka) does duplicate messages on the topic (Kafka is a log); a
 // consumer that keeps the last value per `reefd-key` sees the same state, the database's overwrite rule.
 import {
-  Kafka,
   Partitioners,
-  logLevel,
   type CompressionTypes,
   type ICustomPartitioner,
+  type Kafka,
   type Message,
   type Producer,
-  type SASLOptions,
 } from 'kafkajs';
 import { recordKey, ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
-import { tlsOptions, type TlsFiles } from './http.js';
-import type { Sleep } from './retry.js';
+import type { Sleep } from '../transport/backoff.js';
+import { kafkaClient, type KafkaSasl } from '../transport/kafka-client.js';
+import type { TlsFiles } from '../transport/tls.js';
 import { DeliveryLedger, splitPosition, withPosition } from './delivery-ledger.js';
 import { readPartitionTails, type PartitionTails } from './kafka-tail.js';
 import { createSpooledSink, type SpooledSink } from './spooled-sink.js';
@@ -37,9 +36,7 @@ export interface KafkaSinkOptions {
   topic: string;
   tls?: TlsFiles | undefined;
   /** SASL with the password resolved by the caller. */
-  sasl?:
-    | { mechanism: 'plain' | 'scram-sha-256' | 'scram-sha-512'; username: string; password: string }
-    | undefined;
+  sasl?: KafkaSasl;
   batchSize?: number;
   flushMs?: number;
   spoolDir: string;
@@ -67,36 +64,6 @@ export function kafkaKey(r: DerivedRecord): string {
   const place =
     (r as { station?: string; transect?: string }).station ?? (r as { transect?: string }).transect;
   return `${r.site}/${place ?? '-'}`;
-}
-
-/** kafkajs log lines through pino, at the levels kafkajs gives them. */
-export function kafkaLogCreator(logger: Logger) {
-  return () =>
-    ({ level, log }: { level: number; log: { message: string } & Record<string, unknown> }) => {
-      const { message, ...rest } = log;
-      if (level === logLevel.ERROR) logger.error(rest, `kafka: ${message}`);
-      else if (level === logLevel.WARN) logger.warn(rest, `kafka: ${message}`);
-      else logger.debug(rest, `kafka: ${message}`);
-    };
-}
-
-export function kafkaClient(o: {
-  brokers: readonly string[];
-  clientId: string;
-  tls?: TlsFiles | undefined;
-  sasl?: KafkaSinkOptions['sasl'];
-  logger: Logger;
-}): Kafka {
-  const cfg: ConstructorParameters<typeof Kafka>[0] = {
-    clientId: o.clientId,
-    brokers: [...o.brokers],
-    logLevel: logLevel.WARN,
-    logCreator: kafkaLogCreator(o.logger),
-    retry: { retries: 5, initialRetryTime: 300, maxRetryTime: 10_000 },
-  };
-  if (o.tls !== undefined) cfg.ssl = tlsOptions(o.tls);
-  if (o.sasl !== undefined) cfg.sasl = { ...o.sasl } as SASLOptions;
-  return new Kafka(cfg);
 }
 
 /** Kafka errors as the spooled sink understands them: retriable unless kafkajs says it is not. */

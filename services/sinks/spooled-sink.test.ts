@@ -5,7 +5,7 @@ import { join } from 'node:path';
 import pino from 'pino';
 import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import { createSpooledSink } from './spooled-sink.js';
-import type { Sleep } from './retry.js';
+import type { Sleep } from '../transport/backoff.js';
 import { Spool } from './spool.js';
 
 const dirs: string[] = [];

@@ -19,7 +19,7 @@
 import { ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { RecordSink, SinkStats } from '../pipeline/types.js';
 import { errFields, type Logger } from '../log/logger.js';
-import { backoffDelayMs, retry, realSleep, type Sleep } from './retry.js';
+import { backoffDelayMs, retry, realSleep, type Sleep } from '../transport/backoff.js';
 import { Spool } from './spool.js';
 
 export type Encoded = { ok: true; entry: string } | { ok: false; reason: string };

@@ -4,7 +4,8 @@
 // runs with deduplication), so there the batch is looked up with its export API before it is sent again:
 // one request for the batch's series over the batch's time range.
 import { ReefdError } from '../../libs/contract/index.js';
-import { httpGetText, httpPost, type tlsOptions } from './http.js';
+import type { TlsOptions } from '../transport/tls.js';
+import { httpGetText, httpPost } from './http.js';
 
 export interface SeriesPoint {
   measurement: string;
@@ -68,7 +69,7 @@ export interface PresenceTarget {
   /** The database's base URL (the output's `url`). */
   baseUrl: string;
   headers: Record<string, string>;
-  tls: ReturnType<typeof tlsOptions>;
+  tls: TlsOptions;
   timeoutMs: number;
 }
 

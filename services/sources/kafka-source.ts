@@ -5,8 +5,8 @@
 import type { Consumer, EachBatchPayload } from 'kafkajs';
 import type { RawInput, Source } from '../pipeline/types.js';
 import type { Logger } from '../log/logger.js';
-import type { TlsFiles } from '../sinks/http.js';
-import { kafkaClient } from '../sinks/kafka-sink.js';
+import { kafkaClient } from '../transport/kafka-client.js';
+import type { TlsFiles } from '../transport/tls.js';
 import { kafkaTopicOf } from './kafka-topic.js';
 
 export interface KafkaSourceOptions {

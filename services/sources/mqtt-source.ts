@@ -19,8 +19,8 @@ import { createHash } from 'node:crypto';
 import mqtt, { type IClientOptions, type IPublishPacket, type MqttClient, type Packet } from 'mqtt';
 import type { RawInput, Source } from '../pipeline/types.js';
 import type { Logger } from '../log/logger.js';
-import { tlsOptions, type TlsFiles } from '../sinks/http.js';
-import { backoffDelayMs } from '../sinks/retry.js';
+import { backoffDelayMs } from '../transport/backoff.js';
+import { tlsOptions, type TlsFiles } from '../transport/tls.js';
 
 export interface MqttSourceOptions {
   url: string;

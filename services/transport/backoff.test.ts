@@ -1,6 +1,6 @@
 import { describe, it, expect } from 'vitest';
 import { ReefdError } from '../../libs/contract/index.js';
-import { backoffDelayMs, retry, type Sleep } from './retry.js';
+import { backoffDelayMs, retry, type Sleep } from './backoff.js';
 
 const retriable = (): ReefdError => new ReefdError('REEFD_SINK_UNAVAILABLE', 'down', { retriable: true });
 
