@@ -2,6 +2,18 @@
 import js from '@eslint/js';
 import tseslint from 'typescript-eslint';
 
+// What a pure library (libs/) may not import: I/O modules and the services.
+const PURE_LIB_IMPORTS = [
+  'node:fs*',
+  'node:net',
+  'node:http*',
+  'node:child_process',
+  'fs',
+  'net',
+  'http',
+  '../../services/*',
+];
+
 export default tseslint.config(
   {
     ignores: [
@@ -26,26 +38,32 @@ export default tseslint.config(
     files: ['libs/**/*.ts'],
     ignores: ['libs/**/*.test.ts'],
     rules: {
-      'no-restricted-imports': [
-        'error',
-        {
-          patterns: [
-            'node:fs*',
-            'node:net',
-            'node:http*',
-            'node:child_process',
-            'fs',
-            'net',
-            'http',
-            '../../services/*',
-          ],
-        },
-      ],
+      'no-restricted-imports': ['error', { patterns: PURE_LIB_IMPORTS }],
       'no-restricted-globals': ['error', 'process', 'setTimeout', 'setInterval', 'console'],
       'no-restricted-properties': [
         'error',
         { object: 'Date', property: 'now', message: 'libs take time as an argument' },
         { object: 'Math', property: 'random', message: 'libs take a seeded generator as an argument' },
+      ],
+    },
+  },
+  {
+    // libs/contract is the base layer: it imports no feature package (alert schemas live in the contract).
+    files: ['libs/contract/**/*.ts'],
+    ignores: ['libs/contract/**/*.test.ts'],
+    rules: {
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            { group: PURE_LIB_IMPORTS },
+            {
+              group: ['../alerts', '../alerts/*', '../../libs/alerts', '../../libs/alerts/*'],
+              message:
+                'libs/contract depends on no feature package; move the shared piece into libs/contract.',
+            },
+          ],
+        },
       ],
     },
   },

@@ -6,7 +6,7 @@
 
 import { DEFAULT_QC_LIMITS } from '../qc/index.js';
 import { newBatteryWarnSeries, stepBatteryWarning, type BatteryWarnSeries } from './battery-warning.js';
-import { alertsConfigSchema, type AlertsConfigInput } from './config-schema.js';
+import { alertsConfigSchema, type AlertsConfigInput } from '../contract/index.js';
 import { newMetricFaults, type MetricFaults, type SensorTrack } from './faults.js';
 import { activeAlerts } from './active.js';
 import { makeAlert, SEP as sep, type AlertMaker } from './record.js';

@@ -19,11 +19,12 @@ export {
   type FaultSettings,
   type BatteryTrendSettings,
 } from './rules.js';
+// The `alerts:` and `notify:` schemas are the contract's (libs/contract/alert-config-schema.ts); they are
+// named here too because they are this package's settings.
 export {
   alertsConfigSchema,
   notifyConfigSchema,
   notifyChannelSchema,
-  secretRefSchema,
   severitySchema,
   BUILTIN_RULE_IDS,
   type AlertsConfig,
@@ -31,9 +32,8 @@ export {
   type NotifyConfig,
   type NotifyConfigInput,
   type NotifyChannelConfig,
-  type SecretRef,
   type Severity,
-} from './config-schema.js';
+} from '../contract/index.js';
 export type { AlertRecord, AlertClass, AlertState, FaultName, QcInfo, ThresholdRule } from './types.js';
 export { alertId } from './id.js';
 export { ALERTS_ERRORS, type AlertsErrorCode } from './errors.js';

@@ -1,6 +1,6 @@
 // Built-in and user rules resolved from the parsed `alerts:` section (config-schema.ts) into plain rule objects.
 
-import { alertsConfigSchema, type AlertsConfig } from './config-schema.js';
+import { alertsConfigSchema, type AlertsConfig } from '../contract/index.js';
 import type { SiteSilenceSettings } from './silence.js';
 import type { ThresholdRule } from './types.js';
 

@@ -4,7 +4,7 @@
 // messages alone). Pure: the daemon passes the wall time in, schedules its timer at nextCheckMs(), and keeps the
 // plain-JSON state with its own (a raised silence survives a restart and is cleared by the first message after).
 
-import type { Severity } from './config-schema.js';
+import type { Severity } from '../contract/index.js';
 import { alertId } from './id.js';
 import type { AlertRecord } from './types.js';
 

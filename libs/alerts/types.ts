@@ -1,6 +1,6 @@
 // Alert records (docs/contract-v1.md section 4, type `alert`) and the engine's internal rule shapes.
 
-import type { Severity } from './config-schema.js';
+import type { Severity } from '../contract/index.js';
 
 export type FaultName = 'stale' | 'flatline' | 'range' | 'spike' | 'battery' | 'silent';
 export type AlertClass = 'threshold' | 'fault';

@@ -1,7 +1,7 @@
 // Site configuration of contract v1 (docs/contract-v1.md, section 3) plus the project's own sections
 // (processing, sources, outputs, archive, http). Unknown keys are rejected everywhere; defaults live here only.
 import { z } from 'zod';
-import { alertsConfigSchema, notifyConfigSchema } from '../alerts/index.js';
+import { alertsConfigSchema, notifyConfigSchema } from './alert-config-schema.js';
 import { ID_PATTERN, type Kind } from './ids.js';
 
 const id = z.string().regex(ID_PATTERN, 'must match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');

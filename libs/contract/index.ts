@@ -5,6 +5,8 @@ export * from './archive.js';
 export * from './records.js';
 export * from './record-types.js';
 export * from './config-schema.js';
+export * from './alert-config-schema.js';
+export * from './alert-metrics.js';
 export * from './config-parse.js';
 export * from './config-json-schema.js';
 export * from './errors.js';

@@ -1,14 +1,14 @@
 // zod 4 schemas of the `alerts:` and `notify:` sections of the reefd YAML configuration (documented key by key in
-// libs/alerts/README.md). Strict objects: an unknown key is an error with its path. Defaults live here and only
+// libs/alerts/README.md). They live in the contract, with the rest of the configuration, so that the contract
+// depends on no feature; libs/alerts reads its settings through them. Strict objects: an unknown key is an error with its path. Defaults live here and only
 // here; the built-in rules' defaults are the contract's (docs/contract-v1.md section 4) and docs/methods/alerts.md.
 
 import { z } from 'zod';
-import type { Kind } from '../contract/index.js';
-import { BATTERY_RANGE, implausibleLimit, unknownMetric } from './metrics.js';
+import { BATTERY_RANGE, implausibleLimit, unknownMetric } from './alert-metrics.js';
+import { ID_PATTERN, KINDS } from './ids.js';
 
-const ID = /^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$/; // docs/contract-v1.md section 1
-const id = z.string().regex(ID, 'ids match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');
-// A metric is one of the table's (metrics.ts): a name the processor never feeds would never fire.
+const id = z.string().regex(ID_PATTERN, 'ids match [A-Za-z0-9][A-Za-z0-9_.-]{0,63}');
+// A metric is one of the table's (alert-metrics.ts): a name the processor never feeds would never fire.
 const metric = z.string().superRefine((name, ctx) => {
   const why = unknownMetric(name);
   if (why !== undefined) ctx.addIssue({ code: 'custom', message: why });
@@ -30,12 +30,6 @@ const minutes = z.number().finite().min(0);
 
 export const severitySchema = z.enum(['info', 'warning', 'critical']);
 export type Severity = z.output<typeof severitySchema>;
-
-/** Kinds of the contract that carry `battery_v` (every kind: libs/contract KINDS). */
-export const SENSOR_KINDS = ['ctd', 'oxygen', 'pco2', 'pressure', 'adcp', 'par', 'met', 'sample'] as const;
-// A kind of the contract missing above (or one it does not have) is a compile error naming it.
-type KindsOff = Exclude<Kind, (typeof SENSOR_KINDS)[number]> | Exclude<(typeof SENSOR_KINDS)[number], Kind>;
-const _sameKindsAsContract: [KindsOff] extends [never] ? true : KindsOff = true;
 
 /** Where a rule applies: omitted = every station (site-wide scope). */
 const scope = {
@@ -196,7 +190,7 @@ export const alertsConfigSchema = z
             ...faultCommon,
             below_v: z
               .partialRecord(
-                z.enum(SENSOR_KINDS),
+                z.enum(KINDS) /* every kind carries `battery_v` */,
                 z
                   .number()
                   .finite()
@@ -237,12 +231,14 @@ export const alertsConfigSchema = z
 export type AlertsConfigInput = z.input<typeof alertsConfigSchema>;
 export type AlertsConfig = z.output<typeof alertsConfigSchema>;
 
-/** A secret never sits in the config file: it is read from an environment variable or a file at start-up. */
-export const secretRefSchema = z.union([
+/**
+ * A secret never sits in the config file: it is read from an environment variable or a file at start-up.
+ * (The `notify:` form; config-schema.ts has the one of the other sections, with its own message.)
+ */
+const notifySecretRefSchema = z.union([
   z.strictObject({ env: z.string().regex(/^[A-Za-z_][A-Za-z0-9_]*$/, 'an environment variable name') }),
   z.strictObject({ file: z.string().min(1) }),
 ]);
-export type SecretRef = z.output<typeof secretRefSchema>;
 
 const rateLimit = z.strictObject({
   max_messages: z.number().int().min(1),
@@ -268,7 +264,7 @@ const mqttChannel = z.strictObject({
 const webhookChannel = z.strictObject({
   type: z.literal('webhook'),
   url: z.url({ protocol: /^https?$/ }),
-  secret: secretRefSchema.optional(),
+  secret: notifySecretRefSchema.optional(),
   timeout_s: z.number().finite().positive().default(10),
   ...channelCommon,
 });
@@ -279,7 +275,7 @@ const smtpChannel = z.strictObject({
   secure: z.boolean().default(false),
   from: z.email(),
   to: z.array(z.email()).min(1),
-  auth: z.strictObject({ user: z.string().min(1), pass: secretRefSchema }).optional(),
+  auth: z.strictObject({ user: z.string().min(1), pass: notifySecretRefSchema }).optional(),
   timeout_s: z.number().finite().positive().default(30),
   ...channelCommon,
 });

@@ -8,7 +8,7 @@
 // Units are the record-type table's (libs/contract/record-types.ts); a test keeps the two in step and
 // checks that every numeric record field has its entry here.
 
-import type { Kind } from '../contract/index.js';
+import type { Kind } from './ids.js';
 
 export interface MetricSpec {
   /** UDUNITS-style unit, as in the record-type table. */

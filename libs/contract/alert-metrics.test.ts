@@ -1,9 +1,9 @@
 // The alert metric table against the record-type table, and the configuration refusing a rule on a value
 // reefd never computes or a limit in the wrong unit.
 import { describe, expect, it } from 'vitest';
-import { RECORD_TYPE_SPECS } from '../contract/record-types.js';
-import { alertsConfigSchema } from './index.js';
-import { implausibleLimit, METRICS, unknownMetric } from './metrics.js';
+import { alertsConfigSchema } from './alert-config-schema.js';
+import { implausibleLimit, METRICS, unknownMetric } from './alert-metrics.js';
+import { RECORD_TYPE_SPECS } from './record-types.js';
 
 const messages = (r: { success: boolean; error?: { issues: { path: PropertyKey[]; message: string }[] } }) =>
   (r.error?.issues ?? []).map((i) => `${i.path.join('.')}: ${i.message}`);
