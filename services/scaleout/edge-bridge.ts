@@ -4,15 +4,14 @@
 // processor's timing QC sees the same receive time the edge archive holds. Delivery reuses the sinks'
 // spooled, ordered pump (services/sinks/spooled-sink.ts): one batch in flight, a disk spool behind an
 // outage, replayed oldest first. The partition is chosen by site (partition.ts).
-import { CompressionTypes } from 'kafkajs';
 import type { DerivedRecord, SensorMessage } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
 import type { SinkStats } from '../pipeline/types.js';
 import { orderedKafkaSender } from '../sinks/kafka-sink.js';
-import { kafkaClient } from '../transport/kafka-client.js';
+import { openKafka } from '../transport/kafka-client.js';
 import type { TlsFiles } from '../transport/tls.js';
 import { createSpooledSink, type SpooledSink } from '../sinks/spooled-sink.js';
-import { createSitePartitioner, type PartitionBy } from './partition.js';
+import { partitionKeyOf, type PartitionBy } from './partition.js';
 
 export interface EdgeBridgeOptions {
   brokers: readonly string[];
@@ -52,14 +51,16 @@ interface Queued {
 }
 
 export async function createEdgeBridge(o: EdgeBridgeOptions): Promise<EdgeBridge> {
-  const { send, disconnect } = orderedKafkaSender(kafkaClient(o), {
+  const by = o.partitionBy ?? 'site';
+  const { send, disconnect } = orderedKafkaSender(openKafka(o), {
     topic: o.topic,
-    compression: CompressionTypes.GZIP,
-    createPartitioner: createSitePartitioner(o.partitionBy ?? 'site'),
+    compression: 'gzip',
+    // The partition follows the site (or site/station) part of the key (partition.ts).
+    partitionKey: (key) => partitionKeyOf(key, by),
     // The Kafka timestamp is the edge's receive time.
     toMessage: (e) => {
       const [key, value, rxMs] = JSON.parse(e) as [string, string, number];
-      return { key, value, timestamp: String(rxMs) };
+      return { key, value, timestampMs: rxMs };
     },
   });
   // The spooled pump is typed on derived records; the bridge hands it pre-encoded entries instead, and

@@ -6,27 +6,27 @@
 // Exactly once across crashes (records with stream positions, as the daemon writes them): every message
 // carries headers `reefd-epoch`, `reefd-pos` (its stream position) and `reefd-key` (the record's identity).
 // Before its first send, and again after a send whose fate is unknown, the sink reads the end of each
-// partition back (kafka-tail.ts) and learns the highest position of its stream each one holds; a record
+// partition back (transport/kafka-tail.ts) and learns the highest position of its stream each one holds; a record
 // at or below that position in its partition is not sent again. A delivery ledger beside the spool
 // (delivery-ledger.ts) keeps the same marks as a lower bound, for a partition whose end other producers
 // have pushed beyond the part read back.
 // A replay (`reefd replay` loaded into Kafka) does duplicate messages on the topic (Kafka is a log); a
 // consumer that keeps the last value per `reefd-key` sees the same state, the database's overwrite rule.
-import {
-  Partitioners,
-  type CompressionTypes,
-  type ICustomPartitioner,
-  type Kafka,
-  type Message,
-  type Producer,
-} from 'kafkajs';
 import { recordKey, ReefdError, type DerivedRecord } from '../../libs/contract/index.js';
 import type { Logger } from '../log/logger.js';
 import type { Sleep } from '../transport/backoff.js';
-import { kafkaClient, type KafkaSasl } from '../transport/kafka-client.js';
+import {
+  kafkaRetriable,
+  openKafka,
+  type KafkaAdmin,
+  type KafkaOutMessage,
+  type KafkaSasl,
+  type OrderedProducerOptions,
+  type ReefdKafka,
+} from '../transport/kafka-client.js';
+import type { PartitionTails } from '../transport/kafka-tail.js';
 import type { TlsFiles } from '../transport/tls.js';
 import { DeliveryLedger, splitPosition, withPosition } from './delivery-ledger.js';
-import { readPartitionTails, type PartitionTails } from './kafka-tail.js';
 import { createSpooledSink, type SpooledSink } from './spooled-sink.js';
 
 export interface KafkaSinkOptions {
@@ -66,10 +66,10 @@ export function kafkaKey(r: DerivedRecord): string {
   return `${r.site}/${place ?? '-'}`;
 }
 
-/** Kafka errors as the spooled sink understands them: retriable unless kafkajs says it is not. */
+/** Kafka errors as the spooled sink understands them: retriable unless the client says it is not. */
 function toSinkError(err: unknown, topic: string): ReefdError {
-  const e = err as { name?: string; retriable?: boolean; message?: string };
-  const retriable = !(e.name === 'KafkaJSProtocolError' && e.retriable === false);
+  const e = err as { message?: string };
+  const retriable = kafkaRetriable(err);
   return new ReefdError(
     'REEFD_SINK_UNAVAILABLE',
     `Kafka produce to ${topic} failed: ${e.message ?? String(err)}`,
@@ -86,38 +86,23 @@ function toSinkError(err: unknown, topic: string): ReefdError {
  * entry into a Kafka message. Shared by the derived-record sink and the edge bridge.
  */
 export function orderedKafkaSender(
-  client: Kafka,
-  o: {
+  client: ReefdKafka,
+  o: OrderedProducerOptions & {
     topic: string;
-    toMessage: (entry: string) => Message;
-    compression?: CompressionTypes;
-    createPartitioner?: ICustomPartitioner;
+    toMessage: (entry: string) => KafkaOutMessage;
   },
 ): {
   send: (entries: readonly string[]) => Promise<void>;
-  sendMessages: (messages: Message[]) => Promise<void>;
+  sendMessages: (messages: KafkaOutMessage[]) => Promise<void>;
   disconnect: () => Promise<void>;
 } {
-  const producer: Producer = client.producer({
-    idempotent: true,
-    maxInFlightRequests: 1,
-    allowAutoTopicCreation: false,
-    ...(o.createPartitioner ? { createPartitioner: o.createPartitioner } : {}),
-    retry: { retries: 5, initialRetryTime: 300, maxRetryTime: 10_000 },
+  const producer = client.orderedProducer({
+    ...(o.compression !== undefined ? { compression: o.compression } : {}),
+    ...(o.partitionKey !== undefined ? { partitionKey: o.partitionKey } : {}),
   });
-  let connected = false;
-  const sendMessages = async (messages: Message[]): Promise<void> => {
+  const sendMessages = async (messages: KafkaOutMessage[]): Promise<void> => {
     try {
-      if (!connected) {
-        await producer.connect();
-        connected = true;
-      }
-      await producer.send({
-        topic: o.topic,
-        acks: -1,
-        ...(o.compression !== undefined ? { compression: o.compression } : {}),
-        messages,
-      });
+      await producer.send(o.topic, messages);
     } catch (err) {
       throw toSinkError(err, o.topic);
     }
@@ -130,7 +115,7 @@ export function orderedKafkaSender(
 }
 
 export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink> {
-  const client = kafkaClient(o);
+  const client = openKafka(o);
   const ledger =
     o.ledger === undefined ? undefined : await DeliveryLedger.open(o.ledger.file, o.ledger.epoch);
   const sender = orderedKafkaSender(client, {
@@ -172,24 +157,23 @@ export async function createKafkaSink(o: KafkaSinkOptions): Promise<SpooledSink>
 
 /** Sends each stream position once per partition (see the header of this file). */
 class KafkaOnce {
-  readonly #client: Kafka;
+  readonly #client: ReefdKafka;
   readonly #ledger: DeliveryLedger;
   readonly #topic: string;
   readonly #scan: number;
   readonly #logger: Logger;
-  readonly #sendMessages: (messages: Message[]) => Promise<void>;
+  readonly #sendMessages: (messages: KafkaOutMessage[]) => Promise<void>;
   /** partition -> highest position there; undefined until read back from the topic. */
   #hwm: Map<number, number> | undefined;
   #partitions = 0;
-  readonly #partitioner = Partitioners.DefaultPartitioner();
 
   constructor(
-    client: Kafka,
+    client: ReefdKafka,
     ledger: DeliveryLedger,
     topic: string,
     scan: number,
     logger: Logger,
-    sendMessages: (messages: Message[]) => Promise<void>,
+    sendMessages: (messages: KafkaOutMessage[]) => Promise<void>,
   ) {
     this.#client = client;
     this.#ledger = ledger;
@@ -202,7 +186,7 @@ class KafkaOnce {
   async #learn(): Promise<Map<number, number>> {
     let tail: PartitionTails;
     try {
-      tail = await readPartitionTails(this.#client, this.#topic, this.#ledger.epoch, this.#scan);
+      tail = await this.#client.readTail(this.#topic, this.#ledger.epoch, this.#scan);
     } catch (err) {
       const e = toSinkError(err, this.#topic);
       if (e.retriable) throw e;
@@ -227,37 +211,26 @@ class KafkaOnce {
   }
 
   async #partitionCount(): Promise<number> {
-    const admin = this.#client.admin();
+    let admin: KafkaAdmin | undefined;
     try {
-      await admin.connect();
-      const meta = await admin.fetchTopicMetadata({ topics: [this.#topic] });
-      return meta.topics[0]?.partitions.length ?? 1;
+      admin = await this.#client.admin();
+      return await admin.partitionCount(this.#topic);
     } catch (err) {
       throw toSinkError(err, this.#topic);
     } finally {
-      await admin.disconnect().catch(() => undefined);
+      await admin?.disconnect().catch(() => undefined);
     }
   }
 
   #partitionOf(key: string): number {
-    return this.#partitioner({
-      topic: this.#topic,
-      partitionMetadata: Array.from({ length: this.#partitions }, (_, i) => ({
-        partitionId: i,
-        leader: 0,
-        replicas: [],
-        isr: [],
-        partitionErrorCode: 0,
-      })),
-      message: { key, value: null },
-    });
+    return this.#client.defaultPartition(key, this.#partitions);
   }
 
   async send(entries: readonly string[]): Promise<{ skipped: number }> {
     await this.#ledger.ready();
     this.#hwm ??= await this.#learn();
     const hwm = this.#hwm;
-    const messages: Message[] = [];
+    const messages: KafkaOutMessage[] = [];
     const top = new Map<number, number>();
     let skipped = 0;
     for (const e of entries) {

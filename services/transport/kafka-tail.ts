@@ -1,5 +1,5 @@
 // Reads the end of each partition of a topic back and finds the highest stream position (`reefd-pos`
-// header) of one epoch there: what the Kafka output already holds (kafka-sink.ts). The last `scan`
+// header) of one epoch there: what the Kafka output already holds (services/sinks/kafka-sink.ts). The last `scan`
 // messages of each partition are read with a consumer of a throwaway group (kafkajs has no group-less
 // reader), which is deleted afterwards.
 import { randomBytes } from 'node:crypto';
