@@ -3,6 +3,7 @@
 // back: while the worker is busy the messages wait in the pipeline's queue unacknowledged, and the broker
 // holds the rest (its in-flight window, MQTT Receive Maximum, bounds that queue). The HTTP side reads a view
 // of the processor the worker refreshes at most once a second.
+import { DAEMON_ERRORS } from './errors.js';
 import { Worker } from 'node:worker_threads';
 import type { ReefdConfig } from '../../libs/contract/index.js';
 import type { Processor, ProcessorOptions, ProcessorState, PushResult } from '../../libs/processor/index.js';
@@ -64,7 +65,7 @@ export async function startProcessorWorker(
   });
   worker.on('error', (err) => fail(err));
   worker.on('exit', (code) =>
-    fail(new Error(`REEFD_PROCESSOR_WORKER_EXIT: the processor's worker stopped (exit ${code})`)),
+    fail(DAEMON_ERRORS.error('REEFD_PROCESSOR_WORKER_EXIT', `the worker exited with code ${code}`)),
   );
 
   function ask<Op extends WorkerReply['op']>(q: WorkerRequest): Promise<Extract<WorkerReply, { op: Op }>> {
@@ -93,7 +94,7 @@ export async function startProcessorWorker(
     return view;
   };
   const inWorker = (what: string) => (): never => {
-    throw new Error(`REEFD_PROCESSOR_IN_WORKER: ${what} runs in the processor's worker; use its step`);
+    throw DAEMON_ERRORS.error('REEFD_PROCESSOR_IN_WORKER', `${what} runs in the processor's worker`);
   };
 
   return {
@@ -120,7 +121,7 @@ export async function startProcessorWorker(
       return r.records;
     },
     close: async () => {
-      fail(new Error('REEFD_PROCESSOR_WORKER_CLOSED: the processor worker was closed'));
+      fail(DAEMON_ERRORS.error('REEFD_PROCESSOR_WORKER_CLOSED'));
       await worker.terminate();
     },
   };
