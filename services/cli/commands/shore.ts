@@ -10,6 +10,7 @@ import { createLogger, LOG_LEVELS, type Logger } from '../../log/logger.js';
 import type { RecordSink } from '../../pipeline/types.js';
 import { createKafkaStateStore } from '../../scaleout/kafka-state-store.js';
 import { createShoreMember } from '../../scaleout/shore.js';
+import { shoreKafkaSecurity, type ShoreKafkaSecurity } from '../../scaleout/shore-security.js';
 import { loadShoreSites } from '../../scaleout/shore-sites.js';
 import { createDirectoryStateStore } from '../../scaleout/state-store.js';
 import { parseCommand } from '../args.js';
@@ -20,7 +21,9 @@ const HELP = `Usage: reefd shore --brokers H:P[,H:P] --topic RAW --group ID --si
 
 Runs one processor member of a shore consumer group over the raw topic that edge stations fill
 (\`bridge\` in their configuration). Each --site is an ordinary site configuration; its outputs
-(database, Kafka, NDJSON) receive that site's derived records.
+(database, Kafka, NDJSON) receive that site's derived records. The member's Kafka TLS files and SASL
+credentials are those of the site files' sources.kafka (else bridge.kafka) sections; files that give
+them must give the same ones.
 
 Options:
   --state-topic T    compacted Kafka topic for the sites' processor state (e.g. RAW.state)
@@ -48,25 +51,29 @@ export const run: CommandRun = async (args, io) => {
   const opts = parseOptions(args, io);
   if (typeof opts === 'number') return opts;
   const logger = createLogger({ level: opts.level, pretty: Boolean(process.stderr.isTTY) });
-  let sites: ReefdConfig[];
-  let processorOptions: Map<string, ProcessorOptions>;
-  try {
-    ({ sites, processorOptions } = await loadShoreSites(opts.sites));
-  } catch (err) {
-    io.stderr(`reefd shore: ${(err as Error).message}\n`);
-    return EXIT_USAGE;
-  }
+  const loaded = await loadSites(opts, io);
+  if (typeof loaded === 'number') return loaded;
+  const { sites, processorOptions, security } = loaded;
   const outputs = await createSiteOutputs(opts, sites, io.env, logger);
   const all = [...outputs.values()].flat();
   const { brokers, clientId } = opts;
   const store = opts.stateTopic
-    ? await createKafkaStateStore({ brokers, clientId: `${clientId}-state`, topic: opts.stateTopic, logger })
+    ? await createKafkaStateStore({
+        brokers,
+        clientId: `${clientId}-state`,
+        topic: opts.stateTopic,
+        tls: security.tls,
+        sasl: security.sasl,
+        logger,
+      })
     : createDirectoryStateStore(path.resolve(opts.stateDir as string));
   const member = createShoreMember({
     sites,
     processorOptions,
     brokers,
     clientId,
+    tls: security.tls,
+    sasl: security.sasl,
     groupId: opts.group,
     topic: opts.topic,
     store,
@@ -86,7 +93,14 @@ export const run: CommandRun = async (args, io) => {
     return EXIT_FAILURE;
   }
   logger.info(
-    { group: opts.group, topic: opts.topic, sites: sites.map((s) => s.site) },
+    {
+      group: opts.group,
+      topic: opts.topic,
+      sites: sites.map((s) => s.site),
+      tls: security.tls !== undefined,
+      sasl: security.sasl?.mechanism,
+      kafkaSettingsFrom: security.from,
+    },
     'shore member running',
   );
   await untilStopSignal();
@@ -146,6 +160,31 @@ function parseOptions(args: string[], io: CliIo): ShoreOptions | number {
     dataDir: path.resolve(v.data ?? path.join('reefd-data', 'shore')),
     level,
   };
+}
+
+/** The site files, their field files, and the Kafka TLS and SASL they give; or the exit code. */
+async function loadSites(
+  opts: ShoreOptions,
+  io: CliIo,
+): Promise<
+  | {
+      sites: ReefdConfig[];
+      processorOptions: Map<string, ProcessorOptions>;
+      security: ShoreKafkaSecurity;
+    }
+  | number
+> {
+  try {
+    const { sites, processorOptions } = await loadShoreSites(opts.sites);
+    const security = await shoreKafkaSecurity(
+      sites.map((config, i) => ({ config, file: opts.sites[i] as string })),
+      io.env,
+    );
+    return { sites, processorOptions, security };
+  } catch (err) {
+    io.stderr(`reefd shore: ${(err as Error).message}\n`);
+    return EXIT_USAGE;
+  }
 }
 
 /** Each site's own outputs, configured from its file (relative paths beside it), spooling under --data. */
