@@ -9,7 +9,8 @@ import { createOutputs } from '../../daemon/outputs.js';
 import { createLogger, LOG_LEVELS, type Logger } from '../../log/logger.js';
 import type { RecordSink } from '../../pipeline/types.js';
 import { createKafkaStateStore } from '../../scaleout/kafka-state-store.js';
-import { createShoreMember } from '../../scaleout/shore.js';
+import { createShoreMember, type ShoreMember } from '../../scaleout/shore.js';
+import { startShoreHttp, type ShoreHttp, type ShorePhase } from '../../scaleout/shore-http.js';
 import { shoreKafkaSecurity, type ShoreKafkaSecurity } from '../../scaleout/shore-security.js';
 import { loadShoreSites } from '../../scaleout/shore-sites.js';
 import { createDirectoryStateStore } from '../../scaleout/state-store.js';
@@ -31,6 +32,7 @@ Options:
   --client-id ID     Kafka client id (default reefd-shore-<host>)
   --snapshot-s N     store state and commit offsets at most this often (default 10)
   --data DIR         folder for the outputs' spools (default ./reefd-data/shore)
+  --http [HOST:]PORT serve /healthz and /metrics (HOST default 127.0.0.1)
   --log-level LEVEL  ${LOG_LEVELS.join('|')} (default info)
 `;
 
@@ -45,6 +47,7 @@ interface ShoreOptions {
   snapshotS: number;
   dataDir: string;
   level: (typeof LOG_LEVELS)[number];
+  http?: { host: string; port: number };
 }
 
 export const run: CommandRun = async (args, io) => {
@@ -86,12 +89,20 @@ export const run: CommandRun = async (args, io) => {
     },
     logger,
   });
+  let phase: ShorePhase = 'starting';
+  const http = await serveHttp(opts, member, () => phase, logger);
+  if (http === null) {
+    await Promise.allSettled(all.map((s) => s.close()));
+    return EXIT_USAGE;
+  }
   try {
     await member.start();
   } catch (err) {
     logger.fatal({ err: (err as Error).message }, 'shore member could not join the group');
+    await http?.close();
     return EXIT_FAILURE;
   }
+  phase = 'running';
   logger.info(
     {
       group: opts.group,
@@ -106,8 +117,10 @@ export const run: CommandRun = async (args, io) => {
   await untilStopSignal();
   const killer = setTimeout(() => process.exit(1), 10_000);
   killer.unref();
+  phase = 'stopping';
   await member.stop();
   await Promise.allSettled(all.map((s) => s.close()));
+  await http?.close();
   return EXIT_OK;
 };
 
@@ -126,6 +139,7 @@ function parseOptions(args: string[], io: CliIo): ShoreOptions | number {
       'client-id': { type: 'string' },
       'snapshot-s': { type: 'string', default: '10' },
       data: { type: 'string' },
+      http: { type: 'string' },
       'log-level': { type: 'string', default: 'info' },
     },
     HELP,
@@ -142,6 +156,8 @@ function parseOptions(args: string[], io: CliIo): ShoreOptions | number {
     problems.push('give exactly one of --state-topic and --state-dir');
   const snapshotS = Number(v['snapshot-s']);
   if (!(snapshotS > 0)) problems.push('--snapshot-s must be a positive number');
+  const httpAt = v.http === undefined ? undefined : parseHostPort(v.http);
+  if (httpAt === null) problems.push('--http takes PORT or HOST:PORT (port 0-65535)');
   const level = v['log-level'] as (typeof LOG_LEVELS)[number];
   if (!LOG_LEVELS.includes(level)) problems.push(`--log-level must be one of ${LOG_LEVELS.join(', ')}`);
   if (problems.length > 0) {
@@ -159,7 +175,34 @@ function parseOptions(args: string[], io: CliIo): ShoreOptions | number {
     snapshotS,
     dataDir: path.resolve(v.data ?? path.join('reefd-data', 'shore')),
     level,
+    ...(httpAt ? { http: httpAt } : {}),
   };
+}
+
+/** /healthz and /metrics when --http is given; null when its address cannot be bound (logged). */
+async function serveHttp(
+  opts: ShoreOptions,
+  member: ShoreMember,
+  phase: () => ShorePhase,
+  logger: Logger,
+): Promise<ShoreHttp | undefined | null> {
+  if (opts.http === undefined) return undefined;
+  try {
+    const http = await startShoreHttp({ member, phase, ...opts.http });
+    logger.info({ http: http.address }, 'shore member serves /healthz and /metrics');
+    return http;
+  } catch (err) {
+    logger.fatal({ err: (err as Error).message, code: 'REEFD_USAGE' }, 'the --http address cannot be bound');
+    return null;
+  }
+}
+
+/** `PORT` or `HOST:PORT` (the host defaults to loopback); null when it is neither. */
+export function parseHostPort(text: string): { host: string; port: number } | null {
+  const m = /^(?:(.+):)?(\d{1,5})$/.exec(text.trim());
+  const port = Number(m?.[2]);
+  if (!m || !(port >= 0 && port <= 65535)) return null;
+  return { host: m[1]?.replace(/^\[(.*)\]$/, '$1') ?? '127.0.0.1', port };
 }
 
 /** The site files, their field files, and the Kafka TLS and SASL they give; or the exit code. */
