@@ -11,6 +11,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DerivedRecord } from '../../../libs/contract/index.js';
 import { createEdgeBridge } from '../../../services/scaleout/edge-bridge.js';
 import { createKafkaStateStore } from '../../../services/scaleout/kafka-state-store.js';
+import { startShoreHttp, type ShorePhase } from '../../../services/scaleout/shore-http.js';
 import { shoreKafkaSecurity } from '../../../services/scaleout/shore-security.js';
 import { loadShoreSites } from '../../../services/scaleout/shore-sites.js';
 import { createShoreMember } from '../../../services/scaleout/shore.js';
@@ -126,13 +127,22 @@ describe('shore member over TLS (private broker, client certificates required)',
       onRecords: (r) => records.push(...r),
       logger,
     });
+    let phase: ShorePhase = 'starting';
+    const http = await startShoreHttp({ member, phase: () => phase, port: 0, withDefaults: false });
     try {
       await member.start();
+      phase = 'running';
       await pollUntil(
         'shore member at the end of the raw topic',
         async () => (member.positions().get(0) === high ? true : undefined),
         60_000,
       );
+      // What an operator scrapes while the member runs.
+      const health = await fetch(`http://${http.address}/healthz`);
+      expect(health.status).toBe(200);
+      const metrics = await (await fetch(`http://${http.address}/metrics`)).text();
+      expect(metrics).toContain(`reefd_shore_messages_total{outcome="processed"} ${msgs.length}`);
+      expect(metrics).toContain('reefd_shore_partitions_assigned 1');
       // A graceful stop stores the site's state on the state topic (over TLS) and commits the offset.
       await member.stop();
       const st = member.stats();
@@ -152,6 +162,7 @@ describe('shore member over TLS (private broker, client certificates required)',
     } finally {
       await member.kill();
       await store.close();
+      await http.close();
     }
   });
 
