@@ -2,8 +2,9 @@
 // client certificates required. A site file names the CA and the client certificate in sources.kafka; the
 // member's consumer and its state-topic store connect with what the site file gives (as `reefd shore`
 // resolves it), consume what a TLS producer (the edge bridge) wrote, and derive records. Clients without
-// the CA, or with a certificate of another authority, are refused.
-import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
+// the CA, or with a certificate of another authority, are refused. The same over SASL/PLAIN on TLS, with
+// the password read from the secret file the site file names.
+import { chmod, mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { Kafka, logLevel } from 'kafkajs';
@@ -12,6 +13,7 @@ import type { DerivedRecord } from '../../../libs/contract/index.js';
 import { createEdgeBridge } from '../../../services/scaleout/edge-bridge.js';
 import { createKafkaStateStore } from '../../../services/scaleout/kafka-state-store.js';
 import { startShoreHttp, type ShorePhase } from '../../../services/scaleout/shore-http.js';
+import { createDirectoryStateStore } from '../../../services/scaleout/state-store.js';
 import { shoreKafkaSecurity } from '../../../services/scaleout/shore-security.js';
 import { loadShoreSites } from '../../../services/scaleout/shore-sites.js';
 import { createShoreMember } from '../../../services/scaleout/shore.js';
@@ -20,7 +22,7 @@ import { kafkaClient } from '../../../services/sinks/kafka-sink.js';
 import { pollUntil } from '../env.js';
 import { quietLogger } from '../io/fixtures.js';
 import { deployment } from './fixtures.js';
-import { startTlsKafka, type TlsKafka } from './tls-kafka.js';
+import { SASL_USER, startTlsKafka, type TlsKafka } from './tls-kafka.js';
 
 const DEMO = path.resolve(import.meta.dirname, '../../../deploy/demo/ornen-reef.yaml');
 const START_MS = Date.UTC(2026, 10, 20, 0, 0, 0);
@@ -40,11 +42,16 @@ afterAll(async () => {
 });
 
 /** A client that fails fast: the question is whether the broker lets it in, not whether it retries. */
-function bareClient(ssl: ReturnType<typeof tlsOptions>): Kafka {
+function bareClient(
+  ssl: ReturnType<typeof tlsOptions>,
+  broker = kafka.broker,
+  sasl?: { mechanism: 'plain'; username: string; password: string },
+): Kafka {
   return new Kafka({
     clientId: 'reefd-it-tls-probe',
-    brokers: [kafka.broker],
+    brokers: [broker],
     ssl,
+    ...(sasl !== undefined ? { sasl } : {}),
     connectionTimeout: 5_000,
     retry: { retries: 0 },
     logLevel: logLevel.NOTHING,
@@ -189,5 +196,91 @@ describe('shore member over TLS (private broker, client certificates required)',
     const cluster = await c.describeCluster();
     expect(cluster.brokers.map((x) => `${x.host}:${x.port}`)).toEqual([kafka.broker]);
     await c.disconnect();
+  });
+
+  it('over SASL/PLAIN on TLS, with the password from the secret file the site file names', async () => {
+    const dir = await mkdtemp(path.join(siteDir, 'sasl-'));
+    const pw = path.join(dir, 'shore.pw');
+    await writeFile(pw, `${kafka.saslPassword}\n`);
+    await chmod(pw, 0o600);
+    const siteFile = path.join(dir, 'ornen-reef.yaml');
+    await writeFile(
+      siteFile,
+      (await readFile(DEMO, 'utf8')) +
+        '\nsources:\n  kafka:\n' +
+        `    brokers: ["${kafka.saslBroker}"]\n    topic: reef.raw.sasl\n` +
+        `    tls: { ca_file: ${kafka.pki.caPem} }\n` +
+        `    sasl: { mechanism: plain, username: ${SASL_USER}, password: { file: shore.pw } }\n`,
+    );
+    const { sites, processorOptions } = await loadShoreSites([siteFile]);
+    const security = await shoreKafkaSecurity(
+      sites.map((config) => ({ config, file: siteFile })),
+      {},
+    );
+    expect(security.sasl).toEqual({ mechanism: 'plain', username: SASL_USER, password: kafka.saslPassword });
+    const cfg = sites[0];
+    if (cfg === undefined) throw new Error('no site loaded');
+    const logger = quietLogger();
+    const brokers = [kafka.saslBroker];
+    const topic = 'reef.raw.sasl';
+    const client = kafkaClient({ brokers, clientId: 'reefd-it-sasl-admin', ...security, logger });
+    const admin = client.admin();
+    await admin.connect();
+    await admin.createTopics({ topics: [{ topic, numPartitions: 1 }], waitForLeaders: true });
+    const msgs = deployment([cfg], START_MS, 1800_000);
+    const spoolDir = await mkdtemp(path.join(dir, 'spool-'));
+    const bridge = await createEdgeBridge({
+      brokers,
+      clientId: 'reefd-it-sasl-edge',
+      topic,
+      tls: security.tls,
+      sasl: security.sasl,
+      spoolDir,
+      spoolMaxMb: 64,
+      logger,
+    });
+    for (const m of msgs) bridge.forward(m.message, m.rxMs);
+    await bridge.flush();
+    await bridge.close();
+    const [end] = await admin.fetchTopicOffsets(topic);
+    await admin.disconnect();
+    const high = BigInt(end?.high ?? '0');
+    expect(high).toBe(BigInt(msgs.length));
+    const records: DerivedRecord[] = [];
+    const member = createShoreMember({
+      sites,
+      processorOptions,
+      brokers,
+      clientId: 'reefd-it-sasl-shore',
+      groupId: 'reefd-it-sasl-shore',
+      topic,
+      tls: security.tls,
+      sasl: security.sasl,
+      store: createDirectoryStateStore(path.join(dir, 'state')),
+      onRecords: (r) => records.push(...r),
+      logger,
+    });
+    try {
+      await member.start();
+      await pollUntil(
+        'SASL shore member at the end of the raw topic',
+        async () => (member.positions().get(0) === high ? true : undefined),
+        60_000,
+      );
+      expect(member.stats().messages).toBe(msgs.length);
+      expect(member.stats().rejected).toBe(0);
+      expect(records.length).toBeGreaterThan(0);
+    } finally {
+      await member.kill();
+    }
+    // A wrong password is refused by the broker.
+    const wrong = bareClient(tlsOptions({ ca_file: kafka.pki.caPem }), kafka.saslBroker, {
+      mechanism: 'plain',
+      username: SASL_USER,
+      password: 'not-the-password',
+    });
+    const w = wrong.admin();
+    await expect(w.connect()).rejects.toThrow(/authentication|SASL/i);
+    await w.disconnect();
   });
 });

@@ -1,6 +1,6 @@
-// A private single-node KRaft Kafka whose only client listener is TLS with client certificates required,
-// on 127.0.0.1, with a throwaway certificate authority made by openssl in a temporary folder. The broker
-// reads PEM files directly (no Java keystore). Never the shared broker.
+// A private single-node KRaft Kafka on 127.0.0.1 whose client listeners are TLS with client certificates
+// required, and SASL/PLAIN over TLS, with a throwaway certificate authority made by openssl in a temporary
+// folder. The broker reads PEM files directly (no Java keystore). Never the shared broker.
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { closeSync, existsSync, mkdtempSync, openSync, readFileSync, writeFileSync } from 'node:fs';
@@ -74,12 +74,18 @@ export function makePki(dir: string): TestPki {
 }
 
 export interface TlsKafka {
+  /** TLS with client certificates required. */
   broker: string;
+  /** SASL/PLAIN over TLS (server certificate only): user `SASL_USER` with `saslPassword`. */
+  saslBroker: string;
+  saslPassword: string;
   pki: TestPki;
   /** The broker's own output, for a failure message. */
   log(): string;
   stop(): Promise<void>;
 }
+
+export const SASL_USER = 'shore';
 
 const JVM = ['-Xms128m', '-Xmx384m', '-XX:+UseG1GC', '-XX:TieredStopAtLevel=1', '-Djava.awt.headless=true'];
 
@@ -91,16 +97,22 @@ export async function startTlsKafka(): Promise<TlsKafka> {
   const dir = mkdtempSync(join(tmpdir(), 'reefd-tls-kafka-'));
   const pki = makePki(mkdtempSync(join(dir, 'pki-')));
   const port = await freePort();
+  const saslPort = await freePort();
   const ctl = await freePort();
+  const saslPassword = randomBytes(12).toString('hex');
   const props = [
     'process.roles=broker,controller',
     'node.id=1',
     `controller.quorum.voters=1@127.0.0.1:${ctl}`,
-    `listeners=SSL://127.0.0.1:${port},CONTROLLER://127.0.0.1:${ctl}`,
-    `advertised.listeners=SSL://127.0.0.1:${port}`,
+    `listeners=SSL://127.0.0.1:${port},SASL_SSL://127.0.0.1:${saslPort},CONTROLLER://127.0.0.1:${ctl}`,
+    `advertised.listeners=SSL://127.0.0.1:${port},SASL_SSL://127.0.0.1:${saslPort}`,
     'controller.listener.names=CONTROLLER',
     'inter.broker.listener.name=SSL',
-    'listener.security.protocol.map=CONTROLLER:PLAINTEXT,SSL:SSL',
+    'listener.security.protocol.map=CONTROLLER:PLAINTEXT,SSL:SSL,SASL_SSL:SASL_SSL',
+    'sasl.enabled.mechanisms=PLAIN',
+    'listener.name.sasl_ssl.plain.sasl.jaas.config=org.apache.kafka.common.security.plain.PlainLoginModule ' +
+      `required user_${SASL_USER}="${saslPassword}";`,
+    'listener.name.sasl_ssl.ssl.client.auth=none',
     'ssl.keystore.type=PEM',
     `ssl.keystore.location=${join(pki.dir, 'broker-keystore.pem')}`,
     'ssl.truststore.type=PEM',
@@ -158,7 +170,7 @@ export async function startTlsKafka(): Promise<TlsKafka> {
       'private TLS Kafka listening',
       async () => {
         if (child.exitCode !== null) throw new Error(`broker exited ${child.exitCode}: ${log()}`);
-        return (await portOpen(port)) ? true : undefined;
+        return (await portOpen(port)) && (await portOpen(saslPort)) ? true : undefined;
       },
       60_000,
       100,
@@ -169,6 +181,8 @@ export async function startTlsKafka(): Promise<TlsKafka> {
   }
   return {
     broker: `127.0.0.1:${port}`,
+    saslBroker: `127.0.0.1:${saslPort}`,
+    saslPassword,
     pki,
     log,
     stop: async () => {
