@@ -6,7 +6,7 @@
 import path from 'node:path';
 import { ReefdError, type ReefdConfig } from '../../libs/contract/index.js';
 import { resolveSasl, tlsFiles } from '../daemon/outputs.js';
-import type { TlsFiles } from '../sinks/http.js';
+import type { TlsFiles } from '../transport/tls.js';
 
 export interface ShoreKafkaSecurity {
   tls: TlsFiles | undefined;

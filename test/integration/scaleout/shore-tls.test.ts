@@ -17,8 +17,8 @@ import { createDirectoryStateStore } from '../../../services/scaleout/state-stor
 import { shoreKafkaSecurity } from '../../../services/scaleout/shore-security.js';
 import { loadShoreSites } from '../../../services/scaleout/shore-sites.js';
 import { createShoreMember } from '../../../services/scaleout/shore.js';
-import { tlsOptions } from '../../../services/sinks/http.js';
-import { kafkaClient } from '../../../services/sinks/kafka-sink.js';
+import { tlsOptions } from '../../../services/transport/tls.js';
+import { kafkaClient } from '../../../services/transport/kafka-client.js';
 import { pollUntil } from '../env.js';
 import { quietLogger } from '../io/fixtures.js';
 import { deployment } from './fixtures.js';
