@@ -16,9 +16,9 @@ export default defineConfig({
       include: ['libs/**/*.ts', 'services/**/*.ts'],
       exclude: ['**/*.test.ts'],
       reporter: ['text-summary'],
-      // The level the unit tests reached when the threshold was set (79.5 / 73.1 / 72.0 / 81.9 %): a change
-      // that lowers it fails `npm test`. Raise these as coverage grows; never lower them.
-      thresholds: { statements: 79, branches: 73, functions: 72, lines: 81 },
+      // Two points under the level the unit tests reached at 0.2.0 (89.1 / 83.1 / 87.3 / 91.4 %): a change
+      // that lowers coverage that far fails `npm test`. Raise these as coverage grows; never lower them.
+      thresholds: { statements: 87, branches: 81, functions: 85, lines: 89 },
     },
   },
 });
