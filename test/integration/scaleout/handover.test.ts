@@ -40,6 +40,9 @@ function member(
     store,
     snapshotEveryMs: 200,
     maxBytesPerPartition: 64 * 1024,
+    // Both members and the broker share a loaded CI machine: a generous session keeps a late heartbeat
+    // from rebalancing the group under the test (the kill below is what should move a partition).
+    sessionTimeoutMs: 30_000,
     onRecords: (records) => out.push(...records),
     logger: quietLogger(),
     ...(pace !== undefined ? { pace } : {}),
@@ -123,9 +126,10 @@ describe('scale-out: edge bridge and shore consumer group', () => {
       let heldAt: { partition: number; offset: bigint } | undefined;
       const a: ShoreMember = member(sites, topic, group, storeA, pair, ({ partition, offset }) => {
         if (!both) return settled; // held (heartbeating) until the group has settled on one partition each
-        const mine = a.assigned();
+        // Held at the first message past half of a partition a owns (one, unless the group rebalanced
+        // meanwhile and gave it both: b then takes over whatever a held when a is killed).
         const half = (hw.get(partition) ?? 0n) / 2n;
-        if (mine.length !== 1 || mine[0] !== partition || BigInt(offset) < half) return undefined;
+        if (!a.assigned().includes(partition) || BigInt(offset) < half) return undefined;
         heldAt ??= { partition, offset: BigInt(offset) };
         return new Promise<void>((r) => (release = r));
       });
