@@ -293,7 +293,15 @@ describe('the plots', () => {
 
   it('show every measured quantity of a station, and a card for the weather mast', async () => {
     await page.locator('#station-chips button[data-station="flat"]').click();
-    await page.waitForFunction(`document.querySelector('#station-title')?.textContent === 'Mid flat'`);
+    // A function, not a string: the page's CSP (script-src 'self') refuses eval, which a string predicate needs.
+    await page.waitForFunction(
+      () =>
+        (
+          globalThis as unknown as {
+            document: { querySelector(s: string): { textContent: string | null } | null };
+          }
+        ).document.querySelector('#station-title')?.textContent === 'Mid flat',
+    );
     for (const q of [
       'light.par_umol_m2_s',
       'carbonate.sal',
